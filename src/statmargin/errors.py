@@ -1,0 +1,73 @@
+"""Every refusal statmargin makes, as a typed error with a one-line message.
+
+Messages name the sheet, column or cell and say what to do. The command line maps
+each class to an exit code in one place (``EXIT_CODES`` below); nothing else
+decides exit codes.
+"""
+
+from __future__ import annotations
+
+
+class StatmarginError(Exception):
+    """Base class: a problem with the user's input or file, explained in one line."""
+
+
+class WorkbookError(StatmarginError):
+    """The workbook cannot be opened or read (missing, not a workbook, damaged)."""
+
+
+class SheetNotFoundError(StatmarginError):
+    """A named sheet is not in the workbook."""
+
+
+class ColumnNotFoundError(StatmarginError):
+    """A named column is not among the data sheet's headers."""
+
+
+class RoleError(StatmarginError):
+    """The roles sheet or the role options ask for something that cannot be done."""
+
+
+class OptionError(StatmarginError):
+    """A command-line or API option has a value that does not fit."""
+
+
+class NotEnoughDataError(StatmarginError):
+    """Too little usable data to run the requested test."""
+
+
+class WorkbookLockedError(StatmarginError):
+    """The workbook is open in a spreadsheet program (its lock file is present)."""
+
+
+class WriteError(StatmarginError):
+    """Writing the results failed; the original file was left as it was."""
+
+
+class ExcelBridgeError(StatmarginError):
+    """The Excel bridge is unavailable (xlwings missing or no open workbook)."""
+
+
+# Exit codes, mapped here and nowhere else. 2 is "your input is wrong"; 3 is
+# "the file is busy"; 4 is "writing failed"; 5 is an environment problem; 70 is
+# a bug in statmargin (EX_SOFTWARE from sysexits.h).
+EXIT_CODES: dict[type[StatmarginError], int] = {
+    WorkbookError: 2,
+    SheetNotFoundError: 2,
+    ColumnNotFoundError: 2,
+    RoleError: 2,
+    OptionError: 2,
+    NotEnoughDataError: 2,
+    WorkbookLockedError: 3,
+    WriteError: 4,
+    ExcelBridgeError: 5,
+}
+EXIT_BUG = 70
+
+
+def exit_code_for(error: StatmarginError) -> int:
+    """The exit code for an error: the nearest mapped class in its ancestry, else 2."""
+    for cls in type(error).__mro__:
+        if cls in EXIT_CODES:
+            return EXIT_CODES[cls]
+    return 2

@@ -1,0 +1,165 @@
+"""The result schema every method returns, and its JSON-ready records.
+
+One name per idea: the attribute names here are the JSON keys of ``--json`` output
+and the column names of the results sheet. Values stay numeric (full precision,
+``None`` where undefined); rounding happens only when a sheet is written.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import asdict, dataclass, field, fields
+from typing import Any
+
+# Designs, named as in the decision table (README "Which test is chosen").
+DESIGNS = (
+    "one_sample_categorical",
+    "one_sample_continuous",
+    "two_categorical",
+    "two_group_continuous",
+    "multi_group_continuous",
+    "two_continuous",
+    "paired_continuous",
+    "paired_categorical",
+)
+
+# Test identifiers used in records, in the results sheet and in the docs.
+TESTS = (
+    "chi_square_goodness_of_fit",
+    "binomial_exact",
+    "one_sample_t",
+    "wilcoxon_signed_rank",
+    "chi_square_independence",
+    "fisher_exact",
+    "student_t",
+    "welch_t",
+    "mann_whitney_u",
+    "one_way_anova",
+    "welch_anova",
+    "kruskal_wallis",
+    "pearson_r",
+    "spearman_rho",
+    "paired_t",
+    "mcnemar",
+)
+
+# How a p-value was obtained; shown beside it because it changes what it means.
+P_METHODS = (
+    "exact",
+    "asymptotic",  # large-sample distribution (t, F, chi-square) of the statistic
+    "normal_approximation",
+    "normal_approximation_continuity",  # with continuity correction
+    "monte_carlo",
+)
+
+
+def _clean(value: Any) -> Any:
+    """Turn NaN/inf and numpy scalars into JSON-safe Python values (None for undefined)."""
+    if value is None:
+        return None
+    if hasattr(value, "item") and not isinstance(value, (list, tuple, dict)):
+        value = value.item()
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    if isinstance(value, dict):
+        return {str(k): _clean(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_clean(v) for v in value]
+    return value
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """A quantity in the outcome's own units (or a share, r, rho) with its confidence interval."""
+
+    name: str
+    value: float | None
+    ci_low: float | None = None
+    ci_high: float | None = None
+
+    def to_record(self) -> dict[str, Any]:
+        return _clean(asdict(self))
+
+
+@dataclass(frozen=True)
+class Effect:
+    """A standardized effect size (Hedges' g, rank-biserial r, Cramer's V, ...) with its CI."""
+
+    name: str
+    value: float | None
+    ci_low: float | None = None
+    ci_high: float | None = None
+
+    def to_record(self) -> dict[str, Any]:
+        return _clean(asdict(self))
+
+
+@dataclass(frozen=True)
+class Followup:
+    """One pairwise comparison after a 3+ group test (or one cell of a larger table)."""
+
+    test: str  # "tukey_hsd", "games_howell", "dunn", "adjusted_residual"
+    levels: tuple[str, ...]  # the two group labels (or row label, column label for a cell)
+    estimate: Estimate | None
+    p_value: float | None
+    p_adjusted: float | None
+    statistic: float | None = None
+    flagged: bool = False  # below the chosen level after adjustment (or |z| > 2 for cells)
+    reading: str | None = None
+
+    def to_record(self) -> dict[str, Any]:
+        rec = {f.name: getattr(self, f.name) for f in fields(self)}
+        rec["levels"] = list(self.levels)
+        rec["estimate"] = self.estimate.to_record() if self.estimate else None
+        return _clean(rec)
+
+
+@dataclass
+class Result:
+    """One analysis: the numbers people act on, how they were chosen, and the checks behind them.
+
+    ``skipped`` holds a plain reason when the data could not support the test
+    (a constant column, a group of one, no complete pairs); the numeric fields are
+    then ``None``. A skipped result is still reported, never dropped.
+    """
+
+    outcome: str
+    exposure: str | None
+    design: str
+    test: str | None
+    statistic_name: str | None = None
+    statistic: float | None = None
+    df: float | list[float] | None = None
+    p_value: float | None = None
+    p_adjusted: float | None = None
+    p_method: str | None = None
+    alternative: str = "two-sided"
+    confidence: float = 0.95
+    n: int = 0
+    n_excluded: int = 0
+    estimate: Estimate | None = None
+    effect: Effect | None = None
+    groups: list[dict[str, Any]] = field(default_factory=list)
+    shape: dict[str, Any] = field(default_factory=dict)
+    reasons: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)  # statistical caveats raised while computing
+    followups: list[Followup] = field(default_factory=list)
+    skipped: str | None = None
+    against: Any = None  # the fixed value or shares of a one-sample question
+    pairing: str | None = None  # the pairing key or second measurement column
+    reading: str | None = None
+    cautions: list[str] = field(default_factory=list)
+    # Extra numbers a method reports beside the main ones (e.g. expected counts).
+    extra: dict[str, Any] = field(default_factory=dict)
+
+    def to_record(self) -> dict[str, Any]:
+        """A JSON-ready dict with the documented keys (see README "JSON output")."""
+        rec: dict[str, Any] = {}
+        for f in fields(self):
+            value = getattr(self, f.name)
+            if isinstance(value, (Estimate, Effect)):
+                value = value.to_record()
+            elif f.name == "followups":
+                value = [fu.to_record() for fu in value]
+            rec[f.name] = value
+        return _clean(rec)

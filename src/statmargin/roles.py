@@ -1,0 +1,93 @@
+"""The user's choices: column roles, measurement types, shape handling and run settings.
+
+Enum values are the exact words a user picks in the roles sheet's dropdowns, so
+the sheet, the command line and the Python API share one vocabulary.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from enum import Enum
+
+
+class Role(str, Enum):
+    """What a column is for in the analyses."""
+
+    OUTCOME = "outcome"
+    COMPARE_BY = "compare by"
+    PAIRING_KEY = "pairing key"
+    IGNORE = "ignore"
+
+
+class MeasureType(str, Enum):
+    """How a column's values are measured (inferred, or set by the user)."""
+
+    CONTINUOUS = "continuous"
+    CATEGORICAL = "categorical"
+    ORDINAL = "ordinal"  # only when the user says so
+    DATE = "date"
+    IDENTIFIER = "identifier"
+    EMPTY = "empty"
+
+
+class ShapeHandling(str, Enum):
+    """Whether to let the shape checks choose the test, or to fix the family."""
+
+    AUTO = "auto"
+    NORMAL = "assume normal"
+    RANK = "rank-based"
+
+
+class AdjustMethod(str, Enum):
+    """Multiple-comparison adjustment across one run."""
+
+    HOLM = "holm"
+    BH = "benjamini-hochberg"
+    NONE = "none"
+
+
+class Alternative(str, Enum):
+    TWO_SIDED = "two-sided"
+    GREATER = "greater"
+    LESS = "less"
+
+
+@dataclass(frozen=True)
+class Settings:
+    """Run-wide settings; defaults are defined here once."""
+
+    confidence: float = 0.95
+    adjust: AdjustMethod = AdjustMethod.HOLM
+    alternative: Alternative = Alternative.TWO_SIDED
+    alpha: float = 0.05  # level for flags and follow-up comparisons (common practice)
+    seed: int = 20261202  # Monte Carlo p-values are reproducible run to run
+    monte_carlo_resamples: int = 20000
+
+
+@dataclass
+class ColumnChoice:
+    """The user's choices for one column (from the roles sheet or options)."""
+
+    name: str
+    role: Role = Role.IGNORE
+    treat_as: MeasureType | None = None  # None = use the inferred type
+    shape: ShapeHandling = ShapeHandling.AUTO
+    against: str | None = None  # comparison value for one-sample questions, as typed
+    paired_with: str | None = None  # wide-form pair: the other measurement column
+    order: list[str] | None = None  # ordinal label order, lowest first
+
+
+@dataclass
+class Plan:
+    """Everything needed to run: which sheet, which columns in which roles, and settings."""
+
+    sheet: str | None = None
+    header_row: int | None = None  # None = first non-empty row
+    columns: list[ColumnChoice] = field(default_factory=list)
+    settings: Settings = field(default_factory=Settings)
+
+    def choice(self, name: str) -> ColumnChoice | None:
+        for c in self.columns:
+            if c.name == name:
+                return c
+        return None

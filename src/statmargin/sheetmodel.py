@@ -1,0 +1,109 @@
+"""Sheet models: what the tool's sheets contain, independent of the file format.
+
+``report`` builds these; a writer back end (the package-level xlsx writer, or
+the xlwings bridge later) puts them into a workbook. Values stay typed: numbers
+are floats, and formatting is named by a style key the writer maps to a format.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+# Style keys a writer must support. Number formats are applied at write time only.
+STYLES = (
+    "text",  # plain text
+    "wrap",  # wrapped text (readings, reasons)
+    "title",  # sheet title line
+    "subtitle",  # section heading inside a sheet
+    "header",  # column header row
+    "label",  # left-hand label in a key/value block
+    "number",  # general number, 3 significant decimals shown
+    "integer",  # counts
+    "decimal2",  # two decimals
+    "p_value",  # shows <0.001 below 0.001, full value kept in the cell
+    "percent",  # 0.0%
+    "date",  # yyyy-mm-dd hh:mm
+    "link",  # hyperlink look
+    "input",  # a cell the user is meant to edit (roles sheet)
+    "muted",  # secondary information
+    "caution",  # cautions and warnings
+    "suppressed",  # a value hidden in sharing mode
+)
+
+
+@dataclass
+class Cell:
+    """One cell: a typed value, a style key, and optionally a link.
+
+    ``link`` is an internal target such as ``"'Data'!C17"`` (a sheet and cell),
+    written as a hyperlink. Text values are always written as text, never as a
+    formula, whatever they start with.
+    """
+
+    value: Any
+    style: str = "text"
+    link: str | None = None
+
+
+@dataclass
+class ChartSeries:
+    name: str
+    values: str  # range on a tool sheet, e.g. "'statmargin charts'!$C$5:$C$14"
+
+
+@dataclass
+class Chart:
+    """A native, editable chart over ranges of a tool sheet."""
+
+    kind: str  # "column" (histogram over computed bins) or "percent_bar" (stacked 100% bars)
+    title: str
+    categories: str  # range holding the category labels (bin edges or levels)
+    series: list[ChartSeries]
+    anchor: str  # top-left cell, e.g. "H3"
+    width_cells: int = 8
+    height_rows: int = 15
+    x_title: str | None = None
+    y_title: str | None = None
+
+
+@dataclass
+class Validation:
+    """A dropdown list on a range of cells (roles sheet)."""
+
+    cells: str  # e.g. "D5:D40"
+    choices: list[str]
+    prompt: str | None = None
+
+
+@dataclass
+class SheetModel:
+    """A whole tool sheet. ``kind`` is the marker that identifies it on re-runs."""
+
+    name: str  # preferred sheet name; the writer picks another if a user sheet has it
+    kind: str  # "roles", "results", "shape", "notes", "log", "charts"
+    cells: dict[tuple[int, int], Cell] = field(default_factory=dict)  # (row, col), 0-based
+    widths: dict[int, float] = field(default_factory=dict)  # column index -> width in characters
+    freeze: tuple[int, int] | None = None  # (rows, cols) frozen above/left
+    validations: list[Validation] = field(default_factory=list)
+    charts: list[Chart] = field(default_factory=list)
+    merged: list[str] = field(default_factory=list)  # ranges such as "A1:F1"
+    anchors: dict[str, str] = field(default_factory=dict)  # named spot -> cell, for links
+
+    def put(self, row: int, col: int, value: Any, style: str = "text", link: str | None = None) -> None:
+        """Set one cell (0-based row and column)."""
+        self.cells[(row, col)] = Cell(value, style, link)
+
+    def put_row(self, row: int, values: list[Any], style: str = "text", start_col: int = 0) -> None:
+        """Set a row of cells with one style; a value that is already a Cell keeps its own."""
+        for offset, value in enumerate(values):
+            cell = value if isinstance(value, Cell) else Cell(value, style)
+            self.cells[(row, start_col + offset)] = cell
+
+    @property
+    def n_rows(self) -> int:
+        return 1 + max((r for r, _ in self.cells), default=-1)
+
+    @property
+    def n_cols(self) -> int:
+        return 1 + max((c for _, c in self.cells), default=-1)
