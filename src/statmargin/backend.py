@@ -25,6 +25,14 @@ class TableRange:
     last_col: int  # 0-based
 
 
+# How a tool sheet is recognised on a re-run: a hidden, sheet-scoped defined name
+# ``statmargin_sheet`` whose value is the sheet's kind as a string constant, e.g.
+# <definedName name="statmargin_sheet" localSheetId="3" hidden="1">"results"</definedName>.
+# Spreadsheet programs keep defined names (and renumber localSheetId) when sheets
+# move or are renamed, so a user sheet that merely shares a name is never taken.
+TOOL_SHEET_MARKER = "statmargin_sheet"
+
+
 class WorkbookSource(Protocol):
     """Read access to a workbook's cell values."""
 

@@ -36,9 +36,11 @@ STYLES = (
 class Cell:
     """One cell: a typed value, a style key, and optionally a link.
 
-    ``link`` is an internal target such as ``"'Data'!C17"`` (a sheet and cell),
-    written as a hyperlink. Text values are always written as text, never as a
-    formula, whatever they start with.
+    ``link`` is an internal target: a user sheet and cell such as ``"'Data'!C17"``,
+    or a tool sheet named by its kind in braces, ``"{shape}!A40"``, because the
+    writer may have to give a tool sheet another name than the preferred one; it
+    resolves the placeholder to the final, quoted sheet name. Text values are
+    always written as text, never as a formula, whatever they start with.
     """
 
     value: Any
@@ -49,7 +51,7 @@ class Cell:
 @dataclass
 class ChartSeries:
     name: str
-    values: str  # range on a tool sheet, e.g. "'statmargin charts'!$C$5:$C$14"
+    values: str  # range on the chart's own sheet, without a sheet name: "$C$5:$C$14"
 
 
 @dataclass
@@ -58,7 +60,7 @@ class Chart:
 
     kind: str  # "column" (histogram over computed bins) or "percent_bar" (stacked 100% bars)
     title: str
-    categories: str  # range holding the category labels (bin edges or levels)
+    categories: str  # range on the chart's own sheet holding the labels, e.g. "$B$5:$B$14"
     series: list[ChartSeries]
     anchor: str  # top-left cell, e.g. "H3"
     width_cells: int = 8
