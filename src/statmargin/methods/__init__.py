@@ -1,0 +1,1 @@
+"""Statistical tests: each module takes plain numpy arrays and returns a ``Result``."""

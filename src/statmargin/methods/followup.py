@@ -1,0 +1,418 @@
+"""Follow-up comparisons after a test of three or more groups, or of a larger table.
+
+Pairs come in R's order: for levels g1, g2, g3 the pairs are (g2, g1), (g3, g1),
+(g3, g2), and each difference is the later level minus the earlier one, as R's
+``TukeyHSD`` and ``pairwise.wilcox.test`` print them. Every function returns a
+list of ``statmargin.results.Followup``.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterator, Mapping, Sequence
+from typing import Any
+
+import numpy as np
+from scipy import stats
+
+from statmargin.adjust import adjust_p
+from statmargin.errors import NotEnoughDataError, OptionError
+from statmargin.methods._common import accurate_mean, clean, sum_of_squares
+from statmargin.methods.categorical import _count_table
+from statmargin.results import Estimate, Followup
+from statmargin.roles import AdjustMethod
+
+DEFAULT_ALPHA = 0.05  # level for flags (common practice), as Settings.alpha
+RESIDUAL_FLAG = 2.0  # |adjusted residual| above this is flagged (Agresti, common practice)
+
+
+def _clean_groups(groups: Mapping[str, Any], minimum: int = 2) -> list[tuple[str, np.ndarray]]:
+    """Labels and finite values per group; refuse fewer than two groups or tiny groups."""
+    cleaned = []
+    for label, values in groups.items():
+        kept, _ = clean(values, f"group '{label}'")
+        if kept.size < minimum:
+            raise NotEnoughDataError(
+                f"Group '{label}' has {kept.size} usable value(s); pairwise comparisons need "
+                f"at least {minimum} per group, so merge or drop that group."
+            )
+        cleaned.append((str(label), kept))
+    if len(cleaned) < 2:
+        raise NotEnoughDataError(
+            "Pairwise comparisons need at least two groups; only one was given."
+        )
+    return cleaned
+
+
+def _pairs(
+    items: list[tuple[str, np.ndarray]],
+) -> Iterator[tuple[tuple[str, np.ndarray], tuple[str, np.ndarray]]]:
+    """(later, earlier) pairs in R's order."""
+    for i in range(len(items)):
+        for j in range(i + 1, len(items)):
+            yield items[j], items[i]
+
+
+def _check_confidence(confidence: float) -> float:
+    if not (0.0 < float(confidence) < 1.0):
+        raise OptionError(f"Confidence level {confidence} is not between 0 and 1; use e.g. 0.95.")
+    return float(confidence)
+
+
+def _mean_difference_name(a: str, b: str) -> str:
+    return f"difference in means ('{a}' - '{b}')"
+
+
+def tukey_hsd(
+    groups: Mapping[str, Any], *, confidence: float = 0.95, alpha: float = DEFAULT_ALPHA
+) -> list[Followup]:
+    """Tukey's honestly significant difference for all pairs of group means.
+
+    Parameters
+    ----------
+    groups : mapping of str to array_like
+        Values per group, in display order. Non-finite values are dropped.
+    confidence : float
+        Family-wise confidence level of the intervals.
+    alpha : float
+        Level for ``flagged``.
+
+    Returns
+    -------
+    list of Followup
+        test "tukey_hsd"; ``estimate`` is the difference in means (later -
+        earlier level) with its simultaneous interval; ``statistic`` is the
+        studentized range q; ``p_adjusted`` is the family-wise p-value;
+        ``p_value`` is None because Tukey's method has no per-pair unadjusted
+        p-value.
+
+    Notes
+    -----
+    Tukey-Kramer form for unequal group sizes: se = sqrt(MSE/2 (1/n_a + 1/n_b)),
+    q = |diff| / se on k groups and N - k df; intervals diff +- q_crit se. This
+    is R's ``TukeyHSD(aov(y ~ g))``. Assumes equal variances and roughly normal
+    residuals.
+
+    References
+    ----------
+    Tukey, J. W. (1949). Comparing individual means in the analysis of variance.
+    Biometrics 5(2), 99-114. https://doi.org/10.2307/3001913
+    Kramer, C. Y. (1956). Extension of multiple range tests to group means with
+    unequal numbers of replications. Biometrics 12(3), 307-310.
+    https://doi.org/10.2307/3001469
+    """
+    confidence = _check_confidence(confidence)
+    items = _clean_groups(groups)
+    k = len(items)
+    n_total = sum(v.size for _, v in items)
+    df = n_total - k
+    means = {label: accurate_mean(v) for label, v in items}
+    mse = sum(sum_of_squares(v, means[label]) for label, v in items) / df
+    if mse <= 0.0:
+        raise NotEnoughDataError(
+            "Every group has no spread (all values equal within each group), so Tukey's comparisons cannot be made."
+        )
+    q_crit = float(stats.studentized_range.ppf(confidence, k, df))
+    out = []
+    for (a, xa), (b, xb) in _pairs(items):
+        diff = means[a] - means[b]
+        se = math.sqrt(mse / 2.0 * (1.0 / xa.size + 1.0 / xb.size))
+        q = abs(diff) / se
+        p_adj = float(np.clip(stats.studentized_range.sf(q, k, df), 0.0, 1.0))
+        out.append(
+            Followup(
+                test="tukey_hsd",
+                levels=(a, b),
+                estimate=Estimate(
+                    name=_mean_difference_name(a, b),
+                    value=diff,
+                    ci_low=diff - q_crit * se,
+                    ci_high=diff + q_crit * se,
+                ),
+                p_value=None,
+                p_adjusted=p_adj,
+                statistic=q,
+                flagged=p_adj < alpha,
+            )
+        )
+    return out
+
+
+def games_howell(
+    groups: Mapping[str, Any], *, confidence: float = 0.95, alpha: float = DEFAULT_ALPHA
+) -> list[Followup]:
+    """Games-Howell comparisons of all pairs of means without assuming equal variances.
+
+    Parameters
+    ----------
+    groups : mapping of str to array_like
+        Values per group, in display order (at least 2 finite values each).
+    confidence : float
+        Family-wise confidence level of the intervals.
+    alpha : float
+        Level for ``flagged``.
+
+    Returns
+    -------
+    list of Followup
+        test "games_howell"; ``estimate`` the difference in means (later -
+        earlier) with its interval; ``statistic`` the Welch t; ``p_adjusted`` the
+        studentized-range p-value; ``p_value`` None (no unadjusted version).
+
+    Notes
+    -----
+    For each pair: se = sqrt(s_a^2/n_a + s_b^2/n_b), Welch-Satterthwaite df,
+    t = diff / se, p = P(Q_{k, df} > sqrt(2) |t|), interval diff +- q_crit /
+    sqrt(2) * se.
+
+    References
+    ----------
+    Games, P. A. and Howell, J. F. (1976). Pairwise multiple comparison
+    procedures with unequal n's and/or variances: a Monte Carlo study. Journal
+    of Educational Statistics 1(2), 113-125. https://doi.org/10.3102/10769986001002113
+    """
+    confidence = _check_confidence(confidence)
+    items = _clean_groups(groups)
+    k = len(items)
+    summary = {}
+    for label, values in items:
+        mean = accurate_mean(values)
+        summary[label] = (mean, sum_of_squares(values, mean) / (values.size - 1), values.size)
+    out = []
+    for (a, _), (b, _) in _pairs(items):
+        mean_a, var_a, n_a = summary[a]
+        mean_b, var_b, n_b = summary[b]
+        wa, wb = var_a / n_a, var_b / n_b
+        se = math.sqrt(wa + wb)
+        if se == 0.0:
+            raise NotEnoughDataError(
+                f"Groups '{a}' and '{b}' both have no spread (all values equal), so they cannot be compared this way."
+            )
+        df = (wa + wb) ** 2 / (wa**2 / (n_a - 1) + wb**2 / (n_b - 1))
+        diff = mean_a - mean_b
+        t = diff / se
+        p_adj = float(np.clip(stats.studentized_range.sf(abs(t) * math.sqrt(2.0), k, df), 0.0, 1.0))
+        half = float(stats.studentized_range.ppf(confidence, k, df)) / math.sqrt(2.0) * se
+        out.append(
+            Followup(
+                test="games_howell",
+                levels=(a, b),
+                estimate=Estimate(
+                    name=_mean_difference_name(a, b),
+                    value=diff,
+                    ci_low=diff - half,
+                    ci_high=diff + half,
+                ),
+                p_value=None,
+                p_adjusted=p_adj,
+                statistic=t,
+                flagged=p_adj < alpha,
+            )
+        )
+    return out
+
+
+def dunn(
+    groups: Mapping[str, Any],
+    *,
+    adjust: AdjustMethod | str = "holm",
+    alpha: float = DEFAULT_ALPHA,
+) -> list[Followup]:
+    """Dunn's test: all pairs of mean ranks after a Kruskal-Wallis test.
+
+    Parameters
+    ----------
+    groups : mapping of str to array_like
+        Values per group, in display order.
+    adjust : {"holm", "benjamini-hochberg", "none"}
+        Adjustment over the k(k-1)/2 pairs.
+    alpha : float
+        Level for ``flagged``.
+
+    Returns
+    -------
+    list of Followup
+        test "dunn"; ``estimate`` the difference in mean ranks (later -
+        earlier level; ranks of the pooled data, no interval); ``statistic`` z;
+        ``p_value`` two-sided normal; ``p_adjusted`` after ``adjust``.
+
+    Notes
+    -----
+    z = (Rbar_a - Rbar_b) / sqrt((N(N+1)/12 - sum(t^3 - t) / (12 (N - 1)))
+    (1/n_a + 1/n_b)), with ties given average ranks and the tie correction
+    from the pooled ranking. The mean-rank difference is the quantity the test
+    is about; it is on the rank scale, not in the outcome's units.
+
+    References
+    ----------
+    Dunn, O. J. (1964). Multiple comparisons using rank sums. Technometrics
+    6(3), 241-252. https://doi.org/10.1080/00401706.1964.10490181
+    """
+    items = _clean_groups(groups)
+    pooled = np.concatenate([v for _, v in items])
+    ranks = stats.rankdata(pooled)
+    n_total = pooled.size
+    _, ties = np.unique(pooled, return_counts=True)
+    tie_term = float(np.sum(ties.astype(float) ** 3 - ties)) / (12.0 * (n_total - 1))
+    variance = n_total * (n_total + 1) / 12.0 - tie_term
+    if variance <= 0.0:
+        raise NotEnoughDataError(
+            "Every value is the same in all groups, so there are no rank differences to compare."
+        )
+    mean_rank, size, start = {}, {}, 0
+    for label, values in items:
+        mean_rank[label] = float(ranks[start : start + values.size].mean())
+        size[label] = values.size
+        start += values.size
+    rows = []
+    for (a, _), (b, _) in _pairs(items):
+        diff = mean_rank[a] - mean_rank[b]
+        z = diff / math.sqrt(variance * (1.0 / size[a] + 1.0 / size[b]))
+        rows.append((a, b, diff, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
+    adjusted = adjust_p([r[4] for r in rows], adjust)
+    return [
+        Followup(
+            test="dunn",
+            levels=(a, b),
+            estimate=Estimate(name=f"difference in mean ranks ('{a}' - '{b}')", value=diff),
+            p_value=p,
+            p_adjusted=p_adj,
+            statistic=z,
+            flagged=p_adj is not None and p_adj < alpha,
+        )
+        for (a, b, diff, z, p), p_adj in zip(rows, adjusted, strict=True)
+    ]
+
+
+def pairwise_mann_whitney(
+    groups: Mapping[str, Any],
+    *,
+    adjust: AdjustMethod | str = "holm",
+    correct: bool = True,
+    alpha: float = DEFAULT_ALPHA,
+) -> list[Followup]:
+    """Mann-Whitney tests on every pair of groups, adjusted over the pairs.
+
+    Parameters
+    ----------
+    groups : mapping of str to array_like
+        Values per group, in display order.
+    adjust : {"holm", "benjamini-hochberg", "none"}
+        Adjustment over the k(k-1)/2 pairs.
+    correct : bool
+        Continuity correction in the normal approximation.
+    alpha : float
+        Level for ``flagged``.
+
+    Returns
+    -------
+    list of Followup
+        test "pairwise_mann_whitney"; ``estimate`` the Hodges-Lehmann shift (median of
+        all later-minus-earlier differences, no interval); ``statistic`` U of
+        the later level; ``p_value`` unadjusted; ``p_adjusted`` after ``adjust``.
+
+    Notes
+    -----
+    Normal approximation with tie correction, as R
+    ``pairwise.wilcox.test(y, g, exact = FALSE)``: each pair uses only its own
+    two groups' ranks.
+
+    References
+    ----------
+    Mann, H. B. and Whitney, D. R. (1947). Annals of Mathematical Statistics
+    18(1), 50-60. https://doi.org/10.1214/aoms/1177730491
+    Hodges, J. L. and Lehmann, E. L. (1963). Annals of Mathematical Statistics
+    34(2), 598-611. https://doi.org/10.1214/aoms/1177704172
+    """
+    items = _clean_groups(groups)
+    rows = []
+    for (a, xa), (b, xb) in _pairs(items):
+        test = stats.mannwhitneyu(
+            xa, xb, use_continuity=correct, alternative="two-sided", method="asymptotic"
+        )
+        shift = float(np.median(np.subtract.outer(xa, xb)))
+        p = float(test.pvalue)
+        rows.append((a, b, shift, float(test.statistic), p if math.isfinite(p) else None))
+    adjusted = adjust_p([r[4] for r in rows], adjust)
+    return [
+        Followup(
+            test="pairwise_mann_whitney",
+            levels=(a, b),
+            estimate=Estimate(name=f"Hodges-Lehmann shift ('{a}' - '{b}')", value=shift),
+            p_value=p,
+            p_adjusted=p_adj,
+            statistic=u,
+            flagged=p_adj is not None and p_adj < alpha,
+        )
+        for (a, b, shift, u, p), p_adj in zip(rows, adjusted, strict=True)
+    ]
+
+
+def adjusted_residuals(
+    table: Any,
+    row_labels: Sequence[str],
+    col_labels: Sequence[str],
+    *,
+    threshold: float = RESIDUAL_FLAG,
+    adjust: AdjustMethod | str = "holm",
+) -> list[Followup]:
+    """Adjusted standardized residual of every cell of a table of counts.
+
+    Parameters
+    ----------
+    table : array_like, shape (r, c)
+        Counts.
+    row_labels, col_labels : sequence of str
+        One label per row and column.
+    threshold : float
+        Cells with |residual| above this are flagged (2 by default).
+    adjust : {"holm", "benjamini-hochberg", "none"}
+        Adjustment of the cell p-values over all r*c cells.
+
+    Returns
+    -------
+    list of Followup
+        Row by row; test "adjusted_residual", levels (row, column);
+        ``statistic`` the residual; ``estimate`` observed minus expected count;
+        ``p_value`` two-sided normal p of the residual; ``p_adjusted`` after
+        ``adjust``; ``flagged`` when |residual| > ``threshold``.
+
+    Notes
+    -----
+    r_ij = (O_ij - E_ij) / sqrt(E_ij (1 - row_i / n) (1 - col_j / n)), close to
+    standard normal under independence (Haberman 1973). Reading |r| > 2 as a
+    cell that departs from independence is common practice (Agresti 2013,
+    sec. 3.3.1); the flag does not itself adjust for the number of cells, so
+    ``p_adjusted`` is given beside it.
+
+    References
+    ----------
+    Haberman, S. J. (1973). The analysis of residuals in cross-classified
+    tables. Biometrics 29(1), 205-220. https://doi.org/10.2307/2529686
+    Agresti, A. (2013). Categorical Data Analysis, 3rd ed., Wiley.
+    """
+    counts = _count_table(table, row_labels, col_labels).astype(float)
+    n = counts.sum()
+    row_share = counts.sum(axis=1) / n
+    col_share = counts.sum(axis=0) / n
+    expected = np.outer(row_share, col_share) * n
+    residual = (counts - expected) / np.sqrt(expected * np.outer(1.0 - row_share, 1.0 - col_share))
+    cells = []
+    for i, row in enumerate(row_labels):
+        for j, col in enumerate(col_labels):
+            z = float(residual[i, j])
+            cells.append((str(row), str(col), float(counts[i, j] - expected[i, j]), z))
+    raw = [float(2.0 * stats.norm.sf(abs(c[3]))) for c in cells]
+    adjusted = adjust_p(raw, adjust)
+    return [
+        Followup(
+            test="adjusted_residual",
+            levels=(row, col),
+            estimate=Estimate(name="observed minus expected count", value=diff),
+            p_value=p,
+            p_adjusted=p_adj,
+            statistic=z,
+            flagged=abs(z) > threshold,
+        )
+        for (row, col, diff, z), p, p_adj in zip(cells, raw, adjusted, strict=True)
+    ]
