@@ -1,0 +1,357 @@
+"""Effect sizes and their confidence intervals, as small pure functions.
+
+Each function takes plain numbers (statistics, sample sizes) and returns numbers or
+an ``Effect``; none of them reads data frames or files.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Callable
+
+from scipy import optimize, special, stats
+
+from statmargin.results import Effect
+
+
+def hedges_correction(df: float) -> float:
+    """Small-sample bias factor J(df) that turns Cohen's d into Hedges' g.
+
+    Parameters
+    ----------
+    df : float
+        Degrees of freedom of the standard deviation used (n - 1 or n1 + n2 - 2).
+
+    Returns
+    -------
+    float
+        ``J = Gamma(df/2) / (sqrt(df/2) Gamma((df-1)/2))``, the exact factor.
+
+    References
+    ----------
+    Hedges, L. V. (1981). Distribution theory for Glass's estimator of effect size
+    and related estimators. Journal of Educational Statistics 6(2):107-128.
+    doi:10.3102/10769986006002107
+    """
+    if df <= 1:
+        return 1.0
+    log_j = special.gammaln(df / 2.0) - 0.5 * math.log(df / 2.0) - special.gammaln((df - 1.0) / 2.0)
+    return float(math.exp(log_j))
+
+
+def _solve_decreasing(function: Callable[[float], float], target: float, start: float) -> float:
+    """Root of ``function(x) = target`` for a decreasing function, bracketing outward from start."""
+    step = max(1.0, abs(start))
+    low, high = start - step, start + step
+    for _ in range(200):
+        if function(low) >= target:
+            break
+        low -= step
+        step *= 2.0
+    step = max(1.0, abs(start))
+    for _ in range(200):
+        if function(high) <= target:
+            break
+        high += step
+        step *= 2.0
+    return float(optimize.brentq(lambda x: function(x) - target, low, high, xtol=1e-12, rtol=1e-12))
+
+
+def noncentrality_interval(
+    t: float, df: float, alternative: str, confidence: float
+) -> tuple[float, float]:
+    """Confidence interval for the noncentrality parameter of an observed t statistic.
+
+    Parameters
+    ----------
+    t : float
+        Observed t statistic.
+    df : float
+        Its degrees of freedom.
+    alternative : str
+        ``"two-sided"``, ``"greater"`` (lower bound only) or ``"less"`` (upper bound only).
+    confidence : float
+        Confidence level.
+
+    Returns
+    -------
+    float, float
+        Lower and upper bound (``-inf``/``inf`` for an open side).
+
+    Notes
+    -----
+    Inverts the noncentral t distribution function: the bounds are the noncentrality
+    values under which the observed t sits at the upper and lower tail quantiles.
+    For |t| above ``NONCENTRAL_T_LIMIT`` (or if the inversion fails numerically) the
+    large-sample normal interval is used instead.
+
+    References
+    ----------
+    Steiger, J. H., & Fouladi, R. T. (1997). Noncentrality interval estimation and the
+    evaluation of statistical models. In: What If There Were No Significance Tests?
+    Erlbaum, pp. 221-257.
+    """
+
+    def cdf(ncp: float) -> float:
+        value = float(stats.nct.cdf(t, df, ncp)) if ncp != 0.0 else float(stats.t.cdf(t, df))
+        if not math.isfinite(value):
+            raise ValueError("noncentral t distribution function not finite")
+        return value
+
+    if abs(t) <= NONCENTRAL_T_LIMIT:
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore", RuntimeWarning)
+                return _invert_noncentral_t(cdf, t, alternative, confidence)
+        except (ValueError, RuntimeError):
+            pass  # numerically out of reach: use the large-sample form below
+    return _noncentrality_normal_interval(t, df, alternative, confidence)
+
+
+# Beyond this |t| the noncentral t distribution function loses accuracy in SciPy;
+# the large-sample interval is then accurate to well under 1% of its width.
+NONCENTRAL_T_LIMIT = 37.0
+
+
+def _invert_noncentral_t(
+    cdf: Callable[[float], float], t: float, alternative: str, confidence: float
+) -> tuple[float, float]:
+    """Bounds where the noncentral t distribution function hits the tail probabilities."""
+    if alternative == "two-sided":
+        tail = (1.0 - confidence) / 2.0
+        return _solve_decreasing(cdf, 1.0 - tail, t), _solve_decreasing(cdf, tail, t)
+    if alternative == "greater":
+        return _solve_decreasing(cdf, confidence, t), math.inf
+    return -math.inf, _solve_decreasing(cdf, 1.0 - confidence, t)
+
+
+def _noncentrality_normal_interval(
+    t: float, df: float, alternative: str, confidence: float
+) -> tuple[float, float]:
+    """Large-sample interval ``t +/- z sqrt(1 + t^2 / (2 df))`` for the noncentrality.
+
+    Notes
+    -----
+    The delta-method variance of Cohen's d (Hedges & Olkin 1985, Statistical Methods
+    for Meta-Analysis, ch. 5, eq. 14), written on the noncentrality scale.
+    """
+    spread = math.sqrt(1.0 + t * t / (2.0 * df))
+    if alternative == "two-sided":
+        q = float(stats.norm.ppf(1.0 - (1.0 - confidence) / 2.0))
+        return t - q * spread, t + q * spread
+    q = float(stats.norm.ppf(confidence))
+    if alternative == "greater":
+        return t - q * spread, math.inf
+    return -math.inf, t + q * spread
+
+
+def standardized_effect(
+    name: str,
+    t: float,
+    df: float,
+    scale: float,
+    alternative: str,
+    confidence: float,
+) -> Effect:
+    """Hedges-corrected standardized difference ``J(df) * t * scale`` with a noncentral-t CI.
+
+    Parameters
+    ----------
+    name : str
+        Name shown for the effect.
+    t, df : float
+        The t statistic that standardizes the difference, and its degrees of freedom.
+    scale : float
+        Factor from t to Cohen's d: ``1/sqrt(n)`` (one sample, pairs) or
+        ``sqrt(1/n1 + 1/n2)`` (two samples, pooled SD).
+    alternative, confidence
+        As for the test.
+
+    Returns
+    -------
+    Effect
+        Value and bounds all multiplied by the same J(df), so the interval matches the
+        corrected estimate (Hedges & Olkin 1985, Statistical Methods for Meta-Analysis).
+    """
+    correction = hedges_correction(df)
+    low, high = noncentrality_interval(t, df, alternative, confidence)
+    return Effect(
+        name=name,
+        value=correction * t * scale,
+        ci_low=correction * low * scale,
+        ci_high=correction * high * scale,
+    )
+
+
+def fisher_z_interval(
+    r: float, standard_error: float, alternative: str, confidence: float, edge: float = 1.0 - 1e-15
+) -> tuple[float, float]:
+    """Interval for a correlation-like quantity in (-1, 1) via Fisher's z = atanh(r).
+
+    Parameters
+    ----------
+    edge : float
+        ``r`` is held inside [-edge, edge] before the transform, so a perfect value
+        gives finite bounds rather than NaN.
+
+    Notes
+    -----
+    One-sided questions give a one-sided interval (open side +/-1).
+    """
+    z = math.atanh(max(-edge, min(edge, r)))
+    if alternative == "two-sided":
+        q = float(stats.norm.ppf(1.0 - (1.0 - confidence) / 2.0))
+        return math.tanh(z - q * standard_error), math.tanh(z + q * standard_error)
+    q = float(stats.norm.ppf(confidence))
+    if alternative == "greater":
+        return math.tanh(z - q * standard_error), 1.0
+    return -1.0, math.tanh(z + q * standard_error)
+
+
+def rank_biserial_signed(
+    v_plus: float, n: int, alternative: str, confidence: float
+) -> Effect:
+    """Matched-pairs rank-biserial correlation from the signed-rank sum V.
+
+    Parameters
+    ----------
+    v_plus : float
+        Sum of ranks of the positive differences (R's V), zeros already dropped.
+    n : int
+        Number of non-zero differences.
+
+    Returns
+    -------
+    Effect
+        ``r = (V+ - V-) / (V+ + V-) = 4 V / (n (n + 1)) - 1`` with a Fisher-z interval.
+
+    Notes
+    -----
+    The interval uses the null standard deviation of r,
+    ``sqrt(n (n + 1) (2 n + 1) / 6) / (n (n + 1) / 2)``, on the atanh scale: an
+    approximation that is adequate for moderate n. A perfect r = +/-1 is moved in by
+    half a step of V (2 / (n (n + 1))) before the transform, a continuity-style
+    adjustment so the interval does not collapse onto the boundary.
+
+    References
+    ----------
+    Kerby, D. S. (2014). The simple difference formula: an approach to teaching
+    nonparametric correlation. Comprehensive Psychology 3:11.IT.3.1.
+    doi:10.2466/11.IT.3.1
+    """
+    total = n * (n + 1) / 2.0
+    r = 2.0 * v_plus / total - 1.0
+    se = math.sqrt(n * (n + 1) * (2 * n + 1) / 6.0) / total
+    low, high = fisher_z_interval(r, se, alternative, confidence, edge=1.0 - 2.0 / (n * (n + 1)))
+    return Effect(name="rank-biserial r (matched pairs)", value=r, ci_low=low, ci_high=high)
+
+
+def rank_biserial_two_sample(
+    u_first: float, n1: int, n2: int, alternative: str, confidence: float
+) -> Effect:
+    """Rank-biserial correlation of two groups from the first group's U (R's W).
+
+    Returns
+    -------
+    Effect
+        ``r = 2 U1 / (n1 n2) - 1``: +1 when every value of the first group is above
+        every value of the second, -1 for the reverse. Fisher-z interval with the null
+        SD ``sqrt((n1 + n2 + 1) / (3 n1 n2))``; a perfect r = +/-1 is moved in by half
+        a step of U (1 / (n1 n2)) before the transform so the interval does not
+        collapse onto the boundary.
+
+    References
+    ----------
+    Glass, G. V. (1966). Note on rank biserial correlation. Educational and
+    Psychological Measurement 26(3):623-631. doi:10.1177/001316446602600307
+    """
+    r = 2.0 * u_first / (n1 * n2) - 1.0
+    se = math.sqrt((n1 + n2 + 1) / (3.0 * n1 * n2))
+    low, high = fisher_z_interval(r, se, alternative, confidence, edge=1.0 - 1.0 / (n1 * n2))
+    return Effect(name="rank-biserial r", value=r, ci_low=low, ci_high=high)
+
+
+def eta_squared(between: float, total: float) -> float:
+    """Share of the total sum of squares that lies between groups, SSB / SST."""
+    return between / total
+
+
+def omega_squared(between: float, within: float, k: int, n_total: int) -> float:
+    """Less biased share of variance between groups.
+
+    Notes
+    -----
+    ``(SSB - (k - 1) MSW) / (SST + MSW)`` (Hays 1963, Statistics for Psychologists);
+    can be slightly negative for small effects, which is reported as is.
+    """
+    msw = within / (n_total - k)
+    return (between - (k - 1) * msw) / (between + within + msw)
+
+
+def epsilon_squared(h: float, n_total: int) -> float:
+    """Epsilon-squared for Kruskal-Wallis, ``H / ((n^2 - 1) / (n + 1)) = H / (n - 1)``.
+
+    References
+    ----------
+    Tomczak, M., & Tomczak, E. (2014). The need to report effect size estimates
+    revisited. Trends in Sport Sciences 1(21):19-25.
+    """
+    return h / (n_total - 1.0)
+
+
+def variance_share_interval(
+    f: float, df1: float, df2: float, n_total: int, confidence: float
+) -> tuple[float, float]:
+    """Two-sided CI for the population share of variance between groups.
+
+    Parameters
+    ----------
+    f : float
+        Observed F of the classic one-way ANOVA.
+    df1, df2 : float
+        Its degrees of freedom.
+    n_total : int
+        Total number of observations.
+    confidence : float
+        Confidence level.
+
+    Returns
+    -------
+    float, float
+        Bounds of ``lambda / (lambda + N)``, from the noncentrality interval of F.
+
+    Notes
+    -----
+    Inverts the noncentral F distribution function in its noncentrality lambda
+    (a bound is 0 when even lambda = 0 places F beyond the tail). Both eta-squared
+    and omega-squared estimate this population share.
+
+    References
+    ----------
+    Steiger, J. H. (2004). Beyond the F test: effect size confidence intervals and
+    tests of close fit in the analysis of variance and contrast analysis.
+    Psychological Methods 9(2):164-182. doi:10.1037/1082-989X.9.2.164
+    """
+
+    def cdf(ncp: float) -> float:
+        if ncp <= 0.0:
+            return float(stats.f.cdf(f, df1, df2))
+        return float(stats.ncf.cdf(f, df1, df2, ncp))
+
+    tail = (1.0 - confidence) / 2.0
+    at_zero = cdf(0.0)
+    start = max(f * df1 - df1, 1.0)
+
+    def bound(target: float) -> float:
+        if at_zero <= target:
+            return 0.0
+        high = start
+        for _ in range(200):
+            if cdf(high) <= target:
+                break
+            high *= 2.0
+        return float(optimize.brentq(lambda x: cdf(x) - target, 0.0, high, xtol=1e-10, rtol=1e-12))
+
+    low_ncp, high_ncp = bound(1.0 - tail), bound(tail)
+    return low_ncp / (low_ncp + n_total), high_ncp / (high_ncp + n_total)

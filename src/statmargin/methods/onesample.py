@@ -1,0 +1,393 @@
+"""One sample against a fixed value: one-sample t and Wilcoxon signed-rank.
+
+The signed-rank machinery (exact null distribution, Hodges-Lehmann interval) lives
+here and is reused by ``paired`` on the pairwise differences.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy import optimize, stats
+
+from statmargin.methods import _common as common
+from statmargin.methods import effects
+from statmargin.results import Estimate, Result
+
+EXACT_LIMIT = 50  # exact null distribution below this many non-zero differences (R's rule)
+
+
+def one_sample_t(
+    x: np.ndarray,
+    *,
+    mu: float = 0.0,
+    alternative: str = "two-sided",
+    confidence: float = 0.95,
+) -> Result:
+    """One-sample t-test of the mean against ``mu``.
+
+    Parameters
+    ----------
+    x : numpy.ndarray
+        Outcome values (NaN dropped and counted in ``n_excluded``).
+    mu : float
+        The fixed value the mean is compared with.
+    alternative : {"two-sided", "greater", "less"}
+        ``greater``: the mean is above ``mu``.
+    confidence : float
+        Level of the confidence intervals.
+
+    Returns
+    -------
+    Result
+        Estimate "mean difference from {mu}" (mean - mu) with a t interval; effect
+        Hedges' g = J(n-1) (mean - mu) / sd with a noncentral-t interval.
+
+    Notes
+    -----
+    Assumes independent values whose mean is close to normally distributed (roughly
+    normal data or a large sample). Matches R's ``t.test(x, mu = mu)``.
+
+    References
+    ----------
+    Student (1908). The probable error of a mean. Biometrika 6(1):1-25.
+    doi:10.1093/biomet/6.1.1
+    """
+    common.check_options(alternative, confidence)
+    values, dropped = common.clean(x)
+    common.require_count(values, 2, "the outcome")
+    common.require_spread(values, "the outcome")
+    summary = common.describe("all", values)
+    n = values.size
+    se = summary["sd"] / math.sqrt(n)
+    difference = summary["mean"] - mu
+    t = difference / se
+    df = n - 1
+    low, high = common.t_interval(difference, se, df, alternative, confidence)
+    effect = effects.standardized_effect("Hedges' g", t, df, 1.0 / math.sqrt(n), alternative, confidence)
+    return Result(
+        outcome="",
+        exposure=None,
+        design="one_sample_continuous",
+        test="one_sample_t",
+        statistic_name="t",
+        statistic=t,
+        df=float(df),
+        p_value=common.p_from_t(t, df, alternative),
+        p_method="asymptotic",
+        alternative=alternative,
+        confidence=confidence,
+        n=int(n),
+        n_excluded=dropped,
+        estimate=Estimate(f"mean difference from {common.format_number(mu)}", difference, low, high),
+        effect=effect,
+        groups=[summary],
+        against=mu,
+    )
+
+
+def wilcoxon_signed_rank(
+    x: np.ndarray,
+    *,
+    mu: float = 0.0,
+    alternative: str = "two-sided",
+    confidence: float = 0.95,
+    exact: bool | str = "auto",
+    correct: bool = True,
+) -> Result:
+    """Wilcoxon signed-rank test of the centre of ``x`` against ``mu``.
+
+    Parameters
+    ----------
+    x : numpy.ndarray
+        Outcome values (NaN dropped).
+    mu : float
+        The fixed value.
+    alternative : {"two-sided", "greater", "less"}
+        ``greater``: values tend to lie above ``mu``.
+    confidence : float
+        Level of the interval for the pseudo-median.
+    exact : {"auto", True, False}
+        ``"auto"``: exact null distribution when fewer than 50 non-zero differences,
+        no ties and no zero differences; otherwise the normal approximation.
+        ``True`` asks for exact but still falls back (with a note) when ties or zeros
+        make it impossible.
+    correct : bool
+        Continuity correction in the normal approximation (R's default ``TRUE``).
+
+    Returns
+    -------
+    Result
+        Statistic V (sum of ranks of positive differences x - mu, as R reports it);
+        estimate "pseudo-median" of x (Hodges-Lehmann: median of the Walsh averages)
+        with its interval; effect matched-pairs rank-biserial r.
+
+    Notes
+    -----
+    Zero differences are dropped before ranking (Wilcoxon's convention, as R does),
+    also for the pseudo-median and its interval (as R does), and their count is reported in ``extra["n_zero_differences"]``. The approximate p uses
+    the tie-corrected variance. The interval follows R's ``wilcox.test(conf.int =
+    TRUE)``: order statistics of Walsh averages (exact) or inversion of the
+    approximate statistic (approximate). The test assumes differences symmetric
+    about their centre.
+
+    References
+    ----------
+    Wilcoxon, F. (1945). Individual comparisons by ranking methods. Biometrics
+    Bulletin 1(6):80-83. doi:10.2307/3001968
+    Hodges, J. L., & Lehmann, E. L. (1963). Estimates of location based on rank tests.
+    Annals of Mathematical Statistics 34(2):598-611. doi:10.1214/aoms/1177704172
+    """
+    common.check_options(alternative, confidence)
+    values, dropped = common.clean(x)
+    common.require_count(values, 1, "the outcome")
+    result = signed_rank_result(
+        values,
+        mu=mu,
+        alternative=alternative,
+        confidence=confidence,
+        exact=exact,
+        correct=correct,
+        what="the outcome",
+    )
+    result.design = "one_sample_continuous"
+    result.groups = [common.describe("all", values)]
+    result.n_excluded = dropped
+    result.against = mu
+    result.estimate = Estimate("pseudo-median", *_estimate_parts(result.estimate))
+    return result
+
+
+def _estimate_parts(estimate: Estimate | None) -> tuple[float | None, float | None, float | None]:
+    """Value and bounds of an estimate (helper for renaming)."""
+    assert estimate is not None
+    return estimate.value, estimate.ci_low, estimate.ci_high
+
+
+def signed_rank_result(
+    values: np.ndarray,
+    *,
+    mu: float,
+    alternative: str,
+    confidence: float,
+    exact: bool | str,
+    correct: bool,
+    what: str,
+) -> Result:
+    """Signed-rank test core shared by the one-sample and paired versions.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        Finite values (or paired differences).
+    mu : float
+        Null centre.
+    what : str
+        Plain name for messages ("the outcome", "the differences").
+
+    Returns
+    -------
+    Result
+        With test, statistic, p, estimate (pseudo-median of ``values``), effect and
+        notes filled; the caller sets design, groups and names.
+    """
+    if exact not in ("auto", True, False):
+        raise common.OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
+    shifted = values - mu
+    nonzero = shifted[shifted != 0]
+    n_zero = int(shifted.size - nonzero.size)
+    if nonzero.size == 0:
+        raise common.NotEnoughDataError(
+            f"Every value of {what} equals {common.format_number(mu)}, so there is no difference to test."
+        )
+    n = nonzero.size
+    ranks = stats.rankdata(np.abs(nonzero))
+    v_plus = float(ranks[nonzero > 0].sum())
+    ties = common.has_ties(ranks)
+    notes: list[str] = []
+    can_be_exact = n < EXACT_LIMIT and not ties and n_zero == 0
+    use_exact = can_be_exact and exact in ("auto", True)
+    if exact is True and not can_be_exact:
+        common.caveat(
+            notes,
+            "An exact p-value was asked for, but ties or zero differences (or 50 or more values) rule it out; "
+            "the normal approximation was used instead.",
+        )
+    if n_zero:
+        notes.append(
+            f"{n_zero} value(s) equal to {common.format_number(mu)} were left out of the ranking and of the "
+            "pseudo-median, as the test requires."
+        )
+    # R's convention: the estimate and interval use the values left after dropping zeros.
+    kept = nonzero + mu
+    if use_exact:
+        p_value = _signed_rank_exact_p(v_plus, n, alternative)
+        p_method = "exact"
+        low, high = _signed_rank_exact_interval(kept, alternative, confidence, notes)
+        notes.append("The p-value is exact (no ties, fewer than 50 values).")
+    else:
+        z = _signed_rank_z(nonzero, alternative, correct)
+        p_value = common.p_from_z(z, alternative)
+        p_method = "normal_approximation_continuity" if correct else "normal_approximation"
+        low, high = _signed_rank_approx_interval(kept, alternative, confidence, correct, notes)
+        notes.append(
+            "The p-value uses the normal approximation with the tie correction"
+            + (" and a continuity correction." if correct else " (no continuity correction).")
+        )
+    walsh = _walsh_averages(kept)
+    effect = effects.rank_biserial_signed(v_plus, n, alternative, confidence)
+    return Result(
+        outcome="",
+        exposure=None,
+        design="one_sample_continuous",
+        test="wilcoxon_signed_rank",
+        statistic_name="V",
+        statistic=v_plus,
+        df=None,
+        p_value=p_value,
+        p_method=p_method,
+        alternative=alternative,
+        confidence=confidence,
+        n=int(values.size),
+        estimate=Estimate("pseudo-median", float(np.median(walsh)), low, high),
+        effect=effect,
+        notes=notes,
+        extra={"n_zero_differences": n_zero, "n_ranked": int(n), "ties": bool(ties)},
+    )
+
+
+def signed_rank_counts(n: int) -> list[int]:
+    """Number of sign patterns giving each V = 0..n(n+1)/2 (exact null distribution).
+
+    Notes
+    -----
+    Built by adding one rank at a time: ``c_k(v) = c_{k-1}(v) + c_{k-1}(v - k)``.
+    Python integers keep the counts exact for any n.
+    """
+    counts = [1]
+    for k in range(1, n + 1):
+        grown = counts + [0] * k
+        for v in range(k, len(grown)):
+            grown[v] += counts[v - k]
+        counts = grown
+    return counts
+
+
+def _cumulative(counts: list[int]) -> list[int]:
+    """Running totals of integer counts."""
+    total, out = 0, []
+    for c in counts:
+        total += c
+        out.append(total)
+    return out
+
+
+def _signed_rank_exact_p(v_plus: float, n: int, alternative: str) -> float:
+    """Exact p of V as R's ``psignrank`` rules give it (two-sided = doubled smaller tail)."""
+    counts = signed_rank_counts(n)
+    cumulative = _cumulative(counts)
+    total = 2**n
+    v = int(round(v_plus))
+
+    def lower(q: int) -> float:  # P(V <= q)
+        return 0.0 if q < 0 else cumulative[min(q, len(cumulative) - 1)] / total
+
+    def upper(q: int) -> float:  # P(V >= q)
+        return 1.0 - lower(q - 1)
+
+    if alternative == "greater":
+        return upper(v)
+    if alternative == "less":
+        return lower(v)
+    p = upper(v) if v > n * (n + 1) / 4 else lower(v)
+    return min(1.0, 2.0 * p)
+
+
+def _quantile_from_counts(counts: list[int], total: int, probability: float) -> int:
+    """Smallest q with P(X <= q) >= probability (R's qsignrank/qwilcox, same 10 eps fuzz)."""
+    target = probability - 10 * np.finfo(float).eps
+    running = 0
+    for q, c in enumerate(counts):
+        running += c
+        if running / total >= target:
+            return q
+    return len(counts) - 1
+
+
+def _walsh_averages(values: np.ndarray) -> np.ndarray:
+    """All (x_i + x_j) / 2 for i <= j, sorted."""
+    i, j = np.triu_indices(values.size)
+    return np.sort((values[i] + values[j]) / 2.0)
+
+
+def _signed_rank_exact_interval(
+    values: np.ndarray, alternative: str, confidence: float, notes: list[str]
+) -> tuple[float, float]:
+    """Exact interval for the pseudo-median from order statistics of Walsh averages (R's rule)."""
+    n = values.size
+    counts = signed_rank_counts(n)
+    total = 2**n
+    walsh = _walsh_averages(values)
+    m = n * (n + 1) // 2
+    alpha = 1.0 - confidence
+    if alternative == "two-sided":
+        qu = max(_quantile_from_counts(counts, total, alpha / 2.0), 1)
+        ql = m - qu
+        return float(walsh[qu - 1]), float(walsh[ql])
+    qu = max(_quantile_from_counts(counts, total, alpha), 1)
+    if alternative == "greater":
+        return float(walsh[qu - 1]), math.inf
+    return -math.inf, float(walsh[m - qu])
+
+
+def _signed_rank_z(shifted_nonzero: np.ndarray, alternative: str, correct: bool) -> float:
+    """Standardized V with tie-corrected variance and optional continuity correction."""
+    n = shifted_nonzero.size
+    ranks = stats.rankdata(np.abs(shifted_nonzero))
+    centred = ranks[shifted_nonzero > 0].sum() - n * (n + 1) / 4.0
+    ties = common.tie_counts(ranks)
+    sigma = math.sqrt(n * (n + 1) * (2 * n + 1) / 24.0 - float(np.sum(ties**3 - ties)) / 48.0)
+    if sigma == 0.0:
+        return 0.0
+    correction = 0.0
+    if correct:
+        correction = {"two-sided": float(np.sign(centred)) * 0.5, "greater": 0.5, "less": -0.5}[alternative]
+    return (centred - correction) / sigma
+
+
+def _signed_rank_approx_interval(
+    values: np.ndarray, alternative: str, confidence: float, correct: bool, notes: list[str]
+) -> tuple[float, float]:
+    """Interval from inverting the approximate signed-rank statistic in the centre d.
+
+    Notes
+    -----
+    The standardized statistic of ``values - d`` is a decreasing step function of d;
+    each bound is where it crosses the normal quantile, found by bracketing root
+    search to 1e-10 (R's ``wilcox.test`` does the same with ``uniroot`` at tolerance
+    1e-4, so bounds agree to about 1e-4).
+    """
+    low_end, high_end = float(values.min()), float(values.max())
+
+    def statistic(d: float) -> float:
+        shifted = values - d
+        return _signed_rank_z(shifted[shifted != 0], alternative, correct)
+
+    at_low, at_high = statistic(low_end), statistic(high_end)
+    q_lower, q_upper = common.z_quantiles(alternative, confidence)
+    reachable = (q_lower is None or at_low >= q_lower) and (q_upper is None or at_high <= q_upper)
+    if not reachable:
+        common.caveat(
+            notes,
+            f"With so few values the {confidence:.0%} interval for the pseudo-median cannot be reached; "
+            "the range of the data is shown instead.",
+        )
+        return low_end, high_end
+
+    def root(q: float) -> float:
+        return float(optimize.brentq(lambda d: statistic(d) - q, low_end, high_end, xtol=1e-12))
+
+    low = -math.inf if q_lower is None else root(q_lower)
+    high = math.inf if q_upper is None else root(q_upper)
+    return low, high
