@@ -46,6 +46,7 @@ class Cell:
     value: Any
     style: str = "text"
     link: str | None = None
+    is_count: bool = False  # a count of records; sharing mode suppresses small ones
 
 
 @dataclass
@@ -91,10 +92,23 @@ class SheetModel:
     charts: list[Chart] = field(default_factory=list)
     merged: list[str] = field(default_factory=list)  # ranges such as "A1:F1"
     anchors: dict[str, str] = field(default_factory=dict)  # named spot -> cell, for links
+    # Sharing mode (see share.py): cells that reveal a count (a group's share, mean,
+    # SD, ...) are suppressed with it; each set in ``count_sets`` is linked by one sum
+    # (its members and their shown total), so one hidden member would be recoverable.
+    count_dependents: dict[tuple[int, int], list[tuple[int, int]]] = field(default_factory=dict)
+    count_sets: list[list[tuple[int, int]]] = field(default_factory=list)
 
-    def put(self, row: int, col: int, value: Any, style: str = "text", link: str | None = None) -> None:
+    def put(
+        self,
+        row: int,
+        col: int,
+        value: Any,
+        style: str = "text",
+        link: str | None = None,
+        is_count: bool = False,
+    ) -> None:
         """Set one cell (0-based row and column)."""
-        self.cells[(row, col)] = Cell(value, style, link)
+        self.cells[(row, col)] = Cell(value, style, link, is_count)
 
     def put_row(self, row: int, values: list[Any], style: str = "text", start_col: int = 0) -> None:
         """Set a row of cells with one style; a value that is already a Cell keeps its own."""

@@ -1,0 +1,6 @@
+"""Allow ``python -m statmargin``."""
+
+from .cli import main
+
+if __name__ == "__main__":  # pragma: no cover
+    main(prog_name="statmargin")

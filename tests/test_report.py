@@ -1,0 +1,703 @@
+"""Sheet models for the results, shape-check, data-notes and run-log sheets.
+
+Numbers come from R 4.2.2 reference cases (tests/reference/r_cases.json and the
+R datasets in tests/reference/data/, named beside each use) or are invented in
+our own scenario where marked "invented".
+"""
+
+from __future__ import annotations
+
+from datetime import datetime, timezone
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from statmargin import explain, report
+from statmargin.report import ReportContext
+from statmargin.results import Effect, Estimate, Followup, Result
+from statmargin.roles import Settings
+from statmargin.sheetmodel import STYLES, SheetModel
+from statmargin.table import DataNote, NoteKind, Table, column_index
+
+DATA = Path(__file__).parent / "reference" / "data"
+RUN_TIME = datetime(2026, 12, 2, 3, 0, 0, tzinfo=timezone.utc)
+
+
+def plant_growth() -> dict[str, np.ndarray]:
+    """PlantGrowth weights by group (R datasets, via tests/reference/data)."""
+    frame = pd.read_csv(DATA / "plantgrowth_weight_by_group.csv")
+    return {str(k): g["weight"].to_numpy(dtype=float) for k, g in frame.groupby("group", sort=True)}
+
+
+def anova_result() -> Result:
+    """R 4.2.2: oneway.test(weight ~ group, data = PlantGrowth, var.equal = TRUE) with R's Tukey pair."""
+    groups = []
+    for label, values in plant_growth().items():
+        groups.append(
+            {
+                "label": label,
+                "n": len(values),
+                "mean": float(values.mean()),
+                "sd": float(values.std(ddof=1)),
+                "median": float(np.median(values)),
+                "q1": float(np.quantile(values, 0.25)),
+                "q3": float(np.quantile(values, 0.75)),
+                "min": float(values.min()),
+                "max": float(values.max()),
+                "skewness": 0.1,
+                "excess_kurtosis": -0.5,
+                "normality_test": "Shapiro-Wilk",
+                "normality_p": 0.5,
+                "outliers": 0,
+            }
+        )
+    return Result(
+        outcome="weight",
+        exposure="group",
+        design="multi_group_continuous",
+        test="one_way_anova",
+        statistic_name="F",
+        statistic=4.846087862380137,
+        df=[2.0, 27.0],
+        p_value=0.015909958325622912,
+        p_adjusted=0.031819916651245824,
+        p_method="asymptotic",
+        n=30,
+        effect=Effect("eta-squared", 0.2641, 0.03, 0.47),  # CI: illustrative input (invented)
+        groups=groups,
+        reasons=["every group looks roughly normal", "spreads look similar"],
+        shape={
+            "spread_equality": {
+                "test": "Brown-Forsythe",
+                "statistic": 1.1191856948703909,
+                "p_value": 0.3412266241254738,
+            }
+        },  # R 4.2.2 r_cases.json brown_forsythe_median
+        followups=[
+            Followup(
+                "tukey_hsd",
+                ("trt2", "trt1"),  # R 4.2.2: TukeyHSD(aov(weight ~ group))
+                Estimate(
+                    "difference in means (trt2 - trt1)",
+                    0.8650000000000002,
+                    0.17378394858954183,
+                    1.5562160514104586,
+                ),
+                None,
+                0.01200642397945273,
+                flagged=True,
+            )
+        ],
+    )
+
+
+def welch_result() -> Result:
+    """R 4.2.2: t.test(extra ~ group, data = sleep, var.equal = FALSE)."""
+    return Result(
+        outcome="extra",
+        exposure="group",
+        design="two_group_continuous",
+        test="welch_t",
+        statistic_name="t",
+        statistic=-1.860813467486853,
+        df=17.7764735161785,
+        p_value=0.07939414018735817,
+        p_adjusted=0.07939414018735817,
+        p_method="asymptotic",
+        n=20,
+        n_excluded=0,
+        estimate=Estimate(
+            "difference in means (1 - 2)", -1.58, -3.3654832307117104, 0.20548323071171018
+        ),
+        groups=[{"label": "1", "n": 10, "mean": 0.75}, {"label": "2", "n": 10, "mean": 2.33}],
+    )
+
+
+def crosstab_result() -> Result:
+    """R 4.2.2: chisq.test(table(mtcars$cyl, mtcars$gear), correct = FALSE) with R's expected counts."""
+    return Result(
+        outcome="cyl",
+        exposure="gear",
+        design="two_categorical",
+        test="chi_square_independence",
+        statistic_name="X-squared",
+        statistic=18.036363636363635,
+        df=4.0,
+        p_value=0.0012140660337851576,
+        p_method="asymptotic",
+        n=32,
+        effect=Effect("Cramer's V", 0.5308655025693249),
+        shape={
+            "expected": [
+                [5.15625, 4.125, 1.71875],
+                [3.28125, 2.625, 1.09375],
+                [6.5625, 5.25, 2.1875],
+            ],
+            "min_expected": 1.09375,
+        },
+        extra={
+            "observed": {
+                "values": [[1, 8, 2], [2, 4, 1], [12, 0, 2]],
+                "row_labels": ["4", "6", "8"],
+                "col_labels": ["3", "4", "5"],
+            }
+        },
+    )
+
+
+def gof_result() -> Result:
+    """R 4.2.2: chisq.test(table(mtcars$cyl), p = c(0.25, 0.25, 0.5))."""
+    return Result(
+        outcome="cyl",
+        exposure=None,
+        design="one_sample_categorical",
+        test="chi_square_goodness_of_fit",
+        statistic_name="X-squared",
+        statistic=1.5,
+        df=2.0,
+        p_value=0.4723665527410147,
+        n=32,
+        against={"4": 0.25, "6": 0.25, "8": 0.5},
+        groups=[
+            {"label": "4", "count": 11, "share": 11 / 32},
+            {"label": "6", "count": 7, "share": 7 / 32},
+            {"label": "8", "count": 14, "share": 14 / 32},
+        ],
+    )
+
+
+def context(**changes) -> ReportContext:
+    """A context for an invented run over the R example data."""
+    base = dict(
+        workbook="plants.xlsx",
+        data_sheet="Plant data",
+        rows_read=30,
+        rows_used=30,
+        run_time=RUN_TIME,
+        version="0.1.0",
+        units={"weight": "g"},
+        fingerprint="abc123",
+        samples={("weight", "group", ""): plant_growth()},
+    )
+    base.update(changes)
+    return ReportContext(**base)
+
+
+def cell_at(model: SheetModel, address: str):
+    """The cell at an A1 address."""
+    letters = "".join(c for c in address if c.isalpha())
+    row = int("".join(c for c in address if c.isdigit())) - 1
+    return model.cells.get((row, column_index(letters)))
+
+
+def find_row(model: SheetModel, col: int, value) -> int:
+    """The first row whose cell in ``col`` holds ``value``."""
+    rows = [r for (r, c), cell in model.cells.items() if c == col and cell.value == value]
+    assert rows, f"{value!r} not found in column {col}"
+    return min(rows)
+
+
+def header_row(model: SheetModel) -> int:
+    return find_row(model, 0, "Question")
+
+
+# ---------------------------------------------------------------- results sheet
+
+
+def test_results_header_block_lists_the_run() -> None:
+    """The header block names the workbook, data sheet, rows, time, version and settings."""
+    model = report.results_sheet([anova_result()], context())
+    labels = {
+        cell.value: model.cells.get((r, c + 1)).value
+        for (r, c), cell in model.cells.items()
+        if cell.style == "label"
+    }
+    assert labels["Workbook"] == "plants.xlsx"
+    assert labels["Data sheet"] == "Plant data"
+    assert labels["Rows read"] == 30 and labels["Rows used"] == 30
+    assert labels["Run time (UTC)"] == "2026-12-02T03:00:00Z"
+    assert labels["Tool version"] == "0.1.0"
+    assert labels["Confidence"] == 0.95
+    assert labels["Adjustment"] == "Holm"
+    assert labels["Sidedness"] == "two-sided"
+    assert labels["Sharing mode"] == "off (all counts shown)"
+    assert model.kind == "results"
+
+
+def test_results_table_has_one_row_per_analysis_and_followup() -> None:
+    """Each analysis gets a row with its numbers unrounded, followed by indented follow-up rows."""
+    model = report.results_sheet([anova_result(), welch_result()], context())
+    top = header_row(model)
+    assert model.freeze == (top + 1, 1)
+    headers = [model.cells[(top, c)].value for c in range(len(report.RESULT_COLUMNS))]
+    assert headers[:6] == [
+        "Question",
+        "Outcome",
+        "Compared by / against",
+        "n used",
+        "n excluded",
+        "Test",
+    ]
+    col = report.COL
+    anova_row, followup_row, welch_row = top + 1, top + 2, top + 3
+    assert model.cells[(anova_row, col["Question"])].value == "Does weight differ by group?"
+    assert model.cells[(anova_row, col["Test"])].value == "One-way ANOVA"
+    assert (
+        model.cells[(anova_row, col["Why this test"])].value
+        == "every group looks roughly normal; spreads look similar"
+    )
+    # R 4.2.2 oneway.test: F = 4.846087862380137, p = 0.015909958325622912 kept at full precision
+    assert model.cells[(anova_row, col["Statistic value"])].value == 4.846087862380137
+    assert model.cells[(anova_row, col["p"])].value == 0.015909958325622912
+    assert model.cells[(anova_row, col["p"])].style == "p_value"
+    assert model.cells[(anova_row, col["df"])].value == "2, 27"
+    assert model.cells[(anova_row, col["n used"])].value == 30
+    assert model.cells[(anova_row, col["n used"])].is_count
+    assert model.cells[(followup_row, col["Question"])].value == "  trt2 vs trt1"
+    assert model.cells[(followup_row, col["Test"])].value == "Tukey HSD"
+    assert model.cells[(followup_row, col["Adjusted p"])].value == 0.01200642397945273
+    assert model.cells[(followup_row, col["CI"])].value == "0.17 to 1.56"
+    # R 4.2.2 t.test(extra ~ group, sleep): difference -1.58, CI -3.365 to 0.205, df 17.776
+    assert model.cells[(welch_row, col["Test"])].value == "Welch's t-test"
+    assert model.cells[(welch_row, col["Estimate value"])].value == pytest.approx(-1.58)
+    assert model.cells[(welch_row, col["CI low"])].value == -3.3654832307117104
+    assert model.cells[(welch_row, col["CI"])].value == "-3.37 to 0.21"
+    assert model.cells[(welch_row, col["df"])].value == 17.7764735161785
+    assert "compatible with no difference" in model.cells[(welch_row, col["Reading"])].value
+    assert explain.REVIEW_LINE in model.cells[(welch_row, col["Cautions"])].value
+    assert all(width >= 8 for width in model.widths.values())
+
+
+def test_results_rows_link_to_their_shape_blocks() -> None:
+    """Each analysis row links to its own block on the shape sheet through the {shape} placeholder."""
+    results = [anova_result(), welch_result(), crosstab_result()]
+    shape = report.shape_sheet(results, context())
+    model = report.results_sheet(results, context(), shape.anchors)
+    top = header_row(model)
+    links = [
+        cell.link
+        for (r, c), cell in sorted(model.cells.items())
+        if c == report.COL["Details"] and r > top
+    ]
+    assert links == [f"{{shape}}!{shape.anchors[f'analysis_{i}']}" for i in range(3)]
+    for i, result in enumerate(results):
+        title = cell_at(shape, shape.anchors[f"analysis_{i}"]).value
+        assert title == f"{i + 1}. {explain.question(result)}"
+
+
+def test_skipped_result_row_says_why() -> None:
+    """A skipped analysis still gets a row, with the reason and no numbers."""
+    skipped = Result(
+        outcome="Wait",
+        exposure="District",
+        design="two_group_continuous",
+        test="welch_t",
+        n=3,
+        skipped="South has only one record.",
+    )
+    model = report.results_sheet([skipped], context())
+    row = header_row(model) + 1
+    assert (
+        model.cells[(row, report.COL["Why this test"])].value
+        == "not run: South has only one record."
+    )
+    assert model.cells[(row, report.COL["p"])].value is None
+    assert model.cells[(row, report.COL["Reading"])].value.startswith("No test was run")
+
+
+def test_every_style_is_known() -> None:
+    """Every cell of every sheet uses a style key the writers support."""
+    table = Table.from_frame(
+        pd.read_csv(DATA / "plantgrowth_weight_by_group.csv"), sheet="Plant data"
+    )
+    table.notes.append(
+        DataNote("Plant data", "A5", "weight", "n/a", NoteKind.MISSING_MARKER, "skipped")
+    )
+    for model in report.build_sheets(
+        [anova_result(), crosstab_result(), gof_result(), welch_result()], table, context()
+    ):
+        assert {cell.style for cell in model.cells.values()} <= set(STYLES), model.kind
+
+
+# ---------------------------------------------------------------- shape sheet
+
+
+def test_shape_block_has_group_table_and_spread_check() -> None:
+    """The per-group table holds each group's summaries and the spread check its statistic and p."""
+    model = report.shape_sheet([anova_result()], context())
+    row = find_row(model, 0, "trt1")
+    values = plant_growth()["trt1"]
+    assert model.cells[(row, 1)].value == 10
+    assert model.cells[(row, 1)].is_count
+    assert model.cells[(row, 2)].value == pytest.approx(
+        4.661
+    )  # R: mean(PlantGrowth$weight[group == "trt1"])
+    assert model.cells[(row, 3)].value == pytest.approx(0.7936756964347033)  # R: sd(...)
+    assert model.cells[(row, 8)].value == values.max()
+    spread = find_row(model, 0, "Spread check")
+    assert model.cells[(spread, 1)].value == "Brown-Forsythe"
+    assert model.cells[(spread, 5)].value == 0.3412266241254738
+    # the group's n reveals, and is revealed by, its summaries: all are listed as dependents
+    assert (row, 2) in model.count_dependents[(row, 1)]
+    lines = [cell.value for (r, c), cell in model.cells.items() if c == 0 and cell.style == "text"]
+    assert "One-way ANOVA (two-sided), 30 records used." in lines
+
+
+def test_histogram_uses_shared_bins_and_counts_every_value() -> None:
+    """Histogram counts per group use one set of edges and add up to each group's n."""
+    model = report.shape_sheet([anova_result()], context())
+    chart = next(c for c in model.charts if c.kind == "column")
+    samples = plant_growth()
+    edges = report.bin_edges(np.concatenate(list(samples.values())))
+    assert report.MIN_BINS <= len(edges) - 1 <= report.MAX_BINS
+    first, last = chart.categories.replace("$", "").split(":")
+    assert "!" not in chart.categories
+    labels = [cell_at(model, f"A{r}").value for r in range(int(first[1:]), int(last[1:]) + 1)]
+    assert len(labels) == len(edges) - 1
+    assert labels[0].startswith(explain.fmt_number(edges[0], 2))
+    for series in chart.series:
+        start, end = series.values.replace("$", "").split(":")
+        col = "".join(ch for ch in start if ch.isalpha())
+        counts = [
+            cell_at(model, f"{col}{r}").value
+            for r in range(int(start[len(col) :]), int(end[len(col) :]) + 1)
+        ]
+        expected, _ = np.histogram(samples[series.name], bins=edges)
+        assert counts == expected.tolist()
+        assert sum(counts) == len(samples[series.name])
+    assert chart.anchor.startswith("P")
+
+
+def test_bin_edges_follow_numpy_auto_within_limits() -> None:
+    """Bin edges span the data with NumPy's 'auto' count held to 8..15 bins."""
+    weights = np.concatenate(list(plant_growth().values()))  # PlantGrowth (R datasets)
+    edges = report.bin_edges(weights)
+    auto = len(np.histogram_bin_edges(weights, bins="auto")) - 1
+    assert len(edges) - 1 == min(report.MAX_BINS, max(report.MIN_BINS, auto))
+    assert edges[0] == weights.min() and edges[-1] == weights.max()
+    many = np.random.default_rng(20261202).normal(size=5000)  # seeded, invented
+    assert len(report.bin_edges(many)) - 1 == report.MAX_BINS
+    assert report.bin_edges([3.0, 3.0]).tolist() == [2.5, 3.5]
+
+
+def test_crosstab_block_has_totals_expected_counts_and_bars() -> None:
+    """A two-categorical block shows observed counts with totals, expected counts and 100% bars."""
+    model = report.shape_sheet([crosstab_result()], context())
+    top = find_row(model, 0, "Observed counts") + 1
+    # R 4.2.2 table(mtcars$cyl, mtcars$gear): row 8 = 12, 0, 2; column totals 15, 12, 5; n = 32
+    assert [model.cells[(top + 3, c)].value for c in range(5)] == ["8", 12, 0, 2, 14]
+    assert [model.cells[(top + 4, c)].value for c in range(5)] == ["Total", 15, 12, 5, 32]
+    assert all(model.cells[(top + 3, c)].is_count for c in range(1, 5))
+    expected_top = find_row(model, 0, "Expected counts if the two were unrelated") + 1
+    assert (
+        model.cells[(expected_top + 2, 3)].value == 1.09375
+    )  # R: chisq.test(...)$expected["6", "5"]
+    chart = next(c for c in model.charts if c.kind == "percent_bar")
+    assert [s.name for s in chart.series] == ["3", "4", "5"]
+    assert chart.categories == f"$A${top + 2}:$A${top + 4}"
+    assert len(model.count_sets) == 3 + 3 + 2  # each row, each column, and the two margins
+
+
+def test_goodness_of_fit_block_has_counts_shares_and_bars() -> None:
+    """A one-sample categorical block lists counts, shares, stated shares and expected counts."""
+    model = report.shape_sheet([gof_result()], context())
+    row = find_row(model, 0, "8")
+    # R 4.2.2: chisq.test(table(mtcars$cyl), p = c(.25, .25, .5)) expected = 8, 8, 16
+    assert [model.cells[(row, c)].value for c in range(5)] == ["8", 14, 14 / 32, 0.5, 16.0]
+    total = find_row(model, 0, "Total")
+    assert model.cells[(total, 1)].value == 32
+    assert any(c.kind == "percent_bar" for c in model.charts)
+
+
+def test_blocks_leave_room_for_charts() -> None:
+    """Charts of one block never reach into the next block."""
+    results = [anova_result(), crosstab_result(), gof_result()]
+    model = report.shape_sheet(results, context())
+    starts = sorted(int(model.anchors[f"analysis_{i}"][1:]) for i in range(len(results)))
+    for chart in model.charts:
+        top = int(chart.anchor[1:])
+        later = [s for s in starts if s > top]
+        if later:
+            assert top + chart.height_rows <= later[0]
+
+
+def test_two_measures_get_one_histogram_each() -> None:
+    """A correlation shows each variable's own histogram (they have different units)."""
+    frame = pd.read_csv(DATA / "mtcars_mpg_vs_wt.csv")  # mtcars (R datasets)
+    result = Result(
+        outcome="mpg",
+        exposure="wt",
+        design="two_continuous",
+        test="pearson_r",
+        n=32,
+        p_value=1.2939587013505163e-10,  # R 4.2.2 cor.test(mtcars$mpg, mtcars$wt)
+        estimate=Estimate(
+            "Pearson r", -0.8676593765172278, -0.9338264132849942, -0.7440871964601128
+        ),
+    )
+    samples = {("mpg", "wt", ""): {"mpg": frame["mpg"].tolist(), "wt": frame["wt"].tolist()}}
+    model = report.shape_sheet([result], context(samples=samples))
+    assert [c.title for c in model.charts] == ["mpg: distribution", "wt: distribution"]
+
+
+# ---------------------------------------------------------------- notes and log
+
+
+def test_notes_sheet_links_each_note_to_its_cell() -> None:
+    """Every data note is listed with a quoted link to the offending cell."""
+    notes = [
+        DataNote("Site visits", "C17", "Wait (minutes)", "n/a", NoteKind.MISSING_MARKER, "skipped"),
+        DataNote("O'Brien data", "D4", "Count", "<5", NoteKind.SUPPRESSED, "skipped"),
+    ]
+    model = report.notes_sheet(notes, ["2 pairs were incomplete and left out."], context())
+    row = find_row(model, 1, "C17")
+    assert model.cells[(row, 1)].link == "'Site visits'!C17"
+    assert [model.cells[(row, c)].value for c in (0, 2, 3, 4, 5)] == [
+        "Site visits",
+        "Wait (minutes)",
+        "n/a",
+        "missing marker",
+        "skipped",
+    ]
+    assert model.cells[(find_row(model, 1, "D4"), 1)].link == "'O''Brien data'!D4"
+    assert find_row(model, 0, "2 pairs were incomplete and left out.") > row
+    assert model.kind == "notes"
+
+
+def test_log_sheet_keeps_previous_runs_and_adds_this_one() -> None:
+    """The log lists earlier runs (as read back) and appends this run's row."""
+    previous = [
+        [
+            "2026-12-01T10:00:00Z",
+            "0.1.0",
+            "plants.xlsx",
+            "Plant data",
+            "confidence 0.95",
+            30,
+            30,
+            1,
+            "old",
+        ]
+    ]
+    info = report.run_info(context(), [anova_result(), welch_result()])
+    model = report.log_sheet(previous, info)
+    top = find_row(model, 0, "Time (UTC)")
+    assert model.cells[(top + 1, 8)].value == "old"
+    this_run = [model.cells[(top + 2, c)].value for c in range(9)]
+    assert this_run == [
+        "2026-12-02T03:00:00Z",
+        "0.1.0",
+        "plants.xlsx",
+        "Plant data",
+        "confidence 0.95; adjustment holm; two-sided; alpha 0.05",
+        30,
+        30,
+        2,
+        "abc123",
+    ]
+    assert model.kind == "log"
+
+
+def test_build_sheets_returns_the_four_kinds() -> None:
+    """One call builds results, shape, notes and log sheets with their preferred names."""
+    models = report.build_sheets([anova_result()], context=context())
+    assert [m.kind for m in models] == ["results", "shape", "notes", "log"]
+    assert [m.name for m in models] == [report.SHEET_NAMES[m.kind] for m in models]
+
+
+def test_context_settings_reach_the_readings() -> None:
+    """Readings written by the report use the run's settings (here a 90% interval)."""
+    result = welch_result()
+    result.confidence = 0.90
+    model = report.results_sheet([result], context(settings=Settings(confidence=0.90)))
+    row = header_row(model) + 1
+    assert "(90% CI" in model.cells[(row, report.COL["Reading"])].value
+
+
+# ---------------------------------------------------------------- run context, log and engine formats
+
+
+def test_context_from_run_fills_from_the_table() -> None:
+    """from_run takes sheet, rows, letters, units, fingerprint and histogram values from the table."""
+    frame = pd.read_csv(DATA / "plantgrowth_weight_by_group.csv")  # PlantGrowth (R datasets)
+    table = Table.from_frame(frame, sheet="Plant data")
+    table.columns["weight"].units = "g"
+    table.fingerprint = "f00d"
+    result = anova_result()
+    made = ReportContext.from_run(
+        workbook="plants.xlsx", table=table, results=[result], started=RUN_TIME, share_min_count=5
+    )
+    assert (made.data_sheet, made.rows_read, made.rows_used) == ("Plant data", 30, 30)
+    assert made.units == {"weight": "g"} and made.column_letters == {"weight": "A", "group": "B"}
+    assert made.share_mode and made.share_min_count == 5 and made.fingerprint == "f00d"
+    samples = made.samples[report.analysis_key(result)]
+    assert {k: len(v) for k, v in samples.items()} == {"ctrl": 10, "trt1": 10, "trt2": 10}
+    off = ReportContext.from_run(workbook="plants.xlsx", table=table, results=[result])
+    assert not off.share_mode
+
+
+def test_samples_follow_the_design() -> None:
+    """Histogram values: one sample, two measures, and groups matched by their labels."""
+    frame = pd.read_csv(DATA / "mtcars_cyl_by_gear.csv")  # mtcars (R datasets)
+    table = Table.from_frame(frame, sheet="cars")
+    one = Result(outcome="mpg", exposure=None, design="one_sample_continuous", test="one_sample_t")
+    assert len(report.samples_from_table(one, table)["mpg"]) == 32
+    by_gear = Result(
+        outcome="mpg",
+        exposure="gear",
+        design="multi_group_continuous",
+        test="one_way_anova",
+        groups=[{"label": "3", "n": 15}, {"label": "4", "n": 12}, {"label": "5", "n": 5}],
+    )
+    counts = {k: len(v) for k, v in report.samples_from_table(by_gear, table).items()}
+    assert counts == {"3": 15, "4": 12, "5": 5}  # R: table(mtcars$gear)
+    crosstab = crosstab_result()
+    assert report.samples_from_table(crosstab, table) == {}
+
+
+def test_parse_log_rows_reads_back_a_written_log() -> None:
+    """A log sheet read back as raw rows gives the earlier runs' rows again, in order."""
+    first = report.log_sheet([], report.run_info(context(), [anova_result()]))
+    grid = [
+        [first.cells.get((r, c), None) and first.cells[(r, c)].value for c in range(first.n_cols)]
+        for r in range(first.n_rows)
+    ]
+    grid.append([None] * first.n_cols)  # a trailing blank row is ignored
+    rows = report.parse_log_rows(grid)
+    assert rows == [
+        [
+            "2026-12-02T03:00:00Z",
+            "0.1.0",
+            "plants.xlsx",
+            "Plant data",
+            "confidence 0.95; adjustment holm; two-sided; alpha 0.05",
+            30,
+            30,
+            1,
+            "abc123",
+        ]
+    ]
+    second = report.log_sheet(rows, report.run_info(context(), []))
+    assert (
+        len(
+            report.parse_log_rows(
+                [
+                    [second.cells.get((r, c)) and second.cells[(r, c)].value for c in range(9)]
+                    for r in range(second.n_rows)
+                ]
+            )
+        )
+        == 2
+    )
+
+
+def test_engine_style_summaries_are_shown() -> None:
+    """Shape summaries named as the engine names them (check, check_p, n_outliers, verdict) fill the table."""
+    result = welch_result()
+    result.groups = [
+        {
+            "label": "1",
+            "n": 10,
+            "mean": 0.75,
+            "check": "shapiro_wilk",
+            "check_p": 0.4,
+            "n_outliers": 1,
+            "verdict": "close to normal (Shapiro-Wilk p = 0.40)",
+        },
+        {
+            "label": "2",
+            "n": 10,
+            "mean": 2.33,
+            "check": "too_few",
+            "check_p": None,
+            "n_outliers": 0,
+            "verdict": "x",
+        },
+    ]
+    result.shape = {
+        "spread": {"name": "Brown-Forsythe", "statistic": 1.2, "df": [1, 18], "p_value": 0.29}
+    }
+    model = report.shape_sheet([result], context(samples={}))
+    row = find_row(model, 0, "1")
+    headers = [h for h, _, _ in report.GROUP_COLUMNS]
+    values = dict(
+        zip(headers, [model.cells[(row, c)].value for c in range(1, len(headers) + 1)], strict=True)
+    )
+    assert values["Normality check"] == "Shapiro-Wilk"
+    assert values["Normality p"] == 0.4
+    assert values["Outliers (1.5 IQR)"] == 1 and model.cells[(row, 13)].is_count
+    assert values["Shape"] == "close to normal (Shapiro-Wilk p = 0.40)"
+    spread = find_row(model, 0, "Spread check")
+    assert model.cells[(spread, 1)].value == "Brown-Forsythe"
+
+
+def test_crosstab_from_engine_counts_entry() -> None:
+    """A table kept under shape["counts"] (rows = compare-by groups) is drawn like one in extra."""
+    result = crosstab_result()
+    observed = result.extra.pop("observed")
+    result.shape = {
+        "counts": {
+            "observed": observed["values"],
+            "row_labels": observed["row_labels"],
+            "col_labels": observed["col_labels"],
+            "expected": result.shape["expected"],
+            "min_expected": 1.09375,
+        }
+    }
+    model = report.shape_sheet([result], context())
+    top = find_row(model, 0, "Observed counts") + 1
+    assert [model.cells[(top + 1, c)].value for c in range(5)] == [
+        "4",
+        1,
+        8,
+        2,
+        11,
+    ]  # R: table(cyl, gear)
+    assert find_row(model, 0, "Expected counts if the two were unrelated") > top
+
+
+def test_incomplete_pairs_reach_the_notes_sheet() -> None:
+    """Pairs left out by the engine are named on the data-notes sheet."""
+    paired = Result(
+        outcome="Weight",
+        exposure="Visit",
+        design="paired_continuous",
+        test="paired_t",
+        pairing="Client",
+        n=12,
+        extra={"incomplete_pairs": ["C07", "C19"]},
+    )  # invented
+    notes = report.build_sheets([paired], context=context(samples={}))[2]
+    texts = [cell.value for cell in notes.cells.values()]
+    assert (
+        "2 incomplete pairs by Client were left out of the analysis of Weight (one of the two "
+        "measurements was missing)."
+    ) in texts
+
+
+def test_sheets_from_the_engine_on_r_data() -> None:
+    """End to end on PlantGrowth: the engine's results become linked, charted sheets."""
+    from statmargin.engine import analyze
+
+    table = Table.from_frame(
+        pd.read_csv(DATA / "plantgrowth_weight_by_group.csv"), sheet="Plant data"
+    )
+    results = analyze(table, outcome="weight", by="group")
+    made = ReportContext.from_run(
+        workbook="plants.xlsx", table=table, results=results, started=RUN_TIME
+    )
+    models = report.build_sheets(results, table, made)
+    results_model, shape = models[0], models[1]
+    row = header_row(results_model) + 1
+    # R 4.2.2: oneway.test(weight ~ group, var.equal = TRUE) F = 4.846087862380137
+    assert results_model.cells[(row, report.COL["Statistic value"])].value == pytest.approx(
+        4.846087862380137, rel=1e-9
+    )
+    assert results_model.cells[(row, report.COL["Test"])].value == "One-way ANOVA"
+    assert results_model.cells[(row + 3, report.COL["Question"])].value == "  trt2 vs trt1"
+    assert [c.kind for c in shape.charts] == ["column"]
+    spread = find_row(shape, 1, "Brown-Forsythe")
+    # R 4.2.2 r_cases.json brown_forsythe_median: p = 0.3412266241254738
+    assert shape.cells[(spread, 5)].value == pytest.approx(0.3412266241254738, rel=1e-9)

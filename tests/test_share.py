@@ -1,0 +1,405 @@
+"""Sharing mode: no small count, or anything that gives one away, is left on a tool sheet.
+
+Tables are R datasets (mtcars, PlantGrowth via tests/reference/) or invented in
+our own scenario (marked "invented"). The threshold convention (hide counts
+1..10) is common public-health practice, not an outside numeric reference; the
+checks here are structural: every cell of every tool sheet is scanned.
+"""
+
+from __future__ import annotations
+
+import copy
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from statmargin import explain, report, share
+from statmargin.errors import OptionError
+from statmargin.report import ReportContext
+from statmargin.results import Effect, Estimate, Result
+from statmargin.roles import Settings
+from statmargin.sheetmodel import SheetModel
+
+DATA = Path(__file__).parent / "reference" / "data"
+
+
+def small_group_result() -> Result:
+    """Invented: waits at three clinic districts, one with only 4 visits."""
+    return Result(
+        outcome="Wait",
+        exposure="District",
+        design="multi_group_continuous",
+        test="kruskal_wallis",
+        statistic_name="H",
+        statistic=6.2,
+        df=2.0,
+        p_value=0.045,
+        n=34,
+        estimate=Estimate("largest difference in medians (Hill - Coast)", 12.5, 2.0, 21.0),
+        effect=Effect("epsilon-squared", 0.19),
+        groups=[
+            {
+                "label": "Coast",
+                "n": 18,
+                "mean": 21.0,
+                "sd": 6.0,
+                "median": 20.0,
+                "min": 9.0,
+                "max": 35.0,
+                "outliers": 1,
+            },
+            {
+                "label": "Hill",
+                "n": 4,
+                "mean": 33.25,
+                "sd": 4.1,
+                "median": 32.5,
+                "min": 29.0,
+                "max": 39.0,
+                "outliers": 0,
+            },
+            {
+                "label": "Plain",
+                "n": 12,
+                "mean": 24.0,
+                "sd": 5.0,
+                "median": 23.5,
+                "min": 14.0,
+                "max": 36.0,
+                "outliers": 0,
+            },
+        ],
+    )
+
+
+def small_group_samples() -> dict[str, list[float]]:
+    """Invented values matching the groups above (seeded)."""
+    rng = np.random.default_rng(20261202)
+    return {
+        "Coast": list(rng.normal(21, 6, 18)),
+        "Hill": [29.0, 31.0, 34.0, 39.0],
+        "Plain": list(rng.normal(24, 5, 12)),
+    }
+
+
+def mtcars_crosstab() -> Result:
+    """R 4.2.2: table(mtcars$cyl, mtcars$gear) has cells 1, 2, 2, 1, 0 and 2 (r_cases.json mtcars_cyl_by_gear)."""
+    return Result(
+        outcome="cyl",
+        exposure="gear",
+        design="two_categorical",
+        test="chi_square_independence",
+        statistic_name="X-squared",
+        statistic=18.036363636363635,
+        df=4.0,
+        p_value=0.0012140660337851576,
+        n=32,
+        effect=Effect("Cramer's V", 0.5308655025693249),
+        shape={
+            "expected": [
+                [5.15625, 4.125, 1.71875],
+                [3.28125, 2.625, 1.09375],
+                [6.5625, 5.25, 2.1875],
+            ],
+            "min_expected": 1.09375,
+        },
+        extra={
+            "observed": {
+                "values": [[1, 8, 2], [2, 4, 1], [12, 0, 2]],
+                "row_labels": ["4", "6", "8"],
+                "col_labels": ["3", "4", "5"],
+            }
+        },
+        groups=[
+            {"label": "4", "count": 11, "share": 11 / 32},
+            {"label": "6", "count": 7, "share": 7 / 32},
+            {"label": "8", "count": 14, "share": 14 / 32},
+        ],
+    )
+
+
+def mtcars_two_by_two() -> Result:
+    """R 4.2.2: fisher.test(table(mtcars$am, mtcars$vs)); cells 12, 7, 6, 7 (r_cases.json mtcars_am_by_vs)."""
+    return Result(
+        outcome="vs",
+        exposure="am",
+        design="two_categorical",
+        test="fisher_exact",
+        p_value=0.4726974416017796,
+        n=32,
+        estimate=Estimate("difference in proportions (0 - 1)", 12 / 19 - 6 / 13, -0.18, 0.50),
+        effect=Effect("odds ratio", 1.9560553993728882, 0.3825341798446402, 10.591608672988254),
+        extra={"observed": [[12, 7], [6, 7]], "row_labels": ["0", "1"], "col_labels": ["0", "1"]},
+    )
+
+
+def gof_result() -> Result:
+    """R datasets: table(mtcars$cyl) = 11, 7, 14 against shares 0.25, 0.25, 0.5."""
+    return Result(
+        outcome="cyl",
+        exposure=None,
+        design="one_sample_categorical",
+        test="chi_square_goodness_of_fit",
+        statistic=1.5,
+        df=2.0,
+        p_value=0.4723665527410147,
+        n=32,
+        against={"4": 0.25, "6": 0.25, "8": 0.5},
+        estimate=Estimate("share of 4", 11 / 32, 0.2, 0.52),
+        groups=[
+            {"label": "4", "count": 11, "share": 11 / 32},
+            {"label": "6", "count": 7, "share": 7 / 32},
+            {"label": "8", "count": 14, "share": 14 / 32},
+        ],
+    )
+
+
+def shared_run(
+    min_count: int = share.DEFAULT_MIN_COUNT,
+) -> tuple[list[Result], list[SheetModel], list[SheetModel]]:
+    """The sharing-mode pipeline: suppress results, write readings, build sheets (suppressed).
+
+    Returns the results, the sheets as built before sheet suppression, and the
+    sheets build_sheets returns in sharing mode.
+    """
+    context = ReportContext(
+        workbook="clinics.xlsx",
+        data_sheet="Visits",
+        rows_read=40,
+        rows_used=34,
+        share_mode=True,
+        share_min_count=min_count,
+        samples={("Wait", "District", ""): small_group_samples()},
+    )
+    results = share.suppress(
+        [small_group_result(), mtcars_crosstab(), mtcars_two_by_two(), gof_result()], min_count
+    )
+    explain.apply(results, Settings(), context)
+    shape = report.shape_sheet(results, context)
+    raw = [
+        report.results_sheet(results, context, shape.anchors),
+        shape,
+        report.notes_sheet([], [], context),
+        report.log_sheet([], report.run_info(context, results)),
+    ]
+    return results, raw, report.build_sheets(results, context=context)
+
+
+def test_build_sheets_in_sharing_mode_returns_suppressed_sheets() -> None:
+    """build_sheets suppresses by itself in sharing mode, and a second pass changes nothing."""
+    _, raw, built = shared_run()
+    assert [m.cells for m in share.suppress(raw)] == [m.cells for m in built]
+    assert [m.cells for m in share.suppress(built)] == [m.cells for m in built]
+    for model in built:
+        assert not any(c.is_count and share.is_small_count(c.value) for c in model.cells.values())
+
+
+def hidden(model: SheetModel, pos: tuple[int, int]) -> bool:
+    return model.cells[pos].style == "suppressed"
+
+
+@pytest.mark.parametrize("min_count", [5, 11])
+def test_no_small_count_remains_on_any_tool_sheet(min_count: int) -> None:
+    """Every count cell of every tool sheet is scanned: none holds a whole number from 1 to N-1."""
+    _, before, after = shared_run(min_count)
+    small_before = 0
+    for old, new in zip(before, after, strict=True):
+        assert set(old.cells) == set(new.cells)
+        for pos, cell in new.cells.items():
+            assert cell.is_count == old.cells[pos].is_count
+            if old.cells[pos].is_count and share.is_small_count(old.cells[pos].value, min_count):
+                small_before += 1
+            if cell.is_count:
+                assert not share.is_small_count(cell.value, min_count), (new.kind, pos, cell.value)
+    assert small_before > 0  # the scenario really had small counts to hide
+
+
+def test_no_count_set_is_left_with_one_hidden_member() -> None:
+    """Complementary suppression: a row, column or bin set never has exactly one hidden cell."""
+    _, _, after = shared_run()
+    checked = 0
+    for model in after:
+        for members in model.count_sets:
+            count = sum(hidden(model, pos) for pos in members if pos in model.cells)
+            assert count != 1, (model.kind, members)
+            checked += 1
+    assert checked > 0
+
+
+def test_summaries_of_a_small_group_are_hidden() -> None:
+    """A group under N has its mean, SD, median, min and max hidden with its n."""
+    _, _, after = shared_run()
+    shape = after[1]
+    row = next(r for (r, c), cell in shape.cells.items() if c == 0 and cell.value == "Hill")
+    for col in range(1, 11):
+        assert shape.cells[(row, col)].style == "suppressed", col
+    coast = next(r for (r, c), cell in shape.cells.items() if c == 0 and cell.value == "Coast")
+    assert shape.cells[(coast, 1)].value == 18  # a group of 11 or more stays visible
+    assert shape.cells[(coast, 2)].value == 21.0
+
+
+def test_small_counts_show_a_threshold_and_complements_say_suppressed() -> None:
+    """A small count reads '<11'; a cell hidden only to protect it reads 'suppressed'."""
+    _, _, after = shared_run()
+    values = {
+        cell.value for model in after for cell in model.cells.values() if cell.style == "suppressed"
+    }
+    assert "<11" in values and "suppressed" in values
+
+
+def test_zero_counts_stay_visible() -> None:
+    """Zeros are not hidden (they reveal no person); mtcars has no 8-cylinder car with 4 gears."""
+    _, _, after = shared_run()
+    shape = after[1]
+    top = (
+        next(
+            r for (r, c), cell in shape.cells.items() if c == 0 and cell.value == "Observed counts"
+        )
+        + 1
+    )
+    assert shape.cells[(top + 3, 2)].value == 0  # R: table(mtcars$cyl, mtcars$gear)["8", "4"] == 0
+
+
+def test_results_header_says_sharing_mode_and_record_level_data() -> None:
+    """The results header says counts are hidden and that the data sheet still holds record-level data."""
+    _, _, after = shared_run()
+    results_model = after[0]
+    texts = [cell.value for cell in results_model.cells.values() if isinstance(cell.value, str)]
+    assert explain.SHARE_NOTE.format(floor=11) in texts
+    assert any("record-level data" in t for t in texts)
+    assert any(t.startswith("on: counts from 1 to 10 are hidden") for t in texts)
+
+
+def test_readings_never_quote_hidden_numbers() -> None:
+    """Readings are written after result suppression, so a small group's mean never appears."""
+    results, _, _ = shared_run()
+    kruskal = results[0]
+    assert "33.2" not in kruskal.reading and "32.5" not in kruskal.reading
+    assert kruskal.estimate.value is None and "estimate" in kruskal.extra["suppressed"]
+    assert explain.SHARE_CAUTION.format(floor=11) in kruskal.cautions
+
+
+def test_two_by_two_with_small_cell_hides_its_statistics() -> None:
+    """With its margins shown, a 2 x 2 table's p-value or odds ratio would give a small cell back."""
+    result = share.suppress(mtcars_two_by_two(), 11)  # cells 7 and 6 are under 11
+    assert result.p_value is None and result.effect.value is None and result.estimate.value is None
+    assert explain.reading(result, settings=Settings()) == explain.SHARE_HIDDEN_READING.format(
+        question="Does the mix of vs differ by am?"
+    )
+    kept = share.suppress(mtcars_two_by_two(), 5)  # no cell under 5
+    assert kept.p_value == 0.4726974416017796
+
+
+def test_inputs_are_not_changed() -> None:
+    """suppress returns copies; the results and models passed in keep their values."""
+    original = small_group_result()
+    snapshot = copy.deepcopy(original)
+    share.suppress(original)
+    assert original == snapshot
+    _, before, _ = shared_run()
+    frozen = copy.deepcopy(before)
+    share.suppress(before)
+    assert [m.cells for m in before] == [m.cells for m in frozen]
+
+
+def test_bad_threshold_is_a_one_line_option_error() -> None:
+    """A threshold below 2 or not a whole number is refused with a plain message."""
+    with pytest.raises(OptionError, match="at least 2"):
+        share.suppress([small_group_result()], 1)
+    with pytest.raises(OptionError, match="whole number"):
+        share.suppress([small_group_result()], 5.5)
+    with pytest.raises(OptionError, match="only hide counts"):
+        share.suppress(["not a sheet"])
+
+
+def test_default_threshold_is_eleven() -> None:
+    """The documented default hides counts 1 to 10 (common public-health practice)."""
+    assert share.DEFAULT_MIN_COUNT == 11
+    assert share.is_small_count(10) and not share.is_small_count(11)
+    assert (
+        not share.is_small_count(0)
+        and not share.is_small_count(3.5)
+        and not share.is_small_count(True)
+    )
+
+
+def test_histogram_bins_of_a_whole_dataset() -> None:
+    """PlantGrowth (R datasets, 10 per group): every group and every bin count is under 11, so all are hidden."""
+    frame = pd.read_csv(DATA / "plantgrowth_weight_by_group.csv")
+    samples = {str(k): g["weight"].tolist() for k, g in frame.groupby("group")}
+    result = Result(
+        outcome="weight",
+        exposure="group",
+        design="multi_group_continuous",
+        test="one_way_anova",
+        n=30,
+        p_value=0.015909958325622912,  # R 4.2.2 oneway.test(weight ~ group, var.equal = TRUE)
+        groups=[{"label": k, "n": len(v), "mean": float(np.mean(v))} for k, v in samples.items()],
+    )
+    context = ReportContext(share_mode=True, samples={("weight", "group", ""): samples})
+    model = share.suppress(report.shape_sheet(share.suppress([result]), context))
+    counts = [cell for cell in model.cells.values() if cell.is_count]
+    assert counts and all(c.value == 0 or c.style == "suppressed" for c in counts)
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    st.lists(st.lists(st.integers(0, 30), min_size=2, max_size=4), min_size=2, max_size=4).filter(
+        lambda t: len({len(r) for r in t}) == 1 and sum(map(sum, t)) > 0
+    )
+)
+def test_any_crosstab_is_safe_after_suppression(table: list[list[int]]) -> None:
+    """For any table: no small count stays, and no row, column or margin set has one hidden cell."""
+    result = Result(
+        outcome="Outcome",
+        exposure="Site",
+        design="two_categorical",
+        test="chi_square_independence",
+        n=sum(map(sum, table)),
+        extra={"observed": table},
+    )
+    model = share.suppress(report.shape_sheet([result], ReportContext()), 5)
+    for cell in model.cells.values():
+        if cell.is_count:
+            assert not share.is_small_count(cell.value, 5)
+    for members in model.count_sets:
+        assert sum(model.cells[p].style == "suppressed" for p in members) != 1
+
+
+def test_sheet_suppression_alone_hides_what_reveals_a_count() -> None:
+    """Without result-level suppression, sheet suppression still hides a small group's summaries and expected counts."""
+    context = ReportContext(samples={("Wait", "District", ""): small_group_samples()})
+    model = share.suppress(
+        report.shape_sheet([small_group_result(), mtcars_crosstab()], context), 11
+    )
+    hill = next(r for (r, c), cell in model.cells.items() if c == 0 and cell.value == "Hill")
+    assert model.cells[(hill, 1)].value == "<11"
+    assert all(model.cells[(hill, c)].style == "suppressed" for c in (2, 3, 4, 7, 8))
+    # R 4.2.2 table(mtcars$cyl, mtcars$gear): gear 5 has 5 cars, so its expected counts (which sum to 5) go too
+    top = (
+        next(
+            r
+            for (r, c), cell in model.cells.items()
+            if c == 0 and cell.value == "Expected counts if the two were unrelated"
+        )
+        + 1
+    )
+    assert all(model.cells[(top + i, 3)].style == "suppressed" for i in (1, 2, 3))
+    # row 6 (7 cars) is hidden, so row 4 (11) is hidden beside it; row 8 (14) and gear 3 (15) stay
+    assert model.cells[(top + 1, 1)].style == "suppressed"
+    assert model.cells[(top + 3, 1)].value == 6.5625
+
+
+def test_whole_data_statistics_are_kept() -> None:
+    """Statistics, p-values and standardized effects of larger tables and continuous comparisons stay."""
+    crosstab = share.suppress(mtcars_crosstab())
+    # R 4.2.2 chisq.test(table(mtcars$cyl, mtcars$gear), correct = FALSE) and Cramer's V from r_cases.json
+    assert crosstab.statistic == 18.036363636363635
+    assert crosstab.effect.value == 0.5308655025693249
+    kruskal = share.suppress(small_group_result())
+    assert kruskal.effect.value == 0.19 and kruskal.p_value == 0.045  # invented scenario values
+    assert kruskal.groups[0]["mean"] == 21.0 and kruskal.groups[1]["mean"] is None
