@@ -196,6 +196,159 @@ def test_command(workbook: Path, sheet: str | None, outcomes: tuple[str, ...], b
         write_json(json_document(results), json_path, protect=workbook)
 
 
+# ---------------------------------------------------------------- plan, run, demo
+
+
+def _pairs(values: tuple[str, ...], flag: str) -> dict[str, str]:
+    """Parse repeated COL=VALUE options into a dict, refusing malformed ones in one line."""
+    out: dict[str, str] = {}
+    for item in values:
+        name, sep, value = item.partition("=")
+        if not sep or not name.strip() or not value.strip():
+            raise errors.OptionError(f"{flag} {item!r}: write it as COL=VALUE, e.g. {flag} \"Score=85\".")
+        out[name.strip()] = value.strip()
+    return out
+
+
+def _progress(quiet: bool) -> Callable[[str], None]:
+    """Step lines on standard error, so long work shows it is moving and stdout stays clean."""
+    def say(message: str) -> None:
+        if not quiet:
+            click.echo(f"statmargin: {message} ...", err=True)
+
+    return say
+
+
+out_option = click.option(
+    "--out", metavar="PATH", type=click.Path(dir_okay=False, path_type=Path), default=None,
+    help="Write to this new file and leave WORKBOOK untouched.",
+)
+quiet_option = click.option("--quiet", is_flag=True, help="No progress lines.")
+
+
+@main.command("plan")
+@click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
+@sheet_option
+@click.option("--header-row", type=int, default=None, metavar="N", help="Row of the headers (default: first non-empty row).")
+@click.option("--outcome", "outcomes", metavar="COL", multiple=True, help="Preset: mark COL as an outcome (repeatable).")
+@click.option("--by", "bys", metavar="COL", multiple=True, help="Preset: mark COL as a compare-by column (repeatable).")
+@click.option("--pairing-key", metavar="COL", default=None, help="Preset: mark COL as the pairing key.")
+@click.option("--against", "againsts", metavar="COL=VALUE", multiple=True,
+              help="Preset: comparison value for an outcome, e.g. Score=85 or Result=Fail=0.1 (repeatable).")
+@click.option("--pair", "pairs", metavar="COL=COL2", multiple=True,
+              help="Preset: COL and COL2 are two measurements of the same record (repeatable).")
+@treat_option
+@out_option
+@json_option
+@debug_option
+@handle_errors
+def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outcomes: tuple[str, ...],
+                 bys: tuple[str, ...], pairing_key: str | None, againsts: tuple[str, ...], pairs: tuple[str, ...],
+                 treat: tuple[str, ...], out: Path | None, json_path: str | None) -> None:
+    """Add or refresh the roles sheet, keeping every choice already made.
+
+    Example: statmargin plan clinics.xlsx --outcome wait_minutes --by site
+    """
+    from .engine import parse_treat
+    from .pipeline import plan_workbook
+
+    types, orders = {}, {}
+    for name, (kind, order) in parse_treat(treat).items():
+        types[name] = kind.value
+        if order:
+            orders[name] = order
+    summary = plan_workbook(
+        workbook, sheet=sheet, header_row=header_row, outcome=outcomes, by=bys, pairing_key=pairing_key,
+        treat=types, against=_pairs(againsts, "--against"), paired_with=_pairs(pairs, "--pair"),
+        order=orders, out=out,
+    )
+    if json_path != "-":
+        roles_sheet = summary.write.sheets.get("roles", "roles")
+        click.echo(f"Wrote sheet {roles_sheet!r} to {summary.path}: {len(summary.columns)} columns of "
+                   f"sheet {summary.data_sheet!r} (headers in row {summary.header_row}).")
+        marked = [c for c in summary.columns if c["role"] != "ignore"]
+        for c in marked:
+            click.echo(f"  {c['column']}: {c['role']} ({c['inferred_type']})")
+        if not marked:
+            click.echo("  No roles chosen yet: open the file, pick roles in the shaded cells, save, then run "
+                       f"'statmargin run {workbook.name}'.")
+        for name in summary.new_columns:
+            click.echo(f"  new column: {name}")
+        for name in summary.missing_columns:
+            click.echo(f"  no longer in the data: {name}")
+        for line in summary.write.renamed:
+            click.echo(f"  {line}")
+    if json_path:
+        write_json(summary.to_record(), json_path, protect=workbook)
+
+
+@main.command("run")
+@click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
+@out_option
+@click.option("--share", is_flag=True, help="Sharing mode: hide small counts in the tool's sheets.")
+@click.option("--min-count", type=click.IntRange(min=2), default=None, metavar="N",
+              help="Sharing mode: hide counts below N (default 11, a common public-health practice).")
+@json_option
+@quiet_option
+@debug_option
+@handle_errors
+def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | None, json_path: str | None,
+                quiet: bool) -> None:
+    """Run every analysis the roles sheet asks for and write the results sheets.
+
+    Example: statmargin run clinics.xlsx --out clinics-results.xlsx
+    """
+    from .pipeline import run_workbook
+
+    if min_count is not None and not share:
+        raise errors.OptionError("--min-count goes with --share; add --share or drop --min-count.")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # caveats are in each result's notes
+        summary = run_workbook(workbook, out=out, share=share, min_count=min_count,
+                               progress=_progress(quiet or json_path == "-"))
+    if json_path != "-":
+        click.echo(run_summary_text(summary))
+    if json_path:
+        write_json(summary.to_record(), json_path, protect=workbook)
+
+
+@main.command("demo")
+@click.argument("folder", type=click.Path(file_okay=False, path_type=Path), default="statmargin-demo")
+@quiet_option
+@debug_option
+@handle_errors
+def demo_command(folder: Path, quiet: bool) -> None:
+    """Copy the demo workbooks (invented data, roles marked) into FOLDER and run them.
+
+    Example: statmargin demo statmargin-demo
+    """
+    from .demo import run_demo
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        summaries = run_demo(folder, progress=_progress(quiet))
+    for summary in summaries:
+        click.echo(run_summary_text(summary))
+        click.echo("")
+    click.echo(f"Open the workbooks in {folder} to see the results sheets; the empty template is there too.")
+
+
+def run_summary_text(summary: Any) -> str:
+    """A few lines about a workbook run: where results went and how many analyses were done."""
+    results = summary.results
+    skipped = sum(1 for r in results if r.skipped)
+    flagged = sum(1 for r in results if r.p_adjusted is not None and r.p_adjusted < 1 - r.confidence)
+    lines = [
+        f"{summary.path}: {len(results)} analyses of sheet {summary.data_sheet!r} "
+        f"({summary.rows_read:,} rows read, {summary.notes} data notes).",
+        f"  {flagged} with adjusted p below {1 - results[0].confidence:.2g}, {skipped} could not be run."
+        if results else "  No analyses were run.",
+        "  Sheets written: " + ", ".join(summary.write.sheets.values()),
+    ]
+    lines.extend(f"  {m}" for m in summary.messages)
+    return "\n".join(lines)
+
+
 # ---------------------------------------------------------------- summary text
 
 

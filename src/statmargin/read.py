@@ -1121,11 +1121,14 @@ def sample_values(column: Column, k: int = 5) -> list[str]:
     Returns
     -------
     list of str
-        Numbers shown without a trailing ".0"; labels as read.
+        Numbers shown without a trailing ".0"; labels as read; in a column that
+        mostly holds dates, day serials shown as ISO dates (2026-03-01).
     """
     out: list[str] = []
     seen: set[str] = set()
     numbers, labels = column.numbers, column.labels
+    filled = len(column) - column.n_blank - column.n_unreadable
+    show = _serial_date_text if column.n_dates * 2 >= max(filled, 1) else format_number
     for i in range(len(column)):
         if len(out) >= k:
             break
@@ -1133,10 +1136,16 @@ def sample_values(column: Column, k: int = 5) -> list[str]:
         if label is not None:
             text = str(label)
         elif not math.isnan(numbers[i]):
-            text = format_number(float(numbers[i]))
+            text = show(float(numbers[i]))
         else:
             continue
         if text not in seen:
             seen.add(text)
             out.append(text)
     return out
+
+
+def _serial_date_text(serial: float) -> str:
+    """An Excel day serial (1900 system, days since 1899-12-30) as an ISO date, with time if any."""
+    moment = dt.datetime(1899, 12, 30) + dt.timedelta(days=serial)
+    return moment.isoformat(sep=" ", timespec="minutes") if serial % 1 else moment.date().isoformat()
