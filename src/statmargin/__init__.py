@@ -4,11 +4,18 @@ The Python API mirrors the ``statmargin test`` command::
 
     import statmargin
     results = statmargin.analyze(frame, outcome="wait_minutes", by="site")
+
+and the workbook jobs mirror ``statmargin plan`` and ``statmargin run``::
+
+    statmargin.plan_workbook("visits.xlsx", outcome=["wait_minutes"], by=["site"])
+    summary = statmargin.run_workbook("visits.xlsx")
 """
 
 from . import errors
 from ._version import __version__
 from .engine import analyze
+from .pipeline import plan_workbook, run_workbook
+from .read import read_table
 from .results import Effect, Estimate, Followup, Result
 from .roles import Plan
 from .table import Table
@@ -23,4 +30,7 @@ __all__ = [
     "__version__",
     "analyze",
     "errors",
+    "plan_workbook",
+    "read_table",
+    "run_workbook",
 ]
