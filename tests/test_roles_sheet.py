@@ -3,7 +3,16 @@
 import pytest
 
 from statmargin.errors import RoleError
-from statmargin.roles import AdjustMethod, Alternative, ColumnChoice, MeasureType, Plan, Role, Settings, ShapeHandling
+from statmargin.roles import (
+    AdjustMethod,
+    Alternative,
+    ColumnChoice,
+    MeasureType,
+    Plan,
+    Role,
+    Settings,
+    ShapeHandling,
+)
 from statmargin.roles_sheet import (
     HEADERS,
     STATUS_MISSING,
