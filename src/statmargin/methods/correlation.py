@@ -80,6 +80,25 @@ def pearson_r(
     ----------
     Fisher, R. A. (1921). On the "probable error" of a coefficient of correlation
     deduced from a small sample. Metron 1:3-32.
+
+    Examples
+    --------
+    The data of R's ``?cor.test`` example (Hollander & Wolfe 1973, p. 187f.):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> x = [44.4, 45.9, 41.9, 53.3, 44.7, 44.1, 50.7, 45.2, 60.1]
+    >>> y = [2.6, 3.1, 2.5, 5.0, 3.6, 4.0, 5.2, 2.8, 3.8]
+    >>> result = pearson_r(x, y, labels=("x", "y"))
+    >>> round(result.estimate.value, 4), round(result.statistic, 4), result.df, round(result.p_value, 4)
+    (0.5712, 1.8411, 7.0, 0.1082)
+    >>> round(result.estimate.ci_low, 4), round(result.estimate.ci_high, 4)
+    (-0.1497, 0.8956)
+    >>> check = stats.pearsonr(x, y)
+    >>> math.isclose(result.p_value, check.pvalue)
+    True
+    >>> math.isclose(result.estimate.ci_low, check.confidence_interval().low)
+    True
     """
     common.check_options(alternative, confidence)
     a, b, dropped = _pairs(x, y)
@@ -159,6 +178,21 @@ def spearman_rho(
     Bonett, D. G., & Wright, T. A. (2000). Sample size requirements for estimating
     Pearson, Kendall and Spearman correlations. Psychometrika 65(1):23-28.
     doi:10.1007/BF02294183
+
+    Examples
+    --------
+    The data of R's ``?cor.test`` example (Hollander & Wolfe 1973, p. 187f.):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> x = [44.4, 45.9, 41.9, 53.3, 44.7, 44.1, 50.7, 45.2, 60.1]
+    >>> y = [2.6, 3.1, 2.5, 5.0, 3.6, 4.0, 5.2, 2.8, 3.8]
+    >>> result = spearman_rho(x, y, labels=("x", "y"))
+    >>> round(result.estimate.value, 4), result.statistic, round(result.p_value, 4)
+    (0.6, 48.0, 0.0876)
+    >>> check = stats.spearmanr(x, y)
+    >>> math.isclose(result.estimate.value, check.statistic), math.isclose(result.p_value, check.pvalue)
+    (True, True)
     """
     common.check_options(alternative, confidence)
     a, b, dropped = _pairs(x, y)

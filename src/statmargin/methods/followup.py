@@ -100,6 +100,34 @@ def tukey_hsd(
     Kramer, C. Y. (1956). Extension of multiple range tests to group means with
     unequal numbers of replications. Biometrics 12(3), 307-310.
     https://doi.org/10.2307/3001469
+
+    Examples
+    --------
+    Waiting times (hours) at three sites, five visits each (invented data):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> groups = {
+    ...     "north": [4.2, 5.1, 3.9, 4.8, 5.5],
+    ...     "centre": [5.9, 6.4, 5.2, 6.8, 6.1],
+    ...     "south": [4.9, 5.6, 6.0, 5.3, 4.7],
+    ... }
+    >>> pairs = tukey_hsd(groups)
+    >>> for pair in pairs:
+    ...     print(pair.levels, round(pair.estimate.value, 4), round(pair.p_adjusted, 4), pair.flagged)
+    ('centre', 'north') 1.38 0.0082 True
+    ('south', 'north') 0.6 0.2838 False
+    ('south', 'centre') -0.78 0.1364 False
+    >>> round(pairs[0].estimate.ci_low, 4), round(pairs[0].estimate.ci_high, 4)
+    (0.3785, 2.3815)
+
+    SciPy's ``tukey_hsd`` indexes groups by position (1 = centre, 0 = north):
+
+    >>> check = stats.tukey_hsd(*groups.values())
+    >>> math.isclose(pairs[0].p_adjusted, check.pvalue[1, 0])
+    True
+    >>> math.isclose(pairs[0].estimate.ci_low, check.confidence_interval().low[1, 0])
+    True
     """
     confidence = _check_confidence(confidence)
     items = _clean_groups(groups)
@@ -170,6 +198,31 @@ def games_howell(
     Games, P. A. and Howell, J. F. (1976). Pairwise multiple comparison
     procedures with unequal n's and/or variances: a Monte Carlo study. Journal
     of Educational Statistics 1(2), 113-125. https://doi.org/10.3102/10769986001002113
+
+    Examples
+    --------
+    Waiting times (hours) at three sites, five visits each (invented data):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> groups = {
+    ...     "north": [4.2, 5.1, 3.9, 4.8, 5.5],
+    ...     "centre": [5.9, 6.4, 5.2, 6.8, 6.1],
+    ...     "south": [4.9, 5.6, 6.0, 5.3, 4.7],
+    ... }
+    >>> for pair in games_howell(groups):
+    ...     print(pair.levels, round(pair.statistic, 4), round(pair.p_adjusted, 4), pair.flagged)
+    ('centre', 'north') 3.4895 0.0202 True
+    ('south', 'north') 1.6036 0.3009 False
+    ('south', 'centre') -2.1939 0.1331 False
+
+    SciPy has no Games-Howell test, but with only two groups the studentized range
+    p-value equals Welch's t-test p-value, which gives a cross-check:
+
+    >>> two = {"north": groups["north"], "centre": groups["centre"]}
+    >>> welch_p = stats.ttest_ind(groups["centre"], groups["north"], equal_var=False).pvalue
+    >>> math.isclose(games_howell(two)[0].p_adjusted, welch_p)
+    True
     """
     confidence = _check_confidence(confidence)
     items = _clean_groups(groups)
@@ -247,6 +300,32 @@ def dunn(
     ----------
     Dunn, O. J. (1964). Multiple comparisons using rank sums. Technometrics
     6(3), 241-252. https://doi.org/10.1080/00401706.1964.10490181
+
+    Examples
+    --------
+    Waiting times (hours) at three sites, five visits each (invented data):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> groups = {
+    ...     "north": [4.2, 5.1, 3.9, 4.8, 5.5],
+    ...     "centre": [5.9, 6.4, 5.2, 6.8, 6.1],
+    ...     "south": [4.9, 5.6, 6.0, 5.3, 4.7],
+    ... }
+    >>> for pair in dunn(groups, adjust="holm"):
+    ...     print(pair.levels, round(pair.statistic, 4), round(pair.p_value, 4), round(pair.p_adjusted, 4))
+    ('centre', 'north') 2.687 0.0072 0.0216
+    ('south', 'north') 1.1314 0.2579 0.2579
+    ('south', 'centre') -1.5556 0.1198 0.2396
+
+    SciPy has no Dunn test, but with only two groups Dunn's z equals the
+    Mann-Whitney z without continuity correction, which gives a cross-check:
+
+    >>> two = {"north": groups["north"], "centre": groups["centre"]}
+    >>> mw = stats.mannwhitneyu(groups["centre"], groups["north"], use_continuity=False,
+    ...                         method="asymptotic")
+    >>> math.isclose(dunn(two, adjust="none")[0].p_value, mw.pvalue)
+    True
     """
     items = _clean_groups(groups)
     pooled = np.concatenate([v for _, v in items])
@@ -323,6 +402,27 @@ def pairwise_mann_whitney(
     18(1), 50-60. https://doi.org/10.1214/aoms/1177730491
     Hodges, J. L. and Lehmann, E. L. (1963). Annals of Mathematical Statistics
     34(2), 598-611. https://doi.org/10.1214/aoms/1177704172
+
+    Examples
+    --------
+    Waiting times (hours) at three sites, five visits each (invented data):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> groups = {
+    ...     "north": [4.2, 5.1, 3.9, 4.8, 5.5],
+    ...     "centre": [5.9, 6.4, 5.2, 6.8, 6.1],
+    ...     "south": [4.9, 5.6, 6.0, 5.3, 4.7],
+    ... }
+    >>> pairs = pairwise_mann_whitney(groups, adjust="holm")
+    >>> for pair in pairs:
+    ...     print(pair.levels, pair.statistic, round(pair.p_value, 4), round(pair.p_adjusted, 4))
+    ('centre', 'north') 24.0 0.0216 0.0647
+    ('south', 'north') 19.0 0.2101 0.2101
+    ('south', 'centre') 4.0 0.0947 0.1894
+    >>> check = stats.mannwhitneyu(groups["centre"], groups["north"], method="asymptotic")
+    >>> math.isclose(pairs[0].p_value, check.pvalue)
+    True
     """
     items = _clean_groups(groups)
     rows = []
@@ -390,6 +490,29 @@ def adjusted_residuals(
     Haberman, S. J. (1973). The analysis of residuals in cross-classified
     tables. Biometrics 29(1), 205-220. https://doi.org/10.2307/2529686
     Agresti, A. (2013). Categorical Data Analysis, 3rd ed., Wiley.
+
+    Examples
+    --------
+    Party identification by gender, from R's ``?chisq.test`` example (Agresti 2007,
+    p. 39):
+
+    >>> table = [[762, 327, 468], [484, 239, 477]]
+    >>> cells = adjusted_residuals(table, ["F", "M"], ["Democrat", "Independent", "Republican"])
+    >>> for cell in cells[:3]:
+    ...     print(cell.levels, round(cell.statistic, 4), cell.flagged)
+    ('F', 'Democrat') 4.5021 True
+    ('F', 'Independent') 0.6995 False
+    ('F', 'Republican') -5.3159 True
+
+    SciPy has no adjusted residuals, but in a 2x2 table the squared residual of
+    every cell equals the Pearson chi-square (invented counts):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> small = [[12, 8], [5, 15]]
+    >>> z = adjusted_residuals(small, ["A", "B"], ["yes", "no"])[0].statistic
+    >>> math.isclose(z * z, stats.chi2_contingency(small, correction=False).statistic)
+    True
     """
     counts = _count_table(table, row_labels, col_labels).astype(float)
     n = counts.sum()

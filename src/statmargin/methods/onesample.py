@@ -53,6 +53,22 @@ def one_sample_t(
     ----------
     Student (1908). The probable error of a mean. Biometrika 6(1):1-25.
     doi:10.1093/biomet/6.1.1
+
+    Examples
+    --------
+    Extra hours of sleep under drug 1 in R's ``sleep`` data (datasets::sleep,
+    group 1; Cushny & Peebles 1905 as given by Student 1908), tested against 0:
+
+    >>> import math
+    >>> from scipy import stats
+    >>> extra = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
+    >>> result = one_sample_t(extra, mu=0.0)
+    >>> round(result.statistic, 4), result.df, round(result.p_value, 4)
+    (1.3257, 9.0, 0.2176)
+    >>> round(result.estimate.ci_low, 4), round(result.estimate.ci_high, 4)
+    (-0.5298, 2.0298)
+    >>> math.isclose(result.p_value, stats.ttest_1samp(extra, 0.0).pvalue)
+    True
     """
     common.check_options(alternative, confidence)
     values, dropped = common.clean(x)
@@ -138,6 +154,25 @@ def wilcoxon_signed_rank(
     Bulletin 1(6):80-83. doi:10.2307/3001968
     Hodges, J. L., & Lehmann, E. L. (1963). Estimates of location based on rank tests.
     Annals of Mathematical Statistics 34(2):598-611. doi:10.1214/aoms/1177704172
+
+    Examples
+    --------
+    First measurements of the depression data in R's ``?wilcox.test`` example
+    (Hollander & Wolfe 1973, p. 29), tested against a centre of 1. With no ties
+    and no zero differences the p-value is exact:
+
+    >>> import math
+    >>> import numpy as np
+    >>> from scipy import stats
+    >>> x = [1.83, 0.50, 1.62, 2.48, 1.68, 1.88, 1.55, 3.06, 1.30]
+    >>> result = wilcoxon_signed_rank(x, mu=1.0)
+    >>> result.statistic, result.p_method, round(result.p_value, 4)
+    (43.0, 'exact', 0.0117)
+    >>> round(result.estimate.value, 4), round(result.estimate.ci_low, 4), round(result.estimate.ci_high, 4)
+    (1.725, 1.165, 2.37)
+    >>> scipy_p = stats.wilcoxon(np.array(x) - 1.0, method="exact").pvalue
+    >>> math.isclose(result.p_value, scipy_p)
+    True
     """
     common.check_options(alternative, confidence)
     values, dropped = common.clean(x)
@@ -183,6 +218,14 @@ def signed_rank_result(
         Finite values (or paired differences).
     mu : float
         Null centre.
+    alternative : {"two-sided", "greater", "less"}
+        ``greater``: values tend to lie above ``mu``.
+    confidence : float
+        Level of the interval for the pseudo-median.
+    exact : {"auto", True, False}
+        As for :func:`wilcoxon_signed_rank`.
+    correct : bool
+        Continuity correction in the normal approximation.
     what : str
         Plain name for messages ("the outcome", "the differences").
 
@@ -191,6 +234,28 @@ def signed_rank_result(
     Result
         With test, statistic, p, estimate (pseudo-median of ``values``), effect and
         notes filled; the caller sets design, groups and names.
+
+    Notes
+    -----
+    Same conventions as :func:`wilcoxon_signed_rank`: zero differences from ``mu``
+    are dropped before ranking, ties get mid-ranks, and the exact null distribution
+    is used only with fewer than 50 non-zero differences, no ties and no zeros.
+
+    References
+    ----------
+    Wilcoxon, F. (1945). Individual comparisons by ranking methods. Biometrics
+    Bulletin 1(6):80-83. doi:10.2307/3001968
+
+    Examples
+    --------
+    The core on values already cleaned (the public wrappers call it):
+
+    >>> import numpy as np
+    >>> values = np.array([1.83, 0.50, 1.62, 2.48, 1.68, 1.88, 1.55, 3.06, 1.30])
+    >>> core = signed_rank_result(values, mu=1.0, alternative="two-sided", confidence=0.95,
+    ...                           exact="auto", correct=True, what="the outcome")
+    >>> core.test, core.statistic, round(core.p_value, 4), core.extra["n_zero_differences"]
+    ('wilcoxon_signed_rank', 43.0, 0.0117, 0)
     """
     if exact not in ("auto", True, False):
         raise common.OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
@@ -260,10 +325,35 @@ def signed_rank_result(
 def signed_rank_counts(n: int) -> list[int]:
     """Number of sign patterns giving each V = 0..n(n+1)/2 (exact null distribution).
 
+    Parameters
+    ----------
+    n : int
+        Number of non-zero, untied differences.
+
+    Returns
+    -------
+    list of int
+        ``counts[v]`` is the number of the 2^n sign patterns whose positive ranks sum
+        to v; dividing by 2^n gives R's ``dsignrank(v, n)``.
+
     Notes
     -----
     Built by adding one rank at a time: ``c_k(v) = c_{k-1}(v) + c_{k-1}(v - k)``.
     Python integers keep the counts exact for any n.
+
+    References
+    ----------
+    Wilcoxon, F. (1945). Individual comparisons by ranking methods. Biometrics
+    Bulletin 1(6):80-83. doi:10.2307/3001968
+
+    Examples
+    --------
+    For n = 3 the 2^3 = 8 sign patterns give V = 0..6 with these counts:
+
+    >>> signed_rank_counts(3)
+    [1, 1, 1, 2, 1, 1, 1]
+    >>> sum(signed_rank_counts(10)) == 2**10
+    True
     """
     counts = [1]
     for k in range(1, n + 1):

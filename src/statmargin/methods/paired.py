@@ -71,6 +71,23 @@ def paired_t(
     ----------
     Lakens, D. (2013). Calculating and reporting effect sizes to facilitate cumulative
     science. Frontiers in Psychology 4:863. doi:10.3389/fpsyg.2013.00863
+
+    Examples
+    --------
+    R's ``sleep`` data (datasets::sleep): the same ten patients under two drugs,
+    as ``t.test(extra[group == 1], extra[group == 2], paired = TRUE)``:
+
+    >>> import math
+    >>> from scipy import stats
+    >>> drug1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
+    >>> drug2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4]
+    >>> result = paired_t(drug1, drug2, labels=("drug 1", "drug 2"))
+    >>> round(result.statistic, 4), result.df, round(result.p_value, 4)
+    (-4.0621, 9.0, 0.0028)
+    >>> result.estimate.value, round(result.estimate.ci_low, 4), round(result.estimate.ci_high, 4)
+    (-1.58, -2.4599, -0.7001)
+    >>> math.isclose(result.p_value, stats.ttest_rel(drug1, drug2).pvalue)
+    True
     """
     common.check_options(alternative, confidence)
     a, b, differences, dropped, first, second = _differences(x1, x2, labels, 2)
@@ -138,6 +155,35 @@ def wilcoxon_paired(
     ----------
     Wilcoxon, F. (1945). Individual comparisons by ranking methods. Biometrics
     Bulletin 1(6):80-83. doi:10.2307/3001968
+
+    Examples
+    --------
+    Hamilton depression scores at two visits, from R's ``?wilcox.test`` example
+    (Hollander & Wolfe 1973, p. 29); no ties, so the p-value is exact:
+
+    >>> import math
+    >>> from scipy import stats
+    >>> x = [1.83, 0.50, 1.62, 2.48, 1.68, 1.88, 1.55, 3.06, 1.30]
+    >>> y = [0.878, 0.647, 0.598, 2.05, 1.06, 1.29, 1.06, 3.14, 1.29]
+    >>> result = wilcoxon_paired(x, y, labels=("first", "second"), alternative="greater")
+    >>> result.statistic, result.p_method, round(result.p_value, 4)
+    (40.0, 'exact', 0.0195)
+    >>> scipy_p = stats.wilcoxon(x, y, alternative="greater", method="exact").pvalue
+    >>> math.isclose(result.p_value, scipy_p)
+    True
+
+    R's ``sleep`` data has one zero difference and ties, so the zero is dropped and
+    the normal approximation (tie and continuity corrections) is used:
+
+    >>> drug1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
+    >>> drug2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4]
+    >>> result = wilcoxon_paired(drug1, drug2, labels=("drug 1", "drug 2"))
+    >>> result.statistic, result.extra["n_zero_differences"], round(result.p_value, 4)
+    (0.0, 1, 0.0091)
+    >>> scipy_p = stats.wilcoxon(drug1, drug2, zero_method="wilcox", correction=True,
+    ...                          method="approx").pvalue
+    >>> math.isclose(result.p_value, scipy_p)
+    True
     """
     common.check_options(alternative, confidence)
     a, b, differences, dropped, first, second = _differences(x1, x2, labels, 1)

@@ -66,6 +66,23 @@ def welch_t(
     Welch, B. L. (1947). The generalization of "Student's" problem when several
     different population variances are involved. Biometrika 34(1-2):28-35.
     doi:10.1093/biomet/34.1-2.28
+
+    Examples
+    --------
+    R's ``sleep`` data (datasets::sleep), extra hours of sleep by drug, treated
+    here as two independent groups as in ``t.test(extra ~ group, data = sleep)``:
+
+    >>> import math
+    >>> from scipy import stats
+    >>> drug1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
+    >>> drug2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4]
+    >>> result = welch_t(drug1, drug2, labels=("1", "2"))
+    >>> round(result.statistic, 4), round(result.df, 4), round(result.p_value, 4)
+    (-1.8608, 17.7765, 0.0794)
+    >>> result.estimate.name, round(result.estimate.ci_low, 4), round(result.estimate.ci_high, 4)
+    ('difference in means (1 - 2)', -3.3655, 0.2055)
+    >>> math.isclose(result.p_value, stats.ttest_ind(drug1, drug2, equal_var=False).pvalue)
+    True
     """
     return _t_test(x, y, labels, alternative, confidence, equal_variances=False)
 
@@ -99,6 +116,21 @@ def student_t(
     ----------
     Student (1908). The probable error of a mean. Biometrika 6(1):1-25.
     doi:10.1093/biomet/6.1.1
+
+    Examples
+    --------
+    R's ``sleep`` data (datasets::sleep), as
+    ``t.test(extra ~ group, data = sleep, var.equal = TRUE)``:
+
+    >>> import math
+    >>> from scipy import stats
+    >>> drug1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
+    >>> drug2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4]
+    >>> result = student_t(drug1, drug2, labels=("1", "2"))
+    >>> round(result.statistic, 4), result.df, round(result.p_value, 4)
+    (-1.8608, 18.0, 0.0792)
+    >>> math.isclose(result.p_value, stats.ttest_ind(drug1, drug2).pvalue)
+    True
     """
     return _t_test(x, y, labels, alternative, confidence, equal_variances=True)
 
@@ -210,6 +242,36 @@ def mann_whitney_u(
     Statistics 18(1):50-60. doi:10.1214/aoms/1177730491
     Hodges, J. L., & Lehmann, E. L. (1963). Annals of Mathematical Statistics
     34(2):598-611. doi:10.1214/aoms/1177704172
+
+    Examples
+    --------
+    The two-sample data of R's ``?wilcox.test`` example (Hollander & Wolfe 1973,
+    p. 69): no ties and small groups, so the p-value is exact.
+
+    >>> import math
+    >>> from scipy import stats
+    >>> x = [0.80, 0.83, 1.89, 1.04, 1.45, 1.38, 1.91, 1.64, 0.73, 1.46]
+    >>> y = [1.15, 0.88, 0.90, 0.74, 1.21]
+    >>> result = mann_whitney_u(x, y, labels=("x", "y"), alternative="greater")
+    >>> result.statistic, result.p_method, round(result.p_value, 4)
+    (35.0, 'exact', 0.1272)
+    >>> round(result.estimate.value, 4), round(result.effect.value, 4)
+    (0.305, 0.4)
+    >>> check = stats.mannwhitneyu(x, y, alternative="greater", method="exact")
+    >>> result.statistic == float(check.statistic), math.isclose(result.p_value, check.pvalue)
+    (True, True)
+
+    With ties (R's ``sleep`` data) the normal approximation with tie and continuity
+    corrections is used:
+
+    >>> drug1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
+    >>> drug2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4]
+    >>> result = mann_whitney_u(drug1, drug2, labels=("1", "2"))
+    >>> result.statistic, result.p_method, round(result.p_value, 4)
+    (25.5, 'normal_approximation_continuity', 0.0693)
+    >>> scipy_p = stats.mannwhitneyu(drug1, drug2, method="asymptotic", use_continuity=True).pvalue
+    >>> math.isclose(result.p_value, scipy_p)
+    True
     """
     common.check_options(alternative, confidence)
     if exact not in ("auto", True, False):
@@ -269,11 +331,38 @@ def mann_whitney_u(
 def rank_sum_counts(n1: int, n2: int) -> list[int]:
     """Number of arrangements giving each U = 0..n1 n2 (exact null distribution).
 
+    Parameters
+    ----------
+    n1, n2 : int
+        Sizes of the two groups (no ties).
+
+    Returns
+    -------
+    list of int
+        ``counts[u]`` is the number of the C(n1 + n2, n1) equally likely rank
+        arrangements with U = u; dividing by that total gives R's ``dwilcox(u, n1, n2)``.
+
     Notes
     -----
     The counts are the coefficients of the Gaussian binomial coefficient
     ``prod_{i=1..n1} (1 - q^(n2+i)) / (1 - q^i)``; multiplying by the numerator and
     dividing by the denominator term by term keeps exact integers.
+
+    References
+    ----------
+    Mann, H. B., & Whitney, D. R. (1947). On a test of whether one of two random
+    variables is stochastically larger than the other. Annals of Mathematical
+    Statistics 18(1):50-60. doi:10.1214/aoms/1177730491
+
+    Examples
+    --------
+    Two groups of two: the C(4, 2) = 6 arrangements give U = 0..4 with counts
+
+    >>> rank_sum_counts(2, 2)
+    [1, 1, 2, 1, 1]
+    >>> import math
+    >>> sum(rank_sum_counts(5, 7)) == math.comb(12, 5)
+    True
     """
     size = n1 * n2 + 1
     poly = [0] * size
