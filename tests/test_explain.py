@@ -979,3 +979,50 @@ def test_method_note_on_expected_counts_is_not_repeated() -> None:
     result.notes = [note]
     assert note not in _cautions(result)
     assert note in explain.technical_note(result)
+
+
+# ---------------------------------------------------------------- run-wide cautions
+
+
+def test_run_wide_cautions_start_with_the_review_line() -> None:
+    """Stated once for a run: review line, routine-records line, several-comparisons line, then shared lines."""
+    cases = make_cases()
+    results = [cases["welch_t"], cases["pearson"]]  # both comparisons: the causation line is shared
+    explain.apply(results, SETTINGS, UNITS)
+    lines = explain.run_wide_cautions(results, settings=SETTINGS, context=UNITS)
+    assert lines[:2] == [explain.REVIEW_LINE, explain.OBSERVATIONAL_LINE]
+    assert explain.CAUSATION_LINE in lines
+    for result in results:  # each result still carries every one of them
+        assert set(lines) <= set(result.cautions)
+    with_one_sample = results + [cases["one_sample_t"]]
+    for result in with_one_sample:  # adjusted as a family of three (invented adjustment)
+        result.p_adjusted = min(1.0, 3 * result.p_value)
+    explain.apply(with_one_sample, SETTINGS, UNITS)
+    lines = explain.run_wide_cautions(with_one_sample, settings=SETTINGS, context=UNITS)
+    assert explain.CAUSATION_LINE not in lines  # not every result carries it
+    assert explain.MULTIPLE_LINE.format(count=3, method="Holm") in lines
+    designed = {"units": UNITS, "observational": False}
+    explain.apply(with_one_sample, SETTINGS, designed)
+    off = explain.run_wide_cautions(with_one_sample, settings=SETTINGS, context=designed)
+    assert explain.OBSERVATIONAL_LINE not in off
+
+
+def test_row_cautions_drop_only_the_run_wide_lines() -> None:
+    """A row keeps its own lines in order and loses only those already stated for the run."""
+    own = ["Some groups have fewer than 10 records.", explain.CAUSATION_LINE]
+    full = [explain.OBSERVATIONAL_LINE, *own, explain.REVIEW_LINE]
+    run_wide = [explain.REVIEW_LINE, explain.OBSERVATIONAL_LINE]
+    assert explain.row_cautions(full, run_wide) == own
+    assert explain.row_cautions([explain.REVIEW_LINE], run_wide) == []
+
+
+def test_sharing_mode_does_not_quote_the_smallest_expected_count() -> None:
+    """In sharing mode the expected-count caution and the technical note leave out the smallest value."""
+    # R 4.2.2: chisq.test(table(cyl, gear)) smallest expected count 1.09375 (r_cases.json contingency.min_expected)
+    result = make_cases()["chi_square_independence"]
+    shared = {"units": UNITS, "share_mode": True, "share_min_count": 11}
+    line = next(c for c in _cautions(result, context=shared) if "expected counts" in c)
+    assert line.startswith("Some expected counts are below 5, so the usual chi-square")
+    assert "1.09" not in line
+    assert not any("1.09" in s for s in explain.technical_lines(result, SETTINGS, shared))
+    assert any("1.09" in s for s in explain.technical_lines(result, SETTINGS, UNITS))

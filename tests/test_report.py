@@ -232,14 +232,18 @@ def test_results_table_has_one_row_per_analysis_and_followup() -> None:
     top = header_row(model)
     assert model.freeze == (top + 1, 1)
     headers = [model.cells[(top, c)].value for c in range(len(report.RESULT_COLUMNS))]
-    assert headers[:6] == [
+    assert headers[:9] == [
         "Question",
+        "Reading",
+        "Cautions",
         "Outcome",
         "Compared by / against",
         "n used",
         "n excluded",
         "Test",
+        "Why this test",
     ]
+    assert headers[-1] == "Details"
     col = report.COL
     anova_row, followup_row, welch_row = top + 1, top + 2, top + 3
     assert model.cells[(anova_row, col["Question"])].value == "Does weight differ by group?"
@@ -266,7 +270,8 @@ def test_results_table_has_one_row_per_analysis_and_followup() -> None:
     assert model.cells[(welch_row, col["CI"])].value == "-3.37 to 0.21"
     assert model.cells[(welch_row, col["df"])].value == 17.7764735161785
     assert "compatible with no difference" in model.cells[(welch_row, col["Reading"])].value
-    assert explain.REVIEW_LINE in model.cells[(welch_row, col["Cautions"])].value
+    # The review line is stated once above the table, not on each row.
+    assert explain.REVIEW_LINE not in model.cells[(welch_row, col["Cautions"])].value
     assert all(width >= 8 for width in model.widths.values())
 
 
@@ -338,10 +343,13 @@ def test_shape_block_has_group_table_and_spread_check() -> None:
     assert model.cells[(row, 8)].value == values.max()
     spread = find_row(model, 0, "Spread check")
     assert model.cells[(spread, 1)].value == "Brown-Forsythe"
-    assert model.cells[(spread, 5)].value == 0.3412266241254738
+    assert (
+        model.cells[(spread, 4)].value == 1.1191856948703909
+    )  # R 4.2.2 r_cases.json brown_forsythe_median
+    assert model.cells[(spread, 6)].value == 0.3412266241254738
     # the group's n reveals, and is revealed by, its summaries: all are listed as dependents
     assert (row, 2) in model.count_dependents[(row, 1)]
-    lines = [cell.value for (r, c), cell in model.cells.items() if c == 0 and cell.style == "text"]
+    lines = [cell.value for (r, c), cell in model.cells.items() if c == 0 and cell.style == "wrap"]
     assert "One-way ANOVA (two-sided), 30 records used." in lines
 
 
@@ -367,7 +375,9 @@ def test_histogram_uses_shared_bins_and_counts_every_value() -> None:
         expected, _ = np.histogram(samples[series.name], bins=edges)
         assert counts == expected.tolist()
         assert sum(counts) == len(samples[series.name])
-    assert chart.anchor.startswith("P")
+    # The chart sits in column B under the bin table it draws, in rows of its own.
+    assert chart.anchor.startswith("B")
+    assert int(chart.anchor[1:]) > int(last[1:])
 
 
 def test_bin_edges_follow_numpy_auto_within_limits() -> None:
@@ -621,13 +631,22 @@ def test_engine_style_summaries_are_shown() -> None:
     }
     model = report.shape_sheet([result], context(samples={}))
     row = find_row(model, 0, "1")
-    headers = [h for h, _, _ in report.GROUP_COLUMNS]
-    values = dict(
-        zip(headers, [model.cells[(row, c)].value for c in range(1, len(headers) + 1)], strict=True)
+    second = min(
+        r for (r, c), cell in model.cells.items() if c == 0 and cell.value == "1" and r > row
     )
+    values, positions = {}, {}
+    for part, at in zip(report.GROUP_TABLE_PARTS, (row, second), strict=True):
+        for c, header in enumerate(part, start=1):
+            values[header] = model.cells[(at, c)].value
+            positions[header] = (at, c)
+    assert set(values) == {h for h, _, _ in report.GROUP_COLUMNS}
     assert values["Normality check"] == "Shapiro-Wilk"
     assert values["Normality p"] == 0.4
-    assert values["Outliers (1.5 IQR)"] == 1 and model.cells[(row, 13)].is_count
+    assert (
+        values["Outliers (1.5 IQR)"] == 1 and model.cells[positions["Outliers (1.5 IQR)"]].is_count
+    )
+    # The n cell lists every summary of its group, in both parts, as revealing it.
+    assert positions["Outliers (1.5 IQR)"] in model.count_dependents[positions["n"]]
     assert values["Shape"] == "close to normal (Shapiro-Wilk p = 0.40)"
     spread = find_row(model, 0, "Spread check")
     assert model.cells[(spread, 1)].value == "Brown-Forsythe"
@@ -700,4 +719,147 @@ def test_sheets_from_the_engine_on_r_data() -> None:
     assert [c.kind for c in shape.charts] == ["column"]
     spread = find_row(shape, 1, "Brown-Forsythe")
     # R 4.2.2 r_cases.json brown_forsythe_median: p = 0.3412266241254738
-    assert shape.cells[(spread, 5)].value == pytest.approx(0.3412266241254738, rel=1e-9)
+    assert shape.cells[(spread, 6)].value == pytest.approx(0.3412266241254738, rel=1e-9)
+
+
+# ---------------------------------------------------------------- layout for reading and printing
+
+
+def test_results_columns_put_plain_words_first() -> None:
+    """Question, Reading and Cautions come first; every technical column follows, none dropped."""
+    names = [name for name, _ in report.RESULT_COLUMNS]
+    assert names[:3] == ["Question", "Reading", "Cautions"]
+    assert set(names[3:]) == {
+        "Outcome",
+        "Compared by / against",
+        "n used",
+        "n excluded",
+        "Test",
+        "Why this test",
+        "Statistic",
+        "Statistic value",
+        "df",
+        "p",
+        "Adjusted p",
+        "Estimate",
+        "Estimate value",
+        "CI low",
+        "CI high",
+        "CI",
+        "Effect size",
+        "Effect value",
+        "Effect CI low",
+        "Effect CI high",
+        "Details",
+    }
+    assert names.index("p") < names.index("Adjusted p") < names.index("Estimate")
+
+
+def test_results_sheet_prints_plain_columns_on_their_own_pages() -> None:
+    """The results sheet prints landscape with a column break right after Cautions."""
+    model = report.results_sheet([anova_result(), welch_result()], context())
+    assert model.landscape and not model.fit_to_width and model.page_numbers
+    assert model.print_scale == report.RESULT_PRINT_SCALE
+    assert model.column_breaks[0] == report.COL["Cautions"] + 1
+    assert model.column_breaks == sorted(model.column_breaks)
+    # Each printed page holds at most 122 width units: at the print scale that fits a
+    # Letter landscape page inside default margins even with a wider substitute font
+    # (our measurement with LibreOffice: about 9.3 px per unit at 96 dpi).
+    edges = [0, *model.column_breaks, len(report.RESULT_COLUMNS)]
+    for start, stop in zip(edges[:-1], edges[1:], strict=True):
+        width = sum(model.widths[c] for c in range(start, stop))
+        inches = (9.3 * width + 5 * (stop - start)) / 96 * model.print_scale / 100
+        assert inches <= 11 - 2 * 0.7, (start, stop)
+
+
+def test_run_wide_cautions_are_stated_once_above_the_table() -> None:
+    """The review, routine-records and several-comparisons lines sit once in the header, merged and in caution style."""
+    results = [anova_result(), welch_result()]
+    explain.apply(results, Settings(), context())
+    model = report.results_sheet(results, context())
+    top = header_row(model)
+    heading = find_row(model, 0, explain.RUN_WIDE_HEADING)
+    assert "applies to every result below" in explain.RUN_WIDE_HEADING
+    assert heading < top
+    above = [model.cells[(r, 0)] for r in range(heading + 1, heading + 4)]
+    assert [cell.value for cell in above] == [
+        explain.REVIEW_LINE,
+        explain.OBSERVATIONAL_LINE,
+        explain.MULTIPLE_LINE.format(count=2, method="Holm"),
+    ]
+    assert all(cell.style == "caution" for cell in above)
+    for r in range(heading, heading + 4):
+        assert f"A{r + 1}:C{r + 1}" in model.merged
+    # Not repeated on any row, but every Result keeps its full list.
+    row_texts = [
+        cell.value
+        for (r, c), cell in model.cells.items()
+        if r > top and c == report.COL["Cautions"] and isinstance(cell.value, str)
+    ]
+    for line in above:
+        assert not any(line.value in text for text in row_texts)
+    for result in results:
+        assert result.cautions[-1] == explain.REVIEW_LINE
+        assert explain.OBSERVATIONAL_LINE in result.cautions
+
+
+def test_row_cautions_keep_what_is_specific_to_the_row() -> None:
+    """A row keeps its own cautions (a small group), and a row with none says so plainly."""
+    small = welch_result()
+    small.groups = [{"label": "1", "n": 4, "mean": 0.75}, {"label": "2", "n": 16, "mean": 2.33}]
+    results = [small, anova_result()]
+    explain.apply(results, Settings(), context())
+    model = report.results_sheet(results, context())
+    top = header_row(model)
+    first = model.cells[(top + 1, report.COL["Cautions"])].value
+    assert explain.SMALL_GROUPS_LINE.format(limit=explain.SMALL_GROUP_LIMIT) in first
+    assert explain.REVIEW_LINE not in first
+    assert model.cells[(top + 1, report.COL["Cautions"])].style == "wrap"
+
+
+def test_header_values_sit_in_the_wide_reading_column() -> None:
+    """Each run fact's value is in the Reading column, wide enough to show it whole."""
+    ctx = context(workbook="inspections_demo.xlsx")
+    model = report.results_sheet([anova_result()], ctx)
+    row = find_row(model, 0, "Workbook")
+    assert model.cells[(row, report.COL["Reading"])].value == "inspections_demo.xlsx"
+    run_time = find_row(model, 0, "Run time (UTC)")
+    value = model.cells[(run_time, report.COL["Reading"])].value
+    assert len(value) < model.widths[report.COL["Reading"]]
+    # The subtitle spans the plain columns too.
+    assert "A2:C2" in model.merged
+
+
+def test_shape_sheet_fits_a_portrait_page_and_charts_sit_clear_of_text() -> None:
+    """The shape sheet prints portrait at page width; each chart sits in empty rows under its block."""
+    results = [anova_result(), crosstab_result(), gof_result()]
+    model = report.shape_sheet(results, context())
+    assert model.fit_to_width and not model.landscape and model.page_numbers
+    assert max(c for _, c in model.cells) <= report.SHAPE_LAST_COL
+    starts = sorted(int(model.anchors[f"analysis_{i}"][1:]) - 1 for i in range(len(results)))
+    spans = []
+    for chart in model.charts:
+        row, col = (int(chart.anchor[1:]) - 1, column_index(chart.anchor[0]))
+        assert col + chart.width_cells - 1 <= report.SHAPE_LAST_COL
+        rows = range(row, row + chart.height_rows)
+        covered = [
+            (r, c) for (r, c) in model.cells if r in rows and col <= c < col + chart.width_cells
+        ]
+        assert covered == [], chart.title
+        block = max(s for s in starts if s <= row)  # the block the chart belongs to
+        assert all(s > row + chart.height_rows or s <= block for s in starts)
+        spans.append(rows)
+    for a, b in zip(spans, spans[1:], strict=False):
+        assert a.stop <= b.start  # no two charts overlap
+
+
+def test_notes_and_log_sheets_fit_the_page_width() -> None:
+    """The data notes print portrait at page width with long sentences merged and wrapped; the log landscape."""
+    note = DataNote("Plant data", "B7", "weight", "n/a", NoteKind.MISSING_MARKER, "skipped")
+    notes = report.notes_sheet([note], ["An invented note that is long enough to wrap."], context())
+    assert notes.fit_to_width and not notes.landscape
+    other = find_row(notes, 0, "An invented note that is long enough to wrap.")
+    assert f"A{other + 1}:F{other + 1}" in notes.merged
+    assert notes.cells[(other, 0)].style == "wrap"
+    log = report.log_sheet([], report.run_info(context(), []))
+    assert log.fit_to_width and log.landscape

@@ -9,6 +9,7 @@ checks here are structural: every cell of every tool sheet is scanned.
 from __future__ import annotations
 
 import copy
+import re
 from pathlib import Path
 
 import numpy as np
@@ -235,8 +236,13 @@ def test_summaries_of_a_small_group_are_hidden() -> None:
     _, _, after = shared_run()
     shape = after[1]
     row = next(r for (r, c), cell in shape.cells.items() if c == 0 and cell.value == "Hill")
-    for col in range(1, 11):
+    for col in range(1, 9):  # n, mean, SD, median, Q1, Q3, min and max
         assert shape.cells[(row, col)].style == "suppressed", col
+    second = next(
+        r for (r, c), cell in shape.cells.items() if c == 0 and cell.value == "Hill" and r > row
+    )
+    for col in range(1, 5):  # skewness, kurtosis, normality p, outliers
+        assert shape.cells[(second, col)].style == "suppressed", col
     coast = next(r for (r, c), cell in shape.cells.items() if c == 0 and cell.value == "Coast")
     assert shape.cells[(coast, 1)].value == 18  # a group of 11 or more stays visible
     assert shape.cells[(coast, 2)].value == 21.0
@@ -403,3 +409,89 @@ def test_whole_data_statistics_are_kept() -> None:
     kruskal = share.suppress(small_group_result())
     assert kruskal.effect.value == 0.19 and kruskal.p_value == 0.045  # invented scenario values
     assert kruskal.groups[0]["mean"] == 21.0 and kruskal.groups[1]["mean"] is None
+
+
+# ---------------------------------------------------------------- free text
+
+
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("3 of 6 expected counts are below 5", "some of the expected counts are below 5"),
+        ("a group with n = 4", "a group with n < 11"),
+        ("4 records were left out", "fewer than 11 records were left out"),
+        ("3 incomplete pairs by ID", "fewer than 11 incomplete pairs by ID"),
+        ("one group has fewer than 5 values", "one group has very few values"),
+        ("expected counts below 5 (smallest 0.59), so", "expected counts below 5, so"),
+        ("Smallest expected count 1.09.", "Smallest expected count hidden."),
+        # Left alone: counts at or over the minimum, thresholds at or over it, counts of
+        # groups, decimals and other numbers.
+        ("12 records", "12 records"),
+        ("1,200 rows", "1,200 rows"),
+        ("fewer than 20 records were used", "fewer than 20 records were used"),
+        ("right-skewed in 4 of 5 groups", "right-skewed in 4 of 5 groups"),
+        ("mean 4.5 values", "mean 4.5 values"),
+        ("20000 Monte Carlo resamples", "20000 Monte Carlo resamples"),
+    ],
+)
+def test_scrub_text_rewrites_small_counts(text: str, expected: str) -> None:
+    """Free text never quotes a count of records from 1 to N-1 (N = 11)."""
+    assert share.scrub_text(text, 11) == expected
+
+
+_COUNT_NEAR_WORD = re.compile(
+    r"(?<![\d.,])(\d+)(?![\d.])\s+(?:of|records?|rows?|values?|pairs?|incomplete pairs|cells?|"
+    r"participants?|people|expected)\b|\bn\s*=\s*(\d+)",
+    re.IGNORECASE,
+)
+_THRESHOLD_BEFORE = re.compile(r"(fewer than|less than|under|below|at least|more than)\s*$")
+
+
+def test_share_run_of_a_tiny_group_leaves_no_small_count_in_any_text(tmp_path: Path) -> None:
+    """A --share run where one site has 3 records: no text cell on a tool sheet quotes a count under 11."""
+    import openpyxl
+
+    from statmargin.demo import packaged_file
+    from statmargin.pipeline import run_workbook
+
+    # The bundled outreach workbook (invented data) with one site cut to 3 records.
+    book = openpyxl.load_workbook(packaged_file("outreach_demo.xlsx"))
+    sheet = book["Participants"]
+    site = [c.value for c in sheet[1]].index("Site") + 1
+    tiny = [r for r in range(2, sheet.max_row + 1) if sheet.cell(r, site).value == "Elswick Green"]
+    for r in sorted(tiny[3:], reverse=True):
+        sheet.delete_rows(r)
+    path = tmp_path / "tiny.xlsx"
+    book.save(path)
+    out = tmp_path / "shared.xlsx"
+    run_workbook(path, out=out, share=True)
+    written = openpyxl.load_workbook(out)
+    tool_sheets = [n for n in written.sheetnames if n.startswith("statmargin") and "roles" not in n]
+    assert len(tool_sheets) == 4
+    offending, texts = [], 0
+    for name in tool_sheets:
+        for row in written[name].iter_rows():
+            for cell in row:
+                if not isinstance(cell.value, str):
+                    continue
+                texts += 1
+                for match in _COUNT_NEAR_WORD.finditer(cell.value):
+                    number = int(match.group(1) or match.group(2))
+                    words = match.group(0).lower()
+                    if (
+                        " of" in words
+                        and "expected" not in cell.value[match.end() : match.end() + 40]
+                    ):
+                        # "4 of the 5 groups": a count of groups, not of records.
+                        if "group" in cell.value[match.end() : match.end() + 20]:
+                            continue
+                    if _THRESHOLD_BEFORE.search(cell.value[: match.start()]):
+                        continue  # a stated rule at or over the minimum (smaller ones are rewritten)
+                    if 0 < number < share.DEFAULT_MIN_COUNT:
+                        offending.append(f"{name}!{cell.coordinate}: {cell.value}")
+    assert texts > 100
+    assert offending == []
+    # The tiny group is still named, its count is shown only as hidden.
+    shape = written[[n for n in tool_sheets if "shape" in n][0]]
+    shown = [c.value for row in shape.iter_rows() for c in row if c.value == "<11"]
+    assert shown

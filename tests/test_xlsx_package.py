@@ -152,7 +152,7 @@ class TestSheetXml:
     def test_merged_width_counts_and_height_is_capped(self) -> None:
         """A wrapped cell merged across columns uses their joint width; heights stop at Excel's 409 points."""
         model = SheetModel("r", "results", widths={0: 10, 1: 10}, merged=["A1:B1"])
-        model.put(0, 0, "aaaa bbbb cccc dddd eeee", "wrap")  # 22 characters per line: 2 lines
+        model.put(0, 0, "aaaa bbbb cccc dddd eeee ffff", "wrap")  # 24 characters per line: 2 lines
         model.put(1, 0, "word " * 2000, "wrap")
         assert sheetxml.wrapped_row_heights(model) == {0: 30.0, 1: 409.0}
 
@@ -563,3 +563,106 @@ class TestRemovalOfEarlierSheets:
         book = openpyxl.load_workbook(path)
         assert book.sheetnames == ["Visits", "Notes", "charts", "results"]
         assert book.active.title == "results"
+
+
+# Children of <worksheet> in schema order (ECMA-376 Part 1, 18.3.1.99 CT_Worksheet).
+WORKSHEET_ORDER = (
+    "sheetPr dimension sheetViews sheetFormatPr cols sheetData sheetCalcPr sheetProtection "
+    "protectedRanges scenarios autoFilter sortState dataConsolidate customSheetViews mergeCells "
+    "phoneticPr conditionalFormatting dataValidations hyperlinks printOptions pageMargins "
+    "pageSetup headerFooter rowBreaks colBreaks customProperties cellWatches ignoredErrors "
+    "smartTags drawing legacyDrawing legacyDrawingHF picture oleObjects controls "
+    "webPublishItems tableParts extLst"
+).split()
+
+
+def _printed_model() -> SheetModel:
+    """A sheet using every optional part at once: merges, a list, a link, print settings."""
+    model = SheetModel(
+        "r",
+        "results",
+        widths={0: 20},
+        merged=["A1:C1"],
+        validations=[Validation("B2:B3", ["yes", "no"])],
+        landscape=True,
+        column_breaks=[9, 3],
+        page_numbers=True,
+        print_scale=80,
+    )
+    model.put(0, 0, "title", "title")
+    model.put(1, 0, "details", "link", link="{shape}!A1")
+    return model
+
+
+class TestPrintSettings:
+    def test_children_follow_the_schema_order(self) -> None:
+        """Every worksheet child, print settings and drawing included, is in CT_Worksheet order."""
+        for fit in (False, True):
+            model = _printed_model()
+            model.fit_to_width = fit
+            style_map = {key: n for n, key in enumerate(STYLES)}
+            xml = sheetxml.render_sheet(model, style_map, {"shape": "S"}, drawing_rel_id="rId1")
+            tags = [child.tag.replace(MAIN, "") for child in ET.fromstring(xml)]
+            positions = [WORKSHEET_ORDER.index(tag) for tag in tags]
+            assert positions == sorted(positions), tags
+            assert ("sheetPr" in tags) is fit and tags[0] == ("sheetPr" if fit else "dimension")
+            assert {"pageSetup", "headerFooter", "colBreaks", "drawing"} <= set(tags)
+
+    def test_page_setup_breaks_and_footer_values(self) -> None:
+        """Landscape, a scale, sorted column breaks and a page-number footer are written as asked."""
+        root = _render(_printed_model(), {"shape": "S"})
+        setup = root.find(f"{MAIN}pageSetup")
+        assert setup.get("orientation") == "landscape" and setup.get("scale") == "80"
+        assert setup.get("fitToWidth") is None
+        breaks = root.find(f"{MAIN}colBreaks")
+        assert [b.get("id") for b in breaks] == ["3", "9"]
+        assert breaks.get("count") == "2" and breaks.get("manualBreakCount") == "2"
+        assert all(b.get("man") == "1" and b.get("max") == "1048575" for b in breaks)
+        # ECMA-376 Part 1, 18.3.1.46: &A sheet name, &P page number, &N number of pages.
+        assert root.find(f"{MAIN}headerFooter/{MAIN}oddFooter").text == "&L&A&RPage &P of &N"
+
+    def test_fit_to_width_overrides_the_scale(self) -> None:
+        """Fitting to the page width sets fitToPage, one page wide and any number tall, and no scale."""
+        model = SheetModel("s", "shape", fit_to_width=True, print_scale=50)
+        model.put(0, 0, "x")
+        root = _render(model)
+        assert root.find(f"{MAIN}sheetPr/{MAIN}pageSetUpPr").get("fitToPage") == "1"
+        setup = root.find(f"{MAIN}pageSetup")
+        assert (setup.get("fitToWidth"), setup.get("fitToHeight")) == ("1", "0")
+        assert setup.get("scale") is None and setup.get("orientation") is None
+
+    def test_no_print_settings_by_default(self) -> None:
+        """A sheet that asks for nothing gets no sheetPr, pageSetup, footer or breaks."""
+        model = SheetModel("s", "notes")
+        model.put(0, 0, "x")
+        tags = {child.tag.replace(MAIN, "") for child in _render(model)}
+        assert not tags & {"sheetPr", "pageSetup", "headerFooter", "colBreaks"}
+
+    def test_openpyxl_reads_the_print_settings(self, tmp_path: Path) -> None:
+        """An independent reader (openpyxl) sees the orientation, scale, breaks and fit-to-page."""
+        path = make_rich_workbook(tmp_path / "book.xlsx")
+        printed = _printed_model()
+        printed.name = "printed"
+        fitted = SheetModel("fitted", "shape", fit_to_width=True)
+        fitted.put(0, 0, "x")
+        from statmargin.xlsxsink import FileSink
+
+        printed.cells[(1, 0)].link = None  # no shape sheet in this workbook
+        FileSink(path).write_sheets([printed, fitted])
+        book = openpyxl.load_workbook(path)
+        sheet = book["printed"]
+        assert sheet.page_setup.orientation == "landscape"
+        assert int(sheet.page_setup.scale) == 80
+        assert [b.id for b in sheet.col_breaks.brk] == [3, 9]
+        assert book["fitted"].sheet_properties.pageSetUpPr.fitToPage is True
+        assert int(book["fitted"].page_setup.fitToHeight) == 0
+
+    def test_bold_text_wraps_sooner(self) -> None:
+        """A bold (caution) line holds fewer characters than plain wrapped text in the same width."""
+        text = "x" * 11 + " " + "y" * 11  # 23 characters
+        plain = SheetModel("r", "results", widths={0: 20})
+        plain.put(0, 0, text, "wrap")  # 24 characters a line: one line
+        bold = SheetModel("r", "results", widths={0: 20})
+        bold.put(0, 0, text, "caution")  # 21 characters a line: two lines
+        assert sheetxml.wrapped_row_heights(plain) == {}
+        assert sheetxml.wrapped_row_heights(bold) == {0: 30.0}

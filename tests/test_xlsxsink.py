@@ -359,3 +359,48 @@ def test_workbook_made_by_openpyxl(tmp_path: Path) -> None:
     assert reread["statmargin results"]["B4"].value == 0.000123456789
     # The {charts} link on the results sheet and the back link both use final names.
     assert reread["charts"]["B11"].hyperlink.location == "'statmargin results'!A3"
+
+
+def test_results_print_plain_columns_first_in_libreoffice(tmp_path: Path) -> None:
+    """Rendered by LibreOffice, the results sheet's first page holds Question, Reading and Cautions only."""
+    import subprocess
+
+    from libreoffice import convert, require_soffice
+    from statmargin import report
+    from statmargin.results import Estimate, Result
+
+    soffice = require_soffice()
+    import shutil
+
+    if shutil.which("pdftotext") is None:
+        pytest.skip("pdftotext (poppler-utils) is needed to read the rendered pages")
+    # R 4.2.2: t.test(extra ~ group, data = sleep) (Welch): t = -1.8608, df = 17.776, p = 0.07939
+    result = Result(
+        outcome="extra",
+        exposure="group",
+        design="two_group_continuous",
+        test="welch_t",
+        statistic_name="t",
+        statistic=-1.860813467486853,
+        df=17.7764735161785,
+        p_value=0.07939414018735817,
+        n=20,
+        estimate=Estimate(
+            "difference in means (1 - 2)", -1.58, -3.3654832307117104, 0.20548323071171018
+        ),
+        groups=[{"label": "1", "n": 10, "mean": 0.75}, {"label": "2", "n": 10, "mean": 2.33}],
+    )
+    context = report.ReportContext(workbook="sleep.xlsx", data_sheet="Data")
+    models = report.build_sheets([result], None, context)
+    path = make_rich_workbook(tmp_path / "sleep.xlsx")
+    FileSink(path).write_sheets(models)
+    pdf = convert(path, "pdf", tmp_path / "pdf", soffice=soffice)
+    pages = subprocess.run(
+        ["pdftotext", "-layout", str(pdf), "-"], capture_output=True, text=True, check=True
+    ).stdout.split("\f")
+    first = next(i for i, page in enumerate(pages) if "Question" in page and "Reading" in page)
+    assert "Cautions" in pages[first] and "applies to every result below" in pages[first]
+    assert "Why this test" not in pages[first] and "Effect size" not in pages[first]
+    later = "".join(pages[first + 1 :])
+    assert "Why this test" in later and "Effect size" in later
+    assert "sleep.xlsx" in pages[first]  # the header value is shown whole

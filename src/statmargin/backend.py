@@ -70,6 +70,10 @@ class WriteReport:
 class WorkbookSink(Protocol):
     """Write access: replace the tool's own sheets, leaving everything else as it was."""
 
+    def check(self, out: str | None = None) -> str | None:
+        """Refuse a write that cannot succeed before any work is done; returns the effective ``out``."""
+        ...
+
     def write_sheets(self, models: list[SheetModel], out: str | None = None) -> WriteReport:
         """Put the models into the workbook (or a copy at ``out``), replacing earlier tool sheets."""
         ...

@@ -108,6 +108,22 @@ def json_document(results: list[Result]) -> dict[str, Any]:
     return {"tool": "statmargin", "version": __version__, "analyses": [r.to_record() for r in results]}
 
 
+def check_json_target(path: str | None, *protect: Path | None) -> None:
+    """Refuse a --json path that is one of the workbooks, or whose folder is missing, before any work.
+
+    Checked up front so a refused --json never leaves a half-done job behind
+    (the workbook already rewritten, then an error).
+    """
+    if not path or path == "-":
+        return
+    target = Path(path)
+    for other in protect:
+        if other is not None and target.resolve() == other.resolve():
+            raise errors.OptionError("--json points at the workbook itself; give another file name.")
+    if not target.resolve().parent.is_dir():
+        raise errors.OptionError(f"Cannot write the JSON file {path}: its folder does not exist; choose another path.")
+
+
 def write_json(document: dict[str, Any], path: str, *, protect: Path | None = None) -> None:
     """Write JSON to a file or to standard output ('-'); never over the workbook itself."""
     text = json.dumps(document, indent=2, ensure_ascii=False, allow_nan=False)
@@ -181,6 +197,7 @@ def test_command(workbook: Path, sheet: str | None, outcomes: tuple[str, ...], b
         raise errors.OptionError("--paired-with pairs two columns; use it without --by.")
     if not workbook.exists():
         raise errors.WorkbookError(f"{workbook} does not exist; check the path and file name.")
+    check_json_target(json_path, workbook)
     settings = make_settings(alternative=alternative, confidence=confidence, adjust=adjust)
     plan = build_plan(list(outcomes), list(bys), against=against, paired_by=paired_by, paired_with=paired_with,
                       treat=parse_treat(treat), shape=shape, settings=settings)
@@ -212,8 +229,12 @@ def _pairs(values: tuple[str, ...], flag: str) -> dict[str, str]:
 
 def _progress(quiet: bool) -> Callable[[str], None]:
     """Step lines on standard error, so long work shows it is moving and stdout stays clean."""
+    # Only on a terminal: scripts and logs then get exactly one line on standard error when
+    # something goes wrong, and nothing when all is well.
+    show = not quiet and click.get_text_stream("stderr").isatty()
+
     def say(message: str) -> None:
-        if not quiet:
+        if show:
             click.echo(f"statmargin: {message} ...", err=True)
 
     return say
@@ -252,6 +273,7 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
     from .engine import parse_treat
     from .pipeline import plan_workbook
 
+    check_json_target(json_path, workbook, out)
     types, orders = {}, {}
     for name, (kind, order) in parse_treat(treat).items():
         types[name] = kind.value
@@ -302,6 +324,7 @@ def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | 
 
     if min_count is not None and not share:
         raise errors.OptionError("--min-count goes with --share; add --share or drop --min-count.")
+    check_json_target(json_path, workbook, out)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # caveats are in each result's notes
         summary = run_workbook(workbook, out=out, share=share, min_count=min_count,

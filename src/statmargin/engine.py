@@ -101,6 +101,9 @@ def analyze(
     shape : {"auto", "normal", "rank"}
         Let the shape checks decide, or fix the test family.
     alternative : {"two-sided", "greater", "less"}
+        Direction of the question, passed to every test that has one (see the
+        ``alternative`` of each method); comparisons of three or more groups and
+        chi-square tests are always two-sided.
     confidence : float
         Confidence level of intervals, between 0 and 1.
     adjust : {"holm", "benjamini-hochberg", "none"}
@@ -116,6 +119,58 @@ def analyze(
     ------
     ColumnNotFoundError, OptionError, RoleError
         One-line messages for names or options that do not fit.
+
+    Notes
+    -----
+    Each question is matched to a design (one sample, two groups, several groups,
+    two measurements, paired, counts); with ``shape="auto"`` the shape checks pick
+    the test that assumes normal-shaped data or its rank-based counterpart, and
+    the reasons are kept in ``Result.reasons``. Data that cannot support a test
+    give a skipped Result with a plain reason instead of an error. All p-values
+    of the returned results form one family for ``adjust``; readings and
+    cautions are added as the command line shows them. Results inform, they do
+    not decide: decisions about people's health or services belong to qualified
+    analysts and local policy.
+
+    References
+    ----------
+    Holm, S. (1979). A simple sequentially rejective multiple test procedure.
+    Scandinavian Journal of Statistics 6(2), 65-70.
+    Delacre, M., Lakens, D., & Leys, C. (2017). Why psychologists should by
+    default use Welch's t-test instead of Student's t-test. International Review
+    of Social Psychology 30(1), 92-101. https://doi.org/10.5334/irsp.82
+
+    Examples
+    --------
+    R's ``sleep`` data (datasets::sleep): extra hours of sleep of ten patients
+    under two drugs, in long form.
+
+    >>> import math
+    >>> import pandas as pd
+    >>> from scipy import stats
+    >>> drug1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
+    >>> drug2 = [1.9, 0.8, 1.1, 0.1, -0.1, 4.4, 5.5, 1.6, 4.6, 3.4]
+    >>> sleep = pd.DataFrame({"extra": drug1 + drug2, "group": ["1"] * 10 + ["2"] * 10,
+    ...                       "ID": list(range(1, 11)) * 2})
+
+    As two independent groups, both groups look close to normal, so Welch's
+    t-test is chosen:
+
+    >>> [result] = analyze(sleep, outcome="extra", by="group")
+    >>> result.test, round(result.p_value, 4), round(result.p_adjusted, 4)
+    ('welch_t', 0.0794, 0.0794)
+    >>> math.isclose(result.p_value, stats.ttest_ind(drug1, drug2, equal_var=False).pvalue)
+    True
+
+    Paired by patient, the differences are skewed, so the signed-rank test is
+    chosen (one zero difference is dropped):
+
+    >>> [result] = analyze(sleep, outcome="extra", by="group", paired_by="ID")
+    >>> result.test, result.design, round(result.p_value, 4)
+    ('wilcoxon_signed_rank', 'paired_continuous', 0.0091)
+    >>> scipy_p = stats.wilcoxon(drug1, drug2, correction=True, method="approx").pvalue
+    >>> math.isclose(result.p_value, scipy_p)
+    True
     """
     table = data if isinstance(data, Table) else _table_from(data)
     outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
@@ -303,7 +358,7 @@ def run_analysis(table: Table, analysis: Analysis, settings: Settings) -> tuple[
             first = analysis.outcome_choice
             partner = ColumnChoice(other.name, treat_as=first.treat_as, order=first.order)
         other_info = _usable_type(other, partner, "a paired measurement")
-        return _paired_wide(out_col, out_info, other, other_info, handling, settings)
+        return _paired_wide(out_col, out_info, other, other_info, handling, settings, rows=table.rows)
     by_col = table.column(analysis.by)
     by_info = _usable_type(by_col, analysis.by_choice, "a compare-by column")
     if analysis.pairing_key and by_info.type is MeasureType.CATEGORICAL:
@@ -723,7 +778,7 @@ def _paired_long(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: T
 
 
 def _paired_wide(a_col: Column, a_info: TypeInfo, b_col: Column, b_info: TypeInfo, handling: ShapeHandling,
-                 settings: Settings) -> tuple[Result, _Prepared]:
+                 settings: Settings, *, rows: np.ndarray | None = None) -> tuple[Result, _Prepared]:
     a_cat = a_info.type is MeasureType.CATEGORICAL
     b_cat = b_info.type is MeasureType.CATEGORICAL
     if a_cat != b_cat:
@@ -746,6 +801,10 @@ def _paired_wide(a_col: Column, a_info: TypeInfo, b_col: Column, b_info: TypeInf
     result, prepared = _paired_core(a_col.name, a_info, x, z, (a_col.name, b_col.name), design, handling,
                                     settings, exposure=None, n_excl=n_excl)
     result.pairing = b_col.name
+    # Sheet rows whose pair had one half missing or unreadable, so the data notes can list them.
+    half = ~usable & (a.present | b.present)
+    where = rows[half] if rows is not None else np.flatnonzero(half)
+    result.extra["incomplete_pairs"] = [f"row {int(r)}" for r in where] if rows is not None else where.tolist()
     return result, prepared
 
 

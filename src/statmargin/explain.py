@@ -874,9 +874,13 @@ def cautions(
             if result.p_method == "monte_carlo"
             else "treat the p-value as rough"
         )
-        out.append(
-            EXPECTED_LINE.format(smallest=fmt_number(smallest, decimals_for(smallest)), p_how=p_how)
+        line = EXPECTED_LINE.format(
+            smallest=fmt_number(smallest, decimals_for(smallest)), p_how=p_how
         )
+        if _share_floor(context) is not None:
+            # With the total and one margin, the smallest expected count gives a margin back.
+            line = re.sub(r" \(smallest [^)]*\)", "", line)
+        out.append(line)
     if result.n_excluded > 0:
         out.append(_excluded_line(result.n_excluded, context))
     p, _ = _p_used(result)
@@ -920,6 +924,71 @@ def explain(
         reading(result, settings=settings, context=context, n_comparisons=n_comparisons),
         cautions(result, settings=settings, context=context, n_comparisons=n_comparisons),
     )
+
+
+RUN_WIDE_HEADING = "Each caution here applies to every result below"
+NO_ROW_CAUTIONS = "None beyond the cautions above the table."
+
+
+def run_wide_cautions(
+    results: Sequence[Result],
+    *,
+    settings: Settings,
+    context: Any = None,
+    n_comparisons: int | None = None,
+) -> list[str]:
+    """The cautions a results sheet states once, above the table, for every result.
+
+    Parameters
+    ----------
+    results : sequence of Result
+        The run's results, cautions filled (``apply``) or not.
+    settings : Settings
+    context : optional
+        ``observational`` (default True) adds the routine-records line.
+    n_comparisons : int, optional
+        Size of the run's family; by default the results with a p-value.
+
+    Returns
+    -------
+    list of str
+        The review line first, then the routine-records line (for routine
+        records), the several-comparisons line (when more than one p-value was
+        adjusted), then any other line every run result carries.
+
+    Notes
+    -----
+    Only the sheet layout uses this: each ``Result.cautions`` keeps its full
+    list, review line included, so a result read on its own is complete.
+    """
+    if n_comparisons is None:
+        n_comparisons = count_comparisons(results)
+    out = [REVIEW_LINE]
+    if _observational(context):
+        out.append(OBSERVATIONAL_LINE)
+    adjusted = [r for r in results if not r.skipped and _finite(r.p_adjusted)]
+    if adjusted and n_comparisons > 1:
+        key = getattr(settings.adjust, "value", str(settings.adjust))
+        out.append(
+            MULTIPLE_LINE.format(
+                count=n_comparisons, method=ADJUST_NAMES.get(key, str(settings.adjust))
+            )
+        )
+    run = [r for r in results if not r.skipped]
+    lists = [
+        r.cautions or cautions(r, settings=settings, context=context, n_comparisons=n_comparisons)
+        for r in run
+    ]
+    if lists:
+        shared = [line for line in lists[0] if all(line in other for other in lists[1:])]
+        out.extend(line for line in shared if line not in out)
+    return out
+
+
+def row_cautions(caution_list: Sequence[str], run_wide: Sequence[str]) -> list[str]:
+    """The cautions of one result that are not already stated once for the whole run."""
+    shown = set(run_wide)
+    return [line for line in caution_list if line and line not in shown]
 
 
 def count_comparisons(results: Iterable[Result]) -> int:
@@ -1168,7 +1237,7 @@ def technical_lines(
             f"Spread check ({spread_name(spread)}):{stat_part} {fmt_p(spread['p_value'])}."
         )
     smallest = _min_expected(result)
-    if smallest is not None:
+    if smallest is not None and _share_floor(context) is None:  # it reveals margins
         parts.append(f"Smallest expected count {fmt_number(smallest, decimals_for(smallest))}.")
     for note in result.notes:
         if note:

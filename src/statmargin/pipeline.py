@@ -166,7 +166,7 @@ def plan_workbook(
         header_row=table.header_row,
         columns=[
             {"column": f.name, "letter": f.letter, "inferred_type": f.inferred, "role": c.role.value}
-            for f, c in zip(facts, ordered)
+            for f, c in zip(facts, ordered, strict=True)
         ],
         new_columns=new,
         missing_columns=[c.name for c in missing],
@@ -253,6 +253,7 @@ def run_workbook(
     if source is None or sink is None:
         file_source, file_sink = _file_backends(path)
         source, sink = source or file_source, sink or file_sink
+    sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
     roles = read_roles(source)
     if roles is None:
         raise RoleError(

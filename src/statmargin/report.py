@@ -183,33 +183,42 @@ def _suppressed_fields(result: Result) -> set[str]:
 
 # ---------------------------------------------------------------- results sheet
 
+# Plain columns first (question, reading, cautions), then the technical ones.
+# Printed landscape at RESULT_PRINT_SCALE, each page's columns (split by
+# RESULT_PAGE_BREAKS) fit a Letter or A4 page inside the default margins, also
+# where a wider substitute font replaces Calibri (measured with LibreOffice).
 RESULT_COLUMNS: tuple[tuple[str, float], ...] = (
-    ("Question", 40),
+    ("Question", 24),
+    ("Reading", 56),
+    ("Cautions", 40),
     ("Outcome", 16),
     ("Compared by / against", 20),
     ("n used", 8),
     ("n excluded", 10),
     ("Test", 22),
     ("Why this test", 40),
-    ("Statistic", 12),
+    ("Statistic", 10),
     ("Statistic value", 11),
     ("df", 9),
     ("p", 9),
     ("Adjusted p", 10),
-    ("Estimate", 30),
+    ("Estimate", 22),
     ("Estimate value", 11),
     ("CI low", 10),
     ("CI high", 10),
-    ("CI", 18),
+    ("CI", 14),
     ("Effect size", 18),
     ("Effect value", 10),
     ("Effect CI low", 10),
     ("Effect CI high", 10),
-    ("Reading", 70),
-    ("Cautions", 70),
     ("Details", 12),
 )
 COL = {name: i for i, (name, _) in enumerate(RESULT_COLUMNS)}
+# First column of each printed page after the first: the plain columns print
+# together, then who/what was tested, then statistics and estimates, then effects.
+RESULT_PAGE_BREAKS = (COL["Outcome"], COL["Statistic"], COL["Effect size"])
+RESULT_PRINT_SCALE = 80
+PLAIN_SPAN = f"A{{row}}:{column_letter(COL['Cautions'])}{{row}}"
 
 SHARE_OFF = "off (all counts shown)"
 SHARE_ON = "on: counts from 1 to {top} are hidden, with anything that would reveal them"
@@ -243,15 +252,44 @@ def _ci_text(low: Any, high: Any) -> str:
     return explain.fmt_ci(low, high, decimals)
 
 
-def _header_block(model: SheetModel, context: ReportContext, results: Sequence[Result]) -> int:
-    """Title and run facts as label/value pairs, three pairs a row; returns the next free row."""
+def _merge_plain(model: SheetModel, row: int) -> None:
+    """Merge a header-block line across the plain columns so it shows and prints whole."""
+    model.merged.append(PLAIN_SPAN.format(row=row + 1))
+
+
+def _header_block(
+    model: SheetModel,
+    context: ReportContext,
+    results: Sequence[Result],
+    run_wide: Sequence[str],
+) -> int:
+    """Title, run-wide cautions and run facts; returns the next free row.
+
+    Every line spans the plain columns (merged), and each fact's value sits in
+    the wide Reading column, so nothing is cut off on screen or on paper.
+    """
     model.put(0, 0, "statmargin results", "title")
     model.put(
         1,
         0,
-        "One row per analysis; plain readings first, technical detail on the shape-check sheet.",
+        "One row per analysis: the question, a plain reading and that result's own cautions "
+        "first; test details to the right and on the shape-check sheet.",
         "muted",
     )
+    _merge_plain(model, 1)
+    row = 3
+    model.put(row, 0, explain.RUN_WIDE_HEADING, "subtitle")
+    _merge_plain(model, row)
+    row += 1
+    for line in run_wide:
+        model.put(row, 0, line, "caution")
+        _merge_plain(model, row)
+        row += 1
+    model.anchors["share_note"] = _a1(row, 0)
+    if context.share_mode:
+        model.put(row, 0, explain.SHARE_NOTE.format(floor=context.share_min_count), "caution")
+    _merge_plain(model, row)  # the sharing sentence goes here (share.suppress_model)
+    row += 2
     settings = context.settings
     share = SHARE_ON.format(top=context.share_min_count - 1) if context.share_mode else SHARE_OFF
     facts: list[tuple[str, Any, str, bool]] = [
@@ -278,16 +316,14 @@ def _header_block(model: SheetModel, context: ReportContext, results: Sequence[R
         ),
         ("Sharing mode", share, "text", False),
     ]
-    row = 3
-    for i, (label, value, style, is_count) in enumerate(facts):
-        r, c = row + i // 3, (i % 3) * 3
-        model.put(r, c, label, "label")
-        model.put(r, c + 1, value, style, is_count=is_count)
-    row += math.ceil(len(facts) / 3)
-    model.anchors["share_note"] = _a1(row, 0)
-    if context.share_mode:
-        model.put(row, 0, explain.SHARE_NOTE.format(floor=context.share_min_count), "caution")
-    return row + 2
+    value_col = COL["Reading"]
+    for label, value, style, is_count in facts:
+        model.put(row, 0, label, "label")
+        # Left-aligned text in the wide column: numbers read as text would align
+        # right, far from their label, so counts keep their number style.
+        model.put(row, value_col, value, style, is_count=is_count)
+        row += 1
+    return row + 1
 
 
 def _value(model: SheetModel, row: int, col: int, value: Any, style: str, hidden: bool) -> None:
@@ -329,11 +365,18 @@ def results_sheet(
     model = SheetModel(name=SHEET_NAMES["results"], kind="results")
     if shape_anchors is None:
         shape_anchors = shape_sheet(results, context).anchors
-    header = _header_block(model, context, results)
+    n_comparisons = explain.count_comparisons(results)
+    run_wide = explain.run_wide_cautions(
+        results, settings=context.settings, context=context, n_comparisons=n_comparisons
+    )
+    header = _header_block(model, context, results, run_wide)
     model.put_row(header, [name for name, _ in RESULT_COLUMNS], "header")
     model.freeze = (header + 1, 1)
     model.widths = {i: width for i, (_, width) in enumerate(RESULT_COLUMNS)}
-    n_comparisons = explain.count_comparisons(results)
+    model.landscape = True
+    model.print_scale = RESULT_PRINT_SCALE
+    model.column_breaks = list(RESULT_PAGE_BREAKS)
+    model.page_numbers = True
     row = header + 1
     for index, result in enumerate(results):
         reading_text, caution_list = result.reading, result.cautions
@@ -363,7 +406,7 @@ def results_sheet(
         est, eff = result.estimate, result.effect
         if est is not None:
             est_hidden = "estimate" in hidden
-            put(row, COL["Estimate"], est.name)
+            put(row, COL["Estimate"], est.name, "wrap")
             _value(model, row, COL["Estimate value"], est.value, "number", est_hidden)
             _value(model, row, COL["CI low"], est.ci_low, "number", est_hidden)
             _value(model, row, COL["CI high"], est.ci_high, "number", est_hidden)
@@ -371,25 +414,29 @@ def results_sheet(
             put(row, COL["CI"], ci, "suppressed" if est_hidden else "text")
         if eff is not None:
             eff_hidden = "effect" in hidden
-            put(row, COL["Effect size"], eff.name)
+            put(row, COL["Effect size"], eff.name, "wrap")
             _value(model, row, COL["Effect value"], eff.value, "number", eff_hidden)
             _value(model, row, COL["Effect CI low"], eff.ci_low, "number", eff_hidden)
             _value(model, row, COL["Effect CI high"], eff.ci_high, "number", eff_hidden)
         put(row, COL["Reading"], reading_text or "", "wrap")
-        put(row, COL["Cautions"], "\n".join(caution_list or []), "wrap")
+        own = explain.row_cautions(caution_list or [], run_wide)
+        if own:
+            put(row, COL["Cautions"], "\n".join(own), "wrap")
+        else:
+            put(row, COL["Cautions"], explain.NO_ROW_CAUTIONS, "muted")
         anchor = shape_anchors.get(f"analysis_{index}")
         if anchor:
             put(row, COL["Details"], "shape checks", "link", link=f"{{shape}}!{anchor}")
         row += 1
         for followup in result.followups:
-            put(row, COL["Question"], f"  {explain.followup_label(followup)}", "text")
+            put(row, COL["Question"], f"  {explain.followup_label(followup)}", "wrap")
             put(row, COL["Test"], explain.TEST_NAMES.get(followup.test, followup.test), "muted")
             _value(model, row, COL["Statistic value"], followup.statistic, "number", False)
             _value(model, row, COL["p"], followup.p_value, "p_value", False)
             _value(model, row, COL["Adjusted p"], followup.p_adjusted, "p_value", False)
             if followup.estimate is not None:
                 fe = followup.estimate
-                put(row, COL["Estimate"], fe.name)
+                put(row, COL["Estimate"], fe.name, "wrap")
                 _value(model, row, COL["Estimate value"], fe.value, "number", False)
                 _value(model, row, COL["CI low"], fe.ci_low, "number", False)
                 _value(model, row, COL["CI high"], fe.ci_high, "number", False)
@@ -519,8 +566,26 @@ GROUP_COLUMNS: tuple[tuple[str, tuple[str, ...], str], ...] = (
     ("Outliers (1.5 IQR)", ("outliers", "n_outliers"), "integer"),
     ("Shape", ("verdict",), "text"),
 )
-CHART_COL = 15  # charts sit to the right of the tables, from column P
-CHART_ROWS = 15
+# The group table prints in two parts so the sheet fits a portrait page: the
+# summaries, then the shape checks (text columns last, wrapped; the verdict merged
+# over the table's last columns).
+GROUP_TABLE_PARTS: tuple[tuple[str, ...], ...] = (
+    ("n", "Mean", "SD", "Median", "Q1", "Q3", "Min", "Max"),
+    (
+        "Skewness",
+        "Excess kurtosis",
+        "Normality p",
+        "Outliers (1.5 IQR)",
+        "Normality check",
+        "Shape",
+    ),
+)
+SHAPE_TEXT_SPAN = 3  # the last column of the second part (the shape verdict) spans G:I
+SHAPE_LAST_COL = 8  # columns A..I; text lines are merged across them
+SHAPE_WIDTHS = {0: 20.0, **{i: 10.5 for i in range(1, SHAPE_LAST_COL + 1)}}
+CHART_COL = 1  # charts sit under their block's tables, from column B
+CHART_COLS = SHAPE_LAST_COL
+CHART_ROWS = 16
 
 
 def _continuous_groups(result: Result) -> bool:
@@ -542,33 +607,44 @@ def _group_value(group: Mapping[str, Any], keys: tuple[str, ...]) -> Any:
 def _put_group_table(
     model: SheetModel, row: int, result: Result
 ) -> tuple[int, dict[str, tuple[int, int]]]:
-    """Per-group summaries; returns the next row and the cell of each group's n."""
-    model.put_row(row, ["Group"] + [h for h, _, _ in GROUP_COLUMNS], "header")
-    row += 1
+    """Per-group summaries in two parts; returns the next row and the cell of each group's n."""
+    columns = {header: (keys, style) for header, keys, style in GROUP_COLUMNS}
     n_cells: dict[str, tuple[int, int]] = {}
-    for g in result.groups:
-        if not isinstance(g, Mapping):
-            continue
-        label = str(g.get("label", ""))
-        model.put(row, 0, label, "label")
-        hidden = bool(g.get("suppressed"))  # summaries removed in sharing mode
-        cells = []
-        for offset, (header, keys, style) in enumerate(GROUP_COLUMNS, start=1):
-            value = _group_value(g, keys)
-            if hidden and header not in ("n", "Normality check"):
-                model.put(row, offset, "suppressed", "suppressed", is_count=style == "integer")
-            elif style == "text":
-                model.put(row, offset, "" if value is None else str(value))
-            elif style == "integer" and _finite(value):
-                model.put(row, offset, int(value), "integer", is_count=True)
-            else:
-                number = _num(value)
-                model.put(row, offset, number, style if number is not None else "text")
-            cells.append((row, offset))
-        n_cells[label] = (row, 1)
-        model.count_dependents[(row, 1)] = [c for c in cells if c != (row, 1)]
+    groups = [g for g in result.groups if isinstance(g, Mapping)]
+    cells_of: dict[int, list[tuple[int, int]]] = {i: [] for i in range(len(groups))}
+    for part in GROUP_TABLE_PARTS:
+        model.put_row(row, ["Group", *part], "header")
         row += 1
-    return row, n_cells
+        for index, g in enumerate(groups):
+            label = str(g.get("label", ""))
+            model.put(row, 0, label, "label")
+            hidden = bool(g.get("suppressed"))  # summaries removed in sharing mode
+            for offset, header in enumerate(part, start=1):
+                keys, style = columns[header]
+                value = _group_value(g, keys)
+                if hidden and header not in ("n", "Normality check"):
+                    model.put(row, offset, "suppressed", "suppressed", is_count=style == "integer")
+                elif style == "text":
+                    model.put(row, offset, "" if value is None else str(value), "wrap")
+                    if offset == len(part) and offset + SHAPE_TEXT_SPAN - 1 <= SHAPE_LAST_COL:
+                        last = column_letter(offset + SHAPE_TEXT_SPAN - 1)
+                        model.merged.append(f"{_a1(row, offset)}:{last}{row + 1}")
+                elif style == "integer" and _finite(value):
+                    model.put(row, offset, int(value), "integer", is_count=True)
+                else:
+                    number = _num(value)
+                    model.put(row, offset, number, style if number is not None else "text")
+                if header == "n":
+                    n_cells[label] = (row, offset)
+                else:
+                    cells_of[index].append((row, offset))
+            row += 1
+        row += 1
+    for index, g in enumerate(groups):
+        n_cell = n_cells.get(str(g.get("label", "")))
+        if n_cell is not None:
+            model.count_dependents[n_cell] = cells_of[index]
+    return row - 1, n_cells
 
 
 def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, Chart | None]:
@@ -873,23 +949,31 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
     Each block: a title, the technical note one sentence a row, the per-group
     summaries (continuous) or counts and shares (categorical), the spread check,
     expected counts for chi-square tests, and chart data. Histograms use shared
-    bin edges per analysis (``bin_edges``); charts are anchored from column P and
-    each block is at least as tall as its charts.
+    bin edges per analysis (``bin_edges``). Each chart sits under its block's
+    tables in rows of its own (column B onwards), so it never covers text and
+    prints next to the numbers it draws; the sheet prints portrait, fitted to
+    the page width (columns A to I).
     """
     model = SheetModel(name=SHEET_NAMES["shape"], kind="shape")
     model.put(0, 0, "statmargin shape checks", "title")
     model.put(
         1, 0, "How each test was chosen: the data's shape, spread and counts, with charts.", "muted"
     )
-    model.widths = {0: 22, **{i: 11 for i in range(1, 14)}, 11: 16}
+    model.widths = dict(SHAPE_WIDTHS)
+    model.fit_to_width = True
+    model.page_numbers = True
+    span = f"A{{row}}:{column_letter(SHAPE_LAST_COL)}{{row}}"
+    model.merged.append(span.format(row=2))
     row = 3
     for index, result in enumerate(results):
-        start = row
         model.anchors[f"analysis_{index}"] = _a1(row, 0)
         model.put(row, 0, f"{index + 1}. {explain.question(result)}", "subtitle")
+        model.merged.append(span.format(row=row + 1))
         row += 1
         for sentence in explain.technical_lines(result, context.settings, context):
-            model.put(row, 0, sentence, "text")
+            # Merged across the table's width and wrapped, so it prints whole.
+            model.put(row, 0, sentence, "wrap")
+            model.merged.append(span.format(row=row + 1))
             row += 1
         row += 1
         charts: list[Chart] = []
@@ -907,12 +991,13 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
                 charts.append(chart)
         spread = explain.spread_check(result)
         if spread is not None:
+            # The check's name runs on into the empty column C.
             model.put(row, 0, "Spread check", "label")
             model.put(row, 1, explain.spread_name(spread))
-            model.put(row, 2, "statistic", "muted")
-            _value(model, row, 3, spread.get("statistic"), "number", False)
-            model.put(row, 4, "p", "muted")
-            _value(model, row, 5, spread.get("p_value"), "p_value", False)
+            model.put(row, 3, "statistic", "muted")
+            _value(model, row, 4, spread.get("statistic"), "number", False)
+            model.put(row, 5, "p", "muted")
+            _value(model, row, 6, spread.get("p_value"), "p_value", False)
             row += 2
         samples = _samples_for(result, context)
         units = explain.units_for(context, result.outcome)
@@ -932,11 +1017,13 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
                 model, row, f"{result.outcome}: distribution by group", samples, n_cells, units
             )
             charts.append(chart)
-        for i, chart in enumerate(charts):
-            chart.anchor = _a1(start + i * (CHART_ROWS + 1), CHART_COL)
+        for chart in charts:  # under the tables, each in its own empty rows
+            chart.anchor = _a1(row, CHART_COL)
+            chart.width_cells = CHART_COLS
             chart.height_rows = CHART_ROWS
+            row += CHART_ROWS + 1
         model.charts.extend(charts)
-        row = max(row, start + len(charts) * (CHART_ROWS + 1)) + 1
+        row += 1
     if not results:
         model.put(row, 0, "No analyses were run.", "muted")
     return model
@@ -944,13 +1031,14 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
 
 # ---------------------------------------------------------------- data notes
 
+# Narrow enough (95 units) to print portrait at a readable scale; long text wraps.
 NOTE_COLUMNS: tuple[tuple[str, float], ...] = (
-    ("Sheet", 18),
-    ("Cell", 8),
-    ("Column", 20),
-    ("Value", 18),
-    ("What was wrong", 26),
-    ("Action", 30),
+    ("Sheet", 14),
+    ("Cell", 7),
+    ("Column", 18),
+    ("Value", 14),
+    ("What was wrong", 20),
+    ("Action", 22),
 )
 
 
@@ -973,13 +1061,17 @@ def notes_sheet(
         Kind "notes"; each cell address links to ``'<sheet>'!<cell>``.
     """
     model = SheetModel(name=SHEET_NAMES["notes"], kind="notes")
+    model.fit_to_width = True
+    model.page_numbers = True
+    last = column_letter(len(NOTE_COLUMNS) - 1)
     model.put(0, 0, "statmargin data notes", "title")
     model.put(
         1,
         0,
         f"{len(table_notes)} cells were skipped or converted while reading; each cell address links to the cell.",
-        "muted",
+        "wrap",
     )
+    model.merged.append(f"A2:{last}2")
     header = 3
     model.put_row(header, [name for name, _ in NOTE_COLUMNS], "header")
     model.freeze = (header + 1, 0)
@@ -987,12 +1079,12 @@ def notes_sheet(
     row = header + 1
     for note in table_notes:
         kind = getattr(note.kind, "value", str(note.kind))
-        model.put(row, 0, note.sheet)
+        model.put(row, 0, note.sheet, "wrap")
         model.put(row, 1, note.cell, "link", link=f"{quote_sheet(note.sheet)}!{note.cell}")
-        model.put(row, 2, note.column)
+        model.put(row, 2, note.column, "wrap")
         model.put(row, 3, note.value)
-        model.put(row, 4, kind)
-        model.put(row, 5, note.action)
+        model.put(row, 4, kind, "wrap")
+        model.put(row, 5, note.action, "wrap")
         row += 1
     if not table_notes:
         model.put(row, 0, "Every cell used was read as it stood.", "muted")
@@ -1002,7 +1094,8 @@ def notes_sheet(
         model.put(row, 0, "Other notes", "subtitle")
         row += 1
         for text in extra_notes:
-            model.put(row, 0, text, "text")
+            model.put(row, 0, text, "wrap")  # merged across the table so it prints whole
+            model.merged.append(f"A{row + 1}:{last}{row + 1}")
             row += 1
     return model
 
@@ -1058,6 +1151,9 @@ def log_sheet(
         Kind "log", oldest run first.
     """
     model = SheetModel(name=SHEET_NAMES["log"], kind="log")
+    model.landscape = True
+    model.fit_to_width = True
+    model.page_numbers = True
     model.put(0, 0, "statmargin run log", "title")
     model.put(1, 0, "One row per run, oldest first.", "muted")
     header = 3

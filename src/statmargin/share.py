@@ -38,6 +38,7 @@ from __future__ import annotations
 
 import copy
 import math
+import re
 from collections.abc import Iterable, Mapping, Sequence
 from typing import Any, overload
 
@@ -70,6 +71,103 @@ def _check_min_count(min_count: int) -> None:
             f"The sharing threshold must be a whole number of at least 2 (got {min_count!r}); "
             f"the default is {DEFAULT_MIN_COUNT}."
         )
+
+
+# ---------------------------------------------------------------- free text
+
+# Words that make a number next to them a count of records (or of things that
+# stand for records: cells of a table, incomplete pairs). Counts of groups,
+# levels or comparisons are not counts of people and are left alone.
+_COUNT_WORDS = (
+    r"records?|rows?|values?|pairs?|incomplete pairs|cells?|participants?|people|persons?|"
+    r"observations?|cases?|visits?|answers?|responses?|entries|entry"
+)
+# A threshold ("fewer than 10 records", "at least 5 values") states a rule, not a count.
+_THRESHOLD = r"(?<!fewer than )(?<!less than )(?<!more than )(?<!at least )(?<!below )(?<!under )"
+_NUMBER_BEFORE_WORD = re.compile(
+    _THRESHOLD + r"(?<![\d.,])(\d[\d,]*)(?![\d.])(?=\s+(?:" + _COUNT_WORDS + r")\b)",
+    re.IGNORECASE,
+)
+_N_EQUALS = re.compile(r"\b([nN])\s*=\s*(\d[\d,]*)(?![\d.])")
+_SOME_OF = re.compile(
+    r"(?<![\d.,])(\d[\d,]*) of (?:the )?(\d[\d,]*) (expected counts|" + _COUNT_WORDS + r")\b",
+    re.IGNORECASE,
+)
+
+
+# The smallest expected count is a product of two margins over the total, so
+# with the shown total and one margin it gives the other margin back.
+_SMALLEST_EXPECTED = re.compile(
+    r"\s*\(smallest (?:expected count )?[\d.,eE+-]+\)|"
+    r"(?<=[Ss]mallest expected count) (?:is |of )?[\d.,eE+-]*\d",
+)
+# A threshold below the minimum ("fewer than 5 values") would narrow a hidden count.
+_LOW_THRESHOLD = re.compile(
+    r"\b(?:fewer than|less than|under|below) (\d[\d,]*)(?![\d.])\s+(" + _COUNT_WORDS + r")\b",
+    re.IGNORECASE,
+)
+
+
+def _small(text: str, min_count: int) -> bool:
+    return is_small_count(int(text.replace(",", "")), min_count)
+
+
+def scrub_text(text: str, min_count: int = DEFAULT_MIN_COUNT) -> str:
+    """Free text with every small count of records rewritten so it cannot be read.
+
+    Parameters
+    ----------
+    text : str
+        A sentence from the tool (a reading, a reason, a method's note, a caution).
+    min_count : int
+        Counts from 1 to ``min_count - 1`` are rewritten.
+
+    Returns
+    -------
+    str
+        "3 of 6 expected counts" becomes "some of the expected counts", "n = 4"
+        becomes "n < 11", "4 records" becomes "fewer than 11 records", and a
+        threshold below the minimum ("fewer than 5 values", which would narrow
+        a hidden count) becomes "very few values"; the value of the smallest
+        expected count (with the total and one margin it gives the other
+        margin) is dropped. Other text is unchanged.
+
+    Notes
+    -----
+    The readings are written from suppressed results and use "fewer than N"
+    themselves; this is the safety net for sentences written elsewhere (the
+    engine's reasons and the methods' notes), which quote counts freely.
+    Thresholds at or above the minimum state a rule and are kept.
+    """
+    _check_min_count(min_count)
+
+    def some_of(match: re.Match[str]) -> str:
+        if _small(match.group(1), min_count) or _small(match.group(2), min_count):
+            return f"some of the {match.group(3)}"
+        return match.group(0)
+
+    def n_equals(match: re.Match[str]) -> str:
+        if _small(match.group(2), min_count):
+            return f"{match.group(1)} < {min_count}"
+        return match.group(0)
+
+    def before_word(match: re.Match[str]) -> str:
+        if _small(match.group(1), min_count):
+            return f"fewer than {min_count}"
+        return match.group(0)
+
+    def low_threshold(match: re.Match[str]) -> str:
+        if _small(match.group(1), min_count):
+            return f"very few {match.group(2)}"
+        return match.group(0)
+
+    text = _SMALLEST_EXPECTED.sub(
+        lambda m: "" if m.group(0).lstrip().startswith("(") else " hidden", text
+    )
+    text = _LOW_THRESHOLD.sub(low_threshold, text)
+    text = _SOME_OF.sub(some_of, text)
+    text = _N_EQUALS.sub(n_equals, text)
+    return _NUMBER_BEFORE_WORD.sub(before_word, text)
 
 
 # ---------------------------------------------------------------- sheet models
@@ -105,6 +203,8 @@ def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> She
         Hidden cells hold ``"<N>"``-style text (a small count itself) or
         "suppressed" (a complementary cell or a dependent), style "suppressed".
         On a results sheet the sharing sentence is written at ``anchors["share_note"]``.
+        Every text cell goes through ``scrub_text``, so no sentence quotes a small
+        count of records.
     """
     _check_min_count(min_count)
     out = copy.deepcopy(model)
@@ -135,6 +235,9 @@ def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> She
                 if dependent not in hidden and dependent in cells:
                     hidden.add(dependent)
                     changed = True
+    for cell in cells.values():  # free text may quote a small count
+        if isinstance(cell.value, str) and cell.style != "suppressed":
+            cell.value = scrub_text(cell.value, min_count)
     for pos in hidden:
         old = cells[pos]
         if old.style == "suppressed":  # hidden earlier (keeps a second pass idempotent)
@@ -297,6 +400,7 @@ __all__ = [
     "DEFAULT_MIN_COUNT",
     "SUPPRESSED_TEXT",
     "is_small_count",
+    "scrub_text",
     "suppress",
     "suppress_model",
     "suppress_result",

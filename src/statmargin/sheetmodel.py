@@ -97,6 +97,17 @@ class SheetModel:
     # (its members and their shown total), so one hidden member would be recoverable.
     count_dependents: dict[tuple[int, int], list[tuple[int, int]]] = field(default_factory=dict)
     count_sets: list[list[tuple[int, int]]] = field(default_factory=list)
+    # Printing (all optional). ``column_breaks`` holds the 0-based index of the first
+    # column of each new printed page; ``fit_to_width`` prints every column on one
+    # page width (scaling down), which spreadsheet programs apply instead of manual
+    # column breaks, so use one or the other. ``page_numbers`` adds a footer with the
+    # sheet name and "page n of m". ``print_scale`` (10..400 percent) shrinks the
+    # print without changing the sheet; it is ignored when ``fit_to_width`` is on.
+    landscape: bool = False
+    print_scale: int | None = None
+    fit_to_width: bool = False
+    column_breaks: list[int] = field(default_factory=list)
+    page_numbers: bool = False
 
     def put(
         self,

@@ -69,6 +69,41 @@ class FileSink:
     def __init__(self, path: str | os.PathLike[str]) -> None:
         self.path = Path(path)
 
+    def check(self, out: str | None = None) -> str | None:
+        """Refuse early, before any work, a write that cannot succeed (missing, locked, wrong type).
+
+        Returns ``out``, or None when ``out`` names the workbook itself (an in-place write).
+        """
+        source = self.path
+        target = Path(out) if out else source
+        if out and source.exists() and target.exists() and os.path.samefile(source, target):
+            out = None  # writing "a copy" over the workbook itself is an in-place write
+        if not source.is_file():
+            raise WorkbookError(f"The workbook {source} does not exist; check the path.")
+        if target.suffix.lower() not in WRITABLE_SUFFIXES:
+            raise WriteError(
+                f"statmargin writes .xlsx or .xlsm workbooks, not '{target.suffix}'; save the file as .xlsx and try again."
+            )
+        if source.suffix.lower() == ".xlsm" and target.suffix.lower() != ".xlsm":
+            raise WriteError(
+                "A macro workbook (.xlsm) must be written to an .xlsm file; change the output name to end in .xlsm."
+            )
+        if source.suffix.lower() == ".xlsx" and target.suffix.lower() == ".xlsm":
+            raise WriteError(
+                "An .xlsx workbook cannot be written as .xlsm; change the output name to end in .xlsx."
+            )
+        locks = lock_files(target)
+        if locks and not out:
+            raise WorkbookLockedError(
+                f"{target.name} is open in a spreadsheet program (lock file {locks[0].name}); close it there, or write a copy with --out."
+            )
+        if out and target.exists() and locks:
+            raise WorkbookLockedError(
+                f"{target.name} is open in a spreadsheet program; close it or choose another output name."
+            )
+
+        return out
+
     def write_sheets(self, models: list[SheetModel], out: str | None = None) -> WriteReport:
         """Put the models into the workbook (or a copy at ``out``), replacing earlier tool sheets.
 
@@ -99,34 +134,9 @@ class FileSink:
         compressed bytes of every untouched part with the original, parses every
         edited or added XML part, and opens the result with python-calamine.
         """
+        out = self.check(out)
         source = self.path
         target = Path(out) if out else source
-        if out and source.exists() and target.exists() and os.path.samefile(source, target):
-            out = None  # writing "a copy" over the workbook itself is an in-place write
-        if not source.is_file():
-            raise WorkbookError(f"The workbook {source} does not exist; check the path.")
-        if target.suffix.lower() not in WRITABLE_SUFFIXES:
-            raise WriteError(
-                f"statmargin writes .xlsx or .xlsm workbooks, not '{target.suffix}'; save the file as .xlsx and try again."
-            )
-        if source.suffix.lower() == ".xlsm" and target.suffix.lower() != ".xlsm":
-            raise WriteError(
-                "A macro workbook (.xlsm) must be written to an .xlsm file; change the output name to end in .xlsm."
-            )
-        if source.suffix.lower() == ".xlsx" and target.suffix.lower() == ".xlsm":
-            raise WriteError(
-                "An .xlsx workbook cannot be written as .xlsm; change the output name to end in .xlsx."
-            )
-        locks = lock_files(target)
-        if locks and not out:
-            raise WorkbookLockedError(
-                f"{target.name} is open in a spreadsheet program (lock file {locks[0].name}); close it there, or write a copy with --out."
-            )
-        if out and target.exists() and locks:
-            raise WorkbookLockedError(
-                f"{target.name} is open in a spreadsheet program; close it or choose another output name."
-            )
-
         if not models:  # nothing to write: leave the file alone
             return WriteReport(path=str(source), sheets={}, renamed=[], replaced=[])
         blob = source.read_bytes()
