@@ -1026,3 +1026,23 @@ def test_sharing_mode_does_not_quote_the_smallest_expected_count() -> None:
     assert "1.09" not in line
     assert not any("1.09" in s for s in explain.technical_lines(result, SETTINGS, shared))
     assert any("1.09" in s for s in explain.technical_lines(result, SETTINGS, UNITS))
+
+
+def test_no_adjustment_reads_without_allowing_and_cautions_about_chance():
+    """With adjustment 'none', readings do not claim an allowance and a caution names the risk."""
+    from statmargin import analyze
+
+    frame = {  # invented waits at three clinics
+        "site": ["A"] * 8 + ["B"] * 8 + ["C"] * 8,
+        "wait": [12, 15, 11, 14, 13, 16, 12, 15, 22, 25, 21, 24, 23, 26, 22, 25, 13, 16, 12, 15, 14, 17, 13, 16],
+        "score": [3, 4, 3, 5, 4, 4, 3, 5, 4, 4, 3, 5, 4, 4, 3, 5, 2, 3, 2, 4, 3, 3, 2, 4],
+    }
+    import pandas as pd
+
+    results = analyze(pd.DataFrame(frame), outcome=["wait", "score"], by="site", adjust="none")
+    for result in results:
+        assert "after allowing for" not in result.reading
+        assert (
+            "This run made 2 comparisons and no adjustment was asked for, so some small "
+            "p-values are expected by chance alone; read each result alongside the others."
+        ) in result.cautions

@@ -169,7 +169,14 @@ def test_swapping_groups_flips_estimates_and_keeps_p(x: list[float], y: list[flo
     for function in (welch_t, student_t, mann_whitney_u):
         if function is welch_t and (np.ptp(a) == 0 or np.ptp(b) == 0):
             continue  # Welch's df needs spread in both groups
-        forward, backward = function(a, b), function(b, a)
+        try:
+            forward = function(a, b)
+        except NotEnoughDataError:
+            # e.g. each group one repeated value: the refusal must not depend on the order
+            with pytest.raises(NotEnoughDataError):
+                function(b, a)
+            continue
+        backward = function(b, a)
         assert backward.estimate.value == pytest.approx(-forward.estimate.value, abs=1e-12)
         assert backward.p_value == pytest.approx(forward.p_value, rel=1e-9, abs=1e-300)
         assert 0.0 <= forward.p_value <= 1.0

@@ -691,8 +691,8 @@ def test_incomplete_pairs_reach_the_notes_sheet() -> None:
     notes = report.build_sheets([paired], context=context(samples={}))[2]
     texts = [cell.value for cell in notes.cells.values()]
     assert (
-        "2 incomplete pairs by Client were left out of the analysis of Weight (one of the two "
-        "measurements was missing)."
+        "2 incomplete pairs by Client were left out of the analysis (one of the two "
+        "measurements of Weight was missing)."
     ) in texts
 
 

@@ -94,6 +94,18 @@ MULTIPLE_LINE = (
     "This run made {count} comparisons; the adjusted p-value ({method}) allows for that, so "
     "read each result alongside the others."
 )
+UNADJUSTED_LINE = (
+    "This run made {count} comparisons and no adjustment was asked for, so some small "
+    "p-values are expected by chance alone; read each result alongside the others."
+)
+
+
+def multiple_line(count: int, settings: Any) -> str:
+    """The several-comparisons caution, worded for the adjustment method in use."""
+    key = getattr(settings.adjust, "value", str(settings.adjust))
+    if key == AdjustMethod.NONE.value:
+        return UNADJUSTED_LINE.format(count=count)
+    return MULTIPLE_LINE.format(count=count, method=ADJUST_NAMES.get(key, str(settings.adjust)))
 EXCLUDED_LINE = (
     "{count} {records} left out (blank, unreadable or incomplete values; see the data "
     "notes); if they differ from the others, the result may be biased."
@@ -726,7 +738,8 @@ def _effect_clause(result: Result, mag: Magnitude | None, significant: bool) -> 
 
 def _evidence_sentence(result: Result, settings: Settings, n_comparisons: int | None) -> str:
     p, adjusted = _p_used(result)
-    tail = _adjust_tail(adjusted, n_comparisons)
+    unadjusted_run = getattr(settings.adjust, "value", settings.adjust) == AdjustMethod.NONE.value
+    tail = _adjust_tail(adjusted and not unadjusted_run, n_comparisons)
     p_text = f"{fmt_p(p)}{tail}"
     significant = _finite(p) and p < settings.alpha
     mag = effect_magnitude(result)
@@ -846,10 +859,7 @@ def cautions(
     if _observational(context):
         out.append(OBSERVATIONAL_LINE)
     if _finite(result.p_adjusted) and n_comparisons and n_comparisons > 1:
-        method = ADJUST_NAMES.get(
-            getattr(settings.adjust, "value", str(settings.adjust)), str(settings.adjust)
-        )
-        out.append(MULTIPLE_LINE.format(count=n_comparisons, method=method))
+        out.append(multiple_line(n_comparisons, settings))
     sizes = _group_sizes(result)
     grouped = result.design in ("two_group_continuous", "multi_group_continuous")
     if grouped and sizes:
@@ -968,12 +978,7 @@ def run_wide_cautions(
         out.append(OBSERVATIONAL_LINE)
     adjusted = [r for r in results if not r.skipped and _finite(r.p_adjusted)]
     if adjusted and n_comparisons > 1:
-        key = getattr(settings.adjust, "value", str(settings.adjust))
-        out.append(
-            MULTIPLE_LINE.format(
-                count=n_comparisons, method=ADJUST_NAMES.get(key, str(settings.adjust))
-            )
-        )
+        out.append(multiple_line(n_comparisons, settings))
     run = [r for r in results if not r.skipped]
     lists = [
         r.cautions or cautions(r, settings=settings, context=context, n_comparisons=n_comparisons)
@@ -1126,11 +1131,14 @@ def _with_reading(followup: Followup, text: str) -> Followup:
 
 def incomplete_pairs_note(result: Result, count: int, context: Any = None) -> str:
     """The data-notes sentence for pairs left out because one half was missing."""
-    key = f" by {result.pairing}" if result.pairing else ""
-    return (
-        f"{count_text(count, context)} incomplete pairs{key} were left out of the analysis of "
-        f"{result.outcome or 'the outcome'} (one of the two measurements was missing)."
-    )
+    outcome = result.outcome or "the outcome"
+    if result.pairing and not result.exposure:  # two columns of one row form the pair
+        what = f"incomplete pairs of {outcome} and {result.pairing}"
+        tail = "one of the two measurements was missing"
+    else:
+        what = f"incomplete pairs by {result.pairing}" if result.pairing else "incomplete pairs"
+        tail = f"one of the two measurements of {outcome} was missing"
+    return f"{count_text(count, context)} {what} were left out of the analysis ({tail})."
 
 
 # ---------------------------------------------------------------- technical note

@@ -122,7 +122,7 @@ def plan_workbook(
         Write to this new file instead of ``path`` (which is then left untouched).
     """
     from .read import first_data_sheet, read_table, sample_values
-    from .vartypes import infer_type
+    from .vartypes import infer_type, usable_values
 
     if source is None or sink is None:
         file_source, file_sink = _file_backends(path)
@@ -149,7 +149,9 @@ def plan_workbook(
                 inferred=info.type.value,
                 sample=", ".join(str(v) for v in sample_values(column)),
                 n_blank=column.n_blank,
-                n_unreadable=column.n_unreadable,
+                # Cells that cannot be read as the inferred type: error values, suppressed
+                # counts and formulas without a value, plus e.g. text in a numeric column.
+                n_unreadable=column.n_unreadable + sum(usable_values(column, info).excluded.values()),
             )
         )
     new = [n for n in table.columns if previous is not None and n not in choices]

@@ -56,7 +56,12 @@ HEADERS = (
 _COL = {name: i for i, name in enumerate(HEADERS)}
 TREAT_CHOICES = ("", *(t.value for t in (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)))
 
-SETTINGS_FIRST_ROW = 3  # 0-based row of "Data sheet"
+INSTRUCTIONS = (
+    "Pick a role for each column in the shaded cells, save, then run: statmargin run <this file>.",
+    "Each outcome is compared by every 'compare by' column, against its 'Compare with' value "
+    "(85, Fail=0.10), or with its 'Paired with' column.",
+)
+SETTINGS_FIRST_ROW = 1 + len(INSTRUCTIONS) + 1  # 0-based row of "Data sheet"
 TABLE_HEADER_ROW = SETTINGS_FIRST_ROW + len(SETTING_LABELS) + 1
 STATUS_MISSING = "not in the data any more"
 STATUS_NEW = "new column"
@@ -98,14 +103,8 @@ def build_roles_sheet(
     """
     model = SheetModel(name=SHEET_NAME, kind=KIND)
     model.put(0, 0, "Column roles", "title")
-    model.put(
-        1,
-        0,
-        "Pick a role for each column in the shaded cells, then run: statmargin run <this file>. "
-        "Outcome columns are tested; each is compared by every 'compare by' column, "
-        "against its 'Compare with' value, or with its 'Paired with' column.",
-        "muted",
-    )
+    for row, line in enumerate(INSTRUCTIONS, start=1):
+        model.put(row, 0, line, "muted")
     settings = plan.settings
     values: dict[str, Any] = {
         "sheet": data_sheet,
@@ -118,6 +117,7 @@ def build_roles_sheet(
         row = SETTINGS_FIRST_ROW + offset
         model.put(row, 0, label, "label")
         model.put(row, 1, values[attr], "input")
+        model.merged.append(f"B{row + 1}:C{row + 1}")  # room for a long sheet name
     adjust_row = SETTINGS_FIRST_ROW + list(SETTING_LABELS).index("Multiple comparisons")
     sides_row = SETTINGS_FIRST_ROW + list(SETTING_LABELS).index("Sides")
     model.validations.append(Validation(f"B{adjust_row + 1}", [m.value for m in AdjustMethod]))
@@ -144,6 +144,8 @@ def build_roles_sheet(
         letter = chr(65 + _COL[header])
         model.validations.append(Validation(f"{letter}{first}:{letter}{last}", choices))
     model.freeze = (TABLE_HEADER_ROW + 1, 1)
+    model.landscape = True
+    model.fit_to_width = True
     model.widths = {0: 24, 1: 7, 2: 14, 3: 34, 4: 11, 5: 15, 6: 14, 7: 13, 8: 15, 9: 16, 10: 16, 11: 22, 12: 22}
     return model
 

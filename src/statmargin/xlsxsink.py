@@ -149,7 +149,7 @@ class FileSink:
             new_blob = write_zip(result.entries)
         except StatmarginError:
             raise
-        except (ValueError, KeyError, IndexError, UnicodeDecodeError, ET.ParseError) as exc:
+        except (ValueError, LookupError, IndexError, ET.ParseError) as exc:
             raise WriteError(
                 f"statmargin could not add its sheets to this workbook ({_brief(exc)}); the file was left as it was."
             ) from exc
@@ -269,7 +269,7 @@ def verify(
         if name.endswith((".xml", ".rels")):
             try:
                 ET.fromstring(written[name].data())
-            except (ET.ParseError, KeyError) as exc:
+            except (ET.ParseError, LookupError, ValueError) as exc:
                 raise WriteError(
                     f"The new part {name} is not well-formed XML ({_brief(exc)}); the original file was left as it was."
                 ) from exc

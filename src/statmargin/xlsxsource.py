@@ -23,6 +23,7 @@ import os
 import posixpath
 import re
 import zipfile
+import zlib
 from collections.abc import Iterable, Iterator
 from typing import Any
 from xml.etree import ElementTree as ET
@@ -347,7 +348,9 @@ class FileSource:
                     return None
                 data = archive.read(part)
             return ET.fromstring(data)
-        except (OSError, zipfile.BadZipFile, ET.ParseError):
+        except (OSError, zipfile.BadZipFile, ET.ParseError, ValueError, LookupError, NotImplementedError, zlib.error):
+            # A damaged or oddly encoded part (an unknown XML encoding raises LookupError):
+            # treat it as absent; reading the cells then reports what is wrong.
             return None
 
     def _sheet_parts(self) -> dict[str, str]:
