@@ -384,3 +384,19 @@ def test_empty_outcome_is_refused():
     frame = pd.DataFrame({"y": [np.nan] * 4, "g": ["a", "b", "a", "b"]})
     with pytest.raises(RoleError, match="'y' has no values, so it cannot be an outcome"):
         analyze(frame, outcome="y", by="g")
+
+
+def test_run_plan_reports_progress_after_each_analysis():
+    """run_plan calls the progress callback with (done, total) once per analysis, in order."""
+    import pandas as pd
+
+    from statmargin.engine import build_plan, make_settings, run_plan
+    from statmargin.table import Table
+
+    frame = pd.DataFrame(  # invented visits at two clinics
+        {"site": ["A", "B"] * 6, "wait": [12, 20, 14, 22, 13, 25, 15, 21, 11, 24, 16, 23], "age": range(30, 42)}
+    )
+    plan = build_plan(["wait", "age"], ["site"], settings=make_settings())
+    calls = []
+    run_plan(Table.from_frame(frame), plan, progress=lambda done, total: calls.append((done, total)))
+    assert calls == [(1, 2), (2, 2)]

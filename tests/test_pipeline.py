@@ -174,9 +174,18 @@ class TestRunOnReferenceData:
         assert record["analyses"][0]["p_value"] == summary.results[0].p_value
 
     def test_progress_messages(self, tmp_path) -> None:
-        """The progress callback hears each step: reading, running, writing."""
+        """The progress callback hears each step (reading, running, writing) and each analysis's count."""
         path = plant_growth(tmp_path / "plants.xlsx")
         plan_workbook(path, outcome=["weight"], by=["group"])
-        heard: list[str] = []
-        run_workbook(path, progress=heard.append)
-        assert [m.split()[0] for m in heard] == ["reading", "running", "writing"]
+        steps: list[str] = []
+        counts: list[tuple[int, int]] = []
+
+        def hear(message: str, done: int | None = None, total: int | None = None) -> None:
+            if done is None:
+                steps.append(message.split()[0])
+            else:
+                counts.append((done, total))
+
+        run_workbook(path, progress=hear)
+        assert steps == ["reading", "running", "writing"]
+        assert counts == [(1, 1)]

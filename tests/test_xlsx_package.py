@@ -666,3 +666,27 @@ class TestPrintSettings:
         bold.put(0, 0, text, "caution")  # 21 characters a line: two lines
         assert sheetxml.wrapped_row_heights(plain) == {}
         assert sheetxml.wrapped_row_heights(bold) == {0: 30.0}
+
+
+def test_print_titles_are_written_and_replaced_on_rerun(tmp_path):
+    """A model's print titles become one sheet-scoped _xlnm.Print_Titles name, not duplicated by a re-run."""
+    import zipfile
+
+    from statmargin.sheetmodel import SheetModel
+    from statmargin.xlsxsink import FileSink
+    from tests.workbook_fixtures import make_rich_workbook
+
+    path = make_rich_workbook(tmp_path / "book.xlsx")
+    model = SheetModel(name="results", kind="results")
+    model.put_row(0, ["Question", "Reading"], "header")
+    model.put_row(1, ["Does wait differ by site?", "Waits were longer at North."])
+    model.print_title_rows = (0, 0)
+    model.print_title_cols = 1
+    for _ in range(2):
+        report = FileSink(path).write_sheets([model])
+    with zipfile.ZipFile(path) as archive:
+        workbook = archive.read("xl/workbook.xml").decode()
+    name = report.sheets["results"]
+    quoted = f"'{name}'"  # the writer always quotes sheet names in references
+    assert workbook.count("_xlnm.Print_Titles") == 1
+    assert f">{quoted}!$A:$A,{quoted}!$1:$1</definedName>" in workbook.replace("&apos;", "'")

@@ -227,15 +227,24 @@ def _pairs(values: tuple[str, ...], flag: str) -> dict[str, str]:
     return out
 
 
-def _progress(quiet: bool) -> Callable[[str], None]:
-    """Step lines on standard error, so long work shows it is moving and stdout stays clean."""
+def _progress(quiet: bool) -> Callable[..., None]:
+    """Step lines and a bar over the analyses on standard error; stdout stays clean."""
     # Only on a terminal: scripts and logs then get exactly one line on standard error when
     # something goes wrong, and nothing when all is well.
-    show = not quiet and click.get_text_stream("stderr").isatty()
+    stream = click.get_text_stream("stderr")
+    show = not quiet and stream.isatty()
 
-    def say(message: str) -> None:
-        if show:
+    def say(message: str, done: int | None = None, total: int | None = None) -> None:
+        if not show:
+            return
+        if done is None or not total:
             click.echo(f"statmargin: {message} ...", err=True)
+            return
+        width = 30
+        filled = width * done // total
+        end = "\n" if done == total else ""
+        stream.write(f"\r  [{'#' * filled}{'.' * (width - filled)}] {done}/{total} {message}{end}")
+        stream.flush()
 
     return say
 

@@ -9,7 +9,7 @@ that would have run.
 from __future__ import annotations
 
 import math
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -306,7 +306,9 @@ def build_plan(
     return Plan(columns=list(choices.values()), settings=settings or Settings())
 
 
-def run_plan(table: Table, plan: Plan) -> list[Result]:
+def run_plan(
+    table: Table, plan: Plan, *, progress: Callable[[int, int], None] | None = None
+) -> list[Result]:
     """Run every analysis of a plan, adjust p-values across the run, add follow-ups.
 
     Parameters
@@ -315,6 +317,8 @@ def run_plan(table: Table, plan: Plan) -> list[Result]:
         The data as read.
     plan : roles.Plan
         Roles, choices and settings.
+    progress : callable, optional
+        Called with (analyses done, analyses in all) after each analysis.
 
     Returns
     -------
@@ -332,7 +336,11 @@ def run_plan(table: Table, plan: Plan) -> list[Result]:
 
     settings = plan.settings
     analyses = expand(plan, table)
-    done = [run_analysis(table, a, settings) for a in analyses]
+    done = []
+    for analysis in analyses:
+        done.append(run_analysis(table, analysis, settings))
+        if progress is not None:
+            progress(len(done), len(analyses))
     results = [r for r, _ in done]
     adjust_results(results, settings.adjust)
     for result, prepared in done:

@@ -21,7 +21,9 @@ from .roles_sheet import KIND as ROLES_KIND
 from .roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
 from .table import Table
 
-Progress = Callable[[str], None]
+# Called as each step starts; during the analyses also with (done, total) so a
+# front end can draw a progress bar.
+Progress = Callable[..., None]
 
 
 @dataclass
@@ -250,7 +252,7 @@ def run_workbook(
     from .explain import apply as explain_results
     from .read import read_table
 
-    say = progress or (lambda message: None)
+    say = progress or (lambda message, done=None, total=None: None)
     started = time.perf_counter()
     if source is None or sink is None:
         file_source, file_sink = _file_backends(path)
@@ -268,7 +270,9 @@ def run_workbook(
     say(f"reading sheet {plan.sheet!r}")
     table = read_table(path, sheet=plan.sheet, header_row=plan.header_row, columns=used, source=source)
     say(f"running analyses on {len(table.rows):,} rows")
-    results = run_plan(table, plan)
+    results = run_plan(
+        table, plan, progress=lambda done, total: say("running analyses", done=done, total=total)
+    )
     context = report.ReportContext.from_run(
         workbook=Path(path).name,
         table=table,

@@ -377,6 +377,8 @@ def results_sheet(
     model.print_scale = RESULT_PRINT_SCALE
     model.column_breaks = list(RESULT_PAGE_BREAKS)
     model.page_numbers = True
+    model.print_title_rows = (header, header)  # column headers on every page
+    model.print_title_cols = 1  # and the question beside the technical columns
     row = header + 1
     for index, result in enumerate(results):
         reading_text, caution_list = result.reading, result.cautions

@@ -146,6 +146,7 @@ def build_roles_sheet(
     model.freeze = (TABLE_HEADER_ROW + 1, 1)
     model.landscape = True
     model.fit_to_width = True
+    model.print_title_rows = (TABLE_HEADER_ROW, TABLE_HEADER_ROW)
     model.widths = {0: 24, 1: 7, 2: 14, 3: 34, 4: 11, 5: 15, 6: 14, 7: 13, 8: 15, 9: 16, 10: 16, 11: 22, 12: 22}
     return model
 

@@ -108,6 +108,10 @@ class SheetModel:
     fit_to_width: bool = False
     column_breaks: list[int] = field(default_factory=list)
     page_numbers: bool = False
+    # Rows (0-based, first and last) and columns (0-based count from A) repeated on
+    # every printed page, so each page keeps its header row and question column.
+    print_title_rows: tuple[int, int] | None = None
+    print_title_cols: int = 0
 
     def put(
         self,

@@ -547,8 +547,9 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
 
     # Edited parts.
     edited: dict[str, bytes] = {}
+    titles = [print_titles(m, name) for m, (name, _, _) in zip(models, new_sheets, strict=True)]
     edited[workbook_part] = _edit_workbook(
-        workbook_text, sheets, removed_idx, new_sheets, [m.kind for m in models], set(unmark_idx)
+        workbook_text, sheets, removed_idx, new_sheets, [m.kind for m in models], set(unmark_idx), titles
     )
     edited[wb_rels_part] = _edit_rels(parts[wb_rels_part].data(), drop_rel_ids, new_wb_rels)
     edited[CONTENT_TYPES_PART] = _edit_content_types(
@@ -589,6 +590,19 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
     )
 
 
+def print_titles(model: SheetModel, sheet_name: str) -> str | None:
+    """The print-titles reference of a sheet model (e.g. ``'results'!$A:$A,'results'!$14:$14``), or None."""
+    quoted = sheetxml.quote_sheet(sheet_name)
+    parts = []
+    if model.print_title_cols:
+        last = sheetxml.column_letter(model.print_title_cols - 1)
+        parts.append(f"{quoted}!$A:${last}")
+    if model.print_title_rows:
+        first, last_row = model.print_title_rows
+        parts.append(f"{quoted}!${first + 1}:${last_row + 1}")
+    return ",".join(parts) or None
+
+
 def _edit_workbook(
     text: str,
     sheets: list[SheetInfo],
@@ -596,8 +610,13 @@ def _edit_workbook(
     new_sheets: list[tuple[str, str, int]],
     kinds: list[str],
     unmark: set[int] = frozenset(),
+    titles: list[str | None] | None = None,
 ) -> bytes:
-    """Cut removed <sheet> elements and their names, renumber, append new sheets and markers."""
+    """Cut removed <sheet> elements and their names, renumber, append new sheets and markers.
+
+    ``titles`` holds each new sheet's print-titles reference (or None); it becomes the
+    sheet-scoped ``_xlnm.Print_Titles`` name, removed with the sheet on the next run.
+    """
     prefix = _main_prefix(text)
     removed = set(removed_idx)
     new_index = {}
@@ -640,6 +659,10 @@ def _edit_workbook(
     markers = "".join(
         f'<{prefix}definedName name="{TOOL_SHEET_MARKER}" localSheetId="{n_kept + k}" hidden="1">"{sheetxml.escape(kind)}"</{prefix}definedName>'
         for k, kind in enumerate(kinds)
+    ) + "".join(
+        f'<{prefix}definedName name="_xlnm.Print_Titles" localSheetId="{n_kept + k}">{sheetxml.escape(ref)}</{prefix}definedName>'
+        for k, ref in enumerate(titles or [])
+        if ref
     )
     block = re.search(rf"<{prefix}definedNames\b[^>]*>(.*?)</{prefix}definedNames>", text, re.S)
     if block:
