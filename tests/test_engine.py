@@ -400,3 +400,33 @@ def test_run_plan_reports_progress_after_each_analysis():
     calls = []
     run_plan(Table.from_frame(frame), plan, progress=lambda done, total: calls.append((done, total)))
     assert calls == [(1, 2), (2, 2)]
+
+
+def test_ordinal_two_groups_report_probability_of_superiority():
+    """An ordinal outcome by two groups reports P(first ranks above second) with r's interval mapped across."""
+    import pandas as pd
+
+    from statmargin import analyze
+
+    # invented satisfaction labels at two sites
+    order = ["poor", "fair", "good"]
+    frame = pd.DataFrame(
+        {
+            "site": ["A"] * 8 + ["B"] * 7,
+            "rating": ["poor", "fair", "fair", "good", "good", "good", "good", "good",
+                       "poor", "poor", "fair", "fair", "good", "good", "poor"],
+        }
+    )
+    (result,) = analyze(frame, outcome="rating", by="site", treat={"rating": "ordinal:" + ",".join(order)})
+    ranks = {label: i for i, label in enumerate(order)}
+    a = [ranks[v] for v in frame.rating[frame.site == "A"]]
+    b = [ranks[v] for v in frame.rating[frame.site == "B"]]
+    # P(X > Y) + P(X = Y) / 2 counted over all 8 x 7 pairs (McGraw & Wong 1992 definition)
+    wins = sum((x > y) + 0.5 * (x == y) for x in a for y in b)
+    assert result.test == "mann_whitney_u"
+    assert result.effect.name == "probability of superiority"
+    assert result.effect.value == pytest.approx(wins / 56)
+    r = result.extra["rank_biserial_r"]
+    assert result.effect.ci_low == pytest.approx((r["ci_low"] + 1) / 2)
+    assert result.effect.ci_high == pytest.approx((r["ci_high"] + 1) / 2)
+    json.dumps(result.to_record())  # the record stays JSON-ready

@@ -18,7 +18,7 @@ import numpy as np
 from .choose import DECISION_TABLE, Choice, choose_test
 from .errors import NotEnoughDataError, OptionError, RoleError
 from .plan import Analysis, expand, parse_against
-from .results import Result
+from .results import Effect, Result
 from .roles import (
     AdjustMethod,
     Alternative,
@@ -628,6 +628,18 @@ def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: Type
         ps = probability_of_superiority(groups[levels[0]], groups[levels[1]])
         result.extra["probability_of_superiority"] = ps
         result.extra["probability_of_superiority_levels"] = [levels[0], levels[1]]
+        if ordinal and result.effect is not None and result.effect.name == "rank-biserial r":
+            # For ordered labels the chance that a record of the first group ranks above one
+            # of the second (ties half) reads more plainly than r; r = 2 * PS - 1 exactly
+            # (Kerby 2014, Comprehensive Psychology 3:11.IT.3.1), so its interval maps across.
+            r = result.effect
+            result.extra["rank_biserial_r"] = r.to_record()
+            result.effect = Effect(
+                "probability of superiority",
+                ps,
+                None if r.ci_low is None else (r.ci_low + 1) / 2,
+                None if r.ci_high is None else (r.ci_high + 1) / 2,
+            )
     return result, _Prepared(groups=groups)
 
 
