@@ -674,7 +674,6 @@ def test_print_titles_are_written_and_replaced_on_rerun(tmp_path):
 
     from statmargin.sheetmodel import SheetModel
     from statmargin.xlsxsink import FileSink
-    from workbook_fixtures import make_rich_workbook
 
     path = make_rich_workbook(tmp_path / "book.xlsx")
     model = SheetModel(name="results", kind="results")
