@@ -12,6 +12,18 @@ import re
 
 import pytest
 
+from result_builders import (
+    brown_forsythe_plantgrowth,
+    cyl_share_of_4,
+    mtcars_am_by_vs,
+    mtcars_cyl_by_gear,
+    mtcars_cyl_shares,
+    plantgrowth_anova,
+    skipped_wait_by_district,
+    sleep_mean_difference,
+    sleep_welch_t,
+    tukey_trt2_vs_trt1,
+)
 from statmargin import explain
 from statmargin import magnitude as mag
 from statmargin.results import Effect, Estimate, Followup, Result
@@ -64,19 +76,10 @@ def make_cases() -> dict[str, Result]:
         effect=Effect("rank-biserial r", -0.057, -0.41, 0.31),
     )  # effect: illustrative input (invented)
     # R 4.2.2: chisq.test(tab, p = c(0.25, 0.25, 0.5)) on mtcars$cyl (mtcars_cyl_vs_proportions)
-    out["chi_square_gof"] = Result(
-        outcome="cyl",
-        exposure=None,
-        design="one_sample_categorical",
-        test="chi_square_goodness_of_fit",
+    out["chi_square_gof"] = mtcars_cyl_shares(
         statistic_name="X-squared",
-        statistic=1.5,
-        df=2.0,
-        p_value=0.4723665527410147,
         p_method="asymptotic",
-        n=32,
-        against={"4": 0.25, "6": 0.25, "8": 0.5},
-        estimate=Estimate("share of 4", 11 / 32, 0.2, 0.52),  # CI: illustrative input (invented)
+        estimate=cyl_share_of_4(),  # CI: illustrative input (invented)
         effect=Effect("Cohen's w", 0.2165),  # sqrt(1.5 / 32), from R's X-squared
         groups=[
             {"label": "4", "count": 11, "share": 11 / 32, "expected": 8.0},
@@ -106,47 +109,11 @@ def make_cases() -> dict[str, Result]:
         extra={"level": "1"},
     )
     # R 4.2.2: chisq.test(tab, correct = FALSE) on table(cyl, gear) (mtcars_cyl_by_gear); Cramer's V from the JSON
-    out["chi_square_independence"] = Result(
-        outcome="cyl",
-        exposure="gear",
-        design="two_categorical",
-        test="chi_square_independence",
-        statistic_name="X-squared",
-        statistic=18.036363636363635,
-        df=4.0,
-        p_value=0.0012140660337851576,
-        p_method="monte_carlo",
-        n=32,
-        effect=Effect("Cramer's V", 0.5308655025693249),
-        shape={
-            "expected": [
-                [5.15625, 4.125, 1.71875],
-                [3.28125, 2.625, 1.09375],
-                [6.5625, 5.25, 2.1875],
-            ],
-            "min_expected": 1.09375,
-        },
-        extra={
-            "observed": {
-                "values": [[1, 8, 2], [2, 4, 1], [12, 0, 2]],
-                "row_labels": ["4", "6", "8"],
-                "col_labels": ["3", "4", "5"],
-            }
-        },
-    )
+    out["chi_square_independence"] = mtcars_cyl_by_gear(p_method="monte_carlo")
     # R 4.2.2: fisher.test(tab) on table(am, vs) (mtcars_am_by_vs); estimate = difference of the row shares with vs = 0
-    out["fisher"] = Result(
-        outcome="vs",
-        exposure="am",
-        design="two_categorical",
-        test="fisher_exact",
-        p_value=0.4726974416017796,
+    # (its CI: illustrative input, invented)
+    out["fisher"] = mtcars_am_by_vs(
         p_method="exact",
-        n=32,
-        estimate=Estimate(
-            "difference in proportions (0 - 1)", 12 / 19 - 6 / 13, -0.18, 0.50
-        ),  # CI: illustrative input (invented)
-        effect=Effect("odds ratio", 1.9560553993728882, 0.3825341798446402, 10.591608672988254),
         extra={
             "level": "0",
             "observed": [[12, 7], [6, 7]],
@@ -156,22 +123,9 @@ def make_cases() -> dict[str, Result]:
         shape={"expected": [[10.6875, 8.3125], [7.3125, 5.6875]], "min_expected": 5.6875},
     )
     # R 4.2.2: t.test(extra ~ group, data = dc, var.equal = FALSE) (sleep_extra_by_group)
-    out["welch_t"] = Result(
-        outcome="extra",
-        exposure="group",
-        design="two_group_continuous",
-        test="welch_t",
-        statistic_name="t",
-        statistic=-1.860813467486853,
-        df=17.7764735161785,
-        p_value=0.07939414018735817,
-        p_method="asymptotic",
-        n=20,
-        estimate=Estimate(
-            "difference in means (1 - 2)", 0.75 - 2.33, -3.3654832307117104, 0.20548323071171018
-        ),
+    out["welch_t"] = sleep_welch_t(
+        estimate=sleep_mean_difference(0.75 - 2.33),
         effect=Effect("Hedges' g", -0.79, -1.68, 0.12),  # illustrative input (invented)
-        groups=[{"label": "1", "n": 10, "mean": 0.75}, {"label": "2", "n": 10, "mean": 2.33}],
     )
     # R 4.2.2: wilcox.test(len ~ supp, data = dc, exact = FALSE, correct = TRUE, conf.int = TRUE) (toothgrowth_len_by_supp)
     out["mann_whitney"] = Result(
@@ -213,25 +167,10 @@ def make_cases() -> dict[str, Result]:
             "median": 5.4350000000000005,
         },
     ]
-    bf = {"test": "Brown-Forsythe", "statistic": 1.1191856948703909, "p_value": 0.3412266241254738}
-    # R 4.2.2: oneway.test(weight ~ group, data = dc, var.equal = TRUE) (plantgrowth_weight_by_group)
-    out["anova"] = Result(
-        outcome="weight",
-        exposure="group",
-        design="multi_group_continuous",
-        test="one_way_anova",
-        statistic_name="F",
-        statistic=4.846087862380137,
-        df=[2.0, 27.0],
-        p_value=0.015909958325622912,
-        p_method="asymptotic",
-        n=30,
-        effect=Effect(
-            "eta-squared", 0.2641, 0.03, 0.47
-        ),  # eta2 = 3.76634/14.25843 (SS from aov); CI illustrative
-        groups=plant_groups,
-        shape={"spread_equality": bf},
-    )
+    bf = brown_forsythe_plantgrowth()  # R 4.2.2 r_cases.json brown_forsythe_median
+    # R 4.2.2: oneway.test(weight ~ group, data = dc, var.equal = TRUE) (plantgrowth_weight_by_group);
+    # eta2 = 3.76634/14.25843 (SS from aov); CI illustrative
+    out["anova"] = plantgrowth_anova(groups=plant_groups, shape={"spread_equality": bf})
     # R 4.2.2: oneway.test(weight ~ group, data = dc, var.equal = FALSE)
     out["welch_anova"] = Result(
         outcome="weight",
@@ -489,12 +428,8 @@ def test_prove_never_appears() -> None:
 
 def test_review_line_is_always_last() -> None:
     """Every result, skipped or not, ends its cautions with the fixed review line."""
-    skipped = Result(
-        outcome="Wait",
-        exposure="District",
-        design="two_group_continuous",
-        test="welch_t",
-        skipped="Every value of Wait is the same (4.0), so there is no spread to test.",
+    skipped = skipped_wait_by_district(
+        "Every value of Wait is the same (4.0), so there is no spread to test."
     )
     for result in [*make_cases().values(), skipped]:
         _, cautions = explain.explain(result, settings=SETTINGS, context=UNITS)
@@ -519,12 +454,8 @@ def test_adjusted_p_is_used_and_the_run_size_named() -> None:
 
 def test_skipped_result_says_why_no_test_ran() -> None:
     """A skipped analysis gets a plain reason instead of numbers."""
-    skipped = Result(
-        outcome="Wait",
-        exposure="District",
-        design="two_group_continuous",
-        test="welch_t",
-        skipped="Every value of Wait is the same (4.0), so there is no spread to test.",
+    skipped = skipped_wait_by_district(
+        "Every value of Wait is the same (4.0), so there is no spread to test."
     )
     reading = explain.reading(skipped, settings=SETTINGS, context=UNITS)
     assert reading == (
@@ -683,19 +614,7 @@ def test_method_notes_become_cautions() -> None:
 def test_followup_reading_for_tukey_pair() -> None:
     """A pairwise follow-up reads as a difference with its interval and adjusted p."""
     # R 4.2.2: TukeyHSD(aov(weight ~ group, data = dc)) trt2-trt1: diff 0.865, lwr 0.17378, upr 1.55622, p adj 0.01201
-    followup = Followup(
-        "tukey_hsd",
-        ("trt2", "trt1"),
-        Estimate(
-            "difference in means (trt2 - trt1)",
-            0.8650000000000002,
-            0.17378394858954183,
-            1.5562160514104586,
-        ),
-        p_value=None,
-        p_adjusted=0.01200642397945273,
-        flagged=True,
-    )
+    followup = tukey_trt2_vs_trt1()
     text = explain.followup_reading(
         followup, make_cases()["anova"], settings=SETTINGS, context=UNITS
     )

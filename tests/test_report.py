@@ -14,9 +14,18 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from result_builders import (
+    mtcars_cyl_by_gear,
+    mtcars_cyl_shares,
+    plantgrowth_anova,
+    skipped_wait_by_district,
+    sleep_mean_difference,
+    sleep_welch_t,
+    tukey_trt2_vs_trt1,
+)
 from statmargin import explain, report
 from statmargin.report import ReportContext
-from statmargin.results import Effect, Estimate, Followup, Result
+from statmargin.results import Estimate, Result
 from statmargin.roles import Settings
 from statmargin.sheetmodel import STYLES, SheetModel
 from statmargin.table import DataNote, NoteKind, Table, column_index
@@ -53,119 +62,31 @@ def anova_result() -> Result:
                 "outliers": 0,
             }
         )
-    return Result(
-        outcome="weight",
-        exposure="group",
-        design="multi_group_continuous",
-        test="one_way_anova",
-        statistic_name="F",
-        statistic=4.846087862380137,
-        df=[2.0, 27.0],
-        p_value=0.015909958325622912,
+    return plantgrowth_anova(  # effect CI: illustrative input (invented)
         p_adjusted=0.031819916651245824,
-        p_method="asymptotic",
-        n=30,
-        effect=Effect("eta-squared", 0.2641, 0.03, 0.47),  # CI: illustrative input (invented)
         groups=groups,
         reasons=["every group looks roughly normal", "spreads look similar"],
-        shape={
-            "spread_equality": {
-                "test": "Brown-Forsythe",
-                "statistic": 1.1191856948703909,
-                "p_value": 0.3412266241254738,
-            }
-        },  # R 4.2.2 r_cases.json brown_forsythe_median
-        followups=[
-            Followup(
-                "tukey_hsd",
-                ("trt2", "trt1"),  # R 4.2.2: TukeyHSD(aov(weight ~ group))
-                Estimate(
-                    "difference in means (trt2 - trt1)",
-                    0.8650000000000002,
-                    0.17378394858954183,
-                    1.5562160514104586,
-                ),
-                None,
-                0.01200642397945273,
-                flagged=True,
-            )
-        ],
+        followups=[tukey_trt2_vs_trt1()],  # R 4.2.2: TukeyHSD(aov(weight ~ group))
     )
 
 
 def welch_result() -> Result:
     """R 4.2.2: t.test(extra ~ group, data = sleep, var.equal = FALSE)."""
-    return Result(
-        outcome="extra",
-        exposure="group",
-        design="two_group_continuous",
-        test="welch_t",
-        statistic_name="t",
-        statistic=-1.860813467486853,
-        df=17.7764735161785,
-        p_value=0.07939414018735817,
+    return sleep_welch_t(
         p_adjusted=0.07939414018735817,
-        p_method="asymptotic",
-        n=20,
         n_excluded=0,
-        estimate=Estimate(
-            "difference in means (1 - 2)", -1.58, -3.3654832307117104, 0.20548323071171018
-        ),
-        groups=[{"label": "1", "n": 10, "mean": 0.75}, {"label": "2", "n": 10, "mean": 2.33}],
+        estimate=sleep_mean_difference(-1.58),
     )
 
 
 def crosstab_result() -> Result:
     """R 4.2.2: chisq.test(table(mtcars$cyl, mtcars$gear), correct = FALSE) with R's expected counts."""
-    return Result(
-        outcome="cyl",
-        exposure="gear",
-        design="two_categorical",
-        test="chi_square_independence",
-        statistic_name="X-squared",
-        statistic=18.036363636363635,
-        df=4.0,
-        p_value=0.0012140660337851576,
-        p_method="asymptotic",
-        n=32,
-        effect=Effect("Cramer's V", 0.5308655025693249),
-        shape={
-            "expected": [
-                [5.15625, 4.125, 1.71875],
-                [3.28125, 2.625, 1.09375],
-                [6.5625, 5.25, 2.1875],
-            ],
-            "min_expected": 1.09375,
-        },
-        extra={
-            "observed": {
-                "values": [[1, 8, 2], [2, 4, 1], [12, 0, 2]],
-                "row_labels": ["4", "6", "8"],
-                "col_labels": ["3", "4", "5"],
-            }
-        },
-    )
+    return mtcars_cyl_by_gear(p_method="asymptotic")
 
 
 def gof_result() -> Result:
     """R 4.2.2: chisq.test(table(mtcars$cyl), p = c(0.25, 0.25, 0.5))."""
-    return Result(
-        outcome="cyl",
-        exposure=None,
-        design="one_sample_categorical",
-        test="chi_square_goodness_of_fit",
-        statistic_name="X-squared",
-        statistic=1.5,
-        df=2.0,
-        p_value=0.4723665527410147,
-        n=32,
-        against={"4": 0.25, "6": 0.25, "8": 0.5},
-        groups=[
-            {"label": "4", "count": 11, "share": 11 / 32},
-            {"label": "6", "count": 7, "share": 7 / 32},
-            {"label": "8", "count": 14, "share": 14 / 32},
-        ],
-    )
+    return mtcars_cyl_shares(statistic_name="X-squared")
 
 
 def context(**changes) -> ReportContext:
@@ -294,14 +215,7 @@ def test_results_rows_link_to_their_shape_blocks() -> None:
 
 def test_skipped_result_row_says_why() -> None:
     """A skipped analysis still gets a row, with the reason and no numbers."""
-    skipped = Result(
-        outcome="Wait",
-        exposure="District",
-        design="two_group_continuous",
-        test="welch_t",
-        n=3,
-        skipped="South has only one record.",
-    )
+    skipped = skipped_wait_by_district("South has only one record.", n=3)
     model = report.results_sheet([skipped], context())
     row = header_row(model) + 1
     assert (

@@ -18,6 +18,13 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from result_builders import (
+    cyl_groups,
+    cyl_share_of_4,
+    mtcars_am_by_vs,
+    mtcars_cyl_by_gear,
+    mtcars_cyl_shares,
+)
 from statmargin import explain, report, share
 from statmargin.errors import OptionError
 from statmargin.report import ReportContext
@@ -89,74 +96,17 @@ def small_group_samples() -> dict[str, list[float]]:
 
 def mtcars_crosstab() -> Result:
     """R 4.2.2: table(mtcars$cyl, mtcars$gear) has cells 1, 2, 2, 1, 0 and 2 (r_cases.json mtcars_cyl_by_gear)."""
-    return Result(
-        outcome="cyl",
-        exposure="gear",
-        design="two_categorical",
-        test="chi_square_independence",
-        statistic_name="X-squared",
-        statistic=18.036363636363635,
-        df=4.0,
-        p_value=0.0012140660337851576,
-        n=32,
-        effect=Effect("Cramer's V", 0.5308655025693249),
-        shape={
-            "expected": [
-                [5.15625, 4.125, 1.71875],
-                [3.28125, 2.625, 1.09375],
-                [6.5625, 5.25, 2.1875],
-            ],
-            "min_expected": 1.09375,
-        },
-        extra={
-            "observed": {
-                "values": [[1, 8, 2], [2, 4, 1], [12, 0, 2]],
-                "row_labels": ["4", "6", "8"],
-                "col_labels": ["3", "4", "5"],
-            }
-        },
-        groups=[
-            {"label": "4", "count": 11, "share": 11 / 32},
-            {"label": "6", "count": 7, "share": 7 / 32},
-            {"label": "8", "count": 14, "share": 14 / 32},
-        ],
-    )
+    return mtcars_cyl_by_gear(groups=cyl_groups())
 
 
 def mtcars_two_by_two() -> Result:
     """R 4.2.2: fisher.test(table(mtcars$am, mtcars$vs)); cells 12, 7, 6, 7 (r_cases.json mtcars_am_by_vs)."""
-    return Result(
-        outcome="vs",
-        exposure="am",
-        design="two_categorical",
-        test="fisher_exact",
-        p_value=0.4726974416017796,
-        n=32,
-        estimate=Estimate("difference in proportions (0 - 1)", 12 / 19 - 6 / 13, -0.18, 0.50),
-        effect=Effect("odds ratio", 1.9560553993728882, 0.3825341798446402, 10.591608672988254),
-        extra={"observed": [[12, 7], [6, 7]], "row_labels": ["0", "1"], "col_labels": ["0", "1"]},
-    )
+    return mtcars_am_by_vs()
 
 
 def gof_result() -> Result:
     """R datasets: table(mtcars$cyl) = 11, 7, 14 against shares 0.25, 0.25, 0.5."""
-    return Result(
-        outcome="cyl",
-        exposure=None,
-        design="one_sample_categorical",
-        test="chi_square_goodness_of_fit",
-        statistic=1.5,
-        df=2.0,
-        p_value=0.4723665527410147,
-        n=32,
-        against={"4": 0.25, "6": 0.25, "8": 0.5},
-        estimate=Estimate("share of 4", 11 / 32, 0.2, 0.52),
-        groups=[
-            {"label": "4", "count": 11, "share": 11 / 32},
-            {"label": "6", "count": 7, "share": 7 / 32},
-            {"label": "8", "count": 14, "share": 14 / 32},
-        ],
-    )
+    return mtcars_cyl_shares(estimate=cyl_share_of_4())
 
 
 def shared_run(

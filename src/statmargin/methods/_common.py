@@ -43,6 +43,19 @@ def check_options(alternative: str, confidence: float) -> None:
         )
 
 
+def check_confidence(confidence: float) -> float:
+    """The confidence level as a float; refuse one outside (0, 1) in one line.
+
+    Raises
+    ------
+    OptionError
+        When the level is not strictly between 0 and 1.
+    """
+    if not (0.0 < float(confidence) < 1.0):
+        raise OptionError(f"Confidence level {confidence} is not between 0 and 1; use e.g. 0.95.")
+    return float(confidence)
+
+
 def clean(values: Any, what: str = "the outcome") -> tuple[np.ndarray, int]:
     """Return the finite values as a float array and how many were dropped.
 
@@ -179,6 +192,35 @@ def z_quantiles(alternative: str, confidence: float) -> tuple[float | None, floa
         return q, -q
     q = float(stats.norm.ppf(confidence))
     return (q, None) if alternative == "greater" else (None, -q)
+
+
+def check_exact(exact: bool | str) -> None:
+    """Refuse an ``exact`` choice other than ``"auto"``, True or False."""
+    if exact not in ("auto", True, False):
+        raise OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
+
+
+def normal_approximation(correct: bool) -> tuple[str, str]:
+    """``p_method`` and the plain note for a rank test's normal approximation.
+
+    Returns
+    -------
+    str, str
+        The p-method name (with or without continuity correction) and the note
+        for ``Result.notes``.
+    """
+    p_method = "normal_approximation_continuity" if correct else "normal_approximation"
+    note = "The p-value uses the normal approximation with the tie correction" + (
+        " and a continuity correction." if correct else " (no continuity correction)."
+    )
+    return p_method, note
+
+
+def continuity_correction(centred: float, alternative: str, correct: bool) -> float:
+    """Half a unit towards the null for a centred rank statistic, as R's ``wilcox.test``."""
+    if not correct:
+        return 0.0
+    return {"two-sided": float(np.sign(centred)) * 0.5, "greater": 0.5, "less": -0.5}[alternative]
 
 
 def has_ties(values: np.ndarray) -> bool:

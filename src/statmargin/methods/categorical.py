@@ -17,7 +17,7 @@ from scipy import optimize, stats
 from scipy.stats import contingency
 
 from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.methods._common import caveat
+from statmargin.methods._common import caveat, check_confidence
 from statmargin.results import Effect, Estimate, Result
 from statmargin.roles import Alternative, Settings
 
@@ -48,12 +48,6 @@ def _alternative(alternative: Alternative | str) -> str:
     return value
 
 
-def _check_confidence(confidence: float) -> float:
-    if not (0.0 < float(confidence) < 1.0):
-        raise OptionError(f"Confidence level {confidence} is not between 0 and 1; use e.g. 0.95.")
-    return float(confidence)
-
-
 def _z(confidence: float, alternative: str) -> float:
     """Normal quantile for a two-sided or one-sided interval at this level."""
     if alternative == "two-sided":
@@ -72,6 +66,35 @@ def _check_resamples(resamples: int) -> int:
 def _mc_se(p: float, resamples: int) -> float:
     """Monte Carlo standard error of a simulated p-value (binomial sampling error)."""
     return math.sqrt(p * (1.0 - p) / resamples)
+
+
+def _monte_carlo_p(simulated: np.ndarray, observed: float, resamples: int) -> tuple[float, float]:
+    """Simulated p-value and its Monte Carlo standard error.
+
+    Notes
+    -----
+    p = (1 + #{X2_sim >= X2}) / (B + 1), counting with R's tolerance
+    (``_ALMOST_ONE``) as ``chisq.test(simulate.p.value = TRUE)`` does.
+    """
+    p_value = (1 + int((simulated >= _ALMOST_ONE * observed).sum())) / (resamples + 1)
+    return p_value, _mc_se(p_value, resamples)
+
+
+def _monte_carlo_sentence(
+    n_small: int, n_counts: int, small: bool, resamples: int, se: float, simulated: str = ""
+) -> str:
+    """The note saying the p-value was simulated, and why when expected counts are small."""
+    reason = (
+        f"{n_small} of {n_counts} expected counts are below 5, so the chi-square "
+        "approximation may be poor; "
+        if small
+        else ""
+    )
+    sentence = (
+        f"{reason}the p-value comes from {resamples} Monte Carlo resamples{simulated} "
+        f"(Monte Carlo standard error {se:.2g})."
+    )
+    return sentence[0].upper() + sentence[1:]
 
 
 # --------------------------------------------------------------------------- intervals
@@ -504,7 +527,7 @@ def chi_square_goodness_of_fit(
     >>> math.isclose(result.p_value, stats.chisquare(list(counts.values()), f_exp=expected).pvalue)
     True
     """
-    confidence = _check_confidence(confidence)
+    confidence = check_confidence(confidence)
     labels = [str(k) for k in shares]
     missing = [str(k) for k in counts if str(k) not in labels]
     if missing:
@@ -549,21 +572,13 @@ def chi_square_goodness_of_fit(
         rng = np.random.default_rng(seed)
         sims = rng.multinomial(n, expected_share, size=monte_carlo_resamples)
         sim_x2 = _pearson_x2(sims.astype(float), expected)
-        p_value = (1 + int((sim_x2 >= _ALMOST_ONE * x2).sum())) / (monte_carlo_resamples + 1)
-        se = _mc_se(p_value, monte_carlo_resamples)
+        p_value, se = _monte_carlo_p(sim_x2, x2, monte_carlo_resamples)
         p_method = "monte_carlo"
         extra.update(monte_carlo_resamples=monte_carlo_resamples, monte_carlo_se=se, seed=seed)
-        reason = (
-            f"{n_small} of {len(labels)} expected counts are below 5, so the chi-square "
-            "approximation may be poor; "
-            if n_small
-            else ""
+        caveat(
+            notes,
+            _monte_carlo_sentence(n_small, len(labels), n_small > 0, monte_carlo_resamples, se),
         )
-        sentence = (
-            f"{reason}the p-value comes from {monte_carlo_resamples} Monte Carlo resamples "
-            f"(Monte Carlo standard error {se:.2g})."
-        )
-        caveat(notes, sentence[0].upper() + sentence[1:])
     else:
         p_value = float(stats.chi2.sf(x2, df))
         p_method = "asymptotic"
@@ -695,7 +710,7 @@ def binomial_exact(
     >>> math.isclose(result.p_value, stats.binomtest(682, 925, p=0.75).pvalue)
     True
     """
-    confidence = _check_confidence(confidence)
+    confidence = check_confidence(confidence)
     alt = _alternative(alternative)
     n = _as_count(n, "The number of observations")
     successes = _as_count(successes, f"The count of '{label}'")
@@ -842,7 +857,7 @@ def chi_square_independence(
     >>> math.isclose(result.p_value, stats.chi2_contingency(table, correction=False).pvalue)
     True
     """
-    confidence = _check_confidence(confidence)
+    confidence = check_confidence(confidence)
     counts = _count_table(table, row_labels, col_labels)
     n = int(counts.sum())
     nrow, ncol = counts.shape
@@ -876,21 +891,15 @@ def chi_square_independence(
             size=resamples
         )
         sim_x2 = _pearson_x2(sims.astype(float), expected)
-        p_value = (1 + int((sim_x2 >= _ALMOST_ONE * x2).sum())) / (resamples + 1)
-        se = _mc_se(p_value, resamples)
+        p_value, se = _monte_carlo_p(sim_x2, x2, resamples)
         p_method = "monte_carlo"
         extra.update(monte_carlo_resamples=resamples, monte_carlo_se=se, seed=seed)
-        reason = (
-            f"{n_small} of {n_cells} expected counts are below 5, so the chi-square "
-            "approximation may be poor; "
-            if small
-            else ""
+        caveat(
+            notes,
+            _monte_carlo_sentence(
+                n_small, n_cells, small, resamples, se, " of tables with the same row and column totals"
+            ),
         )
-        sentence = (
-            f"{reason}the p-value comes from {resamples} Monte Carlo resamples of tables "
-            f"with the same row and column totals (Monte Carlo standard error {se:.2g})."
-        )
-        caveat(notes, sentence[0].upper() + sentence[1:])
     else:
         p_value = float(stats.chi2.sf(x2, df))
         p_method = (
@@ -1024,7 +1033,7 @@ def fisher_exact(
     >>> math.isclose(result.p_value, stats.fisher_exact(table, alternative="greater").pvalue)
     True
     """
-    confidence = _check_confidence(confidence)
+    confidence = check_confidence(confidence)
     alt = _alternative(alternative)
     counts = _count_table(table2x2, row_labels, col_labels)
     if counts.shape != (2, 2):
@@ -1034,6 +1043,7 @@ def fisher_exact(
     p_value = float(stats.fisher_exact(counts, alternative=alt).pvalue)
     odds = contingency.odds_ratio(counts, kind="conditional")
     ci = odds.confidence_interval(confidence_level=confidence, alternative=alt)
+    expected = _expected_counts(counts)
     return Result(
         outcome="",
         exposure=None,
@@ -1062,8 +1072,8 @@ def fisher_exact(
         groups=_row_groups(counts, row_labels, col_labels),
         extra={
             "observed": _labelled(counts, row_labels, col_labels),
-            "expected": _labelled(_expected_counts(counts), row_labels, col_labels),
-            "min_expected": float(_expected_counts(counts).min()),
+            "expected": _labelled(expected, row_labels, col_labels),
+            "min_expected": float(expected.min()),
         },
     )
 
@@ -1142,7 +1152,7 @@ def mcnemar(
     >>> math.isclose(result.p_value, stats.binomtest(9, 11, p=0.5).pvalue)
     True
     """
-    confidence = _check_confidence(confidence)
+    confidence = check_confidence(confidence)
     alt = _alternative(alternative)
     if len(labels) != 2:
         raise OptionError("McNemar's test needs exactly two levels; give two labels.")

@@ -39,6 +39,13 @@ def _t_of_r(r: float, df: int) -> float:
     return r * math.sqrt(df / (1.0 - r * r))
 
 
+def _p_of_t(t: float, df: int, alternative: str) -> float:
+    """P-value of t on ``df``; a perfect correlation (infinite t) gives 0, or 1 against its direction."""
+    if math.isinf(t):
+        return 0.0 if alternative == "two-sided" or (t > 0) == (alternative == "greater") else 1.0
+    return common.p_from_t(t, df, alternative)
+
+
 def _summaries(a: np.ndarray, b: np.ndarray, labels: tuple[str, str]) -> list[dict]:
     return [common.describe(labels[0], a), common.describe(labels[1], b)]
 
@@ -110,9 +117,6 @@ def pearson_r(
     low, high = _fisher_interval(r, n, alternative, confidence, notes)
     if abs(r) == 1.0:
         notes.append("The points lie exactly on a straight line; the correlation is perfect.")
-    p_value = 0.0 if math.isinf(t) else common.p_from_t(t, df, alternative)
-    if math.isinf(t) and alternative != "two-sided" and (t > 0) != (alternative == "greater"):
-        p_value = 1.0
     return Result(
         outcome="",
         exposure=None,
@@ -121,7 +125,7 @@ def pearson_r(
         statistic_name="t",
         statistic=t,
         df=float(df),
-        p_value=p_value,
+        p_value=_p_of_t(t, df, alternative),
         p_method="asymptotic",
         alternative=alternative,
         confidence=confidence,
@@ -201,12 +205,7 @@ def spearman_rho(
     total = (n**3 - n) / 6.0
     s = total * (1.0 - rho)
     df = n - 2
-
     t = _t_of_r(rho, df)
-    if math.isinf(t):
-        p_value = 0.0 if alternative == "two-sided" or (t > 0) == (alternative == "greater") else 1.0
-    else:
-        p_value = common.p_from_t(t, df, alternative)
     notes: list[str] = []
     se = math.sqrt((1.0 + rho * rho / 2.0) / (n - 3)) if n >= 4 else None
     low, high = _fisher_interval(rho, n, alternative, confidence, notes, se)
@@ -218,7 +217,7 @@ def spearman_rho(
         statistic_name="S",
         statistic=s,
         df=None,
-        p_value=p_value,
+        p_value=_p_of_t(t, df, alternative),
         p_method="asymptotic",
         alternative=alternative,
         confidence=confidence,

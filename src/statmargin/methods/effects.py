@@ -197,16 +197,21 @@ def fisher_z_interval(
 
     Notes
     -----
-    One-sided questions give a one-sided interval (open side +/-1).
+    One-sided questions give a one-sided interval (open side +/-1). A perfect
+    value (|r| = 1) stays inside its own interval: the held-in transform alone
+    would put the near bound a rounding step short of it.
     """
     z = math.atanh(max(-edge, min(edge, r)))
     if alternative == "two-sided":
         q = float(stats.norm.ppf(1.0 - (1.0 - confidence) / 2.0))
-        return math.tanh(z - q * standard_error), math.tanh(z + q * standard_error)
-    q = float(stats.norm.ppf(confidence))
-    if alternative == "greater":
-        return math.tanh(z - q * standard_error), 1.0
-    return -1.0, math.tanh(z + q * standard_error)
+        low, high = math.tanh(z - q * standard_error), math.tanh(z + q * standard_error)
+    else:
+        q = float(stats.norm.ppf(confidence))
+        if alternative == "greater":
+            low, high = math.tanh(z - q * standard_error), 1.0
+        else:
+            low, high = -1.0, math.tanh(z + q * standard_error)
+    return min(low, r), max(high, r)
 
 
 def rank_biserial_signed(

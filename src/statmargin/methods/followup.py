@@ -16,8 +16,14 @@ import numpy as np
 from scipy import stats
 
 from statmargin.adjust import adjust_p
-from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.methods._common import accurate_mean, clean, sum_of_squares
+from statmargin.errors import NotEnoughDataError
+from statmargin.methods._common import (
+    accurate_mean,
+    check_confidence,
+    clean,
+    sum_of_squares,
+    tie_counts,
+)
 from statmargin.methods.categorical import _count_table
 from statmargin.results import Estimate, Followup
 from statmargin.roles import AdjustMethod
@@ -53,14 +59,59 @@ def _pairs(
             yield items[j], items[i]
 
 
-def _check_confidence(confidence: float) -> float:
-    if not (0.0 < float(confidence) < 1.0):
-        raise OptionError(f"Confidence level {confidence} is not between 0 and 1; use e.g. 0.95.")
-    return float(confidence)
+def _pair_name(quantity: str, a: str, b: str) -> str:
+    """Name of a pairwise estimate, later level minus earlier one."""
+    return f"{quantity} ('{a}' - '{b}')"
 
 
-def _mean_difference_name(a: str, b: str) -> str:
-    return f"difference in means ('{a}' - '{b}')"
+def _interval_followup(
+    test: str,
+    a: str,
+    b: str,
+    diff: float,
+    half_width: float,
+    p_adj: float,
+    statistic: float,
+    alpha: float,
+) -> Followup:
+    """A difference in means with its simultaneous interval and family-wise p (no unadjusted p)."""
+    return Followup(
+        test=test,
+        levels=(a, b),
+        estimate=Estimate(
+            name=_pair_name("difference in means", a, b),
+            value=diff,
+            ci_low=diff - half_width,
+            ci_high=diff + half_width,
+        ),
+        p_value=None,
+        p_adjusted=p_adj,
+        statistic=statistic,
+        flagged=p_adj < alpha,
+    )
+
+
+def _adjusted_followups(
+    test: str,
+    quantity: str,
+    rows: list[tuple[str, str, float, float, float | None]],
+    adjust: AdjustMethod | str,
+    alpha: float,
+) -> list[Followup]:
+    """Followups from (later, earlier, estimate, statistic, p) rows, p adjusted over the rows."""
+    adjusted = adjust_p([r[4] for r in rows], adjust)
+    return [
+        Followup(
+            test=test,
+            levels=(a, b),
+            estimate=Estimate(name=_pair_name(quantity, a, b), value=value),
+            p_value=p,
+            p_adjusted=p_adj,
+            statistic=statistic,
+            flagged=p_adj is not None and p_adj < alpha,
+        )
+        for (a, b, value, statistic, p), p_adj in zip(rows, adjusted, strict=True)
+    ]
 
 
 def tukey_hsd(
@@ -129,7 +180,7 @@ def tukey_hsd(
     >>> math.isclose(pairs[0].estimate.ci_low, check.confidence_interval().low[1, 0])
     True
     """
-    confidence = _check_confidence(confidence)
+    confidence = check_confidence(confidence)
     items = _clean_groups(groups)
     k = len(items)
     n_total = sum(v.size for _, v in items)
@@ -147,22 +198,7 @@ def tukey_hsd(
         se = math.sqrt(mse / 2.0 * (1.0 / xa.size + 1.0 / xb.size))
         q = abs(diff) / se
         p_adj = float(np.clip(stats.studentized_range.sf(q, k, df), 0.0, 1.0))
-        out.append(
-            Followup(
-                test="tukey_hsd",
-                levels=(a, b),
-                estimate=Estimate(
-                    name=_mean_difference_name(a, b),
-                    value=diff,
-                    ci_low=diff - q_crit * se,
-                    ci_high=diff + q_crit * se,
-                ),
-                p_value=None,
-                p_adjusted=p_adj,
-                statistic=q,
-                flagged=p_adj < alpha,
-            )
-        )
+        out.append(_interval_followup("tukey_hsd", a, b, diff, q_crit * se, p_adj, q, alpha))
     return out
 
 
@@ -224,7 +260,7 @@ def games_howell(
     >>> math.isclose(games_howell(two)[0].p_adjusted, welch_p)
     True
     """
-    confidence = _check_confidence(confidence)
+    confidence = check_confidence(confidence)
     items = _clean_groups(groups)
     k = len(items)
     summary = {}
@@ -246,22 +282,7 @@ def games_howell(
         t = diff / se
         p_adj = float(np.clip(stats.studentized_range.sf(abs(t) * math.sqrt(2.0), k, df), 0.0, 1.0))
         half = float(stats.studentized_range.ppf(confidence, k, df)) / math.sqrt(2.0) * se
-        out.append(
-            Followup(
-                test="games_howell",
-                levels=(a, b),
-                estimate=Estimate(
-                    name=_mean_difference_name(a, b),
-                    value=diff,
-                    ci_low=diff - half,
-                    ci_high=diff + half,
-                ),
-                p_value=None,
-                p_adjusted=p_adj,
-                statistic=t,
-                flagged=p_adj < alpha,
-            )
-        )
+        out.append(_interval_followup("games_howell", a, b, diff, half, p_adj, t, alpha))
     return out
 
 
@@ -331,8 +352,8 @@ def dunn(
     pooled = np.concatenate([v for _, v in items])
     ranks = stats.rankdata(pooled)
     n_total = pooled.size
-    _, ties = np.unique(pooled, return_counts=True)
-    tie_term = float(np.sum(ties.astype(float) ** 3 - ties)) / (12.0 * (n_total - 1))
+    ties = tie_counts(pooled)
+    tie_term = float(np.sum(ties**3 - ties)) / (12.0 * (n_total - 1))
     variance = n_total * (n_total + 1) / 12.0 - tie_term
     if variance <= 0.0:
         raise NotEnoughDataError(
@@ -348,19 +369,7 @@ def dunn(
         diff = mean_rank[a] - mean_rank[b]
         z = diff / math.sqrt(variance * (1.0 / size[a] + 1.0 / size[b]))
         rows.append((a, b, diff, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
-    adjusted = adjust_p([r[4] for r in rows], adjust)
-    return [
-        Followup(
-            test="dunn",
-            levels=(a, b),
-            estimate=Estimate(name=f"difference in mean ranks ('{a}' - '{b}')", value=diff),
-            p_value=p,
-            p_adjusted=p_adj,
-            statistic=z,
-            flagged=p_adj is not None and p_adj < alpha,
-        )
-        for (a, b, diff, z, p), p_adj in zip(rows, adjusted, strict=True)
-    ]
+    return _adjusted_followups("dunn", "difference in mean ranks", rows, adjust, alpha)
 
 
 def pairwise_mann_whitney(
@@ -433,19 +442,7 @@ def pairwise_mann_whitney(
         shift = float(np.median(np.subtract.outer(xa, xb)))
         p = float(test.pvalue)
         rows.append((a, b, shift, float(test.statistic), p if math.isfinite(p) else None))
-    adjusted = adjust_p([r[4] for r in rows], adjust)
-    return [
-        Followup(
-            test="pairwise_mann_whitney",
-            levels=(a, b),
-            estimate=Estimate(name=f"Hodges-Lehmann shift ('{a}' - '{b}')", value=shift),
-            p_value=p,
-            p_adjusted=p_adj,
-            statistic=u,
-            flagged=p_adj is not None and p_adj < alpha,
-        )
-        for (a, b, shift, u, p), p_adj in zip(rows, adjusted, strict=True)
-    ]
+    return _adjusted_followups("pairwise_mann_whitney", "Hodges-Lehmann shift", rows, adjust, alpha)
 
 
 def adjusted_residuals(

@@ -98,6 +98,27 @@ def sums_of_squares(groups: Mapping[str, np.ndarray]) -> tuple[float, float, lis
     return between, within, means
 
 
+def _share_of_variance(
+    between: float, within: float, k: int, n_total: int, confidence: float
+) -> tuple[Effect, dict[str, Any]]:
+    """Eta-squared with the noncentral-F interval of the classic F, and omega-squared for ``extra``.
+
+    Notes
+    -----
+    Both ANOVAs report this same descriptive share of variation, computed from the
+    classic sums of squares (Welch's weighting does not enter it).
+    """
+    df1, df2 = k - 1, n_total - k
+    classic_f = (between / df1) / (within / df2)
+    low, high = effects.variance_share_interval(classic_f, df1, df2, n_total, confidence)
+    effect = Effect("eta-squared", effects.eta_squared(between, between + within), low, high)
+    omega = {
+        "omega_squared": effects.omega_squared(between, within, k, n_total),
+        "omega_squared_ci": [low, high],
+    }
+    return effect, omega
+
+
 def _largest_gap(summaries: list[dict[str, Any]], key: str, what: str) -> Estimate:
     """Largest difference between group ``key`` values (highest minus lowest), no interval.
 
@@ -179,9 +200,7 @@ def one_way_anova(
         )
     ms_between, ms_within = between / df1, within / df2
     f = ms_between / ms_within
-    share_low, share_high = effects.variance_share_interval(f, df1, df2, n_total, confidence)
-    eta = effects.eta_squared(between, between + within)
-    omega = effects.omega_squared(between, within, k, n_total)
+    effect, omega = _share_of_variance(between, within, k, n_total, confidence)
     summaries = [common.describe(label, values) for label, values in cleaned.items()]
     return Result(
         outcome="",
@@ -198,12 +217,11 @@ def one_way_anova(
         n=int(n_total),
         n_excluded=dropped,
         estimate=_largest_gap(summaries, "mean", "means"),
-        effect=Effect("eta-squared", eta, share_low, share_high),
+        effect=effect,
         groups=summaries,
         notes=notes,
         extra={
-            "omega_squared": omega,
-            "omega_squared_ci": [share_low, share_high],
+            **omega,
             "ss_between": between,
             "ss_within": within,
             "ms_between": ms_between,
@@ -280,8 +298,7 @@ def welch_anova(
     df1, df2 = float(k - 1), 1.0 / (3.0 * tmp)
     between, within, _ = sums_of_squares(cleaned)
     n_total = int(n.sum())
-    classic_f = (between / (k - 1)) / (within / (n_total - k))
-    share_low, share_high = effects.variance_share_interval(classic_f, k - 1, n_total - k, n_total, confidence)
+    effect, omega = _share_of_variance(between, within, k, n_total, confidence)
     notes.append(
         "The effect size and its interval come from the classic sums of squares; they describe the share of "
         "variation between groups and do not use Welch's weighting."
@@ -301,13 +318,10 @@ def welch_anova(
         n=n_total,
         n_excluded=dropped,
         estimate=_largest_gap(summaries, "mean", "means"),
-        effect=Effect("eta-squared", effects.eta_squared(between, between + within), share_low, share_high),
+        effect=effect,
         groups=summaries,
         notes=notes,
-        extra={
-            "omega_squared": effects.omega_squared(between, within, k, n_total),
-            "omega_squared_ci": [share_low, share_high],
-        },
+        extra=omega,
     )
 
 
@@ -350,19 +364,27 @@ def kruskal_wallis_h(groups: list[np.ndarray]) -> float:
     True
     """
     values = np.concatenate(groups)
-    n = values.size
-    ranks = stats.rankdata(values)
-    rank_term = 0.0
-    start = 0
-    for group in groups:
-        rank_sum = ranks[start : start + group.size].sum()
-        rank_term += rank_sum * rank_sum / group.size
-        start += group.size
     ties = common.tie_counts(values)
-    denominator = 1.0 - float(np.sum(ties**3 - ties)) / (n**3 - n)
-    if denominator <= 0.0:
-        return 0.0
-    return float((12.0 * rank_term / (n * (n + 1)) - 3.0 * (n + 1)) / denominator)
+    rank_term = _rank_term(stats.rankdata(values), [group.size for group in groups])
+    return float(_tie_corrected_h(rank_term, float(np.sum(ties**3 - ties)), values.size))
+
+
+def _rank_term(ranks: np.ndarray, sizes: list[int]) -> np.ndarray:
+    """Sum over groups of (rank sum)^2 / n_i; groups lie side by side along the last axis."""
+    rank_term = np.zeros(ranks.shape[:-1])
+    start = 0
+    for size in sizes:
+        rank_sum = ranks[..., start : start + size].sum(axis=-1)
+        rank_term += rank_sum * rank_sum / size
+        start += size
+    return rank_term
+
+
+def _tie_corrected_h(rank_term: np.ndarray, tie_sum: np.ndarray | float, n: int) -> np.ndarray:
+    """H from the rank term and sum(t^3 - t) of the tied sets; 0 where every value is tied."""
+    denominator = 1.0 - tie_sum / (n**3 - n)
+    raw = 12.0 * rank_term / (n * (n + 1)) - 3.0 * (n + 1)
+    return np.divide(raw, denominator, out=np.zeros_like(raw), where=denominator > 0)
 
 
 def kruskal_wallis(
@@ -464,18 +486,9 @@ def _epsilon_bootstrap(arrays: list[np.ndarray], n_total: int, confidence: float
     resampled = np.concatenate(
         [group[rng.integers(0, group.size, (BOOTSTRAP_RESAMPLES, group.size))] for group in arrays], axis=1
     )
-    ranks = stats.rankdata(resampled, axis=1)
-    rank_term = np.zeros(BOOTSTRAP_RESAMPLES)
-    start = 0
-    for group in arrays:
-        rank_sum = ranks[:, start : start + group.size].sum(axis=1)
-        rank_term += rank_sum * rank_sum / group.size
-        start += group.size
+    rank_term = _rank_term(stats.rankdata(resampled, axis=1), [group.size for group in arrays])
     tie_sums = np.array([float(np.sum(t**3 - t)) for t in map(common.tie_counts, resampled)])
-    denominator = 1.0 - tie_sums / (n_total**3 - n_total)
-    raw = 12.0 * rank_term / (n_total * (n_total + 1)) - 3.0 * (n_total + 1)
-    h = np.divide(raw, denominator, out=np.zeros_like(raw), where=denominator > 0)
-    draws = h / (n_total - 1.0)
+    draws = _tie_corrected_h(rank_term, tie_sums, n_total) / (n_total - 1.0)
     tail = (1.0 - confidence) / 2.0
     low, high = np.quantile(draws, [tail, 1.0 - tail])
     return float(low), float(high)

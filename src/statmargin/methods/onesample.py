@@ -7,15 +7,77 @@ here and is reused by ``paired`` on the pairwise differences.
 from __future__ import annotations
 
 import math
+from typing import Any, NamedTuple
 
 import numpy as np
 from scipy import optimize, stats
 
 from statmargin.methods import _common as common
 from statmargin.methods import effects
-from statmargin.results import Estimate, Result
+from statmargin.results import Effect, Estimate, Result
 
 EXACT_LIMIT = 50  # exact null distribution below this many non-zero differences (R's rule)
+
+
+class MeanT(NamedTuple):
+    """The numbers of a one-sample t-test of a mean against a fixed value."""
+
+    summary: dict[str, Any]  # label, n, mean, sd, median of the values tested
+    difference: float  # mean - mu
+    t: float
+    df: int
+    ci_low: float
+    ci_high: float
+    effect: Effect
+
+
+def mean_t(
+    values: np.ndarray, mu: float, label: str, effect_name: str, alternative: str, confidence: float
+) -> MeanT:
+    """One-sample t of ``values`` against ``mu``, shared by the one-sample and paired t-tests.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        Finite values (or paired differences) with some spread, at least two.
+    mu : float
+        The fixed value.
+    label : str
+        Label of the summary of ``values``.
+    effect_name : str
+        Name of the standardized effect (Hedges' g, or g_z for differences).
+    alternative, confidence
+        Sidedness and level of the intervals.
+
+    Returns
+    -------
+    MeanT
+        Summary, mean - mu with its t interval, t on n - 1 df and the standardized
+        effect J(n-1) (mean - mu) / sd with its noncentral-t interval.
+
+    Examples
+    --------
+    Extra hours of sleep under drug 1 in R's ``sleep`` data (datasets::sleep), as
+    ``t.test(extra[group == 1], mu = 0)``:
+
+    >>> import math
+    >>> from scipy import stats
+    >>> extra = np.array([0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0])
+    >>> tested = mean_t(extra, 0.0, "drug 1", "Hedges' g", "two-sided", 0.95)
+    >>> round(tested.t, 4), tested.df, round(tested.ci_low, 4), round(tested.ci_high, 4)
+    (1.3257, 9, -0.5298, 2.0298)
+    >>> math.isclose(tested.t, stats.ttest_1samp(extra, 0.0).statistic)
+    True
+    """
+    summary = common.describe(label, values)
+    n = values.size
+    se = summary["sd"] / math.sqrt(n)
+    difference = summary["mean"] - mu
+    t = difference / se
+    df = n - 1
+    low, high = common.t_interval(difference, se, df, alternative, confidence)
+    effect = effects.standardized_effect(effect_name, t, df, 1.0 / math.sqrt(n), alternative, confidence)
+    return MeanT(summary, difference, t, df, low, high, effect)
 
 
 def one_sample_t(
@@ -74,31 +136,26 @@ def one_sample_t(
     values, dropped = common.clean(x)
     common.require_count(values, 2, "the outcome")
     common.require_spread(values, "the outcome")
-    summary = common.describe("all", values)
-    n = values.size
-    se = summary["sd"] / math.sqrt(n)
-    difference = summary["mean"] - mu
-    t = difference / se
-    df = n - 1
-    low, high = common.t_interval(difference, se, df, alternative, confidence)
-    effect = effects.standardized_effect("Hedges' g", t, df, 1.0 / math.sqrt(n), alternative, confidence)
+    tested = mean_t(values, mu, "all", "Hedges' g", alternative, confidence)
     return Result(
         outcome="",
         exposure=None,
         design="one_sample_continuous",
         test="one_sample_t",
         statistic_name="t",
-        statistic=t,
-        df=float(df),
-        p_value=common.p_from_t(t, df, alternative),
+        statistic=tested.t,
+        df=float(tested.df),
+        p_value=common.p_from_t(tested.t, tested.df, alternative),
         p_method="asymptotic",
         alternative=alternative,
         confidence=confidence,
-        n=int(n),
+        n=int(values.size),
         n_excluded=dropped,
-        estimate=Estimate(f"mean difference from {common.format_number(mu)}", difference, low, high),
-        effect=effect,
-        groups=[summary],
+        estimate=Estimate(
+            f"mean difference from {common.format_number(mu)}", tested.difference, tested.ci_low, tested.ci_high
+        ),
+        effect=tested.effect,
+        groups=[tested.summary],
         against=mu,
     )
 
@@ -257,8 +314,7 @@ def signed_rank_result(
     >>> core.test, core.statistic, round(core.p_value, 4), core.extra["n_zero_differences"]
     ('wilcoxon_signed_rank', 43.0, 0.0117, 0)
     """
-    if exact not in ("auto", True, False):
-        raise common.OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
+    common.check_exact(exact)
     shifted = values - mu
     nonzero = shifted[shifted != 0]
     n_zero = int(shifted.size - nonzero.size)
@@ -289,17 +345,14 @@ def signed_rank_result(
     if use_exact:
         p_value = _signed_rank_exact_p(v_plus, n, alternative)
         p_method = "exact"
-        low, high = _signed_rank_exact_interval(kept, alternative, confidence, notes)
+        low, high = _signed_rank_exact_interval(kept, alternative, confidence)
         notes.append("The p-value is exact (no ties, fewer than 50 values).")
     else:
         z = _signed_rank_z(nonzero, alternative, correct)
         p_value = common.p_from_z(z, alternative)
-        p_method = "normal_approximation_continuity" if correct else "normal_approximation"
+        p_method, approximation_note = common.normal_approximation(correct)
         low, high = _signed_rank_approx_interval(kept, alternative, confidence, correct, notes)
-        notes.append(
-            "The p-value uses the normal approximation with the tie correction"
-            + (" and a continuity correction." if correct else " (no continuity correction).")
-        )
+        notes.append(approximation_note)
     walsh = _walsh_averages(kept)
     effect = effects.rank_biserial_signed(v_plus, n, alternative, confidence)
     return Result(
@@ -373,25 +426,58 @@ def _cumulative(counts: list[int]) -> list[int]:
     return out
 
 
-def _signed_rank_exact_p(v_plus: float, n: int, alternative: str) -> float:
-    """Exact p of V as R's ``psignrank`` rules give it (two-sided = doubled smaller tail)."""
-    counts = signed_rank_counts(n)
-    cumulative = _cumulative(counts)
-    total = 2**n
-    v = int(round(v_plus))
+def exact_p_from_counts(counts: list[int], total: int, observed: float, alternative: str) -> float:
+    """Exact p of a rank statistic from its null counts (R's ``psignrank``/``pwilcox`` rules).
 
-    def lower(q: int) -> float:  # P(V <= q)
+    Parameters
+    ----------
+    counts : list of int
+        ``counts[s]`` arrangements give statistic s = 0..len(counts) - 1 (symmetric).
+    total : int
+        Number of equally likely arrangements (the sum of ``counts``).
+    observed : float
+        Observed statistic (rounded to a whole number).
+    alternative : {"two-sided", "greater", "less"}
+        ``greater``: large values are evidence.
+
+    Returns
+    -------
+    float
+        One tail, or for two-sided questions the smaller tail doubled (capped at 1).
+
+    Examples
+    --------
+    Hamilton depression scores at two visits, from R's ``?wilcox.test`` example
+    (Hollander & Wolfe 1973, p. 29): V = 40 of 9 untied differences.
+
+    >>> import math
+    >>> from scipy import stats
+    >>> x = [1.83, 0.50, 1.62, 2.48, 1.68, 1.88, 1.55, 3.06, 1.30]
+    >>> y = [0.878, 0.647, 0.598, 2.05, 1.06, 1.29, 1.06, 3.14, 1.29]
+    >>> p = exact_p_from_counts(signed_rank_counts(9), 2**9, 40.0, "greater")
+    >>> round(p, 4), math.isclose(p, stats.wilcoxon(x, y, alternative="greater", method="exact").pvalue)
+    (0.0195, True)
+    """
+    cumulative = _cumulative(counts)
+    s = int(round(observed))
+
+    def lower(q: int) -> float:  # P(S <= q)
         return 0.0 if q < 0 else cumulative[min(q, len(cumulative) - 1)] / total
 
-    def upper(q: int) -> float:  # P(V >= q)
+    def upper(q: int) -> float:  # P(S >= q)
         return 1.0 - lower(q - 1)
 
     if alternative == "greater":
-        return upper(v)
+        return upper(s)
     if alternative == "less":
-        return lower(v)
-    p = upper(v) if v > n * (n + 1) / 4 else lower(v)
+        return lower(s)
+    p = upper(s) if s > (len(counts) - 1) / 2 else lower(s)
     return min(1.0, 2.0 * p)
+
+
+def _signed_rank_exact_p(v_plus: float, n: int, alternative: str) -> float:
+    """Exact p of V as R's ``psignrank`` rules give it (two-sided = doubled smaller tail)."""
+    return exact_p_from_counts(signed_rank_counts(n), 2**n, v_plus, alternative)
 
 
 def _quantile_from_counts(counts: list[int], total: int, probability: float) -> int:
@@ -411,24 +497,53 @@ def _walsh_averages(values: np.ndarray) -> np.ndarray:
     return np.sort((values[i] + values[j]) / 2.0)
 
 
-def _signed_rank_exact_interval(
-    values: np.ndarray, alternative: str, confidence: float, notes: list[str]
+def order_statistic_interval(
+    ordered: np.ndarray, counts: list[int], total: int, alternative: str, confidence: float
 ) -> tuple[float, float]:
-    """Exact interval for the pseudo-median from order statistics of Walsh averages (R's rule)."""
-    n = values.size
-    counts = signed_rank_counts(n)
-    total = 2**n
-    walsh = _walsh_averages(values)
-    m = n * (n + 1) // 2
+    """Exact interval from order statistics, with cut-offs from a rank statistic's null counts.
+
+    Parameters
+    ----------
+    ordered : numpy.ndarray
+        Sorted Walsh averages or pairwise differences, one per value of the statistic
+        above zero (``len(counts) - 1`` of them).
+    counts, total
+        Null counts of the statistic and their sum, as for :func:`exact_p_from_counts`.
+    alternative, confidence
+        Sidedness and level; one-sided questions get an open bound.
+
+    Returns
+    -------
+    float, float
+        Lower and upper bound (R's ``wilcox.test(conf.int = TRUE)`` rule).
+
+    Examples
+    --------
+    First measurements of the depression data in R's ``?wilcox.test`` example
+    (Hollander & Wolfe 1973, p. 29): the exact 95% interval of the pseudo-median
+    from the 45 sorted Walsh averages, as ``wilcox.test(x, conf.int = TRUE)``:
+
+    >>> x = np.array([1.83, 0.50, 1.62, 2.48, 1.68, 1.88, 1.55, 3.06, 1.30])
+    >>> walsh = _walsh_averages(x)
+    >>> low, high = order_statistic_interval(walsh, signed_rank_counts(9), 2**9, "two-sided", 0.95)
+    >>> round(low, 4), round(high, 4)
+    (1.165, 2.37)
+    """
+    m = len(counts) - 1
     alpha = 1.0 - confidence
     if alternative == "two-sided":
         qu = max(_quantile_from_counts(counts, total, alpha / 2.0), 1)
-        ql = m - qu
-        return float(walsh[qu - 1]), float(walsh[ql])
+        return float(ordered[qu - 1]), float(ordered[m - qu])
     qu = max(_quantile_from_counts(counts, total, alpha), 1)
     if alternative == "greater":
-        return float(walsh[qu - 1]), math.inf
-    return -math.inf, float(walsh[m - qu])
+        return float(ordered[qu - 1]), math.inf
+    return -math.inf, float(ordered[m - qu])
+
+
+def _signed_rank_exact_interval(values: np.ndarray, alternative: str, confidence: float) -> tuple[float, float]:
+    """Exact interval for the pseudo-median from order statistics of Walsh averages (R's rule)."""
+    n = values.size
+    return order_statistic_interval(_walsh_averages(values), signed_rank_counts(n), 2**n, alternative, confidence)
 
 
 def _signed_rank_z(shifted_nonzero: np.ndarray, alternative: str, correct: bool) -> float:
@@ -440,10 +555,7 @@ def _signed_rank_z(shifted_nonzero: np.ndarray, alternative: str, correct: bool)
     sigma = math.sqrt(n * (n + 1) * (2 * n + 1) / 24.0 - float(np.sum(ties**3 - ties)) / 48.0)
     if sigma == 0.0:
         return 0.0
-    correction = 0.0
-    if correct:
-        correction = {"two-sided": float(np.sign(centred)) * 0.5, "greater": 0.5, "less": -0.5}[alternative]
-    return (centred - correction) / sigma
+    return (centred - common.continuity_correction(centred, alternative, correct)) / sigma
 
 
 def _signed_rank_approx_interval(

@@ -5,13 +5,10 @@ Differences are first minus second, in the order of ``labels``.
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 from statmargin.methods import _common as common
-from statmargin.methods import effects
-from statmargin.methods.onesample import signed_rank_result
+from statmargin.methods.onesample import mean_t, signed_rank_result
 from statmargin.results import Estimate, Result
 
 
@@ -92,31 +89,26 @@ def paired_t(
     common.check_options(alternative, confidence)
     a, b, differences, dropped, first, second = _differences(x1, x2, labels, 2)
     common.require_spread(differences, f"the differences {first} - {second}")
-    n = differences.size
-    summary = common.describe(f"{first} - {second}", differences)
-    mean, sd = summary["mean"], summary["sd"]
-    se = sd / math.sqrt(n)
-    t = mean / se
-    df = n - 1
-    low, high = common.t_interval(mean, se, df, alternative, confidence)
+    tested = mean_t(differences, 0.0, f"{first} - {second}", "Hedges' g_z", alternative, confidence)
+    mean = tested.summary["mean"]
     return Result(
         outcome="",
         exposure=None,
         design="paired_continuous",
         test="paired_t",
         statistic_name="t",
-        statistic=t,
-        df=float(df),
-        p_value=common.p_from_t(t, df, alternative),
+        statistic=tested.t,
+        df=float(tested.df),
+        p_value=common.p_from_t(tested.t, tested.df, alternative),
         p_method="asymptotic",
         alternative=alternative,
         confidence=confidence,
-        n=int(n),
+        n=int(differences.size),
         n_excluded=dropped,
-        estimate=Estimate(f"mean difference ({first} - {second})", mean, low, high),
-        effect=effects.standardized_effect("Hedges' g_z", t, df, 1.0 / math.sqrt(n), alternative, confidence),
-        groups=[common.describe(first, a), common.describe(second, b), summary],
-        extra={"d_z": mean / sd},
+        estimate=Estimate(f"mean difference ({first} - {second})", mean, tested.ci_low, tested.ci_high),
+        effect=tested.effect,
+        groups=[common.describe(first, a), common.describe(second, b), tested.summary],
+        extra={"d_z": mean / tested.summary["sd"]},
     )
 
 

@@ -12,7 +12,7 @@ from scipy import optimize, stats
 
 from statmargin.methods import _common as common
 from statmargin.methods import effects
-from statmargin.methods.onesample import EXACT_LIMIT, _quantile_from_counts
+from statmargin.methods.onesample import EXACT_LIMIT, exact_p_from_counts, order_statistic_interval
 from statmargin.results import Estimate, Result
 
 
@@ -274,8 +274,7 @@ def mann_whitney_u(
     True
     """
     common.check_options(alternative, confidence)
-    if exact not in ("auto", True, False):
-        raise common.OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
+    common.check_exact(exact)
     a, b, dropped, first, second = _two_groups(x, y, labels)
     n1, n2 = a.size, b.size
     ranks = stats.rankdata(np.concatenate([a, b]))
@@ -298,12 +297,9 @@ def mann_whitney_u(
         notes.append("The p-value is exact (no ties, fewer than 50 values per group).")
     else:
         p_value = common.p_from_z(_rank_sum_z(a, b, alternative, correct), alternative)
-        p_method = "normal_approximation_continuity" if correct else "normal_approximation"
+        p_method, approximation_note = common.normal_approximation(correct)
         low, high = _rank_sum_approx_interval(a, b, alternative, confidence, correct)
-        notes.append(
-            "The p-value uses the normal approximation with the tie correction"
-            + (" and a continuity correction." if correct else " (no continuity correction).")
-        )
+        notes.append(approximation_note)
     return Result(
         outcome="",
         exposure=None,
@@ -378,23 +374,7 @@ def rank_sum_counts(n1: int, n2: int) -> list[int]:
 
 def _rank_sum_exact_p(u_first: float, n1: int, n2: int, alternative: str) -> float:
     """Exact p of U as R's ``pwilcox`` rules give it (two-sided = doubled smaller tail)."""
-    counts = rank_sum_counts(n1, n2)
-    total = math.comb(n1 + n2, n1)
-    cumulative = np.cumsum(np.array(counts, dtype=object))
-    u = int(round(u_first))
-
-    def lower(q: int) -> float:
-        return 0.0 if q < 0 else float(cumulative[min(q, len(counts) - 1)] / total)
-
-    def upper(q: int) -> float:
-        return 1.0 - lower(q - 1) if q > 0 else 1.0
-
-    if alternative == "greater":
-        return upper(u)
-    if alternative == "less":
-        return lower(u)
-    p = upper(u) if u > n1 * n2 / 2.0 else lower(u)
-    return min(1.0, 2.0 * p)
+    return exact_p_from_counts(rank_sum_counts(n1, n2), math.comb(n1 + n2, n1), u_first, alternative)
 
 
 def _rank_sum_exact_interval(
@@ -402,16 +382,7 @@ def _rank_sum_exact_interval(
 ) -> tuple[float, float]:
     """Exact interval for the shift from order statistics of the pairwise differences (R's rule)."""
     counts = rank_sum_counts(n1, n2)
-    total = math.comb(n1 + n2, n1)
-    alpha = 1.0 - confidence
-    m = n1 * n2
-    if alternative == "two-sided":
-        qu = max(_quantile_from_counts(counts, total, alpha / 2.0), 1)
-        return float(differences[qu - 1]), float(differences[m - qu])
-    qu = max(_quantile_from_counts(counts, total, alpha), 1)
-    if alternative == "greater":
-        return float(differences[qu - 1]), math.inf
-    return -math.inf, float(differences[m - qu])
+    return order_statistic_interval(differences, counts, math.comb(n1 + n2, n1), alternative, confidence)
 
 
 def _rank_sum_z(a: np.ndarray, b: np.ndarray, alternative: str, correct: bool) -> float:
@@ -424,10 +395,7 @@ def _rank_sum_z(a: np.ndarray, b: np.ndarray, alternative: str, correct: bool) -
     sigma = math.sqrt((n1 * n2 / 12.0) * ((n + 1) - float(np.sum(ties**3 - ties)) / (n * (n - 1))))
     if sigma == 0.0:
         return 0.0
-    correction = 0.0
-    if correct:
-        correction = {"two-sided": float(np.sign(centred)) * 0.5, "greater": 0.5, "less": -0.5}[alternative]
-    return float((centred - correction) / sigma)
+    return float((centred - common.continuity_correction(centred, alternative, correct)) / sigma)
 
 
 def _rank_sum_approx_interval(
