@@ -1,7 +1,7 @@
 """The reader/writer interface that every workbook back end implements.
 
-The file back end (``xlsxfile``: python-calamine for reading, a package-level
-writer for writing) and a later xlwings back end for the open workbook both
+The file back end (``xlsxsource.FileSource``, python-calamine for reading, and
+``xlsxsink.FileSink``, a package-level writer) and a later xlwings back end for the open workbook both
 implement these two protocols, so the pipeline between them is shared.
 """
 
