@@ -873,8 +873,44 @@ def test_one_excluded_record_is_singular() -> None:
     assert any(c.startswith("1 record was left out") for c in _cautions(result))
 
 
+def test_dunn_followup_reads_as_typical_shift_in_units() -> None:
+    """A Dunn pair's Hodges-Lehmann shift is read as a typical difference in the outcome's units with its CI."""
+    followup = Followup(
+        "dunn",
+        ("South", "East"),
+        Estimate("location shift ('South' - 'East', Hodges-Lehmann)", -0.35, -0.6, -0.1),
+        1e-5,
+        1e-4,
+    )  # invented
+    text = explain.followup_reading(
+        followup, make_cases()["kruskal_wallis"], settings=SETTINGS, context=UNITS
+    )
+    assert text == (
+        "South vs East: weight typically 0.350 g higher in East than in South (95% CI 0.100 to 0.600); "
+        "very strong evidence of a difference (adjusted p < 0.001)."
+    )
+
+
+def test_level_named_like_rank_keeps_shift_reading() -> None:
+    """A level whose name contains 'rank' (Frankfurt) does not switch the pair to the rank-scale wording."""
+    followup = Followup(
+        "dunn",
+        ("Frankfurt", "East"),
+        Estimate("location shift ('Frankfurt' - 'East', Hodges-Lehmann)", 0.35, 0.1, 0.6),
+        0.2,
+        0.4,
+    )  # invented
+    text = explain.followup_reading(
+        followup, make_cases()["kruskal_wallis"], settings=SETTINGS, context=UNITS
+    )
+    assert text == (
+        "Frankfurt vs East: weight typically 0.350 g higher in Frankfurt than in East (95% CI 0.100 to 0.600); "
+        "compatible with no difference (adjusted p = 0.40)."
+    )
+
+
 def test_rank_followup_avoids_units() -> None:
-    """A Dunn pair is read as values ranking higher, without the outcome's units."""
+    """An estimate on the rank scale (difference in mean ranks) is read without the outcome's units."""
     followup = Followup(
         "dunn",
         ("South", "East"),

@@ -12,7 +12,7 @@ from scipy import stats
 
 from reference_cases import cases_by_design, load_case
 from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.methods import followup
+from statmargin.methods import followup, twogroup
 
 MULTI = cases_by_design("multi_group_continuous")
 
@@ -116,7 +116,10 @@ def test_dunn_hand_worked_without_ties() -> None:
     # N(N+1)/12 = 7.5; se = sqrt(7.5 (1/3 + 1/3)) = sqrt(5).
     # z(B-A) = 3/sqrt(5) = 1.341641, z(C-A) = 6/sqrt(5) = 2.683282, z(C-B) = 1.341641.
     assert [f.levels for f in result] == [("B", "A"), ("C", "A"), ("C", "B")]
-    assert [f.estimate.value for f in result] == pytest.approx([3.0, 6.0, 3.0])
+    # Hodges & Lehmann (1963), by hand: B - A differences are 1..5 (median 3), C - A are
+    # 4..8 (median 6), C - B are 1..5 (median 3).
+    assert [f.estimate.value for f in result] == [3.0, 6.0, 3.0]
+    assert result[0].estimate.name == "location shift ('B' - 'A', Hodges-Lehmann)"
     assert [f.statistic for f in result] == pytest.approx(
         [3 / math.sqrt(5), 6 / math.sqrt(5), 3 / math.sqrt(5)]
     )
@@ -147,6 +150,34 @@ def test_dunn_two_groups_equals_r_rank_sum_test(case_id: str) -> None:
     # R 4.2.2: wilcox.test(y ~ g, exact = FALSE, correct = FALSE)
     ref = case["tests"]["mann_whitney_approx_nocc"]
     assert only.p_value == pytest.approx(ref["p_value"], rel=1e-9)
+
+
+@pytest.mark.parametrize("case_id", MULTI)
+def test_dunn_estimate_is_hodges_lehmann_with_rank_sum_interval(case_id: str) -> None:
+    """Each Dunn pair's estimate is the median of all differences, its CI that of the pair's rank-sum test."""
+    _, groups = _groups(case_id)
+    result = followup.dunn(groups, adjust="holm", confidence=0.9)
+    for pair in result:
+        later, earlier = (groups[level] for level in pair.levels)
+        # Hodges & Lehmann (1963): the shift is the median of all n_a n_b differences (brute force).
+        assert pair.estimate.value == float(np.median(np.subtract.outer(later, earlier)))
+        # Same construction as R 4.2.2 wilcox.test(later, earlier, conf.int = TRUE, exact = FALSE,
+        # correct = TRUE, conf.level = 0.9), which mann_whitney_u reproduces (test_methods_twogroup).
+        check = twogroup.mann_whitney_u(later, earlier, exact=False, correct=True, confidence=0.9).estimate
+        assert (pair.estimate.ci_low, pair.estimate.ci_high) == (check.ci_low, check.ci_high)
+        assert pair.estimate.ci_low <= pair.estimate.value <= pair.estimate.ci_high
+
+
+@pytest.mark.parametrize("case_id", ["sleep_extra_by_group", "toothgrowth_len_by_supp"])
+def test_dunn_two_groups_interval_equals_r(case_id: str) -> None:
+    """With two groups the Dunn pair's interval is R's rank-sum interval, with the sign flipped (later - earlier)."""
+    case, groups = _groups(case_id)
+    (only,) = followup.dunn(groups, adjust="none")
+    # R 4.2.2: wilcox.test(y ~ g, exact = FALSE, correct = TRUE, conf.int = TRUE) gives first - second;
+    # R's uniroot tolerance is 1e-4, so bounds agree to about that.
+    low, high = case["tests"]["mann_whitney_approx_cc"]["conf_int"]
+    assert only.estimate.ci_low == pytest.approx(-high, abs=2e-4)
+    assert only.estimate.ci_high == pytest.approx(-low, abs=2e-4)
 
 
 def test_adjusted_residuals_agresti_party_identification() -> None:

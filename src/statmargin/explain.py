@@ -1065,15 +1065,18 @@ def followup_reading(
         decimals = decimals_for(value, low, high)
         ci = fmt_ci(low, high, decimals)
         ci_part = f" ({ci_label(parent.confidence)} {ci})" if ci else ""
-        if "rank" in (est.name or "").lower():
+        name = (est.name or "").lower()
+        if name.startswith("difference in mean ranks"):
             size = (
                 f"values of {outcome} ranked higher on average in {first} than in {second} "
                 f"(difference in mean ranks {fmt_number(value, decimals)}"
                 f"{'; ' + ci_label(parent.confidence) + ' ' + ci if ci else ''}); "
             )
         else:
+            # A Hodges-Lehmann shift is a typical difference, not a difference in means.
+            typically = "typically " if name.startswith(("location shift", "hodges-lehmann shift")) else ""
             size = (
-                f"{outcome} {fmt_number(value, decimals)}{_units_suffix(units)} higher in {first} "
+                f"{outcome} {typically}{fmt_number(value, decimals)}{_units_suffix(units)} higher in {first} "
                 f"than in {second}{ci_part}; "
             )
     significant = _finite(p) and p < settings.alpha

@@ -17,10 +17,12 @@ from scipy import stats
 
 from statmargin.adjust import adjust_p
 from statmargin.errors import NotEnoughDataError
+from statmargin.methods import twogroup
 from statmargin.methods._common import (
     accurate_mean,
     check_confidence,
     clean,
+    median_pairwise_difference,
     sum_of_squares,
     tie_counts,
 )
@@ -59,9 +61,9 @@ def _pairs(
             yield items[j], items[i]
 
 
-def _pair_name(quantity: str, a: str, b: str) -> str:
-    """Name of a pairwise estimate, later level minus earlier one."""
-    return f"{quantity} ('{a}' - '{b}')"
+def _pair_name(quantity: str, a: str, b: str, method: str = "") -> str:
+    """Name of a pairwise estimate, later level minus earlier one (and the method, if named)."""
+    return f"{quantity} ('{a}' - '{b}'{', ' + method if method else ''})"
 
 
 def _interval_followup(
@@ -97,20 +99,27 @@ def _adjusted_followups(
     rows: list[tuple[str, str, float, float, float | None]],
     adjust: AdjustMethod | str,
     alpha: float,
+    intervals: list[tuple[float, float]] | None = None,
+    method: str = "",
 ) -> list[Followup]:
-    """Followups from (later, earlier, estimate, statistic, p) rows, p adjusted over the rows."""
+    """Followups from (later, earlier, estimate, statistic, p) rows, p adjusted over the rows.
+
+    ``intervals`` gives each row's (low, high) confidence bounds when there are any;
+    ``method`` is named in the estimate after the levels.
+    """
     adjusted = adjust_p([r[4] for r in rows], adjust)
+    bounds = intervals if intervals is not None else [(None, None)] * len(rows)
     return [
         Followup(
             test=test,
             levels=(a, b),
-            estimate=Estimate(name=_pair_name(quantity, a, b), value=value),
+            estimate=Estimate(name=_pair_name(quantity, a, b, method), value=value, ci_low=low, ci_high=high),
             p_value=p,
             p_adjusted=p_adj,
             statistic=statistic,
             flagged=p_adj is not None and p_adj < alpha,
         )
-        for (a, b, value, statistic, p), p_adj in zip(rows, adjusted, strict=True)
+        for (a, b, value, statistic, p), p_adj, (low, high) in zip(rows, adjusted, bounds, strict=True)
     ]
 
 
@@ -291,6 +300,7 @@ def dunn(
     *,
     adjust: AdjustMethod | str = "holm",
     alpha: float = DEFAULT_ALPHA,
+    confidence: float = 0.95,
 ) -> list[Followup]:
     """Dunn's test: all pairs of mean ranks after a Kruskal-Wallis test.
 
@@ -302,25 +312,36 @@ def dunn(
         Adjustment over the k(k-1)/2 pairs.
     alpha : float
         Level for ``flagged``.
+    confidence : float
+        Level of each pair's interval for the shift.
 
     Returns
     -------
     list of Followup
-        test "dunn"; ``estimate`` the difference in mean ranks (later -
-        earlier level; ranks of the pooled data, no interval); ``statistic`` z;
-        ``p_value`` two-sided normal; ``p_adjusted`` after ``adjust``.
+        test "dunn"; ``estimate`` the Hodges-Lehmann location shift (later -
+        earlier level, in the outcome's units) with an approximate interval;
+        ``statistic`` z from the mean ranks; ``p_value`` two-sided normal;
+        ``p_adjusted`` after ``adjust``.
 
     Notes
     -----
     z = (Rbar_a - Rbar_b) / sqrt((N(N+1)/12 - sum(t^3 - t) / (12 (N - 1)))
     (1/n_a + 1/n_b)), with ties given average ranks and the tie correction
-    from the pooled ranking. The mean-rank difference is the quantity the test
-    is about; it is on the rank scale, not in the outcome's units.
+    from the pooled ranking. The test is about mean ranks, which have no units,
+    so each pair is described by the Hodges-Lehmann shift (median of all
+    later-minus-earlier differences) and the interval from inverting that pair's
+    rank-sum statistic with continuity correction, as R's ``wilcox.test(conf.int =
+    TRUE, exact = FALSE)`` does. The interval is per pair (not adjusted for the
+    number of pairs) and uses only the pair's two groups, while z and p use the
+    pooled ranking, so an interval and its adjusted p can disagree at the margin.
+    The shift reading assumes the groups differ mainly in location.
 
     References
     ----------
     Dunn, O. J. (1964). Multiple comparisons using rank sums. Technometrics
     6(3), 241-252. https://doi.org/10.1080/00401706.1964.10490181
+    Hodges, J. L. and Lehmann, E. L. (1963). Annals of Mathematical Statistics
+    34(2), 598-611. https://doi.org/10.1214/aoms/1177704172
 
     Examples
     --------
@@ -347,7 +368,16 @@ def dunn(
     ...                         method="asymptotic")
     >>> math.isclose(dunn(two, adjust="none")[0].p_value, mw.pvalue)
     True
+
+    Each pair's estimate is the median of all later-minus-earlier differences:
+
+    >>> first = dunn(groups)[0]
+    >>> first.estimate.name, round(first.estimate.value, 4)
+    ("location shift ('centre' - 'north', Hodges-Lehmann)", 1.3)
+    >>> first.estimate.value == float(np.median(np.subtract.outer(groups["centre"], groups["north"])))
+    True
     """
+    confidence = check_confidence(confidence)
     items = _clean_groups(groups)
     pooled = np.concatenate([v for _, v in items])
     ranks = stats.rankdata(pooled)
@@ -364,12 +394,13 @@ def dunn(
         mean_rank[label] = float(ranks[start : start + values.size].mean())
         size[label] = values.size
         start += values.size
-    rows = []
-    for (a, _), (b, _) in _pairs(items):
-        diff = mean_rank[a] - mean_rank[b]
-        z = diff / math.sqrt(variance * (1.0 / size[a] + 1.0 / size[b]))
-        rows.append((a, b, diff, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
-    return _adjusted_followups("dunn", "difference in mean ranks", rows, adjust, alpha)
+    rows, intervals = [], []
+    for (a, xa), (b, xb) in _pairs(items):
+        z = (mean_rank[a] - mean_rank[b]) / math.sqrt(variance * (1.0 / size[a] + 1.0 / size[b]))
+        shift = median_pairwise_difference(xa, xb)
+        rows.append((a, b, shift, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
+        intervals.append(twogroup._rank_sum_approx_interval(xa, xb, "two-sided", confidence, True))
+    return _adjusted_followups("dunn", "location shift", rows, adjust, alpha, intervals, "Hodges-Lehmann")
 
 
 def pairwise_mann_whitney(
@@ -439,7 +470,7 @@ def pairwise_mann_whitney(
         test = stats.mannwhitneyu(
             xa, xb, use_continuity=correct, alternative="two-sided", method="asymptotic"
         )
-        shift = float(np.median(np.subtract.outer(xa, xb)))
+        shift = median_pairwise_difference(xa, xb)
         p = float(test.pvalue)
         rows.append((a, b, shift, float(test.statistic), p if math.isfinite(p) else None))
     return _adjusted_followups("pairwise_mann_whitney", "Hodges-Lehmann shift", rows, adjust, alpha)

@@ -202,8 +202,9 @@ def wilcoxon_signed_rank(
     also for the pseudo-median and its interval (as R does), and their count is reported in ``extra["n_zero_differences"]``. The approximate p uses
     the tie-corrected variance. The interval follows R's ``wilcox.test(conf.int =
     TRUE)``: order statistics of Walsh averages (exact) or inversion of the
-    approximate statistic (approximate). The test assumes differences symmetric
-    about their centre.
+    approximate statistic (approximate). On the approximate path the pseudo-median is
+    selected without listing all n (n + 1) / 2 Walsh averages, so memory stays O(n).
+    The test assumes differences symmetric about their centre.
 
     References
     ----------
@@ -342,18 +343,20 @@ def signed_rank_result(
         )
     # R's convention: the estimate and interval use the values left after dropping zeros.
     kept = nonzero + mu
-    if use_exact:
+    if use_exact:  # fewer than 50 values: listing the n (n + 1) / 2 Walsh averages is cheap
+        walsh = _walsh_averages(kept)
+        centre = float(np.median(walsh))
         p_value = _signed_rank_exact_p(v_plus, n, alternative)
         p_method = "exact"
-        low, high = _signed_rank_exact_interval(kept, alternative, confidence)
+        low, high = order_statistic_interval(walsh, signed_rank_counts(n), 2**n, alternative, confidence)
         notes.append("The p-value is exact (no ties, fewer than 50 values).")
-    else:
+    else:  # possibly many values: select the median Walsh average without listing them all
+        centre = common.median_walsh_average(kept)
         z = _signed_rank_z(nonzero, alternative, correct)
         p_value = common.p_from_z(z, alternative)
         p_method, approximation_note = common.normal_approximation(correct)
         low, high = _signed_rank_approx_interval(kept, alternative, confidence, correct, notes)
         notes.append(approximation_note)
-    walsh = _walsh_averages(kept)
     effect = effects.rank_biserial_signed(v_plus, n, alternative, confidence)
     return Result(
         outcome="",
@@ -368,7 +371,7 @@ def signed_rank_result(
         alternative=alternative,
         confidence=confidence,
         n=int(values.size),
-        estimate=Estimate("pseudo-median", float(np.median(walsh)), low, high),
+        estimate=Estimate("pseudo-median", centre, low, high),
         effect=effect,
         notes=notes,
         extra={"n_zero_differences": n_zero, "n_ranked": int(n), "ties": bool(ties)},
@@ -538,12 +541,6 @@ def order_statistic_interval(
     if alternative == "greater":
         return float(ordered[qu - 1]), math.inf
     return -math.inf, float(ordered[m - qu])
-
-
-def _signed_rank_exact_interval(values: np.ndarray, alternative: str, confidence: float) -> tuple[float, float]:
-    """Exact interval for the pseudo-median from order statistics of Walsh averages (R's rule)."""
-    n = values.size
-    return order_statistic_interval(_walsh_averages(values), signed_rank_counts(n), 2**n, alternative, confidence)
 
 
 def _signed_rank_z(shifted_nonzero: np.ndarray, alternative: str, correct: bool) -> float:
