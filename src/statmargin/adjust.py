@@ -110,8 +110,9 @@ def adjust_p(p: Sequence[float | None], method: AdjustMethod | str) -> list[floa
     True
     """
     chosen = _as_method(method)
-    present = [i for i, v in enumerate(p) if v is not None and not math.isnan(float(v))]
-    values = np.array([float(p[i]) for i in present], dtype=float)
+    given = [(i, float(v)) for i, v in enumerate(p) if v is not None and not math.isnan(float(v))]
+    present = [i for i, _ in given]
+    values = np.array([v for _, v in given], dtype=float)
     if values.size and (values.min() < 0.0 or values.max() > 1.0):
         raise OptionError(
             "A p-value outside 0 to 1 was passed for adjustment; this is a bug in the caller."

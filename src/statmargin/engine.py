@@ -367,6 +367,11 @@ def run_analysis(table: Table, analysis: Analysis, settings: Settings) -> tuple[
             partner = ColumnChoice(other.name, treat_as=first.treat_as, order=first.order)
         other_info = _usable_type(other, partner, "a paired measurement")
         return _paired_wide(out_col, out_info, other, other_info, handling, settings, rows=table.rows)
+    if analysis.by is None:
+        raise OptionError(
+            f"Nothing to compare {analysis.outcome} with: give a compare-by column, a comparison"
+            " value or a paired measurement."
+        )
     by_col = table.column(analysis.by)
     by_info = _usable_type(by_col, analysis.by_choice, "a compare-by column")
     if analysis.pairing_key and by_info.type is MeasureType.CATEGORICAL:
@@ -482,44 +487,51 @@ def _one_sample(col: Column, info: TypeInfo, analysis: Analysis, handling: Shape
     n, n_excl = vals.n, int(np.sum(vals.present & ~vals.usable))
     against = analysis.against
     if info.type is MeasureType.CATEGORICAL:
-        if not isinstance(against, dict):
-            against = parse_against(str(analysis.against_text or against), info, column=name)
+        parsed = against if isinstance(against, dict) else parse_against(
+            str(analysis.against_text or against), info, column=name)
+        assert isinstance(parsed, dict)  # a categorical outcome always parses to shares by label
+        shares: dict[str, float] = parsed
         design = "one_sample_categorical"
         labels = vals.values[vals.usable]
         levels = list(info.levels) or sorted(set(labels))
         counts = {lev: int(np.sum(labels == lev)) for lev in levels}
         groups = [{"label": lev, "n": c, "share": c / n if n else None} for lev, c in counts.items()]
-        single = len(against) == 1
+        single = len(shares) == 1
         if n == 0:
             return _skipped(design, None, name, None, f"{name} has no usable values.", settings,
                             n_excluded=n_excl), _Prepared()
         if single:
-            label, share = next(iter(against.items()))
+            label, share = next(iter(shares.items()))
             expected = np.array([n * share, n * (1 - share)])
         else:
-            expected = np.array([n * against[lev] for lev in levels])
+            expected = np.array([n * shares[lev] for lev in levels])
         check = count_check(expected)
         choice = choose_test(design, outcome=name, min_expected=check["min_expected"],
                              n_expected_lt_5=check["n_expected_lt_5"], n_levels=len(levels), single_share=single)
         shape = {"counts": check}
         if choice.test == "binomial_exact":
             if single:
-                label, share = next(iter(against.items()))
+                label, share = next(iter(shares.items()))
             else:
-                label, share = levels[0], against[levels[0]]
+                label, share = levels[0], shares[levels[0]]
             successes = counts.get(label, 0)
             call = lambda: categorical.binomial_exact(successes, n, share=share, label=label, **_opts(settings))  # noqa: E731
         else:
             call = lambda: categorical.chi_square_goodness_of_fit(  # noqa: E731
-                counts, dict(against), confidence=settings.confidence, seed=settings.seed,
+                counts, dict(shares), confidence=settings.confidence, seed=settings.seed,
                 monte_carlo_resamples=settings.monte_carlo_resamples)
         result = _run(choice.test, call, design=design, outcome=name, exposure=None, choice=choice, n=n,
                       n_excluded=n_excl, groups=groups, shape=shape, settings=settings)
-        result.against = against
+        result.against = shares
         return result, _Prepared()
 
     design = "one_sample_continuous"
     x = vals.values[vals.usable].astype(float)
+    if against is None or isinstance(against, dict):
+        raise OptionError(
+            f"Comparison value for {name}: shares by label fit categories, but {name} holds numbers;"
+            " give one number such as 20."
+        )
     mu = float(against)
     if n == 0:
         return _skipped(design, None, name, None, f"{name} has no usable values.", settings,
@@ -615,13 +627,13 @@ def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: Type
     if design == "two_group_continuous":
         x, z = groups[levels[0]], groups[levels[1]]
         lab = (levels[0], levels[1])
-        fn = {"welch_t": twogroup.welch_t, "student_t": twogroup.student_t,
-              "mann_whitney_u": twogroup.mann_whitney_u}[choice.test]
-        call = lambda: fn(x, z, labels=lab, **opts)  # noqa: E731
+        pair_fn = {"welch_t": twogroup.welch_t, "student_t": twogroup.student_t,
+                   "mann_whitney_u": twogroup.mann_whitney_u}[choice.test]
+        call = lambda: pair_fn(x, z, labels=lab, **opts)  # noqa: E731
     else:
-        fn = {"one_way_anova": multigroup.one_way_anova, "welch_anova": multigroup.welch_anova,
-              "kruskal_wallis": multigroup.kruskal_wallis}[choice.test]
-        call = lambda: fn(groups, **opts)  # noqa: E731
+        many_fn = {"one_way_anova": multigroup.one_way_anova, "welch_anova": multigroup.welch_anova,
+                   "kruskal_wallis": multigroup.kruskal_wallis}[choice.test]
+        call = lambda: many_fn(groups, **opts)  # noqa: E731
     result = _run(choice.test, call, design=design, outcome=report_outcome, exposure=report_exposure,
                   choice=choice, n=n, n_excluded=n_excl, groups=summaries, shape=shape, settings=settings)
     if result.skipped is None and design == "two_group_continuous" and (choice.rank_based or ordinal):
@@ -632,13 +644,13 @@ def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: Type
             # For ordered labels the chance that a record of the first group ranks above one
             # of the second (ties half) reads more plainly than r; r = 2 * PS - 1 exactly
             # (Kerby 2014, Comprehensive Psychology 3:11.IT.3.1), so its interval maps across.
-            r = result.effect
-            result.extra["rank_biserial_r"] = r.to_record()
+            rank_r = result.effect
+            result.extra["rank_biserial_r"] = rank_r.to_record()
             result.effect = Effect(
                 "probability of superiority",
                 ps,
-                None if r.ci_low is None else (r.ci_low + 1) / 2,
-                None if r.ci_high is None else (r.ci_high + 1) / 2,
+                None if rank_r.ci_low is None else (rank_r.ci_low + 1) / 2,
+                None if rank_r.ci_high is None else (rank_r.ci_high + 1) / 2,
             )
     return result, _Prepared(groups=groups)
 

@@ -17,10 +17,10 @@ from __future__ import annotations
 import math
 import re
 from collections.abc import Iterable, Mapping, Sequence
-from typing import Any
+from typing import Any, TypeGuard
 
 from .magnitude import NEGLIGIBLE, Magnitude, effect_kind, magnitude
-from .results import Followup, Result
+from .results import Estimate, Followup, Result
 from .roles import AdjustMethod, Settings
 
 # Human names of the tests (published methods keep their published names).
@@ -155,7 +155,7 @@ _PAIRED = ("paired_continuous", "paired_categorical")
 # ---------------------------------------------------------------- numbers as text
 
 
-def _finite(value: Any) -> bool:
+def _finite(value: Any) -> TypeGuard[int | float]:
     return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
 
 
@@ -401,14 +401,13 @@ def _units_suffix(units: str) -> str:
 
 
 def _difference_sentence(
-    result: Result, subject: str, units: str, *, within: str = "in", how: str = ""
+    result: Result, est: Estimate, subject: str, units: str, *, within: str = "in", how: str = ""
 ) -> str:
     """'Mean Wait was 1.58 minutes higher in B than in A (95% CI -0.21 to 3.37).'
 
     A negative estimate (first minus second) is said the other way round, with
     the interval flipped, so the sentence always says "higher".
     """
-    est = result.estimate
     first, second = (_named(result, label) for label in two_labels(result))
     value, low, high = est.value, est.ci_low, est.ci_high
     if _finite(value) and value < 0:
@@ -482,21 +481,23 @@ def _estimate_sentence(result: Result, context: Any) -> str:
             f"{fmt_ci(est.ci_low, est.ci_high, decimals)}), against a stated value of {against}."
         )
     if design == "one_sample_categorical":
-        return _share_sentence(result)
+        return _share_sentence(result, est)
     if test in ("welch_t", "student_t"):
-        return _difference_sentence(result, f"Mean {outcome} was", units)
+        return _difference_sentence(result, est, f"Mean {outcome} was", units)
     if test == "mann_whitney_u":
         return _difference_sentence(
             result,
+            est,
             f"Values of {outcome} were typically",
             units,
             how="median of all differences between the two groups",
         )
     if test == "paired_t":
-        return _difference_sentence(result, f"Mean {outcome} was", units, within="at")
+        return _difference_sentence(result, est, f"Mean {outcome} was", units, within="at")
     if design == "paired_continuous":
         return _difference_sentence(
             result,
+            est,
             f"Values of {outcome} were typically",
             units,
             within="at",
@@ -505,7 +506,7 @@ def _estimate_sentence(result: Result, context: Any) -> str:
     if design in ("two_categorical", "paired_categorical") and (
         "proportion" in name or "share" in name
     ):
-        return _proportion_difference_sentence(result)
+        return _proportion_difference_sentence(result, est.value, est.ci_low, est.ci_high)
     if design == "two_continuous":
         kind = "rank correlation" if test == "spearman_rho" else "correlation"
         by = result.exposure or "the other measure"
@@ -536,10 +537,10 @@ def _estimate_sentence(result: Result, context: Any) -> str:
     return f"{groups} {estimate_part}" if groups else estimate_part
 
 
-def _proportion_difference_sentence(result: Result) -> str:
-    est = result.estimate
+def _proportion_difference_sentence(
+    result: Result, value: float, low: float | None, high: float | None
+) -> str:
     first, second = two_labels(result)
-    value, low, high = est.value, est.ci_low, est.ci_high
     if value < 0:
         first, second = second, first
         value, low, high = (
@@ -572,9 +573,8 @@ def _outcome_level_phrase(result: Result) -> str:
     return f"The share in the first {outcome} category"
 
 
-def _share_sentence(result: Result) -> str:
+def _share_sentence(result: Result, est: Estimate) -> str:
     """One-sample categorical: the observed share (with CI) against the stated share."""
-    est = result.estimate
     outcome = result.outcome or "the outcome"
     label, target = _share_label_and_target(result)
     ci = fmt_ci(est.ci_low, est.ci_high, 1, scale=100.0)
@@ -611,8 +611,8 @@ def _share_label_and_target(result: Result) -> tuple[str, float | None]:
 def _groups_sentence(result: Result, units: str) -> str:
     """For 3+ groups: the range of group means (or medians for rank-based tests)."""
     stat = "median" if result.test == "kruskal_wallis" else "mean"
-    rows = [
-        (str(g.get("label")), g.get(stat))
+    rows: list[tuple[str, float]] = [
+        (str(g.get("label")), g[stat])
         for g in result.groups
         if isinstance(g, Mapping) and _finite(g.get(stat))
     ]
@@ -804,7 +804,7 @@ def _group_sizes(result: Result) -> list[int]:
 
 def _count_sources(result: Result) -> list[Mapping[str, Any]]:
     """Where counts may sit: the shape checks, their "counts" entry, or ``extra``."""
-    sources = []
+    sources: list[Mapping[str, Any]] = []
     for source in (result.shape, result.extra):
         if isinstance(source, Mapping):
             sources.append(source)

@@ -395,11 +395,14 @@ def first_data_sheet(
     NotEnoughDataError
         If no such sheet has any value.
     """
-    if source is None and path is not None and hasattr(path, "sheet_names"):
-        path, source = None, path  # an open source passed in the first place
-    src, owned = _open_source(path, source)
+    file_path: str | os.PathLike[str] | None
+    if path is None or isinstance(path, (str, os.PathLike)):
+        file_path = path
+    else:  # an open source passed in the first place
+        file_path, source = None, source if source is not None else path
+    src, owned = _open_source(file_path, source)
     try:
-        return _first_data_sheet(src, _display(path, src))
+        return _first_data_sheet(src, _display(file_path, src))
     finally:
         if owned:
             src.close()
@@ -499,7 +502,7 @@ def _locate(
     merged_from = {c: o for c, o in merged_from.items() if lo <= c <= hi and lo <= o}
     cells = [(c, "" if c in merged_from else texts.get(c, "")) for c in range(lo, hi + 1)]
     columns, header_notes = unique_names(sheet, header_row, cells, merged_from)
-    if several:
+    if several and chosen is not None:  # a note on several tables always comes with a choice
         table_note = DataNote(
             sheet,
             f"{column_letter(chosen.first_col)}{chosen.first_row}",
@@ -507,7 +510,7 @@ def _locate(
             chosen.name,
             NoteKind.OTHER,
             several,
-        )  # type: ignore[union-attr]
+        )
         notes.append(table_note)
     return _Layout(
         sheet=sheet,

@@ -14,7 +14,7 @@ import math
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from datetime import datetime, timezone
-from typing import Any
+from typing import Any, TypeGuard
 
 import numpy as np
 
@@ -63,7 +63,7 @@ class ReportContext:
     link_sheet: str | None = None  # sheet for links to data cells; defaults to data_sheet
     column_letters: dict[str, str] = field(default_factory=dict)
     observational: bool = True
-    samples: dict[tuple[str, str, str], dict[str, Sequence[float]]] = field(default_factory=dict)
+    samples: dict[tuple[str, str, str], Mapping[str, Sequence[float]]] = field(default_factory=dict)
     fingerprint: str = ""
 
     @classmethod
@@ -106,7 +106,7 @@ class ReportContext:
         del seconds  # the run time shown is the start time
         unit_map: dict[str, str] = dict(units or {})
         letters: dict[str, str] = {}
-        samples: dict[tuple[str, str, str], dict[str, Sequence[float]]] = {}
+        samples: dict[tuple[str, str, str], Mapping[str, Sequence[float]]] = {}
         if table is not None:
             for name, column in table.columns.items():
                 letters[name] = column.letter
@@ -146,7 +146,7 @@ def quote_sheet(name: str) -> str:
     return "'" + name.replace("'", "''") + "'"
 
 
-def _finite(value: Any) -> bool:
+def _finite(value: Any) -> TypeGuard[int | float]:
     return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
 
 
@@ -730,11 +730,11 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
 
 def _crosstab(result: Result) -> tuple[list[list[Any]], list[str], list[str]] | None:
     """The observed table of a two-categorical result, from ``extra`` (defensive about layout)."""
-    extra = result.extra if isinstance(result.extra, Mapping) else {}
+    extra: Mapping[str, Any] = result.extra if isinstance(result.extra, Mapping) else {}
     counts = result.shape.get("counts") if isinstance(result.shape, Mapping) else None
     if not isinstance(extra.get("observed"), (Mapping, Sequence)) and isinstance(counts, Mapping):
         extra = counts  # the engine's shape checks keep the table under "counts"
-    observed = extra.get("observed")
+    observed: Any = extra.get("observed")
     rows = extra.get("row_labels")
     cols = extra.get("col_labels")
     if isinstance(observed, Mapping):

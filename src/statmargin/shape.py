@@ -33,6 +33,7 @@ from __future__ import annotations
 import math
 import warnings
 from dataclasses import asdict, dataclass
+from typing import Any
 
 import numpy as np
 from scipy import stats
@@ -164,7 +165,7 @@ def _summarize(values, label: str) -> GroupSummary:
             skew = _float(stats.skew(x, bias=False))
         if n >= 4:
             kurt = _float(stats.kurtosis(x, bias=False, fisher=True))
-    base = dict(label=label, n=n, mean=float(np.mean(x)), sd=sd, median=median, q1=q1, q3=q3,
+    base: dict[str, Any] = dict(label=label, n=n, mean=float(np.mean(x)), sd=sd, median=median, q1=q1, q3=q3,
                 min=float(np.min(x)), max=float(np.max(x)), skewness=skew,
                 excess_kurtosis=kurt, n_outliers=n_out)
     if constant:

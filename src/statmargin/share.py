@@ -261,7 +261,7 @@ def _group_size(group: Mapping[str, Any]) -> Any:
 def _small_cells(result: Result, min_count: int) -> bool:
     """True when a categorical result has a cell or level count from 1 to N-1."""
     values: list[Any] = [_group_size(g) for g in result.groups if isinstance(g, Mapping)]
-    observed = result.extra.get("observed") if isinstance(result.extra, Mapping) else None
+    observed: Any = result.extra.get("observed") if isinstance(result.extra, Mapping) else None
     counts = result.shape.get("counts") if isinstance(result.shape, Mapping) else None
     if observed is None and isinstance(counts, Mapping):
         observed = counts.get("observed")
@@ -381,7 +381,7 @@ def suppress(items: Any, min_count: int = DEFAULT_MIN_COUNT) -> Any:
         return suppress_model(items, min_count)
     if isinstance(items, Result):
         return suppress_result(items, min_count)
-    out = []
+    out: list[SheetModel | Result] = []
     for item in items:
         if isinstance(item, SheetModel):
             out.append(suppress_model(item, min_count))

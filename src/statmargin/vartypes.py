@@ -264,7 +264,8 @@ def usable_values(column: Column, info: TypeInfo) -> ColumnValues:
             if outside.any():
                 excluded["not one of the listed levels"] = int(outside.sum())
                 usable &= ~outside
-                labels = np.where(usable, labels, None)
+                # numpy's stubs reject None as a fill value; at run time it fills an object array.
+                labels = np.where(usable, labels, None)  # type: ignore[call-overload]
         return ColumnValues(labels, usable, present, excluded)
     if kind is MeasureType.ORDINAL:
         if _is_numeric(column) and not (info.levels and not _levels_are_numbers(info.levels)):

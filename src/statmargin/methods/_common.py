@@ -143,7 +143,7 @@ def describe(label: str, values: np.ndarray) -> dict[str, Any]:
     """Per-group summary: label, n, mean, sd (n - 1 divisor), median."""
     n = int(values.size)
     mean = accurate_mean(values) if n else None
-    sd = math.sqrt(sum_of_squares(values, mean) / (n - 1)) if n >= 2 else None
+    sd = math.sqrt(sum_of_squares(values, mean) / (n - 1)) if mean is not None and n >= 2 else None
     median = float(np.median(values)) if n else None
     return {"label": str(label), "n": n, "mean": mean, "sd": sd, "median": median}
 

@@ -96,7 +96,7 @@ def _interval_followup(
 def _adjusted_followups(
     test: str,
     quantity: str,
-    rows: list[tuple[str, str, float, float, float | None]],
+    rows: Sequence[tuple[str, str, float, float, float | None]],
     adjust: AdjustMethod | str,
     alpha: float,
     intervals: list[tuple[float, float]] | None = None,

@@ -18,6 +18,7 @@ import html
 import posixpath
 import re
 import xml.etree.ElementTree as ET
+from collections.abc import Set as AbstractSet
 from dataclasses import dataclass, field
 
 from ..backend import TOOL_SHEET_MARKER
@@ -609,7 +610,7 @@ def _edit_workbook(
     removed_idx: list[int],
     new_sheets: list[tuple[str, str, int]],
     kinds: list[str],
-    unmark: set[int] = frozenset(),
+    unmark: AbstractSet[int] = frozenset(),
     titles: list[str | None] | None = None,
 ) -> bytes:
     """Cut removed <sheet> elements and their names, renumber, append new sheets and markers.
@@ -628,11 +629,11 @@ def _edit_workbook(
     n_kept = position
     # A replaced sheet's position passes to its replacement, so a user who was
     # looking at the results sheet sees the new one.
-    replacement_index = {
-        i: n_kept + kinds.index(sheets[i].tool_kind)
-        for i in removed
-        if sheets[i].tool_kind in kinds
-    }
+    replacement_index: dict[int, int] = {}
+    for i in removed:
+        tool_kind = sheets[i].tool_kind
+        if tool_kind is not None and tool_kind in kinds:
+            replacement_index[i] = n_kept + kinds.index(tool_kind)
     r_prefix = _rel_prefix(text)
 
     # Defined names first (offsets are recomputed after each structural edit).
@@ -645,11 +646,10 @@ def _edit_workbook(
         if index in removed or (index in unmark and attrs.get("name") == TOOL_SHEET_MARKER):
             return ""
         if new_index.get(index, index) != index:
-            return match.group(0).replace(
-                re.search(r"""localSheetId\s*=\s*["']\d+["']""", match.group(0)).group(0),
-                f'localSheetId="{new_index[index]}"',
-                1,
-            )
+            # localSheetId was just read from these attributes, so the search finds it.
+            found = re.search(r"""localSheetId\s*=\s*["']\d+["']""", match.group(0))
+            assert found is not None
+            return match.group(0).replace(found.group(0), f'localSheetId="{new_index[index]}"', 1)
         return match.group(0)
 
     pattern = re.compile(

@@ -12,6 +12,7 @@ import math
 import numbers
 import re
 from collections.abc import Callable
+from typing import TypeGuard
 
 from ..errors import WriteError
 from ..sheetmodel import SheetModel
@@ -146,7 +147,7 @@ def _number_text(value: float) -> str:
     return repr(float(value))
 
 
-def _is_number(value: object) -> bool:
+def _is_number(value: object) -> TypeGuard[numbers.Real]:
     return (
         isinstance(value, numbers.Real)
         and not isinstance(value, bool)
@@ -435,7 +436,7 @@ def _cell_xml(
     if isinstance(value, numbers.Integral):
         return head + f"><v>{int(value)}</v></c>"
     if _is_number(value):
-        number = float(value)  # type: ignore[arg-type]
+        number = float(value)
         if math.isnan(number):
             if on_note:
                 on_note(f"A missing number at {sheet}!{ref} was left empty.")

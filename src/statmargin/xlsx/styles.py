@@ -157,10 +157,10 @@ def add_styles(styles_xml: bytes) -> tuple[bytes, dict[str, int]]:
     existing_fmts: dict[str, int] = {}
     all_fmt_ids = [163]  # custom formats start at 164 (ECMA-376 Part 1, 18.8.30)
     for tag in re.finditer(r"<(?:\w+:)?numFmt\b([^>]*)>", text):
-        attrs = {k: html.unescape(a or b) for k, a, b in _ATTR.findall(tag.group(1))}
-        if attrs.get("numFmtId", "").isdigit():
-            all_fmt_ids.append(int(attrs["numFmtId"]))
-            existing_fmts.setdefault(attrs.get("formatCode", ""), int(attrs["numFmtId"]))
+        fmt_attrs = {k: html.unescape(a or b) for k, a, b in _ATTR.findall(tag.group(1))}
+        if fmt_attrs.get("numFmtId", "").isdigit():
+            all_fmt_ids.append(int(fmt_attrs["numFmtId"]))
+            existing_fmts.setdefault(fmt_attrs.get("formatCode", ""), int(fmt_attrs["numFmtId"]))
     next_fmt = max(all_fmt_ids) + 1
     new_fmts = []
     for key, code in CUSTOM_FORMATS.items():
