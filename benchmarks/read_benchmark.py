@@ -110,7 +110,7 @@ def bare_calamine(path: str) -> None:
 
 def statmargin_read(path: str) -> None:
     """Read all columns into a typed table."""
-    from statmargin.read import read_table
+    from statmargin.read.reader import read_table
 
     table = read_table(path, sheet="Visits")
     assert table.n_rows_read > 0  # a sanity check on the run, not a timing assertion

@@ -17,8 +17,8 @@ from pathlib import Path
 import openpyxl
 import xlsxwriter
 
-from statmargin.sheetmodel import SheetModel
-from statmargin.xlsxsink import FileSink
+from statmargin.io.file.sink import FileSink
+from statmargin.sheets.model import SheetModel
 
 SITES = ["North", "South", "East", "West", "Central"]
 

@@ -12,7 +12,7 @@ Run from the repository root::
     python demo_workbooks/make_demo_workbooks.py
 
 It writes ``demo_workbooks/*.xlsx`` and ``templates/statmargin_template.xlsx``,
-then asks ``statmargin.pipeline.plan_workbook`` to add a roles sheet with preset
+then asks ``statmargin.jobs.workbook.plan_workbook`` to add a roles sheet with preset
 choices to each demo (skipped with a printed line if that step is unavailable),
 and finally copies all three workbooks into ``src/statmargin/data/`` so they
 ship with the package.
@@ -574,9 +574,9 @@ def add_preset_roles(paths: dict[str, Path]) -> bool:
         True if both roles sheets were added; False (after printing why) otherwise.
     """
     try:
-        from statmargin.pipeline import plan_workbook
+        from statmargin.jobs.workbook import plan_workbook
     except ImportError as error:
-        print(f"Roles sheets not added: statmargin.pipeline is not available yet ({error}). "
+        print(f"Roles sheets not added: statmargin.jobs.workbook is not available yet ({error}). "
               "The raw demo workbooks were written; rerun this script once it exists.")
         return False
     try:

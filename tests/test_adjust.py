@@ -7,10 +7,10 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from reference_cases import cases_by_design, load_case
-from statmargin.adjust import adjust_p, adjust_results
 from statmargin.errors import OptionError
 from statmargin.results import Result
-from statmargin.roles import AdjustMethod
+from statmargin.stats.adjust import adjust_p, adjust_results
+from statmargin.vocabulary import AdjustMethod
 
 RAW = [0.01, 0.04, 0.03, 0.005]
 

@@ -20,11 +20,11 @@ from click.testing import CliRunner
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from statmargin import xlsxsink
 from statmargin.cli import main
 from statmargin.errors import EXIT_BUG
-from statmargin.roles_sheet import TABLE_HEADER_ROW
-from statmargin.xlsx.zipio import new_entry, read_zip, write_zip
+from statmargin.io.file import sink as xlsxsink
+from statmargin.io.file.zipio import new_entry, read_zip, write_zip
+from statmargin.plan.roles_sheet import TABLE_HEADER_ROW
 from workbook_edit import make_newcomer_workbook, set_roles
 
 INPUT, LOCKED, WRITE = 2, 3, 4

@@ -10,10 +10,10 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from statmargin.choose import DECISION_TABLE, choose_test
+from statmargin.designs.choose import DECISION_TABLE, choose_test
 from statmargin.results import DESIGNS, TESTS
-from statmargin.roles import MeasureType, ShapeHandling
-from statmargin.shape import SpreadCheck, assess
+from statmargin.stats.shape import SpreadCheck, assess
+from statmargin.vocabulary import MeasureType, ShapeHandling
 
 RNG = np.random.default_rng(20261202)
 NORMALISH = {"a": RNG.normal(10, 2, 30), "b": RNG.normal(12, 2, 30), "c": RNG.normal(11, 2, 30)}

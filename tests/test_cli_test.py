@@ -185,7 +185,7 @@ class TestErrors:
 
     def test_internal_error_is_one_line(self, book, monkeypatch):
         """An unexpected exception prints one bug line and exits 70; --debug shows the traceback."""
-        import statmargin.engine as engine
+        import statmargin.designs.engine as engine
 
         def broken(*args, **kwargs):
             raise ZeroDivisionError("boom")

@@ -26,13 +26,13 @@ from click.testing import CliRunner
 from scipy import stats
 
 from libreoffice import convert, find_soffice, require_soffice
-from statmargin import share
 from statmargin.cli import main
-from statmargin.demo import DEMO_WORKBOOKS, TEMPLATE, packaged_file
-from statmargin.pipeline import run_workbook
-from statmargin.xlsx.zipio import read_zip
-from statmargin.xlsxsink import FileSink
-from statmargin.xlsxsource import FileSource
+from statmargin.io.file.sink import FileSink
+from statmargin.io.file.source import FileSource
+from statmargin.io.file.zipio import read_zip
+from statmargin.jobs.demo import DEMO_WORKBOOKS, TEMPLATE, packaged_file
+from statmargin.jobs.workbook import run_workbook
+from statmargin.sheets import share
 from workbook_edit import results_records, sheet_rows, table_records, tool_sheet_name
 
 DEMO = "outreach_demo.xlsx"

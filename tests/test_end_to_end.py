@@ -22,8 +22,8 @@ from click.testing import CliRunner
 
 from libreoffice import convert, find_soffice, require_soffice
 from statmargin.cli import main
-from statmargin.xlsx.zipio import read_zip
-from statmargin.xlsxsource import FileSource
+from statmargin.io.file.source import FileSource
+from statmargin.io.file.zipio import read_zip
 from workbook_edit import (
     BLANK_WAIT_CELL,
     DIRTY_WAIT_CELLS,

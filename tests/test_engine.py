@@ -1,4 +1,4 @@
-"""The engine end to end through ``analyze`` (statmargin.engine).
+"""The engine end to end through ``analyze`` (statmargin.designs.engine).
 
 Numbers are checked against R 4.2.2 values in tests/reference/r_cases.json (each
 check names the R call); degenerate inputs are invented.
@@ -18,7 +18,7 @@ from hypothesis import strategies as st
 
 from statmargin import analyze
 from statmargin.errors import ColumnNotFoundError, OptionError, RoleError
-from statmargin.table import Table
+from statmargin.read.table import Table
 
 REF = Path(__file__).parent / "reference"
 CASES = {c["case_id"]: c for c in json.loads((REF / "r_cases.json").read_text())["cases"]}
@@ -352,8 +352,8 @@ def test_p_values_in_range_and_adjusted_not_smaller(a, b, c, method):
 class TestTypeOptions:
     def test_parse_treat_with_order(self):
         """--treat style overrides parse types and ordinal label orders."""
-        from statmargin.engine import parse_treat
-        from statmargin.roles import MeasureType
+        from statmargin.designs.engine import parse_treat
+        from statmargin.vocabulary import MeasureType
 
         got = parse_treat(["pain=ordinal:none,mild,severe", "site=categorical"])
         assert got == {"pain": (MeasureType.ORDINAL, ["none", "mild", "severe"]),
@@ -390,8 +390,8 @@ def test_run_plan_reports_progress_after_each_analysis():
     """run_plan calls the progress callback with (done, total) once per analysis, in order."""
     import pandas as pd
 
-    from statmargin.engine import build_plan, make_settings, run_plan
-    from statmargin.table import Table
+    from statmargin.designs.engine import build_plan, make_settings, run_plan
+    from statmargin.read.table import Table
 
     frame = pd.DataFrame(  # invented visits at two clinics
         {"site": ["A", "B"] * 6, "wait": [12, 20, 14, 22, 13, 25, 15, 21, 11, 24, 16, 23], "age": range(30, 42)}

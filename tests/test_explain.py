@@ -24,10 +24,11 @@ from result_builders import (
     sleep_welch_t,
     tukey_trt2_vs_trt1,
 )
-from statmargin import explain
-from statmargin import magnitude as mag
+from statmargin.plan.model import Settings
 from statmargin.results import Effect, Estimate, Followup, Result
-from statmargin.roles import AdjustMethod, Settings
+from statmargin.vocabulary import AdjustMethod
+from statmargin.words import explain
+from statmargin.words import magnitude as mag
 
 UNITS = {"mpg": "miles per gallon", "extra": "hours", "len": "mm", "weight": "g"}
 SETTINGS = Settings()

@@ -11,11 +11,11 @@ from __future__ import annotations
 import pandas as pd
 import pytest
 
-from statmargin.engine import make_settings, run_analysis
+from statmargin.designs.engine import make_settings, run_analysis
 from statmargin.errors import OptionError
-from statmargin.plan import Analysis
-from statmargin.read import first_data_sheet
-from statmargin.table import Table
+from statmargin.plan.expand import Analysis
+from statmargin.read.reader import first_data_sheet
+from statmargin.read.table import Table
 
 # Invented waits (minutes) at two invented sites.
 WAITS = Table.from_frame(

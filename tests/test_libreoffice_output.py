@@ -15,7 +15,7 @@ import pytest
 
 import libreoffice
 from libreoffice import convert, sheet_to_csv, soffice_fixture  # noqa: F401 - provides "soffice"
-from statmargin.xlsxsink import FileSink
+from statmargin.io.file.sink import FileSink
 from workbook_fixtures import DATA_SHEET, SECOND_SHEET, make_rich_workbook, sample_tool_models
 
 

@@ -13,7 +13,7 @@ from scipy import stats
 
 from reference_cases import load_case
 from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.methods import categorical as cat
+from statmargin.stats import categorical as cat
 
 REL_STAT = 1e-9
 REL_P = 1e-6

@@ -15,7 +15,7 @@ from hypothesis import strategies as st
 
 from reference_cases import assert_close, cases_by_design, load_case
 from statmargin.errors import NotEnoughDataError
-from statmargin.methods.correlation import pearson_r, spearman_rho
+from statmargin.stats.correlation import pearson_r, spearman_rho
 
 CASES = cases_by_design("two_continuous")
 TINY_P = 1e-90  # absolute floor: R's rho for `women` is 1 - 2e-16, so its p is 3.5e-101, ours 0

@@ -12,7 +12,7 @@ from scipy import stats
 
 from reference_cases import cases_by_design, load_case
 from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.methods import followup, twogroup
+from statmargin.stats import followup, twogroup
 
 MULTI = cases_by_design("multi_group_continuous")
 

@@ -13,8 +13,8 @@ from hypothesis import strategies as st
 
 from reference_cases import assert_close, cases_by_design, group_arrays, load_case
 from statmargin.errors import NotEnoughDataError
-from statmargin.methods.effects import omega_squared, variance_share_interval
-from statmargin.methods.multigroup import kruskal_wallis, one_way_anova, welch_anova
+from statmargin.stats.effects import omega_squared, variance_share_interval
+from statmargin.stats.multigroup import kruskal_wallis, one_way_anova, welch_anova
 
 CASES = cases_by_design("multi_group_continuous")
 TESTS = [("anova_oneway", one_way_anova), ("welch_anova", welch_anova), ("kruskal_wallis", kruskal_wallis)]

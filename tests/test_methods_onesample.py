@@ -16,7 +16,7 @@ from hypothesis import strategies as st
 
 from reference_cases import assert_close, cases_by_design, load_case
 from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.methods.onesample import one_sample_t, signed_rank_counts, wilcoxon_signed_rank
+from statmargin.stats.onesample import one_sample_t, signed_rank_counts, wilcoxon_signed_rank
 
 CASES = cases_by_design("one_sample_continuous")
 HL_TOLERANCE = 2e-4  # R finds approximate Hodges-Lehmann bounds with uniroot(tol = 1e-4)

@@ -13,7 +13,7 @@ from hypothesis import strategies as st
 
 from reference_cases import assert_close, cases_by_design, load_case, paired_arrays
 from statmargin.errors import NotEnoughDataError
-from statmargin.methods.paired import paired_t, wilcoxon_paired
+from statmargin.stats.paired import paired_t, wilcoxon_paired
 
 CASES = cases_by_design("paired_continuous")
 HL_TOLERANCE = 2e-4  # R finds approximate Hodges-Lehmann values with uniroot(tol = 1e-4)

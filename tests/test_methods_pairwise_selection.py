@@ -15,14 +15,14 @@ from hypothesis import strategies as st
 from scipy import stats
 
 from statmargin.errors import OptionError
-from statmargin.methods._common import (
+from statmargin.stats._common import (
     kth_pairwise_difference,
     kth_walsh_average,
     median_pairwise_difference,
     median_walsh_average,
 )
-from statmargin.methods.onesample import wilcoxon_signed_rank
-from statmargin.methods.twogroup import mann_whitney_u
+from statmargin.stats.onesample import wilcoxon_signed_rank
+from statmargin.stats.twogroup import mann_whitney_u
 
 # Small values on a coarse grid give many ties; the float grid (tenths) also exercises
 # rounding in the differences, which the selection must reproduce exactly.

@@ -17,7 +17,7 @@ from scipy import stats
 
 from reference_cases import assert_close, cases_by_design, group_arrays, load_case
 from statmargin.errors import NotEnoughDataError
-from statmargin.methods.twogroup import mann_whitney_u, rank_sum_counts, student_t, welch_t
+from statmargin.stats.twogroup import mann_whitney_u, rank_sum_counts, student_t, welch_t
 
 CASES = cases_by_design("two_group_continuous")
 HL_TOLERANCE = 2e-4  # R finds approximate Hodges-Lehmann values with uniroot(tol = 1e-4)

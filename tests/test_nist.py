@@ -18,8 +18,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from statmargin.methods.correlation import pearson_r
-from statmargin.methods.multigroup import one_way_anova
+from statmargin.stats.correlation import pearson_r
+from statmargin.stats.multigroup import one_way_anova
 
 NIST = Path(__file__).parent / "reference"
 ANOVA_FILES = sorted((NIST / "nist_anova").glob("*.dat"))

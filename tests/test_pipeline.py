@@ -15,10 +15,10 @@ import xlsxwriter
 
 from reference_cases import assert_close, load_case
 from statmargin.errors import ColumnNotFoundError, RoleError
-from statmargin.pipeline import plan_workbook, read_roles, run_workbook
-from statmargin.roles import Role
-from statmargin.roles_sheet import STATUS_MISSING, STATUS_NEW
-from statmargin.xlsxsource import FileSource
+from statmargin.io.file.source import FileSource
+from statmargin.jobs.workbook import plan_workbook, read_roles, run_workbook
+from statmargin.plan.roles_sheet import STATUS_MISSING, STATUS_NEW
+from statmargin.vocabulary import Role
 from workbook_edit import results_records, set_cells, set_roles, sheet_rows, table_records
 
 RTOL = 1e-9

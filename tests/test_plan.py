@@ -9,10 +9,11 @@ import pandas as pd
 import pytest
 
 from statmargin.errors import ColumnNotFoundError, OptionError, RoleError
-from statmargin.plan import expand, parse_against
-from statmargin.roles import ColumnChoice, MeasureType, Plan, Role
-from statmargin.table import Table
-from statmargin.vartypes import TypeInfo
+from statmargin.plan.expand import expand, parse_against
+from statmargin.plan.model import ColumnChoice, Plan
+from statmargin.plan.types import TypeInfo
+from statmargin.read.table import Table
+from statmargin.vocabulary import MeasureType, Role
 
 CONT = TypeInfo(MeasureType.CONTINUOUS)
 ABC = TypeInfo(MeasureType.CATEGORICAL, 3, ("A", "B", "C"))

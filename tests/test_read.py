@@ -17,7 +17,6 @@ import numpy as np
 import pytest
 import xlsxwriter
 
-from statmargin import read
 from statmargin.errors import (
     ColumnNotFoundError,
     NotEnoughDataError,
@@ -25,15 +24,16 @@ from statmargin.errors import (
     SheetNotFoundError,
     WorkbookError,
 )
-from statmargin.read import (
+from statmargin.io.file.source import FileSource
+from statmargin.read import reader as read
+from statmargin.read.reader import (
     first_data_sheet,
     parse_text_number,
     read_header,
     read_table,
     sample_values,
 )
-from statmargin.table import NoteKind
-from statmargin.xlsxsource import FileSource
+from statmargin.read.table import NoteKind
 
 
 def build(path: Path, cells: dict[str, object], *, sheet: str = "Visits", extra=None) -> Path:

@@ -23,12 +23,13 @@ from result_builders import (
     sleep_welch_t,
     tukey_trt2_vs_trt1,
 )
-from statmargin import explain, report
-from statmargin.report import ReportContext
+from statmargin.plan.model import Settings
+from statmargin.read.table import DataNote, NoteKind, Table, column_index
 from statmargin.results import Estimate, Result
-from statmargin.roles import Settings
-from statmargin.sheetmodel import STYLES, SheetModel
-from statmargin.table import DataNote, NoteKind, Table, column_index
+from statmargin.sheets import report
+from statmargin.sheets.model import STYLES, SheetModel
+from statmargin.sheets.report import ReportContext
+from statmargin.words import explain
 
 DATA = Path(__file__).parent / "reference" / "data"
 RUN_TIME = datetime(2026, 12, 2, 3, 0, 0, tzinfo=timezone.utc)
@@ -612,7 +613,7 @@ def test_incomplete_pairs_reach_the_notes_sheet() -> None:
 
 def test_sheets_from_the_engine_on_r_data() -> None:
     """End to end on PlantGrowth: the engine's results become linked, charted sheets."""
-    from statmargin.engine import analyze
+    from statmargin.designs.engine import analyze
 
     table = Table.from_frame(
         pd.read_csv(DATA / "plantgrowth_weight_by_group.csv"), sheet="Plant data"

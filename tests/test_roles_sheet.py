@@ -3,23 +3,15 @@
 import pytest
 
 from statmargin.errors import RoleError
-from statmargin.roles import (
-    AdjustMethod,
-    Alternative,
-    ColumnChoice,
-    MeasureType,
-    Plan,
-    Role,
-    Settings,
-    ShapeHandling,
-)
-from statmargin.roles_sheet import (
+from statmargin.plan.model import ColumnChoice, Plan, Settings
+from statmargin.plan.roles_sheet import (
     HEADERS,
     STATUS_MISSING,
     ColumnFacts,
     build_roles_sheet,
     parse_roles_sheet,
 )
+from statmargin.vocabulary import AdjustMethod, Alternative, MeasureType, Role, ShapeHandling
 
 FACTS = [
     ColumnFacts("Site", "A", "categorical", "North, South", 0, 0),

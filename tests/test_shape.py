@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from statmargin.shape import (
+from statmargin.stats.shape import (
     SHAPE_RULES,
     assess,
     count_check,

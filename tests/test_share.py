@@ -25,12 +25,13 @@ from result_builders import (
     mtcars_cyl_by_gear,
     mtcars_cyl_shares,
 )
-from statmargin import explain, report, share
 from statmargin.errors import OptionError
-from statmargin.report import ReportContext
+from statmargin.plan.model import Settings
 from statmargin.results import Effect, Estimate, Result
-from statmargin.roles import Settings
-from statmargin.sheetmodel import SheetModel
+from statmargin.sheets import report, share
+from statmargin.sheets.model import SheetModel
+from statmargin.sheets.report import ReportContext
+from statmargin.words import explain
 
 DATA = Path(__file__).parent / "reference" / "data"
 
@@ -401,8 +402,8 @@ def test_share_run_of_a_tiny_group_leaves_no_small_count_in_any_text(tmp_path: P
     """A --share run where one site has 3 records: no text cell on a tool sheet quotes a count under 11."""
     import openpyxl
 
-    from statmargin.demo import packaged_file
-    from statmargin.pipeline import run_workbook
+    from statmargin.jobs.demo import packaged_file
+    from statmargin.jobs.workbook import run_workbook
 
     # The bundled outreach workbook (invented data) with one site cut to 3 records.
     book = openpyxl.load_workbook(packaged_file("outreach_demo.xlsx"))

@@ -1,7 +1,7 @@
-"""Measurement-type inference and usable values (statmargin.vartypes).
+"""Measurement-type inference and usable values (statmargin.plan.types).
 
 The data here are invented small columns; the rules checked are the documented
-ones in statmargin/vartypes.py (common practice, no single source).
+ones in statmargin/plan/types.py (common practice, no single source).
 """
 
 from __future__ import annotations
@@ -11,9 +11,10 @@ import pandas as pd
 import pytest
 
 from statmargin.errors import RoleError
-from statmargin.roles import ColumnChoice, MeasureType
-from statmargin.table import Column, Table
-from statmargin.vartypes import infer_type, usable_values
+from statmargin.plan.model import ColumnChoice
+from statmargin.plan.types import infer_type, usable_values
+from statmargin.read.table import Column, Table
+from statmargin.vocabulary import MeasureType
 
 
 def col(values, name: str = "x") -> Column:

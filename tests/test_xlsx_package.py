@@ -19,9 +19,9 @@ import openpyxl
 import pytest
 
 from statmargin.errors import WriteError
-from statmargin.sheetmodel import STYLES, Chart, ChartSeries, SheetModel, Validation
-from statmargin.xlsx import charts, package, sheetxml, styles
-from statmargin.xlsx.zipio import read_zip, write_zip
+from statmargin.io.file import charts, package, sheetxml, styles
+from statmargin.io.file.zipio import read_zip, write_zip
+from statmargin.sheets.model import STYLES, Chart, ChartSeries, SheetModel, Validation
 from workbook_fixtures import make_rich_workbook
 
 MAIN = "{http://schemas.openxmlformats.org/spreadsheetml/2006/main}"
@@ -431,7 +431,7 @@ class TestPackage:
 
 def _rewrite(path: Path, changes: dict[str, bytes]) -> None:
     """Replace or add parts of a package on disk (test helper)."""
-    from statmargin.xlsx.zipio import new_entry
+    from statmargin.io.file.zipio import new_entry
 
     entries = [e for e in read_zip(path.read_bytes()) if e.name not in changes]
     entries += [new_entry(name, data) for name, data in changes.items()]
@@ -440,7 +440,7 @@ def _rewrite(path: Path, changes: dict[str, bytes]) -> None:
 
 class TestRemovalOfEarlierSheets:
     def _written(self, tmp_path: Path) -> tuple[Path, dict]:
-        from statmargin.xlsxsink import FileSink
+        from statmargin.io.file.sink import FileSink
         from workbook_fixtures import sample_tool_models
 
         path = make_rich_workbook(tmp_path / "rich.xlsx")
@@ -450,7 +450,7 @@ class TestRemovalOfEarlierSheets:
 
     def test_calc_chain_naming_a_removed_sheet_is_dropped(self, tmp_path: Path) -> None:
         """A calcChain entry for a replaced tool sheet's sheetId makes the writer drop calcChain.xml with its rel and override."""
-        from statmargin.xlsxsink import FileSink
+        from statmargin.io.file.sink import FileSink
         from workbook_fixtures import sample_tool_models
 
         path, parts = self._written(tmp_path)
@@ -492,7 +492,7 @@ class TestRemovalOfEarlierSheets:
 
     def test_part_shared_with_a_user_sheet_is_kept(self, tmp_path: Path) -> None:
         """A part a replaced tool sheet refers to is kept when a user part still refers to it; the tool sheet's own rels go."""
-        from statmargin.xlsxsink import FileSink
+        from statmargin.io.file.sink import FileSink
         from workbook_fixtures import sample_tool_models
 
         path, parts = self._written(tmp_path)
@@ -527,7 +527,7 @@ class TestRemovalOfEarlierSheets:
 
     def test_a_copied_tool_sheet_is_kept_as_the_users(self, tmp_path: Path) -> None:
         """A second sheet carrying the results marker (a copy made by the user) is kept and loses the marker."""
-        from statmargin.xlsxsink import FileSink
+        from statmargin.io.file.sink import FileSink
         from workbook_fixtures import SECOND_SHEET, sample_tool_models
 
         path, parts = self._written(tmp_path)
@@ -547,7 +547,7 @@ class TestRemovalOfEarlierSheets:
 
     def test_active_replaced_sheet_stays_active(self, tmp_path: Path) -> None:
         """When the replaced results sheet was the active tab, its replacement becomes the active tab."""
-        from statmargin.xlsxsink import FileSink
+        from statmargin.io.file.sink import FileSink
         from workbook_fixtures import sample_tool_models
 
         path, parts = self._written(tmp_path)
@@ -645,7 +645,7 @@ class TestPrintSettings:
         printed.name = "printed"
         fitted = SheetModel("fitted", "shape", fit_to_width=True)
         fitted.put(0, 0, "x")
-        from statmargin.xlsxsink import FileSink
+        from statmargin.io.file.sink import FileSink
 
         printed.cells[(1, 0)].link = None  # no shape sheet in this workbook
         FileSink(path).write_sheets([printed, fitted])
@@ -672,8 +672,8 @@ def test_print_titles_are_written_and_replaced_on_rerun(tmp_path):
     """A model's print titles become one sheet-scoped _xlnm.Print_Titles name, not duplicated by a re-run."""
     import zipfile
 
-    from statmargin.sheetmodel import SheetModel
-    from statmargin.xlsxsink import FileSink
+    from statmargin.io.file.sink import FileSink
+    from statmargin.sheets.model import SheetModel
 
     path = make_rich_workbook(tmp_path / "book.xlsx")
     model = SheetModel(name="results", kind="results")

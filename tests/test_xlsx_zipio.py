@@ -15,7 +15,7 @@ import zlib
 import pytest
 
 from statmargin.errors import WorkbookError, WriteError
-from statmargin.xlsx.zipio import new_entry, read_zip, write_zip
+from statmargin.io.file.zipio import new_entry, read_zip, write_zip
 
 CONTENT = {
     "[Content_Types].xml": b"<Types/>" * 20,

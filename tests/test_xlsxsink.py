@@ -16,11 +16,11 @@ import openpyxl
 import pytest
 import python_calamine
 
-from statmargin import xlsxsink
 from statmargin.errors import WorkbookError, WorkbookLockedError, WriteError
-from statmargin.sheetmodel import SheetModel
-from statmargin.xlsx.zipio import read_zip
-from statmargin.xlsxsink import FileSink
+from statmargin.io.file import sink as xlsxsink
+from statmargin.io.file.sink import FileSink
+from statmargin.io.file.zipio import read_zip
+from statmargin.sheets.model import SheetModel
 from workbook_fixtures import (
     DATA_SHEET,
     SECOND_SHEET,
@@ -366,8 +366,8 @@ def test_results_print_plain_columns_first_in_libreoffice(tmp_path: Path) -> Non
     import subprocess
 
     from libreoffice import convert, require_soffice
-    from statmargin import report
     from statmargin.results import Estimate, Result
+    from statmargin.sheets import report
 
     soffice = require_soffice()
     import shutil

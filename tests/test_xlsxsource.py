@@ -1,4 +1,4 @@
-"""Tests for the workbook file source (statmargin.xlsxsource).
+"""Tests for the workbook file source (statmargin.io.file.source).
 
 Workbooks are built with xlsxwriter in tmp_path from invented values; a few are
 then edited inside the zip to produce what xlsxwriter cannot write directly
@@ -15,10 +15,10 @@ from pathlib import Path
 import pytest
 import xlsxwriter
 
-from statmargin import xlsxsource
-from statmargin.backend import TableRange
 from statmargin.errors import SheetNotFoundError, WorkbookError
-from statmargin.xlsxsource import ERROR_ISSUE, NO_VALUE_ISSUE, FileSource, parse_ref
+from statmargin.io.file import source as xlsxsource
+from statmargin.io.file.source import ERROR_ISSUE, NO_VALUE_ISSUE, FileSource, parse_ref
+from statmargin.io.protocol import TableRange
 
 
 def rewrite_part(path: Path, part: str, edit) -> None:

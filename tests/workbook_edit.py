@@ -20,8 +20,8 @@ import numpy as np
 import xlsxwriter
 from python_calamine import CalamineWorkbook
 
-from statmargin.roles_sheet import HEADERS, SHEET_NAME
-from statmargin.xlsx.zipio import ZipEntry, new_entry, read_zip, write_zip
+from statmargin.io.file.zipio import ZipEntry, new_entry, read_zip, write_zip
+from statmargin.plan.roles_sheet import HEADERS, SHEET_NAME
 
 NEWCOMER_SHEET = "Visits"
 NEWCOMER_TABLE = "VisitTable"
@@ -223,7 +223,7 @@ def set_roles(path: str | Path, choices: Mapping[str, Mapping[str, Any]], *, she
 
 def tool_sheet_name(path: str | Path, kind: str) -> str:
     """The tab name of the tool sheet of one kind ("roles", "results", "shape", "notes", "log")."""
-    from statmargin.xlsxsource import FileSource
+    from statmargin.io.file.source import FileSource
 
     names = [name for name, k in FileSource(path).tool_sheets().items() if k == kind]
     if len(names) != 1:

@@ -170,7 +170,7 @@ def sample_tool_models():
         A "results" sheet (numbers, p-values, wrapped text, links, a dropdown,
         a formula-looking string) and a "charts" sheet with one chart of each kind.
     """
-    from statmargin.sheetmodel import Chart, ChartSeries, SheetModel, Validation
+    from statmargin.sheets.model import Chart, ChartSeries, SheetModel, Validation
 
     results = SheetModel(
         name="results", kind="results", widths={0: 28, 1: 12, 2: 12, 3: 50}, freeze=(3, 0)

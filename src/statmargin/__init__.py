@@ -13,12 +13,12 @@ and the workbook jobs mirror ``statmargin plan`` and ``statmargin run``::
 
 from . import errors
 from ._version import __version__
-from .engine import analyze
-from .pipeline import plan_workbook, run_workbook
-from .read import read_table
+from .designs.engine import analyze
+from .jobs.workbook import plan_workbook, run_workbook
+from .plan.model import Plan
+from .read.reader import read_table
+from .read.table import Table
 from .results import Effect, Estimate, Followup, Result
-from .roles import Plan
-from .table import Table
 
 __all__ = [
     "Effect",

@@ -183,9 +183,9 @@ def test_command(workbook: Path, sheet: str | None, outcomes: tuple[str, ...], b
 
     Example: statmargin test clinics.xlsx --outcome wait_minutes --by site --json results.json
     """
-    from .engine import build_plan, make_settings, parse_treat, run_plan
-    from .explain import apply as explain_results
-    from .read import read_table
+    from .designs.engine import build_plan, make_settings, parse_treat, run_plan
+    from .read.reader import read_table
+    from .words.explain import apply as explain_results
 
     if not (bys or against is not None or paired_with):
         raise errors.OptionError(
@@ -279,8 +279,8 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 
     Example: statmargin plan clinics.xlsx --outcome wait_minutes --by site
     """
-    from .engine import parse_treat
-    from .pipeline import plan_workbook
+    from .designs.engine import parse_treat
+    from .jobs.workbook import plan_workbook
 
     check_json_target(json_path, workbook, out)
     types, orders = {}, {}
@@ -329,7 +329,7 @@ def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | 
 
     Example: statmargin run clinics.xlsx --out clinics-results.xlsx
     """
-    from .pipeline import run_workbook
+    from .jobs.workbook import run_workbook
 
     if min_count is not None and not share:
         raise errors.OptionError("--min-count goes with --share; add --share or drop --min-count.")
@@ -354,7 +354,7 @@ def demo_command(folder: Path, quiet: bool) -> None:
 
     Example: statmargin demo statmargin-demo
     """
-    from .demo import run_demo
+    from .jobs.demo import run_demo
 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")

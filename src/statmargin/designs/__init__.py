@@ -1,0 +1,1 @@
+"""Designs: how each kind of question is prepared, which test it takes and how it is run."""

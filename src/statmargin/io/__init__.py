@@ -1,0 +1,1 @@
+"""Workbook back ends behind one protocol: the file back end, the in-memory one (and the Excel bridge)."""

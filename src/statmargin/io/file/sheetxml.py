@@ -1,0 +1,484 @@
+"""Render a ``SheetModel`` as SpreadsheetML worksheet XML.
+
+Text goes into the cell itself (``t="inlineStr"``) so the workbook's shared
+string table is never touched. Text is always text: a value beginning with
+``=``, ``+``, ``-`` or ``@`` is written as a string, never as a formula.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+import numbers
+import re
+from collections.abc import Callable
+from typing import TypeGuard
+
+from ...errors import WriteError
+from ...sheets.model import SheetModel
+from .styles import LOOKS
+
+MAIN_NS = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
+REL_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
+
+# Characters XML 1.0 forbids (section 2.2), plus lone surrogates.
+_ILLEGAL_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff\ud800-\udfff]")
+# Spreadsheet programs decode "_xHHHH_" in cell text as a character escape
+# (ECMA-376 Part 1, 22.9.2.19 ST_Xstring), so a literal one is protected by
+# escaping its leading underscore as _x005F_.
+_XSTRING_ESCAPE = re.compile(r"_(x[0-9A-Fa-f]{4}_)")
+_PLACEHOLDER = re.compile(r"\{([A-Za-z0-9_]+)\}")
+_CELL_REF = re.compile(r"^\$?([A-Za-z]{1,3})\$?(\d+)$")
+_EXCEL_EPOCH = dt.datetime(1899, 12, 30)
+_EXCEL_EPOCH_1904 = dt.datetime(1904, 1, 1)
+DEFAULT_COLUMN_WIDTH = 8.43
+LINE_HEIGHT = 15.0
+# Characters of ordinary text per unit of column width (one unit is the width of
+# a digit); kept a little low so estimated rows err on the tall side.
+CHARS_PER_WIDTH = 1.2
+BOLD_CHARS_PER_WIDTH = 1.05
+MAX_ROW_HEIGHT = 409.0
+# Excel's limit on a list validation written inline (ECMA-376 leaves it open;
+# Excel refuses longer lists: common practice, Microsoft support article
+# "Apply data validation to cells").
+MAX_LIST_CHARS = 255
+
+
+def clean_text(text: str) -> str:
+    """Strip characters XML 1.0 cannot carry and protect literal ``_xHHHH_`` runs.
+
+    Parameters
+    ----------
+    text : str
+        Any text.
+
+    Returns
+    -------
+    str
+        Text safe to escape into an XML element.
+    """
+    return _XSTRING_ESCAPE.sub(r"_x005F_\1", _ILLEGAL_XML.sub("", text))
+
+
+def escape(text: str) -> str:
+    """Escape text for XML element content or a double-quoted attribute."""
+    return (
+        _ILLEGAL_XML.sub("", text)
+        .replace("&", "&amp;")
+        .replace("<", "&lt;")
+        .replace(">", "&gt;")
+        .replace('"', "&quot;")
+    )
+
+
+def column_letter(index: int) -> str:
+    """Column letters for a 0-based column index (0 -> A, 26 -> AA)."""
+    letters = ""
+    index += 1
+    while index:
+        index, rem = divmod(index - 1, 26)
+        letters = chr(65 + rem) + letters
+    return letters
+
+
+def cell_ref(row: int, col: int) -> str:
+    """A1-style reference for 0-based row and column."""
+    return f"{column_letter(col)}{row + 1}"
+
+
+def parse_cell_ref(ref: str) -> tuple[int, int]:
+    """0-based (row, col) of an A1-style reference such as ``"$H$3"``.
+
+    Raises
+    ------
+    WriteError
+        If the text is not a single cell reference.
+    """
+    match = _CELL_REF.match(ref.strip())
+    if not match:
+        raise WriteError(
+            f"'{ref}' is not a cell reference such as H3; the file was left as it was."
+        )
+    col = 0
+    for ch in match.group(1).upper():
+        col = col * 26 + ord(ch) - 64
+    return int(match.group(2)) - 1, col - 1
+
+
+def quote_sheet(name: str) -> str:
+    """A sheet name as it appears in a reference: always quoted, quotes doubled."""
+    return "'" + name.replace("'", "''") + "'"
+
+
+def resolve_link(link: str, kind_to_name: dict[str, str]) -> str:
+    """Replace ``{kind}`` placeholders with the final quoted tool sheet name.
+
+    Parameters
+    ----------
+    link : str
+        A target such as ``"'Data'!C17"`` or ``"{shape}!A40"``.
+    kind_to_name : dict
+        Sheet kind -> final sheet name, for every tool sheet in the workbook.
+
+    Returns
+    -------
+    str
+        The target with placeholders resolved.
+
+    Raises
+    ------
+    WriteError
+        If a placeholder names a kind with no sheet.
+    """
+
+    def replace(match: re.Match[str]) -> str:
+        kind = match.group(1)
+        if kind not in kind_to_name:
+            raise WriteError(
+                f"A link points to the '{kind}' sheet, which is not being written and not in the workbook; the file was left as it was."
+            )
+        return quote_sheet(kind_to_name[kind])
+
+    return _PLACEHOLDER.sub(replace, link)
+
+
+def _number_text(value: float) -> str:
+    # repr gives the shortest text that reads back to the same double.
+    return repr(float(value))
+
+
+def _is_number(value: object) -> TypeGuard[numbers.Real]:
+    return (
+        isinstance(value, numbers.Real)
+        and not isinstance(value, bool)
+        and type(value).__name__ != "bool_"
+    )
+
+
+def render_sheet(
+    model: SheetModel,
+    style_index: dict[str, int],
+    kind_to_name: dict[str, str],
+    *,
+    drawing_rel_id: str | None = None,
+    date1904: bool = False,
+    on_note: Callable[[str], None] | None = None,
+) -> bytes:
+    """Worksheet XML for a sheet model.
+
+    Parameters
+    ----------
+    model : SheetModel
+        The sheet to render.
+    style_index : dict
+        Style key -> cell format index, from :func:`statmargin.io.file.styles.add_styles`.
+    kind_to_name : dict
+        Sheet kind -> final sheet name, for resolving ``{kind}`` link targets.
+    drawing_rel_id : str, optional
+        Relationship id of the sheet's drawing part, when it has charts.
+    date1904 : bool
+        Whether the workbook counts dates from 1904 (old Mac workbooks).
+    on_note : callable, optional
+        Called with a sentence for each value that could not be written as is.
+
+    Returns
+    -------
+    bytes
+        UTF-8 worksheet XML.
+
+    Raises
+    ------
+    WriteError
+        If a style key, link or validation cannot be written.
+
+    Notes
+    -----
+    Numbers keep full double precision; the cell format decides what is shown.
+    NaN becomes an empty (styled) cell and infinities become the text "inf" /
+    "-inf", because the file format has no non-finite numbers.
+    """
+    rows: dict[int, list[int]] = {}
+    for row, col in model.cells:
+        if row < 0 or col < 0 or row >= 1_048_576 or col >= 16_384:
+            raise WriteError(
+                f"Cell ({row}, {col}) on sheet {model.name} is outside a worksheet; the file was left as it was."
+            )
+        rows.setdefault(row, []).append(col)
+
+    parts: list[str] = [
+        '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n',
+        f'<worksheet xmlns="{MAIN_NS}" xmlns:r="{REL_NS}">',
+    ]
+    if model.fit_to_width:
+        # sheetPr is the first child of worksheet (ECMA-376 Part 1, 18.3.1.99).
+        parts.append('<sheetPr><pageSetUpPr fitToPage="1"/></sheetPr>')
+    n_rows, n_cols = model.n_rows, model.n_cols
+    dimension = "A1" if not model.cells else f"A1:{cell_ref(n_rows - 1, n_cols - 1)}"
+    parts.append(f'<dimension ref="{dimension}"/>')
+    parts.append(_sheet_views(model))
+    parts.append('<sheetFormatPr defaultRowHeight="15"/>')
+    if model.widths:
+        parts.append("<cols>")
+        for col in sorted(model.widths):
+            width = float(model.widths[col])
+            parts.append(
+                f'<col min="{col + 1}" max="{col + 1}" width="{width:g}" customWidth="1"/>'
+            )
+        parts.append("</cols>")
+
+    heights = wrapped_row_heights(model)
+    hyperlinks: list[str] = []
+    parts.append("<sheetData>")
+    for row in sorted(rows):
+        height = heights.get(row)
+        if height:
+            parts.append(f'<row r="{row + 1}" ht="{height:g}" customHeight="1">')
+        else:
+            parts.append(f'<row r="{row + 1}">')
+        for col in sorted(rows[row]):
+            cell = model.cells[(row, col)]
+            if cell.style not in style_index:
+                raise WriteError(
+                    f"Unknown style '{cell.style}' on sheet {model.name}; the file was left as it was."
+                )
+            ref = cell_ref(row, col)
+            parts.append(
+                _cell_xml(ref, cell.value, style_index[cell.style], date1904, model.name, on_note)
+            )
+            if cell.link:
+                location = resolve_link(cell.link, kind_to_name)
+                display = "" if cell.value is None else str(cell.value)
+                hyperlinks.append(
+                    f'<hyperlink ref="{ref}" location="{escape(location)}" display="{escape(display)}"/>'
+                )
+        parts.append("</row>")
+    parts.append("</sheetData>")
+
+    if model.merged:
+        parts.append(f'<mergeCells count="{len(model.merged)}">')
+        parts.extend(f'<mergeCell ref="{escape(ref)}"/>' for ref in model.merged)
+        parts.append("</mergeCells>")
+    if model.validations:
+        parts.append(f'<dataValidations count="{len(model.validations)}">')
+        parts.extend(_validation_xml(v, model.name) for v in model.validations)
+        parts.append("</dataValidations>")
+    if hyperlinks:
+        parts.append("<hyperlinks>")
+        parts.extend(hyperlinks)
+        parts.append("</hyperlinks>")
+    parts.append(
+        '<pageMargins left="0.7" right="0.7" top="0.75" bottom="0.75" header="0.3" footer="0.3"/>'
+    )
+    parts.extend(print_settings_xml(model))
+    if drawing_rel_id:
+        parts.append(f'<drawing r:id="{drawing_rel_id}"/>')
+    parts.append("</worksheet>")
+    return "".join(parts).encode("utf-8")
+
+
+def print_settings_xml(model: SheetModel) -> list[str]:
+    """The pageSetup, headerFooter and colBreaks elements of a sheet, in schema order.
+
+    Parameters
+    ----------
+    model : SheetModel
+        Its ``landscape``, ``print_scale``, ``fit_to_width``, ``page_numbers`` and
+        ``column_breaks``.
+
+    Returns
+    -------
+    list of str
+        XML fragments to place after ``pageMargins`` and before ``drawing``.
+
+    Notes
+    -----
+    CT_Worksheet (ECMA-376 Part 1, 18.3.1.99) orders these children as
+    ... hyperlinks, printOptions, pageMargins, pageSetup, headerFooter,
+    rowBreaks, colBreaks, ..., drawing; Excel refuses a sheet whose children
+    are out of order. ``fitToHeight="0"`` means "as many pages tall as needed"
+    (18.3.1.63); ``scale`` is a percentage from 10 to 400. A ``brk`` id is the 0-based column left of which the page
+    breaks (18.3.1.2), and ``max`` its last row (1048575 is the whole column).
+    Header/footer text uses codes (18.3.1.46): ``&L``/``&R`` left/right part,
+    ``&A`` sheet name, ``&P`` page, ``&N`` page count.
+    """
+    parts: list[str] = []
+    attrs = []
+    if model.landscape:
+        attrs.append('orientation="landscape"')
+    if model.print_scale is not None and not model.fit_to_width:
+        attrs.append(f'scale="{min(400, max(10, int(model.print_scale)))}"')
+    if model.fit_to_width:
+        attrs.append('fitToWidth="1" fitToHeight="0"')
+    if attrs:
+        parts.append(f"<pageSetup {' '.join(attrs)}/>")
+    if model.page_numbers:
+        parts.append(
+            "<headerFooter><oddFooter>"
+            + escape("&L&A&RPage &P of &N")
+            + "</oddFooter></headerFooter>"
+        )
+    breaks = sorted({int(c) for c in model.column_breaks if 0 < int(c) < 16_384})
+    if breaks:
+        parts.append(f'<colBreaks count="{len(breaks)}" manualBreakCount="{len(breaks)}">')
+        parts.extend(f'<brk id="{c}" max="1048575" man="1"/>' for c in breaks)
+        parts.append("</colBreaks>")
+    return parts
+
+
+def _wrapped_lines(text: str, chars_per_line: int) -> int:
+    """Lines a text takes when wrapped greedily at word boundaries."""
+    total = 0
+    for paragraph in text.split("\n"):
+        lines, used = 1, 0
+        for word in paragraph.split():
+            length = len(word)
+            if used and used + 1 + length > chars_per_line:
+                lines += 1
+                used = 0
+            # A word longer than a line is broken across lines.
+            while length > chars_per_line:
+                lines += 1
+                length -= chars_per_line
+            used = length if used == 0 else used + 1 + length
+        total += lines
+    return total
+
+
+def wrapped_row_heights(model: SheetModel) -> dict[int, float]:
+    """Row heights (points) for rows whose wrapped text needs more than one line.
+
+    Parameters
+    ----------
+    model : SheetModel
+        The sheet.
+
+    Returns
+    -------
+    dict
+        0-based row -> height in points, only for rows that need more than one line.
+
+    Notes
+    -----
+    Not every spreadsheet program fits row heights to wrapped text when it opens
+    a file, so the writer sets them. The estimate errs on the tall side: a
+    column (or merged range) of width w (in digit widths) is taken to hold about
+    1.2 w characters of ordinary text (1.05 w in bold), and a line is 15 points
+    for the 11-point default font. Rendered with LibreOffice, a 40-wide column
+    held 45 to 50 characters of plain sentences a line (our measurement).
+    The default column width 8.43 is Excel's for an 11-point Calibri workbook
+    (common practice; value recalled from Excel's column width documentation,
+    from memory). Row height is capped at 409 points, Excel's maximum
+    (Microsoft, Excel specifications and limits).
+    """
+    spans: dict[tuple[int, int], list[int]] = {}
+    for ref in model.merged:
+        if ":" not in ref:
+            continue
+        (r1, c1), (r2, c2) = (parse_cell_ref(part) for part in ref.split(":", 1))
+        spans[(r1, c1)] = [] if r1 != r2 else list(range(c1, c2 + 1))
+        for r in range(r1, r2 + 1):
+            for c in range(c1, c2 + 1):
+                if (r, c) != (r1, c1):
+                    spans[(r, c)] = []
+    heights: dict[int, float] = {}
+    for (row, col), cell in model.cells.items():
+        look = LOOKS.get(cell.style, LOOKS["text"])
+        if not look.wrap or not isinstance(cell.value, str):
+            continue
+        columns = spans.get((row, col), [col])
+        if not columns:  # inside a merge over several rows: leave it alone
+            continue
+        width = sum(float(model.widths.get(c, DEFAULT_COLUMN_WIDTH)) for c in columns)
+        # Bold letters are wider, so a bold line holds fewer of them.
+        per_width = BOLD_CHARS_PER_WIDTH if look.font.bold else CHARS_PER_WIDTH
+        lines = _wrapped_lines(cell.value, max(1, int(width * per_width)))
+        if lines > 1:
+            heights[row] = min(MAX_ROW_HEIGHT, max(heights.get(row, 0.0), lines * LINE_HEIGHT))
+    return heights
+
+
+def _sheet_views(model: SheetModel) -> str:
+    if not model.freeze or model.freeze == (0, 0):
+        return '<sheetViews><sheetView workbookViewId="0"/></sheetViews>'
+    rows, cols = model.freeze
+    top_left = cell_ref(rows, cols)
+    if rows and cols:
+        pane_name = "bottomRight"
+    elif rows:
+        pane_name = "bottomLeft"
+    else:
+        pane_name = "topRight"
+    split = (f' xSplit="{cols}"' if cols else "") + (f' ySplit="{rows}"' if rows else "")
+    return (
+        '<sheetViews><sheetView workbookViewId="0">'
+        f'<pane{split} topLeftCell="{top_left}" activePane="{pane_name}" state="frozen"/>'
+        f'<selection pane="{pane_name}" activeCell="{top_left}" sqref="{top_left}"/>'
+        "</sheetView></sheetViews>"
+    )
+
+
+def _cell_xml(
+    ref: str,
+    value: object,
+    style: int,
+    date1904: bool,
+    sheet: str,
+    on_note: Callable[[str], None] | None,
+) -> str:
+    head = f'<c r="{ref}" s="{style}"'
+    if value is None:
+        return head + "/>"
+    if isinstance(value, bool) or type(value).__name__ == "bool_":
+        return head + f' t="b"><v>{int(bool(value))}</v></c>'
+    if isinstance(value, numbers.Integral) and abs(int(value)) > 2**53:
+        # Beyond double precision: keep every digit as text rather than round.
+        return _string_cell(head, str(int(value)))
+    if isinstance(value, numbers.Integral):
+        return head + f"><v>{int(value)}</v></c>"
+    if _is_number(value):
+        number = float(value)
+        if math.isnan(number):
+            if on_note:
+                on_note(f"A missing number at {sheet}!{ref} was left empty.")
+            return head + "/>"
+        if math.isinf(number):
+            return _string_cell(head, "inf" if number > 0 else "-inf")
+        return head + f"><v>{_number_text(number)}</v></c>"
+    if isinstance(value, dt.datetime | dt.date):
+        moment = (
+            value
+            if isinstance(value, dt.datetime)
+            else dt.datetime(value.year, value.month, value.day)
+        )
+        if moment.tzinfo is not None:
+            moment = moment.replace(tzinfo=None)
+        epoch = _EXCEL_EPOCH_1904 if date1904 else _EXCEL_EPOCH
+        serial = (moment - epoch).total_seconds() / 86400.0
+        return head + f"><v>{_number_text(serial)}</v></c>"
+    return _string_cell(head, str(value))
+
+
+def _string_cell(head: str, text: str) -> str:
+    return (
+        head + f' t="inlineStr"><is><t xml:space="preserve">{escape(clean_text(text))}</t></is></c>'
+    )
+
+
+def _validation_xml(validation, sheet: str) -> str:  # noqa: ANN001 - sheets.model.Validation
+    items = []
+    for choice in validation.choices:
+        text = clean_text(str(choice))
+        if "," in text:
+            raise WriteError(
+                f"The dropdown choice '{text}' on sheet {sheet} contains a comma, which a list validation cannot hold; the file was left as it was."
+            )
+        items.append(text.replace('"', '""'))
+    formula = '"' + ",".join(items) + '"'
+    if len(formula) - 2 > MAX_LIST_CHARS:
+        raise WriteError(
+            f"The dropdown list for {validation.cells} on sheet {sheet} is longer than {MAX_LIST_CHARS} characters; the file was left as it was."
+        )
+    attrs = f'type="list" allowBlank="1" showInputMessage="1" showErrorMessage="1" sqref="{escape(validation.cells.replace(",", " "))}"'
+    if validation.prompt:
+        attrs += f' prompt="{escape(validation.prompt[:255])}"'
+    return f"<dataValidation {attrs}><formula1>{escape(formula)}</formula1></dataValidation>"

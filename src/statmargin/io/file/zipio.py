@@ -1,0 +1,403 @@
+"""Read a zip package entry by entry and write one back, copying compressed bytes.
+
+A workbook is a zip of XML parts. To leave the user's parts exactly as they
+were, we never decompress and recompress them: each entry's compressed bytes are
+carried over unchanged and only the few parts we edit are deflated afresh. The
+standard library's ``zipfile`` cannot copy raw entries, so this module reads the
+central directory itself (ZIP64 included) and writes a plain zip with ``struct``
+and ``zlib``.
+"""
+
+from __future__ import annotations
+
+import struct
+import time
+import zlib
+from dataclasses import dataclass, field
+
+from ...errors import WorkbookError, WriteError
+
+_LOCAL_SIG = 0x04034B50
+_CENTRAL_SIG = 0x02014B50
+_EOCD_SIG = 0x06054B50
+_ZIP64_EOCD_SIG = 0x06064B50
+_ZIP64_LOCATOR_SIG = 0x07064B50
+_ZIP64_EXTRA_ID = 0x0001
+
+_STORED = 0
+_DEFLATED = 8
+_FLAG_ENCRYPTED = 0x0001
+_FLAG_DATA_DESCRIPTOR = 0x0008
+_FLAG_UTF8 = 0x0800
+
+# Compound-file signature: legacy .xls files and password-encrypted workbooks
+# (MS-CFB, section 2.2, header signature).
+_OLE_SIGNATURE = bytes.fromhex("D0CF11E0A1B11AE1")
+_U16_MAX = 0xFFFF
+_U32_MAX = 0xFFFFFFFF
+
+
+@dataclass
+class ZipEntry:
+    """One member of a zip archive, holding its compressed bytes as stored.
+
+    Attributes
+    ----------
+    name : str
+        Part name inside the archive, e.g. ``"xl/workbook.xml"``.
+    method : int
+        Compression method: 0 (stored) or 8 (deflated).
+    crc : int
+        CRC-32 of the uncompressed bytes.
+    size : int
+        Uncompressed size in bytes.
+    raw : bytes
+        The compressed bytes exactly as they are in the archive.
+    dos_time, dos_date : int
+        Modification time stamp in MS-DOS format.
+    flags : int
+        General-purpose flag bits from the central directory.
+    external_attr : int
+        External file attributes from the central directory.
+    """
+
+    name: str
+    method: int
+    crc: int
+    size: int
+    raw: bytes
+    dos_time: int = 0
+    dos_date: int = 0x21  # 1980-01-01
+    flags: int = 0
+    external_attr: int = 0
+    extra: bytes = field(default=b"", repr=False)
+
+    def data(self) -> bytes:
+        """Decompress the entry and check its CRC.
+
+        Returns
+        -------
+        bytes
+            The uncompressed content.
+
+        Raises
+        ------
+        WorkbookError
+            If the method is unsupported or the content fails its CRC check.
+        """
+        if self.method == _STORED:
+            out = self.raw
+        elif self.method == _DEFLATED:
+            try:
+                out = zlib.decompress(self.raw, -15)
+            except zlib.error as exc:
+                raise WorkbookError(
+                    f"The part {self.name} inside the workbook is damaged ({exc}); repair the file in a spreadsheet program and try again."
+                ) from exc
+        else:
+            raise WorkbookError(
+                f"The part {self.name} uses zip compression method {self.method}, which statmargin cannot read; save the workbook again from a spreadsheet program."
+            )
+        if zlib.crc32(out) & _U32_MAX != self.crc or len(out) != self.size:
+            raise WorkbookError(
+                f"The part {self.name} inside the workbook fails its checksum; repair the file in a spreadsheet program and try again."
+            )
+        return out
+
+
+def new_entry(name: str, data: bytes, *, when: float | None = None) -> ZipEntry:
+    """Make a deflated entry from uncompressed bytes.
+
+    Parameters
+    ----------
+    name : str
+        Part name inside the archive.
+    data : bytes
+        Uncompressed content.
+    when : float, optional
+        Modification time (seconds since the epoch); now if omitted.
+
+    Returns
+    -------
+    ZipEntry
+        A deflated entry ready for :func:`write_zip`.
+    """
+    compressor = zlib.compressobj(6, zlib.DEFLATED, -15)
+    raw = compressor.compress(data) + compressor.flush()
+    dos_time, dos_date = _dos_stamp(time.time() if when is None else when)
+    return ZipEntry(
+        name=name,
+        method=_DEFLATED,
+        crc=zlib.crc32(data) & _U32_MAX,
+        size=len(data),
+        raw=raw,
+        dos_time=dos_time,
+        dos_date=dos_date,
+        flags=_FLAG_UTF8 if not name.isascii() else 0,
+    )
+
+
+def _dos_stamp(when: float) -> tuple[int, int]:
+    """MS-DOS time and date words for a moment, in local time (as zip tools do)."""
+    t = time.localtime(when)
+    year = max(t.tm_year, 1980)
+    dos_time = (t.tm_hour << 11) | (t.tm_min << 5) | (t.tm_sec // 2)
+    dos_date = ((year - 1980) << 9) | (t.tm_mon << 5) | t.tm_mday
+    return dos_time, dos_date
+
+
+def read_zip(blob: bytes) -> list[ZipEntry]:
+    """Read every entry of a zip archive, keeping compressed bytes as stored.
+
+    Parameters
+    ----------
+    blob : bytes
+        The whole archive.
+
+    Returns
+    -------
+    list of ZipEntry
+        Entries in central-directory order.
+
+    Raises
+    ------
+    WorkbookError
+        If the bytes are not a readable, unencrypted zip archive.
+
+    Notes
+    -----
+    Sizes, CRC and offsets come from the central directory (which always holds
+    them, unlike local headers followed by a data descriptor). ZIP64 records are
+    honoured for archives and entries above 4 GiB or 65535 entries.
+
+    References
+    ----------
+    PKWARE, APPNOTE.TXT - .ZIP File Format Specification, version 6.3.10,
+    sections 4.3.7 (local header), 4.3.12 (central directory), 4.3.14-4.3.16
+    (ZIP64 end records), 4.5.3 (ZIP64 extra field).
+    """
+    if blob[:8] == _OLE_SIGNATURE:
+        raise WorkbookError(
+            "The file is an old-style .xls workbook or is password-protected; save it as an unprotected .xlsx and try again."
+        )
+    if blob[:2] != b"PK":
+        raise WorkbookError(
+            "The file is not an .xlsx/.xlsm workbook (it is not a zip package); open it in a spreadsheet program and save it as .xlsx."
+        )
+    try:
+        return _read_zip(blob)
+    except (struct.error, IndexError, ValueError, UnicodeDecodeError) as exc:
+        raise WorkbookError(
+            f"The file is not a readable workbook (its zip structure is damaged: {' '.join(str(exc).split())}); save it again from a spreadsheet program."
+        ) from exc
+
+
+def _read_zip(blob: bytes) -> list[ZipEntry]:
+    eocd = _find_eocd(blob)
+    (_, disk, cd_disk, _n_here, n_total, cd_size, cd_offset, _comment_len) = struct.unpack_from(
+        "<IHHHHIIH", blob, eocd
+    )
+    if disk != 0 or cd_disk != 0:
+        raise ValueError("multi-part (spanned) archives are not supported")
+    if n_total == _U16_MAX or cd_size == _U32_MAX or cd_offset == _U32_MAX:
+        n_total, cd_size, cd_offset = _read_zip64_end(blob, eocd)
+
+    entries: list[ZipEntry] = []
+    pos = cd_offset
+    for _ in range(n_total):
+        if struct.unpack_from("<I", blob, pos)[0] != _CENTRAL_SIG:
+            raise ValueError(f"bad central directory record at offset {pos}")
+        (
+            _sig,
+            _made_by,
+            _needed,
+            flags,
+            method,
+            dos_time,
+            dos_date,
+            crc,
+            comp_size,
+            size,
+            name_len,
+            extra_len,
+            comment_len,
+            _disk_start,
+            _internal_attr,
+            external_attr,
+            local_offset,
+        ) = struct.unpack_from("<IHHHHHHIIIHHHHHII", blob, pos)
+        name_bytes = blob[pos + 46 : pos + 46 + name_len]
+        extra = blob[pos + 46 + name_len : pos + 46 + name_len + extra_len]
+        pos += 46 + name_len + extra_len + comment_len
+
+        if size == _U32_MAX or comp_size == _U32_MAX or local_offset == _U32_MAX:
+            size, comp_size, local_offset = _apply_zip64_extra(extra, size, comp_size, local_offset)
+        if flags & _FLAG_ENCRYPTED:
+            raise ValueError("the workbook is encrypted (password protected)")
+        name = name_bytes.decode("utf-8" if flags & _FLAG_UTF8 else "cp437")
+
+        if struct.unpack_from("<I", blob, local_offset)[0] != _LOCAL_SIG:
+            raise ValueError(f"bad local header for {name}")
+        local_name_len, local_extra_len = struct.unpack_from("<HH", blob, local_offset + 26)
+        start = local_offset + 30 + local_name_len + local_extra_len
+        raw = blob[start : start + comp_size]
+        if len(raw) != comp_size:
+            raise ValueError(f"entry {name} is truncated")
+        entries.append(
+            ZipEntry(
+                name=name,
+                method=method,
+                crc=crc,
+                size=size,
+                raw=bytes(raw),
+                dos_time=dos_time,
+                dos_date=dos_date,
+                flags=flags,
+                external_attr=external_attr,
+                extra=_without_zip64(extra),
+            )
+        )
+    return entries
+
+
+def _find_eocd(blob: bytes) -> int:
+    """Offset of the end-of-central-directory record (searching back over a comment)."""
+    floor = max(0, len(blob) - 22 - _U16_MAX)
+    pos = blob.rfind(struct.pack("<I", _EOCD_SIG), floor)
+    if pos < 0 or len(blob) - pos < 22:
+        raise ValueError("no end-of-central-directory record")
+    return pos
+
+
+def _read_zip64_end(blob: bytes, eocd: int) -> tuple[int, int, int]:
+    """Entry count, directory size and offset from the ZIP64 end records."""
+    locator = eocd - 20
+    sig, _disk, zip64_eocd, _disks = struct.unpack_from("<IIQI", blob, locator)
+    if sig != _ZIP64_LOCATOR_SIG:
+        raise ValueError("ZIP64 locator missing")
+    fields = struct.unpack_from("<IQHHIIQQQQ", blob, zip64_eocd)
+    if fields[0] != _ZIP64_EOCD_SIG:
+        raise ValueError("ZIP64 end record missing")
+    return fields[7], fields[8], fields[9]
+
+
+def _apply_zip64_extra(
+    extra: bytes, size: int, comp_size: int, offset: int
+) -> tuple[int, int, int]:
+    """Replace 0xFFFFFFFF placeholders with values from the ZIP64 extra field."""
+    pos = 0
+    while pos + 4 <= len(extra):
+        tag, length = struct.unpack_from("<HH", extra, pos)
+        body = extra[pos + 4 : pos + 4 + length]
+        if tag == _ZIP64_EXTRA_ID:
+            values = list(struct.unpack_from(f"<{len(body) // 8}Q", body))
+            if size == _U32_MAX:
+                size = values.pop(0)
+            if comp_size == _U32_MAX:
+                comp_size = values.pop(0)
+            if offset == _U32_MAX:
+                offset = values.pop(0)
+            return size, comp_size, offset
+        pos += 4 + length
+    raise ValueError("ZIP64 sizes announced but no ZIP64 extra field")
+
+
+def _without_zip64(extra: bytes) -> bytes:
+    """Extra fields minus the ZIP64 one (the writer recomputes what it needs)."""
+    kept = bytearray()
+    pos = 0
+    while pos + 4 <= len(extra):
+        tag, length = struct.unpack_from("<HH", extra, pos)
+        if tag != _ZIP64_EXTRA_ID:
+            kept += extra[pos : pos + 4 + length]
+        pos += 4 + length
+    return bytes(kept)
+
+
+def write_zip(entries: list[ZipEntry]) -> bytes:
+    """Serialise entries into a zip archive, copying each entry's compressed bytes.
+
+    Parameters
+    ----------
+    entries : list of ZipEntry
+        Entries in the order they should appear.
+
+    Returns
+    -------
+    bytes
+        The archive.
+
+    Raises
+    ------
+    WriteError
+        If names repeat or the archive would need ZIP64 (over 4 GiB or 65535
+        entries), which this writer does not produce.
+
+    Notes
+    -----
+    Local headers carry the CRC and sizes directly, so no data descriptors are
+    written (flag bit 3 is cleared); the compressed bytes are unchanged.
+    """
+    seen: set[str] = set()
+    out = bytearray()
+    central = bytearray()
+    for entry in entries:
+        if entry.name in seen:
+            raise WriteError(
+                f"Two parts named {entry.name} would be written; the workbook was left as it was."
+            )
+        seen.add(entry.name)
+        name = entry.name.encode("utf-8")
+        flags = (entry.flags & ~_FLAG_DATA_DESCRIPTOR) | (0 if entry.name.isascii() else _FLAG_UTF8)
+        offset = len(out)
+        if max(offset, len(entry.raw), entry.size) >= _U32_MAX:
+            raise WriteError(
+                "The workbook is too large (over 4 GiB) for statmargin's writer; the file was left as it was."
+            )
+        version = 20
+        out += struct.pack(
+            "<IHHHHHIIIHH",
+            _LOCAL_SIG,
+            version,
+            flags,
+            entry.method,
+            entry.dos_time,
+            entry.dos_date,
+            entry.crc,
+            len(entry.raw),
+            entry.size,
+            len(name),
+            len(entry.extra),
+        )
+        out += name + entry.extra + entry.raw
+        central += struct.pack(
+            "<IHHHHHHIIIHHHHHII",
+            _CENTRAL_SIG,
+            (3 << 8) | version if entry.external_attr >> 16 else version,
+            version,
+            flags,
+            entry.method,
+            entry.dos_time,
+            entry.dos_date,
+            entry.crc,
+            len(entry.raw),
+            entry.size,
+            len(name),
+            len(entry.extra),
+            0,
+            0,
+            0,
+            entry.external_attr,
+            offset,
+        )
+        central += name + entry.extra
+    if len(entries) >= _U16_MAX or len(out) + len(central) >= _U32_MAX:
+        raise WriteError(
+            "The workbook has too many parts or is too large for statmargin's writer; the file was left as it was."
+        )
+    cd_offset = len(out)
+    out += central
+    out += struct.pack(
+        "<IHHHHIIH", _EOCD_SIG, 0, 0, len(entries), len(entries), len(central), cd_offset, 0
+    )
+    return bytes(out)

@@ -1,0 +1,1 @@
+"""The jobs a user runs: plan a workbook, run it, test one question, run the demo."""

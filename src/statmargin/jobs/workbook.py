@@ -1,0 +1,345 @@
+"""The two workbook jobs, ``plan_workbook`` and ``run_workbook``: read, decide, write.
+
+Both take a workbook source and sink (the file back end by default), so the
+command line and the Excel bridge share every step between reading and writing.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Callable, Iterable, Mapping
+from dataclasses import dataclass, field, replace
+from datetime import datetime, timezone
+from pathlib import Path
+from typing import Any
+
+from .._version import __version__
+from ..errors import RoleError
+from ..io.protocol import WorkbookSink, WorkbookSource, WriteReport
+from ..plan.model import ColumnChoice, Plan
+from ..plan.roles_sheet import KIND as ROLES_KIND
+from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
+from ..read.table import Table
+from ..vocabulary import MeasureType, Role, ShapeHandling
+
+# Called as each step starts; during the analyses also with (done, total) so a
+# front end can draw a progress bar.
+Progress = Callable[..., None]
+
+
+@dataclass
+class PlanSummary:
+    """What ``plan_workbook`` did, for the command line's summary and ``--json``."""
+
+    path: str
+    data_sheet: str
+    header_row: int
+    columns: list[dict[str, Any]]
+    new_columns: list[str]
+    missing_columns: list[str]
+    write: WriteReport
+
+    def to_record(self) -> dict[str, Any]:
+        return {
+            "path": self.path,
+            "data_sheet": self.data_sheet,
+            "header_row": self.header_row,
+            "columns": self.columns,
+            "new_columns": self.new_columns,
+            "missing_columns": self.missing_columns,
+            "sheets": self.write.sheets,
+            "renamed": self.write.renamed,
+        }
+
+
+@dataclass
+class RunSummary:
+    """What ``run_workbook`` did: the results plus where they were written."""
+
+    path: str
+    data_sheet: str
+    rows_read: int
+    results: list[Any]
+    notes: int
+    write: WriteReport
+    messages: list[str] = field(default_factory=list)
+
+    def to_record(self) -> dict[str, Any]:
+        return {
+            "tool": "statmargin",
+            "version": __version__,
+            "path": self.path,
+            "data_sheet": self.data_sheet,
+            "rows_read": self.rows_read,
+            "data_notes": self.notes,
+            "sheets": self.write.sheets,
+            "renamed": self.write.renamed,
+            "analyses": [r.to_record() for r in self.results],
+        }
+
+
+def _file_backends(path: str | Path) -> tuple[WorkbookSource, WorkbookSink]:
+    from ..io.file.sink import FileSink
+    from ..io.file.source import FileSource
+
+    return FileSource(path), FileSink(path)
+
+
+def read_roles(source: WorkbookSource) -> RolesSheet | None:
+    """The roles sheet's choices, or None when the workbook has no roles sheet yet."""
+    for name, kind in source.tool_sheets().items():
+        if kind == ROLES_KIND:
+            return parse_roles_sheet(source.iter_rows(name), sheet_name=name)
+    return None
+
+
+def plan_workbook(
+    path: str | Path,
+    *,
+    sheet: str | None = None,
+    header_row: int | None = None,
+    outcome: Iterable[str] = (),
+    by: Iterable[str] = (),
+    pairing_key: str | None = None,
+    treat: Mapping[str, str] | None = None,
+    against: Mapping[str, str] | None = None,
+    paired_with: Mapping[str, str] | None = None,
+    order: Mapping[str, list[str]] | None = None,
+    shape: Mapping[str, str] | None = None,
+    out: str | Path | None = None,
+    source: WorkbookSource | None = None,
+    sink: WorkbookSink | None = None,
+) -> PlanSummary:
+    """Add or refresh the roles sheet, keeping every choice the user already made.
+
+    Parameters
+    ----------
+    path
+        The workbook.
+    sheet, header_row
+        The data sheet and its header row (default: the roles sheet's settings, else
+        the first sheet with data and its first non-empty row).
+    outcome, by, pairing_key, treat, against, paired_with, order, shape
+        Presets for unattended refreshes; they override what the sheet says.
+    out
+        Write to this new file instead of ``path`` (which is then left untouched).
+    """
+    from ..plan.types import infer_type, usable_values
+    from ..read.reader import first_data_sheet, read_table, sample_values
+
+    if source is None or sink is None:
+        file_source, file_sink = _file_backends(path)
+        source, sink = source or file_source, sink or file_sink
+    previous = read_roles(source)
+    plan = previous.plan if previous else Plan()
+    data_sheet = sheet or plan.sheet or first_data_sheet(source)
+    if header_row is None and plan.sheet == data_sheet:
+        header_row = plan.header_row
+    table = read_table(path, sheet=data_sheet, header_row=header_row, source=source)
+
+    choices = {c.name: c for c in plan.columns}
+    _apply_presets(
+        choices, table, outcome=outcome, by=by, pairing_key=pairing_key, treat=treat,
+        against=against, paired_with=paired_with, order=order, shape=shape,
+    )
+    facts = []
+    for name, column in table.columns.items():
+        info = infer_type(column)
+        facts.append(
+            ColumnFacts(
+                name=name,
+                letter=column.letter,
+                inferred=info.type.value,
+                sample=", ".join(str(v) for v in sample_values(column)),
+                n_blank=column.n_blank,
+                # Cells that cannot be read as the inferred type: error values, suppressed
+                # counts and formulas without a value, plus e.g. text in a numeric column.
+                n_unreadable=column.n_unreadable + sum(usable_values(column, info).excluded.values()),
+            )
+        )
+    new = [n for n in table.columns if previous is not None and n not in choices]
+    missing = [c for n, c in choices.items() if n not in table.columns]
+    ordered = [choices.get(n, ColumnChoice(n)) for n in table.columns]
+    new_plan = replace(plan, sheet=data_sheet, header_row=table.header_row, columns=ordered + missing)
+    model = build_roles_sheet(
+        facts, new_plan, data_sheet=data_sheet, header_row=table.header_row, missing=missing, new=new
+    )
+    report = sink.write_sheets([model], out=str(out) if out else None)
+    return PlanSummary(
+        path=report.path,
+        data_sheet=data_sheet,
+        header_row=table.header_row,
+        columns=[
+            {"column": f.name, "letter": f.letter, "inferred_type": f.inferred, "role": c.role.value}
+            for f, c in zip(facts, ordered, strict=True)
+        ],
+        new_columns=new,
+        missing_columns=[c.name for c in missing],
+        write=report,
+    )
+
+
+def _apply_presets(
+    choices: dict[str, ColumnChoice],
+    table: Table,
+    *,
+    outcome: Iterable[str],
+    by: Iterable[str],
+    pairing_key: str | None,
+    treat: Mapping[str, str] | None,
+    against: Mapping[str, str] | None,
+    paired_with: Mapping[str, str] | None,
+    order: Mapping[str, list[str]] | None,
+    shape: Mapping[str, str] | None,
+) -> None:
+    """Set roles given as options; every named column must exist (closest names suggested)."""
+
+    def choice(name: str) -> ColumnChoice:
+        table.column(name)  # raises ColumnNotFoundError with suggestions
+        return choices.setdefault(name, ColumnChoice(name))
+
+    for name in outcome:
+        choice(name).role = Role.OUTCOME
+    for name in by:
+        choice(name).role = Role.COMPARE_BY
+    if pairing_key:
+        choice(pairing_key).role = Role.PAIRING_KEY
+    for name, word in (treat or {}).items():
+        choice(name).treat_as = _enum(MeasureType, word, f"--treat {name}")
+    for name, word in (shape or {}).items():
+        choice(name).shape = _enum(ShapeHandling, word, f"--shape {name}")
+    for name, value in (against or {}).items():
+        choice(name).against = str(value)
+    for name, other in (paired_with or {}).items():
+        table.column(other)
+        choice(name).paired_with = other
+    for name, labels in (order or {}).items():
+        choice(name).order = list(labels)
+
+
+def _enum(enum, word: str, where: str):
+    try:
+        return enum(str(word).strip().lower())
+    except ValueError:
+        allowed = ", ".join(m.value for m in enum)
+        raise RoleError(f"{where}: {word!r} is not one of: {allowed}.") from None
+
+
+def run_workbook(
+    path: str | Path,
+    *,
+    out: str | Path | None = None,
+    share: bool = False,
+    min_count: int | None = None,
+    progress: Progress | None = None,
+    source: WorkbookSource | None = None,
+    sink: WorkbookSink | None = None,
+) -> RunSummary:
+    """Run every analysis the roles sheet asks for and write the results sheets.
+
+    Parameters
+    ----------
+    path
+        The workbook, with a roles sheet made by ``plan_workbook``.
+    out
+        Write to this new file instead of ``path`` (which is then left untouched).
+    share, min_count
+        Sharing mode: hide counts below ``min_count`` in the tool's sheets.
+    progress
+        Called with a short message as each step starts.
+    """
+    from ..designs.engine import run_plan
+    from ..read.reader import read_table
+    from ..sheets import report
+    from ..words.explain import apply as explain_results
+
+    say = progress or (lambda message, done=None, total=None: None)
+    started = time.perf_counter()
+    if source is None or sink is None:
+        file_source, file_sink = _file_backends(path)
+        source, sink = source or file_source, sink or file_sink
+    sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
+    roles = read_roles(source)
+    if roles is None:
+        raise RoleError(
+            f"{Path(path).name} has no roles sheet yet; run 'statmargin plan {Path(path).name}' first "
+            "and mark at least one outcome column."
+        )
+    plan = roles.plan
+    _check_roles(plan, roles)
+    used = _used_columns(plan)
+    say(f"reading sheet {plan.sheet!r}")
+    table = read_table(path, sheet=plan.sheet, header_row=plan.header_row, columns=used, source=source)
+    say(f"running analyses on {len(table.rows):,} rows")
+    results = run_plan(
+        table, plan, progress=lambda done, total: say("running analyses", done=done, total=total)
+    )
+    context = report.ReportContext.from_run(
+        workbook=Path(path).name,
+        table=table,
+        results=results,
+        settings=plan.settings,
+        version=__version__,
+        started=datetime.now(timezone.utc),
+        seconds=time.perf_counter() - started,
+        share_min_count=(min_count or _default_min_count()) if share else None,
+    )
+    explain_results(results, plan.settings, context)
+    say("writing results sheets")
+    previous_log = _previous_log_rows(source)
+    models = report.build_sheets(results, table, context, previous_log=previous_log)
+    if share:
+        from ..sheets.share import suppress
+
+        models = suppress(models, context.share_min_count)
+    write = sink.write_sheets(models, out=str(out) if out else None)
+    return RunSummary(
+        path=write.path,
+        data_sheet=table.sheet,
+        rows_read=table.n_rows_read,
+        results=results,
+        notes=len(table.notes),
+        write=write,
+        messages=list(write.renamed),
+    )
+
+
+def _default_min_count() -> int:
+    from ..sheets.share import DEFAULT_MIN_COUNT
+
+    return DEFAULT_MIN_COUNT
+
+
+def _check_roles(plan: Plan, roles: RolesSheet) -> None:
+    outcomes = [c for c in plan.columns if c.role is Role.OUTCOME]
+    if not outcomes:
+        raise RoleError(
+            "No column has the role 'outcome' on the roles sheet; pick 'outcome' in the Role column "
+            "for at least one column, save, and run again."
+        )
+    gone = [c.name for c in plan.columns if c.name in roles.missing and c.role is not Role.IGNORE]
+    if gone:
+        raise RoleError(
+            f"Column {gone[0]!r} has a role but is no longer in the data; run 'statmargin plan' "
+            "to refresh the roles sheet, or set its role to 'ignore'."
+        )
+
+
+def _used_columns(plan: Plan) -> list[str]:
+    names: list[str] = []
+    for c in plan.columns:
+        if c.role is not Role.IGNORE:
+            names.append(c.name)
+        if c.role is Role.OUTCOME and c.paired_with and c.paired_with not in names:
+            names.append(c.paired_with)
+    return list(dict.fromkeys(names))
+
+
+def _previous_log_rows(source: WorkbookSource) -> list[list[Any]]:
+    """Earlier run-log rows, so the log grows by one row per run although the sheet is rewritten."""
+    for name, kind in source.tool_sheets().items():
+        if kind == "log":
+            from ..sheets.report import parse_log_rows
+
+            return parse_log_rows(source.iter_rows(name))
+    return []

@@ -1,0 +1,1154 @@
+"""Read a data sheet into typed columns, noting every cell that was skipped or converted.
+
+Reading streams rows and fills, per requested column, a float64 ``numbers``
+array (NaN where no number) and an object ``labels`` array (None where no
+text). Rows are handled in batches: a column slice of a batch that holds only
+floats (the common case in large sheets) is copied into numpy in one step, and
+only the other cells are looked at one by one. No DataFrame of the whole sheet
+is ever built.
+
+Cell rules (each skipped or converted cell gets a ``table.DataNote``):
+
+* numbers and dates: kept as numbers; dates, times and durations become Excel
+  day numbers (days since 1899-12-30; exact for dates from 1900-03-01, the
+  convention Excel itself uses) and are counted in ``Column.n_dates``;
+* booleans: kept as the labels ``"TRUE"``/``"FALSE"``;
+* blank cells (and text of only spaces): counted in ``n_blank``, no note;
+* missing markers (``MISSING_MARKERS``, compared without case): ``MISSING_MARKER``
+  note, counted in ``n_blank``;
+* Excel error values (``EXCEL_ERRORS``, also when typed as text): ``ERROR_VALUE``
+  note, counted in ``n_unreadable``;
+* suppressed small counts (``<5``, ``< 5``, ``<=3``, ``≤3``): ``SUPPRESSED``
+  note, counted in ``n_unreadable``;
+* numbers stored as text: converted when the whole text is a number, optionally
+  with thousands separators (``1,250``; ``1 250``) and a trailing ``%``;
+  ``TEXT_NUMBER`` note "converted to ...". A percent keeps the unit shown:
+  ``"12.5%"`` becomes 12.5, not 0.125, so the value reads as it did in the sheet.
+  Decimal commas (``12,5``), brackets for negatives (``(3)``) and currency signs
+  are *not* converted: each could mean something else, so they stay text and
+  the engine reports them if the column is numeric;
+* any other text: kept as a label with outer spaces removed;
+* formulas never calculated (no saved value, .xlsx/.xlsm only): ``NO_CACHED_VALUE``
+  note, counted in ``n_unreadable``.
+
+At most ``NOTE_CAP`` notes are kept per column and kind; the rest are summed up
+in one note ("and N more like this"), so a sheet with a million ``NA`` cells
+still gives a readable notes sheet.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import difflib
+import hashlib
+import math
+import os
+import re
+from collections.abc import Iterator, Sequence
+from dataclasses import dataclass, field
+from itertools import chain, islice
+from operator import itemgetter
+from typing import Any
+
+import numpy as np
+
+from ..errors import ColumnNotFoundError, NotEnoughDataError, OptionError, WorkbookError
+from ..io.protocol import TableRange, WorkbookSource
+from .table import Column, DataNote, NoteKind, Table, column_letter
+
+NOTE_CAP = 1000  # notes kept per (column, kind); the rest are summarised in one note
+BATCH_ROWS = 8192  # rows handled together; large enough to amortise per-batch work
+TITLE_LOOKAHEAD = 5  # title lines that may be skipped above the header row
+
+EXCEL_ERRORS = frozenset(
+    {
+        "#N/A",
+        "#DIV/0!",
+        "#VALUE!",
+        "#REF!",
+        "#NAME?",
+        "#NUM!",
+        "#NULL!",
+        "#SPILL!",
+        "#CALC!",
+        "#GETTING_DATA",
+    }
+)
+# Compared after stripping spaces and folding case. "none" and "unknown" are left
+# out on purpose: they are often real answers in survey-style columns.
+MISSING_MARKERS = frozenset({"na", "n/a", "n.a.", "nan", "-", "--", ".", "missing"})
+
+_EXCEL_EPOCH = dt.datetime(1899, 12, 30)
+_EXCEL_EPOCH_DATE = _EXCEL_EPOCH.date()
+_SECONDS_PER_DAY = 86400.0
+_NAN = math.nan
+
+_SUPPRESSED = re.compile(r"^(?:<|<=|≤|&lt;)\s*\d+(?:\.\d+)?$")
+_NUMBER = re.compile(
+    r"^(?P<num>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"  # plain, 12 / 12.5 / 1e3
+    r"|[+-]?\d{1,3}(?:,\d{3})+(?:\.\d+)?"  # 1,250.5
+    r"|[+-]?\d{1,3}(?:[ \u00a0\u202f\u2009]\d{3})+(?:\.\d+)?)"  # 1 250.5 (space, no-break or thin space)
+    r"\s*(?P<pct>%)?$"
+)
+_SEPARATORS = re.compile(r"[, \u00a0\u202f\u2009]")
+_UNITS = re.compile(r"^(?P<base>.*?\S)\s*[\(\[](?P<units>[^\(\)\[\]]+)[\)\]]$")
+_SPACES = re.compile(r"\s+")
+
+# Kinds of cell, as returned by the slow-path classifier.
+_NUM, _DATE, _LABEL, _BLANK, _MARKER, _ERROR, _SUPP, _TEXTNUM = range(8)
+
+
+# -----------------------------------------------------------------------------
+# Cell classification
+# -----------------------------------------------------------------------------
+def classify_cell(value: Any) -> tuple[int, float, str | None]:
+    """Classify one raw cell value (the slow path for anything that is not a float).
+
+    Parameters
+    ----------
+    value : Any
+        A value as a workbook source yields it: float, int, bool, str, date,
+        datetime, time, timedelta, or None/``''`` for a blank.
+
+    Returns
+    -------
+    tuple
+        ``(kind, number, label)``: ``kind`` is one of the module's cell kinds,
+        ``number`` is the numeric value or NaN, ``label`` is the text kept or None.
+
+    Notes
+    -----
+    Order matters: ``bool`` is checked before ``int`` because it is a subclass.
+    """
+    kind_of = type(value)
+    if kind_of is float:
+        return _NUM, value, None
+    if kind_of is str:
+        return _classify_text(value)
+    if value is None:
+        return _BLANK, _NAN, None
+    if kind_of is bool:
+        return _LABEL, _NAN, "TRUE" if value else "FALSE"
+    if kind_of is int:
+        return _NUM, float(value), None
+    if isinstance(value, dt.datetime):
+        return (
+            _DATE,
+            (value.replace(tzinfo=None) - _EXCEL_EPOCH).total_seconds() / _SECONDS_PER_DAY,
+            None,
+        )
+    if isinstance(value, dt.date):
+        return _DATE, float((value - _EXCEL_EPOCH_DATE).days), None
+    if isinstance(value, dt.time):
+        seconds = value.hour * 3600 + value.minute * 60 + value.second + value.microsecond / 1e6
+        return _DATE, seconds / _SECONDS_PER_DAY, None
+    if isinstance(value, dt.timedelta):
+        return _DATE, value.total_seconds() / _SECONDS_PER_DAY, None
+    if isinstance(value, (int, float, np.number)) and not isinstance(value, bool):
+        return _NUM, float(value), None
+    return _classify_text(str(value))
+
+
+def _classify_text(text: str) -> tuple[int, float, str | None]:
+    """Classify a text cell: blank, error, marker, suppressed count, number as text, or label."""
+    stripped = text.strip()
+    if not stripped:
+        return _BLANK, _NAN, None
+    first = stripped[0]
+    if first == "#" and stripped.upper() in EXCEL_ERRORS:
+        return _ERROR, _NAN, None
+    if stripped.casefold() in MISSING_MARKERS:
+        return _MARKER, _NAN, None
+    if first in "<≤&" and _SUPPRESSED.match(stripped):
+        return _SUPP, _NAN, None
+    if first.isdigit() or first in "+-−.":
+        number = parse_text_number(stripped)
+        if number is not None:
+            return _TEXTNUM, number, None
+    return _LABEL, _NAN, stripped
+
+
+def parse_text_number(text: str) -> float | None:
+    """The number a text cell shows, or None when the text is not wholly a number.
+
+    Parameters
+    ----------
+    text : str
+        Cell text, e.g. ``"1,250"``, ``" 42 "``, ``"1 250"``, ``"12.5%"``, ``"−3"``.
+
+    Returns
+    -------
+    float or None
+        The value in the unit shown (``"12.5%"`` -> 12.5), or None.
+
+    Notes
+    -----
+    ``float()`` alone is not used because it accepts ``"nan"``, ``"inf"`` and
+    ``"1_000"``, none of which a person means as a number in a cell.
+    """
+    stripped = text.strip().replace("\u2212", "-")  # typographic minus sign
+    match = _NUMBER.match(stripped)
+    if not match:
+        return None
+    return float(_SEPARATORS.sub("", match.group("num")))
+
+
+def format_number(value: float) -> str:
+    """A number as text for notes: whole numbers without a decimal point."""
+    if math.isfinite(value) and value == int(value) and abs(value) < 1e15:
+        return str(int(value))
+    return repr(float(value))
+
+
+def cell_text(value: Any) -> str:
+    """A raw cell value as the text a person would see (for headers and notes)."""
+    if value is None:
+        return ""
+    if type(value) is float or type(value) is int:
+        return format_number(float(value))
+    if type(value) is bool:
+        return "TRUE" if value else "FALSE"
+    if isinstance(value, (dt.date, dt.time)):
+        return value.isoformat(sep=" ") if isinstance(value, dt.datetime) else value.isoformat()
+    return str(value)
+
+
+def _is_blank(value: Any) -> bool:
+    return value is None or (type(value) is str and not value.strip())
+
+
+# -----------------------------------------------------------------------------
+# Headers
+# -----------------------------------------------------------------------------
+@dataclass
+class HeaderColumn:
+    """One column of the data region as named from the header row."""
+
+    index: int  # 0-based sheet column
+    name: str  # unique name
+    header: str  # the header text as written (spaces tidied), "" if blank
+    units: str | None = None
+
+
+@dataclass
+class _Layout:
+    """Where the data is: sheet, header row, columns, and the last row to read."""
+
+    sheet: str
+    header_row: int
+    columns: list[HeaderColumn]
+    last_row: int | None  # None: up to the end of the sheet
+    table: TableRange | None
+    notes: list[DataNote] = field(default_factory=list)
+    first_col: int = 0  # column of element 0 in each row from the source
+    rows: Iterator[list[Any]] = field(default_factory=lambda: iter(()))  # rows after the header
+
+
+def header_units(header: str) -> str | None:
+    """Units written in brackets at the end of a header: ``"Wait (minutes)"`` -> ``"minutes"``.
+
+    Notes
+    -----
+    Brackets holding only a number, as in ``"Visit (2)"``, are a count, not units.
+    """
+    match = _UNITS.match(header)
+    if not match:
+        return None
+    units = match.group("units").strip()
+    if not units or units.replace(".", "").isdigit():
+        return None
+    return units
+
+
+def unique_names(
+    sheet: str, header_row: int, cells: list[tuple[int, str]], merged_from: dict[int, int]
+) -> tuple[list[HeaderColumn], list[DataNote]]:
+    """Turn header texts into unique column names, noting each change.
+
+    Parameters
+    ----------
+    sheet : str
+        Sheet name (for the notes).
+    header_row : int
+        1-based header row.
+    cells : list of (int, str)
+        0-based column index and tidied header text, in sheet order.
+    merged_from : dict
+        Column index -> index of the merge's first column, for header cells
+        covered by a merge spanning several columns.
+
+    Returns
+    -------
+    columns, notes
+
+    Notes
+    -----
+    Covered cells of a merged header take the merged text with " (2)", " (3)"...;
+    blank headers become "Column F"; duplicates (compared without case, since a
+    person typing a name on the roles sheet may not match case) get " (2)"...
+    """
+    texts = dict(cells)
+    columns: list[HeaderColumn] = []
+    notes: list[DataNote] = []
+    seen: set[str] = set()
+    merge_count: dict[int, int] = {}
+    for index, text in cells:
+        letter = column_letter(index)
+        address = f"{letter}{header_row}"
+        header = text
+        if index in merged_from:
+            origin = merged_from[index]
+            merge_count[origin] = merge_count.get(origin, 1) + 1
+            base = texts.get(origin, "") or f"Column {column_letter(origin)}"
+            name = f"{base} ({merge_count[origin]})"
+            action = f"part of a merged header; named {name!r}"
+            header = texts.get(origin, "")
+        elif not text:
+            name = f"Column {letter}"
+            action = f"blank header; named {name!r}"
+        else:
+            name = text
+            action = ""
+        if name.casefold() in seen:
+            base, k = name, 2
+            while f"{base} ({k})".casefold() in seen:
+                k += 1
+            name = f"{base} ({k})"
+            action = (
+                f"duplicate header; named {name!r}"
+                if not action
+                else f"{action}, then {name!r} as a duplicate"
+            )
+        seen.add(name.casefold())
+        if action:
+            notes.append(DataNote(sheet, address, name, text, NoteKind.HEADER, action))
+        columns.append(
+            HeaderColumn(index=index, name=name, header=header, units=header_units(header))
+        )
+    return columns, notes
+
+
+# -----------------------------------------------------------------------------
+# Opening and locating the data
+# -----------------------------------------------------------------------------
+def _open_source(
+    path: str | os.PathLike[str] | None, source: WorkbookSource | None
+) -> tuple[Any, bool]:
+    if source is not None:
+        return source, False
+    if path is None:
+        raise OptionError("No workbook was given. Pass the path of the workbook file.")
+    from ..io.file.source import FileSource
+
+    return FileSource(path), True
+
+
+def _display(path: Any, source: Any) -> str:
+    if path is not None:
+        return os.path.basename(os.fspath(path)) or os.fspath(path)
+    return str(getattr(source, "display", "the workbook"))
+
+
+def _resolve_sheet(source: Any, sheet: str, display: str) -> str:
+    if hasattr(source, "resolve_sheet"):
+        return str(source.resolve_sheet(sheet))
+    names = list(source.sheet_names())
+    if sheet in names:
+        return sheet
+    from ..errors import SheetNotFoundError
+
+    listed = ", ".join(repr(n) for n in names)
+    raise SheetNotFoundError(f"Sheet {sheet!r} is not in {display!r}. Its sheets are: {listed}.")
+
+
+def _rows_at(source: Any, sheet: str) -> tuple[int, Iterator[list[Any]]]:
+    """Rows from row 1 and the column their first element belongs to."""
+    fast = getattr(source, "iter_rows_at", None)
+    if fast is not None:
+        first_col, rows = fast(sheet)
+        return int(first_col), iter(rows)
+    return 0, iter(source.iter_rows(sheet))
+
+
+def first_data_sheet(
+    path: str | os.PathLike[str] | WorkbookSource | None = None,
+    *,
+    source: WorkbookSource | None = None,
+) -> str:
+    """The first visible worksheet, in workbook order, that holds data and is not a tool sheet.
+
+    Parameters
+    ----------
+    path : str or os.PathLike or WorkbookSource, optional
+        Workbook file (ignored when ``source`` is given); an open source is
+        also accepted here.
+    source : WorkbookSource, optional
+        An open source to use instead of opening ``path``.
+
+    Returns
+    -------
+    str
+        The sheet name.
+
+    Raises
+    ------
+    NotEnoughDataError
+        If no such sheet has any value.
+    """
+    file_path: str | os.PathLike[str] | None
+    if path is None or isinstance(path, (str, os.PathLike)):
+        file_path = path
+    else:  # an open source passed in the first place
+        file_path, source = None, source if source is not None else path
+    src, owned = _open_source(file_path, source)
+    try:
+        return _first_data_sheet(src, _display(file_path, src))
+    finally:
+        if owned:
+            src.close()
+
+
+def _first_data_sheet(source: Any, display: str) -> str:
+    tool = set(source.tool_sheets())
+    hidden = set(getattr(source, "hidden_sheet_names", lambda: [])())
+    candidates = [n for n in source.sheet_names() if n not in tool and n not in hidden]
+    for name in candidates:
+        _, rows = _rows_at(source, name)
+        if any(not _is_blank(v) for row in _guard(rows, display) for v in row):
+            return name
+    raise NotEnoughDataError(
+        f"No sheet in {display!r} holds data. Put the data on a sheet with a header row, then run again."
+    )
+
+
+def _pick_table(
+    tables: list[TableRange], table: str | None, sheet: str
+) -> tuple[TableRange | None, str | None]:
+    """The table to read and, when the choice was automatic among several, a sentence saying so."""
+    if table is not None:
+        for candidate in tables:
+            if candidate.name.casefold() == table.strip().casefold():
+                return candidate, None
+        listed = ", ".join(repr(t.name) for t in tables) or "none"
+        raise OptionError(f"Table {table!r} is not on sheet {sheet!r}. Tables there: {listed}.")
+    if not tables:
+        return None, None
+    ordered = sorted(tables, key=lambda t: (t.first_row, t.first_col))
+    if len(ordered) == 1:
+        return ordered[0], None
+    others = ", ".join(repr(t.name) for t in ordered[1:])
+    return ordered[0], (
+        f"sheet has {len(ordered)} tables; read the first, {ordered[0].name!r}; "
+        f"the others ({others}) were not read. Name a table to read another."
+    )
+
+
+def _locate(
+    source: Any,
+    sheet: str,
+    header_row: int | None,
+    table: str | None,
+    display: str,
+) -> _Layout:
+    """Find the header row and the columns, leaving the row iterator just past the header."""
+    if header_row is not None and (not isinstance(header_row, int) or header_row < 1):
+        raise OptionError(f"Header row must be a whole number from 1 up; got {header_row!r}.")
+    tables = list(source.tables(sheet)) if header_row is None or table is not None else []
+    chosen, several = _pick_table(tables, table, sheet)
+    notes: list[DataNote] = []
+    first_col, rows = _rows_at(source, sheet)
+
+    if chosen is not None:
+        header_row = chosen.first_row
+    row_number = 0
+    header_cells: list[Any] | None = None
+    if header_row is not None:
+        for row_number, row in enumerate(_guard(rows, display), start=1):
+            if row_number == header_row:
+                header_cells = row
+                break
+        if header_cells is None:
+            if row_number == 0:
+                raise NotEnoughDataError(_empty_sheet(sheet, display))
+            raise OptionError(
+                f"Header row {header_row} is below the last row with data (row {row_number}) "
+                f"on sheet {sheet!r}. Give the row that holds the column headers."
+            )
+        if chosen is None and all(_is_blank(v) for v in header_cells):
+            raise OptionError(
+                f"Row {header_row} on sheet {sheet!r} is blank. Give the row that holds the column headers."
+            )
+    else:
+        header_row, header_cells, rows, title_note = _find_header(rows, sheet, first_col, display)
+        if header_cells is None:
+            raise NotEnoughDataError(_empty_sheet(sheet, display))
+        if title_note is not None:
+            notes.append(title_note)
+
+    # Columns: the table's, else from the first to the last non-blank header cell.
+    texts = {first_col + i: _header_text(v) for i, v in enumerate(header_cells)}
+    merged_from: dict[int, int] = {}
+    for r1, c1, r2, c2 in source.merged_ranges(sheet):
+        if r1 <= header_row - 1 <= r2 and c2 > c1:
+            for c in range(c1 + 1, c2 + 1):
+                merged_from[c] = c1
+    if chosen is not None:
+        lo, hi = chosen.first_col, chosen.last_col
+    else:
+        filled = [c for c, t in texts.items() if t]
+        lo, hi = min(filled), max(filled)
+        while hi + 1 in merged_from:
+            hi += 1
+    merged_from = {c: o for c, o in merged_from.items() if lo <= c <= hi and lo <= o}
+    cells = [(c, "" if c in merged_from else texts.get(c, "")) for c in range(lo, hi + 1)]
+    columns, header_notes = unique_names(sheet, header_row, cells, merged_from)
+    if several and chosen is not None:  # a note on several tables always comes with a choice
+        table_note = DataNote(
+            sheet,
+            f"{column_letter(chosen.first_col)}{chosen.first_row}",
+            "",
+            chosen.name,
+            NoteKind.OTHER,
+            several,
+        )
+        notes.append(table_note)
+    return _Layout(
+        sheet=sheet,
+        header_row=header_row,
+        columns=columns,
+        last_row=chosen.last_row if chosen is not None else None,
+        table=chosen,
+        notes=notes + header_notes,
+        first_col=first_col,
+        rows=rows,
+    )
+
+
+def _empty_sheet(sheet: str, display: str) -> str:
+    return f"Sheet {sheet!r} in {display!r} has no data. Choose the sheet that holds the data."
+
+
+def _header_text(value: Any) -> str:
+    if _is_blank(value):
+        return ""
+    return _SPACES.sub(" ", cell_text(value)).strip()
+
+
+def _find_header(
+    rows: Iterator[list[Any]], sheet: str, first_col: int, display: str
+) -> tuple[int, list[Any] | None, Iterator[list[Any]], DataNote | None]:
+    """The first non-empty row, skipping title lines above a header row.
+
+    Notes
+    -----
+    A lone text above the table (a title such as "Clinic visits 2024") would
+    otherwise become the only header. Leading rows holding exactly one text are
+    skipped as titles, but only when the row after them has two or more filled
+    cells, all text, so it reads as a header row; otherwise the first non-empty
+    row is the header. At most ``TITLE_LOOKAHEAD`` title lines are skipped, and
+    each skip is noted.
+    """
+    buffered: list[tuple[int, list[Any], int, bool]] = []  # (row, cells, filled, all text)
+    consumed: list[list[Any]] = []
+    for number, row in enumerate(_guard(rows, display), start=1):
+        consumed.append(row)
+        present = [v for v in row if not _is_blank(v)]
+        if present:
+            all_text = all(type(v) is str for v in present)
+            buffered.append((number, row, len(present), all_text))
+            if len(buffered) > TITLE_LOOKAHEAD:
+                break
+    if not buffered:
+        return 0, None, iter(()), None
+    skip = 0
+    while skip < len(buffered) - 1 and buffered[skip][2] == 1 and buffered[skip][3]:
+        skip += 1
+    if skip and not (buffered[skip][2] >= 2 and buffered[skip][3]):
+        skip = 0
+    header_number, header_cells = buffered[skip][0], buffered[skip][1]
+    note = None
+    if skip:
+        first_number, first_cells = buffered[0][0], buffered[0][1]
+        offset = next(i for i, v in enumerate(first_cells) if not _is_blank(v))
+        note = DataNote(
+            sheet,
+            f"{column_letter(first_col + offset)}{first_number}",
+            "",
+            cell_text(first_cells[offset]),
+            NoteKind.HEADER,
+            f"taken as a title, not headers; headers read from row {header_number}. "
+            "Give the header row to choose another.",
+        )
+    rest = chain(consumed[header_number:], rows)
+    return header_number, header_cells, rest, note
+
+
+# -----------------------------------------------------------------------------
+# Reading the data
+# -----------------------------------------------------------------------------
+class _NoteBook:
+    """Notes for one column, capped per kind, with counts of the rest."""
+
+    def __init__(self, sheet: str, column: str, letter: str) -> None:
+        self.sheet, self.column, self.letter = sheet, column, letter
+        self.notes: list[tuple[int, DataNote]] = []
+        self.counts: dict[NoteKind, int] = {}
+        self.first_over: dict[NoteKind, int] = {}
+
+    def add(self, row: int, kind: NoteKind, value: str, action: str) -> None:
+        count = self.counts.get(kind, 0) + 1
+        self.counts[kind] = count
+        if count <= NOTE_CAP:
+            note = DataNote(self.sheet, f"{self.letter}{row}", self.column, value, kind, action)
+            self.notes.append((row, note))
+        elif count == NOTE_CAP + 1:
+            self.first_over[kind] = row
+
+    def summaries(self) -> list[DataNote]:
+        out = []
+        for kind, row in self.first_over.items():
+            more = self.counts[kind] - NOTE_CAP
+            out.append(
+                DataNote(
+                    self.sheet,
+                    f"{self.letter}{row}",
+                    self.column,
+                    "",
+                    kind,
+                    f"and {more} more like this from this cell down (not listed one by one)",
+                )
+            )
+        return out
+
+
+_ACTIONS = {
+    _MARKER: (NoteKind.MISSING_MARKER, "counted as missing"),
+    _ERROR: (NoteKind.ERROR_VALUE, "skipped: an error value"),
+    _SUPP: (NoteKind.SUPPRESSED, "not used: a suppressed small count"),
+}
+
+
+@dataclass
+class _ColumnState:
+    """Arrays and counts being filled for one column."""
+
+    head: HeaderColumn
+    offset: int  # position in each source row
+    letter: str
+    notes: _NoteBook
+    numbers: list[np.ndarray] = field(default_factory=list)
+    labels: list[np.ndarray] = field(default_factory=list)
+    n_blank: int = 0
+    n_unreadable: int = 0
+    n_dates: int = 0
+    error_rows: set[int] = field(default_factory=set)  # rows whose text was an error code
+    cache: dict[Any, tuple[int, float, str | None]] = field(default_factory=dict)
+
+
+_CACHE_LIMIT = 100_000  # distinct texts/dates remembered per column; bounds memory
+
+
+def _fill_batch(state: _ColumnState, values: Sequence[Any], row0: int, content: np.ndarray) -> None:
+    """Append one batch of a column's raw values to its typed arrays.
+
+    Notes
+    -----
+    Floats (numbers in the sheet) never leave C code: a batch of only floats is
+    one ``np.array`` call. Other cells are classified one by one, with the
+    result of each distinct text or date remembered, since label and date
+    columns repeat few values many times.
+    """
+    count = len(values)
+    odd = [k for k, v in enumerate(values) if type(v) is not float]
+    if not odd:
+        numbers = np.array(values, dtype=np.float64)
+        present = ~np.isnan(numbers)  # a NaN float (possible from other sources) is a blank
+        content |= present
+        state.n_blank += count - int(present.sum())
+        state.numbers.append(numbers)
+        state.labels.append(np.empty(count, dtype=object))  # all None
+        return
+    fixed = list(values)
+    labels: list[str | None] = [None] * count
+    cache = state.cache
+    add_note = state.notes.add
+    n_blank = n_dates = 0
+    for k in odd:
+        raw = values[k]
+        if raw == "" or raw is None:
+            fixed[k] = _NAN
+            n_blank += 1
+            continue
+        hit = cache.get(raw) if type(raw) is not bool else None
+        if hit is None:
+            hit = classify_cell(raw)
+            if type(raw) is not bool and len(cache) < _CACHE_LIMIT:
+                cache[raw] = hit
+        kind, number, label = hit
+        fixed[k] = number
+        if kind == _LABEL:
+            labels[k] = label
+            content[k] = True
+        elif kind == _NUM:
+            content[k] = True
+        elif kind == _DATE:
+            n_dates += 1
+            content[k] = True
+        elif kind == _BLANK:
+            n_blank += 1
+        elif kind == _TEXTNUM:
+            content[k] = True
+            shown = (
+                " (the % sign dropped; value kept in percent)"
+                if str(raw).rstrip().endswith("%")
+                else ""
+            )
+            add_note(
+                row0 + k,
+                NoteKind.TEXT_NUMBER,
+                str(raw),
+                f"converted to {format_number(number)}{shown}",
+            )
+        else:
+            content[k] = True
+            note_kind, action = _ACTIONS[kind]
+            if kind == _MARKER:
+                n_blank += 1
+            else:
+                state.n_unreadable += 1
+                if kind == _ERROR:
+                    state.error_rows.add(row0 + k)
+            add_note(row0 + k, note_kind, str(raw).strip(), action)
+    state.n_blank += n_blank
+    state.n_dates += n_dates
+    numbers = np.array(fixed, dtype=np.float64)
+    if len(odd) < count:
+        is_float = np.ones(count, dtype=bool)
+        is_float[odd] = False
+        present = ~np.isnan(numbers)
+        content |= present & is_float
+        state.n_blank += int((is_float & ~present).sum())
+    state.numbers.append(numbers)
+    state.labels.append(np.array(labels, dtype=object))
+
+
+def read_table(
+    path: str | os.PathLike[str] | None,
+    *,
+    sheet: str | None = None,
+    header_row: int | None = None,
+    columns: Sequence[str] | None = None,
+    source: WorkbookSource | None = None,
+    table: str | None = None,
+) -> Table:
+    """Read a sheet's data region into typed columns.
+
+    Parameters
+    ----------
+    path : str or os.PathLike or None
+        Workbook file. Ignored for reading when ``source`` is given (still used in messages).
+    sheet : str, optional
+        Sheet to read; default: ``first_data_sheet``. Case is ignored when unique.
+    header_row : int, optional
+        1-based row holding the headers. Default: the header row of the sheet's
+        Excel table if it has one, else the first non-empty row; one-text title
+        lines above an all-text header row are skipped and noted.
+    columns : sequence of str, optional
+        Column names to read (the unique names, see ``read_header``); ``None``
+        reads all. Columns keep sheet order.
+    source : WorkbookSource, optional
+        An open source to read from instead of opening ``path``.
+    table : str, optional
+        Name of the Excel table to read when the sheet has several.
+
+    Returns
+    -------
+    Table
+        Typed columns, the sheet row number of each data row, the notes made
+        while reading, ``n_rows_read`` and a ``fingerprint`` of the values.
+
+    Raises
+    ------
+    WorkbookError, SheetNotFoundError, ColumnNotFoundError, OptionError, NotEnoughDataError
+        With a one-line message saying what to do.
+
+    Notes
+    -----
+    Data rows run from below the header to the last row holding a value in the
+    columns read (or the table's last row); blank rows at the end are not data,
+    blank rows in between are kept as all-blank rows. Values in columns outside
+    the header's span (no header above them) are not read; each such column
+    gets one note. See the module docstring for the cell rules.
+    """
+    src, owned = _open_source(path, source)
+    try:
+        return _read(src, _display(path, src), sheet, header_row, columns, table)
+    finally:
+        if owned:
+            src.close()
+
+
+def _read(
+    source: Any,
+    display: str,
+    sheet: str | None,
+    header_row: int | None,
+    columns: Sequence[str] | None,
+    table: str | None,
+) -> Table:
+    sheet = (
+        _first_data_sheet(source, display)
+        if sheet is None
+        else _resolve_sheet(source, sheet, display)
+    )
+    layout = _locate(source, sheet, header_row, table, display)
+    chosen = _select(layout, columns)
+    states = [
+        _ColumnState(
+            head=h,
+            offset=h.index - layout.first_col,
+            letter=column_letter(h.index),
+            notes=_NoteBook(sheet, h.name, column_letter(h.index)),
+        )
+        for h in chosen
+    ]
+    span = (layout.columns[0].index, layout.columns[-1].index)
+    stray: dict[int, list[Any]] = {}  # column -> [first row, count] of values without a header
+    content_parts: list[np.ndarray] = []
+    first_data_row = layout.header_row + 1
+    row0 = first_data_row
+    rows = layout.rows
+    getters = [s.offset for s in states]
+    need = max(getters, default=-1) + 1
+    check_stray = layout.table is None
+    while True:
+        size = BATCH_ROWS
+        if layout.last_row is not None:
+            size = min(size, layout.last_row - row0 + 1)
+            if size <= 0:
+                break
+        batch = _next_batch(rows, size, display)
+        if not batch:
+            break
+        if need and min(map(len, batch)) < need:
+            batch = [r if len(r) >= need else list(r) + [None] * (need - len(r)) for r in batch]
+        content = np.zeros(len(batch), dtype=bool)
+        if len(getters) == 1:
+            slices: list[Sequence[Any]] = [list(map(itemgetter(getters[0]), batch))]
+        elif getters:
+            slices = list(zip(*map(itemgetter(*getters), batch), strict=True))
+        else:
+            slices = []
+        for state, values in zip(states, slices, strict=True):
+            _fill_batch(state, values, row0, content)
+        if check_stray:
+            _find_stray(batch, row0, layout.first_col, span, stray)
+        content_parts.append(content)
+        row0 += len(batch)
+
+    n_seen = row0 - first_data_row
+    had_values = any(bool(part.any()) for part in content_parts)
+    # The source may stop before trailing cells it reads as empty (errors, uncalculated
+    # formulas), so look for those up to the table's end, or the sheet's end.
+    issues = _cell_issues(source, sheet, first_data_row, layout.last_row, chosen)
+    beyond = max((row for row, _ in issues), default=0) - (first_data_row + n_seen - 1)
+    if beyond > 0:
+        for state in states:
+            state.numbers.append(np.full(beyond, np.nan))
+            state.labels.append(np.empty(beyond, dtype=object))
+            state.n_blank += beyond
+        content_parts.append(np.zeros(beyond, dtype=bool))
+        n_seen += beyond
+    content_all = np.concatenate(content_parts) if content_parts else np.zeros(0, dtype=bool)
+    n_errors, n_no_value = _apply_issues(states, issues, first_data_row, content_all)
+    if not had_values and n_no_value and not n_errors:
+        raise WorkbookError(
+            f"Every value read from sheet {sheet!r} in {display!r} comes from a formula with no saved value. "
+            "The file must be recalculated and saved by a spreadsheet program first."
+        )
+    filled = np.flatnonzero(content_all)
+    n_rows = int(filled[-1]) + 1 if filled.size else 0
+    if states and not n_rows:
+        raise NotEnoughDataError(
+            f"Sheet {sheet!r} has headers in row {layout.header_row} but no data below them"
+            + (" in the columns asked for." if columns is not None else ".")
+            + " Check the sheet and the header row."
+        )
+
+    built: dict[str, Column] = {}
+    cell_notes: list[tuple[int, int, DataNote]] = []
+    summaries: list[DataNote] = []
+    for position, state in enumerate(states):
+        numbers = np.concatenate(state.numbers)[:n_rows] if state.numbers else np.zeros(0)
+        labels = (
+            np.concatenate(state.labels)[:n_rows] if state.labels else np.empty(0, dtype=object)
+        )
+        # Trailing blank rows were counted as blanks while streaming; take them back out.
+        trailing = max(0, n_seen - n_rows) if state.numbers else 0
+        head = state.head
+        built[head.name] = Column(
+            name=head.name,
+            letter=state.letter,
+            numbers=np.ascontiguousarray(numbers, dtype=np.float64),
+            labels=labels,
+            header=head.header,
+            n_blank=state.n_blank - trailing,
+            n_unreadable=state.n_unreadable,
+            n_dates=state.n_dates,
+            units=head.units,
+        )
+        cell_notes.extend((row, position, note) for row, note in state.notes.notes)
+        summaries.extend(state.notes.summaries())
+    cell_notes.sort(key=lambda item: (item[0], item[1]))
+    notes = list(layout.notes) + [n for _, _, n in cell_notes] + summaries
+    notes += _stray_notes(sheet, stray)
+
+    rows_index = np.arange(first_data_row, first_data_row + n_rows, dtype=np.int64)
+    result = Table(
+        sheet=sheet,
+        header_row=layout.header_row,
+        rows=rows_index,
+        columns=built,
+        notes=notes,
+        n_rows_read=n_rows,
+    )
+    result.fingerprint = fingerprint(result)
+    return result
+
+
+def _guard(rows: Iterator[list[Any]], display: str) -> Iterator[list[Any]]:
+    """Rows passed through one by one (header search), with failures made one-line errors."""
+    while True:
+        batch = _next_batch(rows, 1, display)
+        if not batch:
+            return
+        yield batch[0]
+
+
+def _next_batch(rows: Iterator[list[Any]], size: int, display: str) -> list[list[Any]]:
+    """Up to ``size`` rows; a failure inside the source becomes a one-line WorkbookError."""
+    try:
+        return list(islice(rows, size))
+    except Exception as exc:  # noqa: BLE001 - any reader library failure is a damaged file
+        detail = " ".join(str(exc).split())[:200] or type(exc).__name__
+        raise WorkbookError(
+            f"File {display!r} is damaged part-way through ({detail}). "
+            "Open it in a spreadsheet program and save it again."
+        ) from None
+
+
+def _select(layout: _Layout, columns: Sequence[str] | None) -> list[HeaderColumn]:
+    """The header columns asked for, in sheet order."""
+    if columns is None:
+        return list(layout.columns)
+    if isinstance(columns, str):
+        columns = [columns]
+    by_name = {h.name: h for h in layout.columns}
+    folded: dict[str, list[HeaderColumn]] = {}
+    for h in layout.columns:
+        folded.setdefault(h.name.casefold(), []).append(h)
+    wanted: set[int] = set()
+    for name in columns:
+        head = by_name.get(name)
+        if head is None:
+            matches = folded.get(str(name).strip().casefold(), [])
+            head = matches[0] if len(matches) == 1 else None
+        if head is None:
+            close = difflib.get_close_matches(str(name), list(by_name), n=3, cutoff=0.5)
+            hint = f" Did you mean {', '.join(repr(c) for c in close)}?" if close else ""
+            raise ColumnNotFoundError(
+                f"Column {name!r} is not a header on sheet {layout.sheet!r}.{hint}"
+                f" Headers are read from row {layout.header_row}."
+            )
+        wanted.add(head.index)
+    return [h for h in layout.columns if h.index in wanted]
+
+
+def _find_stray(
+    batch: list[list[Any]],
+    row0: int,
+    first_col: int,
+    span: tuple[int, int],
+    stray: dict[int, list[Any]],
+) -> None:
+    """Count values in columns outside the header's span (they have no header and are not read)."""
+    lo, hi = span[0] - first_col, span[1] - first_col
+    width = max(map(len, batch))
+    outside = [j for j in range(width) if j < lo or j > hi]
+    for j in outside:
+        for k, row in enumerate(batch):
+            if j < len(row) and not _is_blank(row[j]):
+                entry = stray.setdefault(first_col + j, [row0 + k, 0, cell_text(row[j])])
+                entry[1] += 1
+
+
+def _stray_notes(sheet: str, stray: dict[int, list[Any]]) -> list[DataNote]:
+    """One note per column that has values but no header (those values are not read)."""
+    notes = []
+    for col in sorted(stray):
+        first, count, text = stray[col]
+        letter = column_letter(col)
+        notes.append(
+            DataNote(
+                sheet,
+                f"{letter}{first}",
+                f"Column {letter}",
+                text,
+                NoteKind.HEADER,
+                f"{count} value(s) in a column with no header were not read; give the column a header to use them",
+            )
+        )
+    return notes
+
+
+def _cell_issues(
+    source: Any, sheet: str, first_row: int, last_row: int | None, chosen: list[HeaderColumn]
+) -> dict[tuple[int, int], tuple[str, str]]:
+    """Error cells and uncalculated formulas the source read as empty (file sources only)."""
+    finder = getattr(source, "cell_issues", None)
+    if finder is None or not chosen:
+        return {}
+    return dict(
+        finder(sheet, first_row=first_row, last_row=last_row, columns=[h.index for h in chosen])
+    )
+
+
+def _apply_issues(
+    states: list[_ColumnState],
+    issues: dict[tuple[int, int], tuple[str, str]],
+    first_row: int,
+    content: np.ndarray,
+) -> tuple[int, int]:
+    """Turn cells read as blank into error or no-saved-value notes; returns (errors, no-value)."""
+    from ..io.file.source import ERROR_ISSUE
+
+    by_col = {s.head.index: s for s in states}
+    n_errors = n_no_value = 0
+    for (row, col), (kind, text) in sorted(issues.items()):
+        state = by_col.get(col)
+        k = row - first_row
+        if state is None or not 0 <= k < content.shape[0]:
+            continue
+        if kind == ERROR_ISSUE and row in state.error_rows:
+            continue  # the source already gave the error code as text; noted once
+        state.n_blank -= 1
+        state.n_unreadable += 1
+        content[k] = True  # a formula or error is an entry in that row, not a blank
+        if kind == ERROR_ISSUE:
+            state.notes.add(row, NoteKind.ERROR_VALUE, text, "skipped: an error value")
+            n_errors += 1
+        else:
+            state.notes.add(
+                row,
+                NoteKind.NO_CACHED_VALUE,
+                text,
+                "skipped: the file must be recalculated and saved by a spreadsheet program first",
+            )
+            n_no_value += 1
+    if issues:
+        for state in states:  # keep each column's notes in row order after the additions
+            state.notes.notes.sort(key=itemgetter(0))
+    return n_errors, n_no_value
+
+
+def fingerprint(table: Table) -> str:
+    """A short hash of the values read, so a run log can tell whether the data changed.
+
+    Notes
+    -----
+    BLAKE2b (16-byte digest) over the sheet name, header row, data row numbers,
+    and each column's name, numbers (as float64 bytes) and labels.
+    """
+    digest = hashlib.blake2b(digest_size=16)
+    digest.update(table.sheet.encode("utf-8") + b"\x00" + str(table.header_row).encode())
+    digest.update(np.ascontiguousarray(table.rows, dtype=np.int64).tobytes())
+    for name, column in table.columns.items():
+        digest.update(b"\x01" + name.encode("utf-8") + b"\x00")
+        digest.update(np.ascontiguousarray(column.numbers, dtype=np.float64).tobytes())
+        digest.update(
+            "\x1f".join(["\x00" if x is None else x for x in column.labels.tolist()]).encode(
+                "utf-8"
+            )
+        )
+    return digest.hexdigest()
+
+
+# -----------------------------------------------------------------------------
+# Headers and samples for the roles sheet
+# -----------------------------------------------------------------------------
+def read_header(
+    path: str | os.PathLike[str] | None,
+    *,
+    sheet: str | None = None,
+    header_row: int | None = None,
+    source: WorkbookSource | None = None,
+    table: str | None = None,
+) -> list[tuple[str, str]]:
+    """The data columns' unique names and letters, without reading the data.
+
+    Parameters
+    ----------
+    path, sheet, header_row, source, table
+        As for ``read_table``.
+
+    Returns
+    -------
+    list of (str, str)
+        ``(name, letter)`` in sheet order; the names ``read_table`` uses.
+    """
+    src, owned = _open_source(path, source)
+    try:
+        display = _display(path, src)
+        name = (
+            _first_data_sheet(src, display)
+            if sheet is None
+            else _resolve_sheet(src, sheet, display)
+        )
+        layout = _locate(src, name, header_row, table, display)
+        return [(h.name, column_letter(h.index)) for h in layout.columns]
+    finally:
+        if owned:
+            src.close()
+
+
+def sample_values(column: Column, k: int = 5) -> list[str]:
+    """Up to ``k`` distinct values of a column, in row order, as text (for the roles sheet).
+
+    Parameters
+    ----------
+    column : Column
+        A column from ``read_table``.
+    k : int
+        How many values at most.
+
+    Returns
+    -------
+    list of str
+        Numbers shown without a trailing ".0"; labels as read; in a column that
+        mostly holds dates, day serials shown as ISO dates (2026-03-01).
+    """
+    out: list[str] = []
+    seen: set[str] = set()
+    numbers, labels = column.numbers, column.labels
+    filled = len(column) - column.n_blank - column.n_unreadable
+    show = _serial_date_text if column.n_dates * 2 >= max(filled, 1) else format_number
+    for i in range(len(column)):
+        if len(out) >= k:
+            break
+        label = labels[i]
+        if label is not None:
+            text = str(label)
+        elif not math.isnan(numbers[i]):
+            text = show(float(numbers[i]))
+        else:
+            continue
+        if text not in seen:
+            seen.add(text)
+            out.append(text)
+    return out
+
+
+def _serial_date_text(serial: float) -> str:
+    """An Excel day serial (1900 system, days since 1899-12-30) as an ISO date, with time if any."""
+    moment = dt.datetime(1899, 12, 30) + dt.timedelta(days=serial)
+    return moment.isoformat(sep=" ", timespec="minutes") if serial % 1 else moment.date().isoformat()

@@ -1,0 +1,133 @@
+"""The typed table that reading produces and everything after reading consumes.
+
+A ``Column`` keeps two parallel arrays over the same data rows: ``numbers``
+(float64, NaN where the cell held no number) and ``labels`` (object, the cell's
+text where it held text, else None). Measurement types are decided later
+(``plan.types``) from both, so reading never has to guess what a column means.
+Each data row remembers its sheet row number, so any value can be traced back
+to its cell for the data notes.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from enum import Enum
+
+import numpy as np
+
+
+class NoteKind(str, Enum):
+    """Why a cell was skipped or converted. Values are the words shown on the data-notes sheet."""
+
+    MISSING_MARKER = "missing marker"  # NA, N/A, n/a, -, .
+    ERROR_VALUE = "error value"  # #N/A, #DIV/0!, ...
+    SUPPRESSED = "suppressed count"  # "<5" and the like
+    TEXT_NUMBER = "number stored as text"  # converted
+    NOT_A_NUMBER = "not a number"  # text in a numeric column, skipped
+    NOT_A_LABEL = "number in a text column"  # kept as a label
+    NO_CACHED_VALUE = "formula without a saved value"
+    DATE = "date"  # converted to a number of days
+    HEADER = "header"  # blank, duplicate or merged header made unique
+    BLANK = "blank"  # blank cell in a used column
+    INCOMPLETE_PAIR = "incomplete pair"
+    OTHER = "other"
+
+
+@dataclass(frozen=True)
+class DataNote:
+    """One cell (or one header) that was skipped or converted, and why."""
+
+    sheet: str
+    cell: str  # A1 address, e.g. "C17"
+    column: str
+    value: str  # what the cell held, as text
+    kind: NoteKind
+    action: str  # "skipped", "converted to 1250", "kept as text", ...
+
+
+@dataclass
+class Column:
+    """One data column: header, position, and the cell values as typed arrays."""
+
+    name: str  # unique header used everywhere (deduplicated by the reader)
+    letter: str  # sheet column letter, e.g. "C"
+    numbers: np.ndarray  # float64; NaN where the cell held no number
+    labels: np.ndarray  # object; the text where the cell held text, else None
+    header: str = ""  # the header exactly as written in the sheet
+    n_blank: int = 0  # blank cells and missing markers
+    n_unreadable: int = 0  # error values, suppressed counts, formulas without values
+    n_dates: int = 0  # cells that held dates (their numbers are Excel day serials)
+    units: str | None = None  # from the header, e.g. "Wait (minutes)" -> "minutes"
+
+    def __len__(self) -> int:
+        return int(self.numbers.shape[0])
+
+
+@dataclass
+class Table:
+    """A sheet's data region read into typed columns, with the notes made while reading."""
+
+    sheet: str
+    header_row: int  # 1-based sheet row of the header
+    rows: np.ndarray  # int64 sheet row number (1-based) of each data row
+    columns: dict[str, Column]
+    notes: list[DataNote] = field(default_factory=list)
+    n_rows_read: int = 0
+    fingerprint: str = ""  # hash of the values read, for the run log
+
+    def column(self, name: str) -> Column:
+        """The column called ``name``; raise ColumnNotFoundError with the closest names otherwise."""
+        from ..errors import ColumnNotFoundError
+
+        if name in self.columns:
+            return self.columns[name]
+        import difflib
+
+        close = difflib.get_close_matches(name, list(self.columns), n=3, cutoff=0.5)
+        hint = f" Did you mean {', '.join(repr(c) for c in close)}?" if close else ""
+        raise ColumnNotFoundError(
+            f"Column {name!r} is not a header on sheet {self.sheet!r}.{hint}"
+            f" Headers are read from row {self.header_row}."
+        )
+
+    @classmethod
+    def from_frame(cls, frame, sheet: str = "data") -> Table:
+        """Build a Table from a pandas DataFrame (for the Python API and tests; no notes)."""
+        import pandas as pd
+
+        columns: dict[str, Column] = {}
+        for i, name in enumerate(frame.columns):
+            series = frame[name]
+            numeric = pd.to_numeric(series, errors="coerce")
+            numbers = numeric.to_numpy(dtype="float64", na_value=np.nan)
+            is_text = series.notna().to_numpy() & np.isnan(numbers)
+            labels = np.full(len(series), None, dtype=object)
+            labels[is_text] = series[is_text].astype(str).to_numpy()
+            columns[str(name)] = Column(
+                name=str(name),
+                letter=column_letter(i),
+                numbers=numbers,
+                labels=labels,
+                header=str(name),
+                n_blank=int(series.isna().sum()),
+            )
+        rows = np.arange(2, len(frame) + 2, dtype=np.int64)
+        return cls(sheet=sheet, header_row=1, rows=rows, columns=columns, n_rows_read=len(frame))
+
+
+def column_letter(index: int) -> str:
+    """Spreadsheet column letter for a 0-based column index (0 -> A, 26 -> AA)."""
+    letters = ""
+    index += 1
+    while index:
+        index, rem = divmod(index - 1, 26)
+        letters = chr(65 + rem) + letters
+    return letters
+
+
+def column_index(letter: str) -> int:
+    """0-based column index for a spreadsheet column letter (A -> 0, AA -> 26)."""
+    index = 0
+    for ch in letter.upper():
+        index = index * 26 + (ord(ch) - 64)
+    return index - 1

@@ -1,0 +1,407 @@
+"""Sharing mode: hide small counts, and whatever would reveal them, on the tool's sheets.
+
+Default threshold: counts from 1 to 10 are hidden (``DEFAULT_MIN_COUNT = 11``).
+This follows a common public-health practice of not publishing cells under 11
+(for example the US Centers for Medicare & Medicaid Services cell-size
+suppression policy, recalled from memory); many agencies use 5 instead, so the
+threshold is a setting. It is common practice, not a guarantee of anonymity.
+
+What is hidden (decisions):
+
+* every cell marked as a count (``Cell.is_count``) holding 1 .. N-1; zeros stay
+  (they are shown by most such policies and reveal no person);
+* complementary cells: in every set of counts linked by a shown total
+  (``SheetModel.count_sets``: a row or column with its total, histogram bins
+  with the group's n), a single hidden member could be recovered by
+  subtraction, so the smallest other non-zero member is hidden too, repeated
+  until no set has exactly one hidden member;
+* everything listed as revealing a hidden count (``SheetModel.count_dependents``):
+  a group's share, mean, SD, median, quartiles, min/max, skewness, kurtosis,
+  normality p and outlier count when the group's n is hidden, and expected
+  counts when a margin is hidden;
+* on the results themselves (``suppress_result``, run before readings are
+  written): the summaries of groups with n < N; the difference estimate of a
+  continuous comparison with such a group (with the other group's mean it
+  would give the hidden mean back); the estimate (a share or a difference of
+  shares) of a categorical analysis with a small cell; and for a 2 x 2 table
+  with a small cell also its effect, statistic and p-values (with the margins,
+  any of them would give the cell back); adjusted-residual follow-ups of
+  tables with a small cell are dropped. Standardized effects, statistics and
+  p-values of larger tables and of continuous comparisons are kept: they are
+  functions of the whole data that do not single out a cell or a group mean.
+
+The data sheet itself is not touched and still holds record-level data; the
+results header says so.
+"""
+
+from __future__ import annotations
+
+import copy
+import math
+import re
+from collections.abc import Iterable, Mapping, Sequence
+from typing import Any, overload
+
+from ..read.table import column_index
+from ..results import Effect, Estimate, Result
+from ..words import explain
+from .model import Cell, SheetModel
+
+DEFAULT_MIN_COUNT = 11
+SUPPRESSED_TEXT = "suppressed"
+
+_CATEGORICAL = ("one_sample_categorical", "two_categorical", "paired_categorical")
+_GROUPED_CONTINUOUS = ("two_group_continuous", "multi_group_continuous", "paired_continuous")
+
+
+def is_small_count(value: Any, min_count: int = DEFAULT_MIN_COUNT) -> bool:
+    """True for a whole number from 1 to ``min_count - 1`` (the counts sharing mode hides)."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return False
+    if not math.isfinite(value) or float(value) != int(value):
+        return False
+    return 1 <= int(value) < min_count
+
+
+def _check_min_count(min_count: int) -> None:
+    from ..errors import OptionError
+
+    if isinstance(min_count, bool) or not isinstance(min_count, int) or min_count < 2:
+        raise OptionError(
+            f"The sharing threshold must be a whole number of at least 2 (got {min_count!r}); "
+            f"the default is {DEFAULT_MIN_COUNT}."
+        )
+
+
+# ---------------------------------------------------------------- free text
+
+# Words that make a number next to them a count of records (or of things that
+# stand for records: cells of a table, incomplete pairs). Counts of groups,
+# levels or comparisons are not counts of people and are left alone.
+_COUNT_WORDS = (
+    r"records?|rows?|values?|pairs?|incomplete pairs|cells?|participants?|people|persons?|"
+    r"observations?|cases?|visits?|answers?|responses?|entries|entry"
+)
+# A threshold ("fewer than 10 records", "at least 5 values") states a rule, not a count.
+_THRESHOLD = r"(?<!fewer than )(?<!less than )(?<!more than )(?<!at least )(?<!below )(?<!under )"
+_NUMBER_BEFORE_WORD = re.compile(
+    _THRESHOLD + r"(?<![\d.,])(\d[\d,]*)(?![\d.])(?=\s+(?:" + _COUNT_WORDS + r")\b)",
+    re.IGNORECASE,
+)
+_N_EQUALS = re.compile(r"\b([nN])\s*=\s*(\d[\d,]*)(?![\d.])")
+_SOME_OF = re.compile(
+    r"(?<![\d.,])(\d[\d,]*) of (?:the )?(\d[\d,]*) (expected counts|" + _COUNT_WORDS + r")\b",
+    re.IGNORECASE,
+)
+
+
+# The smallest expected count is a product of two margins over the total, so
+# with the shown total and one margin it gives the other margin back.
+_SMALLEST_EXPECTED = re.compile(
+    r"\s*\(smallest (?:expected count )?[\d.,eE+-]+\)|"
+    r"(?<=[Ss]mallest expected count) (?:is |of )?[\d.,eE+-]*\d",
+)
+# A threshold below the minimum ("fewer than 5 values") would narrow a hidden count.
+_LOW_THRESHOLD = re.compile(
+    r"\b(?:fewer than|less than|under|below) (\d[\d,]*)(?![\d.])\s+(" + _COUNT_WORDS + r")\b",
+    re.IGNORECASE,
+)
+
+
+def _small(text: str, min_count: int) -> bool:
+    return is_small_count(int(text.replace(",", "")), min_count)
+
+
+def scrub_text(text: str, min_count: int = DEFAULT_MIN_COUNT) -> str:
+    """Free text with every small count of records rewritten so it cannot be read.
+
+    Parameters
+    ----------
+    text : str
+        A sentence from the tool (a reading, a reason, a method's note, a caution).
+    min_count : int
+        Counts from 1 to ``min_count - 1`` are rewritten.
+
+    Returns
+    -------
+    str
+        "3 of 6 expected counts" becomes "some of the expected counts", "n = 4"
+        becomes "n < 11", "4 records" becomes "fewer than 11 records", and a
+        threshold below the minimum ("fewer than 5 values", which would narrow
+        a hidden count) becomes "very few values"; the value of the smallest
+        expected count (with the total and one margin it gives the other
+        margin) is dropped. Other text is unchanged.
+
+    Notes
+    -----
+    The readings are written from suppressed results and use "fewer than N"
+    themselves; this is the safety net for sentences written elsewhere (the
+    engine's reasons and the methods' notes), which quote counts freely.
+    Thresholds at or above the minimum state a rule and are kept.
+    """
+    _check_min_count(min_count)
+
+    def some_of(match: re.Match[str]) -> str:
+        if _small(match.group(1), min_count) or _small(match.group(2), min_count):
+            return f"some of the {match.group(3)}"
+        return match.group(0)
+
+    def n_equals(match: re.Match[str]) -> str:
+        if _small(match.group(2), min_count):
+            return f"{match.group(1)} < {min_count}"
+        return match.group(0)
+
+    def before_word(match: re.Match[str]) -> str:
+        if _small(match.group(1), min_count):
+            return f"fewer than {min_count}"
+        return match.group(0)
+
+    def low_threshold(match: re.Match[str]) -> str:
+        if _small(match.group(1), min_count):
+            return f"very few {match.group(2)}"
+        return match.group(0)
+
+    text = _SMALLEST_EXPECTED.sub(
+        lambda m: "" if m.group(0).lstrip().startswith("(") else " hidden", text
+    )
+    text = _LOW_THRESHOLD.sub(low_threshold, text)
+    text = _SOME_OF.sub(some_of, text)
+    text = _N_EQUALS.sub(n_equals, text)
+    return _NUMBER_BEFORE_WORD.sub(before_word, text)
+
+
+# ---------------------------------------------------------------- sheet models
+
+
+def _parse_a1(address: str) -> tuple[int, int] | None:
+    letters = "".join(ch for ch in address if ch.isalpha())
+    digits = "".join(ch for ch in address if ch.isdigit())
+    if not letters or not digits:
+        return None
+    return int(digits) - 1, column_index(letters)
+
+
+def _numeric(cell: Cell | None) -> float | None:
+    if cell is None or isinstance(cell.value, bool) or not isinstance(cell.value, (int, float)):
+        return None
+    return float(cell.value) if math.isfinite(cell.value) else None
+
+
+def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> SheetModel:
+    """A copy of one sheet model with small counts and what reveals them hidden.
+
+    Parameters
+    ----------
+    model : SheetModel
+        A tool sheet built by ``report`` (counts marked, dependents and sets listed).
+    min_count : int
+        Counts from 1 to ``min_count - 1`` are hidden.
+
+    Returns
+    -------
+    SheetModel
+        Hidden cells hold ``"<N>"``-style text (a small count itself) or
+        "suppressed" (a complementary cell or a dependent), style "suppressed".
+        On a results sheet the sharing sentence is written at ``anchors["share_note"]``.
+        Every text cell goes through ``scrub_text``, so no sentence quotes a small
+        count of records.
+    """
+    _check_min_count(min_count)
+    out = copy.deepcopy(model)
+    cells = out.cells
+    primary = {
+        pos
+        for pos, cell in cells.items()
+        if cell.is_count and is_small_count(cell.value, min_count)
+    }
+    hidden = set(primary) | {pos for pos, cell in cells.items() if cell.style == "suppressed"}
+    changed = True
+    while changed:
+        changed = False
+        for members in out.count_sets:
+            present = [pos for pos in members if pos in cells]
+            if sum(pos in hidden for pos in present) != 1:
+                continue
+            candidates = [
+                (value, pos)
+                for pos in present
+                if pos not in hidden and (value := _numeric(cells[pos])) is not None and value > 0
+            ]
+            if candidates:
+                hidden.add(min(candidates)[1])
+                changed = True
+        for pos in list(hidden):
+            for dependent in out.count_dependents.get(pos, []):
+                if dependent not in hidden and dependent in cells:
+                    hidden.add(dependent)
+                    changed = True
+    for cell in cells.values():  # free text may quote a small count
+        if isinstance(cell.value, str) and cell.style != "suppressed":
+            cell.value = scrub_text(cell.value, min_count)
+    for pos in hidden:
+        old = cells[pos]
+        if old.style == "suppressed":  # hidden earlier (keeps a second pass idempotent)
+            continue
+        text = f"<{min_count}" if pos in primary else SUPPRESSED_TEXT
+        cells[pos] = Cell(text, "suppressed", None, old.is_count)
+    if out.kind == "results":
+        spot = _parse_a1(out.anchors.get("share_note", ""))
+        if spot is not None:
+            cells[spot] = Cell(explain.SHARE_NOTE.format(floor=min_count), "caution")
+    return out
+
+
+# ---------------------------------------------------------------- results
+
+
+def _group_size(group: Mapping[str, Any]) -> Any:
+    return group.get("n", group.get("count"))
+
+
+def _small_cells(result: Result, min_count: int) -> bool:
+    """True when a categorical result has a cell or level count from 1 to N-1."""
+    values: list[Any] = [_group_size(g) for g in result.groups if isinstance(g, Mapping)]
+    observed: Any = result.extra.get("observed") if isinstance(result.extra, Mapping) else None
+    counts = result.shape.get("counts") if isinstance(result.shape, Mapping) else None
+    if observed is None and isinstance(counts, Mapping):
+        observed = counts.get("observed")
+    if isinstance(observed, Mapping):
+        observed = observed.get("values", observed.get("counts"))
+    if hasattr(observed, "tolist"):
+        observed = observed.tolist()
+    if isinstance(observed, Sequence):
+        for line in observed:
+            values.extend(line if isinstance(line, Sequence) else [line])
+    return any(is_small_count(v, min_count) for v in values)
+
+
+def _is_two_by_two(result: Result) -> bool:
+    if result.test in ("fisher_exact", "mcnemar"):
+        return True
+    df = result.df
+    return (
+        result.design in ("two_categorical", "paired_categorical")
+        and isinstance(df, (int, float))
+        and df == 1
+    )
+
+
+def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Result:
+    """A copy of one result with the numbers that would reveal small counts removed.
+
+    Parameters
+    ----------
+    result : Result
+    min_count : int
+
+    Returns
+    -------
+    Result
+        Removed values become None; their field names are listed in
+        ``extra["suppressed"]`` so the sheets show them as suppressed, and a
+        plain caution is added when readings are written afterwards.
+    """
+    _check_min_count(min_count)
+    out = copy.deepcopy(result)
+    hidden: set[str] = set()
+    small_group = False
+    for g in out.groups:
+        if not isinstance(g, Mapping) or not is_small_count(_group_size(g), min_count):
+            continue
+        small_group = True
+        keep = {"label", "n", "count", "normality_test"}
+        for key in list(g):
+            if key not in keep:
+                g[key] = None
+        g["suppressed"] = True
+    if out.design in _CATEGORICAL and _small_cells(out, min_count):
+        hidden.add("estimate")
+        if _is_two_by_two(out):
+            hidden |= {"effect", "statistic", "p_value", "p_adjusted"}
+        out.followups = [f for f in out.followups if f.test != "adjusted_residual"]
+    elif out.design in _GROUPED_CONTINUOUS and small_group:
+        hidden.add("estimate")
+    if "estimate" in hidden and out.estimate is not None:
+        out.estimate = Estimate(out.estimate.name, None)
+    if "effect" in hidden and out.effect is not None:
+        out.effect = Effect(out.effect.name, None)
+    if "statistic" in hidden:
+        out.statistic = None
+    if "p_value" in hidden:
+        out.p_value = None
+    if "p_adjusted" in hidden:
+        out.p_adjusted = None
+    if hidden or small_group:
+        previous = out.extra.get("suppressed", []) if isinstance(out.extra, Mapping) else []
+        out.extra = dict(out.extra or {})
+        out.extra["suppressed"] = sorted(
+            set(previous) | hidden | ({"groups"} if small_group else set())
+        )
+        caution = explain.SHARE_CAUTION.format(floor=min_count)
+        if caution not in out.notes:  # keeps a second pass idempotent
+            out.notes = list(out.notes) + [caution]
+    return out
+
+
+# ---------------------------------------------------------------- entry point
+
+
+@overload
+def suppress(items: SheetModel, min_count: int = ...) -> SheetModel: ...
+@overload
+def suppress(items: Result, min_count: int = ...) -> Result: ...
+@overload
+def suppress(items: Iterable[Any], min_count: int = ...) -> list[Any]: ...
+
+
+def suppress(items: Any, min_count: int = DEFAULT_MIN_COUNT) -> Any:
+    """Sharing mode for sheet models or results (one or a list); inputs are not changed.
+
+    Parameters
+    ----------
+    items : SheetModel, Result, or an iterable of them
+        Results: call before ``explain.apply`` so readings never quote hidden
+        numbers. Sheet models: call on the built sheets before writing.
+    min_count : int, default 11
+        Counts from 1 to ``min_count - 1`` are hidden (see the module notes for
+        the practice behind the default).
+
+    Returns
+    -------
+    The same shape of input, suppressed.
+
+    Raises
+    ------
+    OptionError
+        ``min_count`` is not a whole number of at least 2, or an item is neither
+        a sheet model nor a result.
+    """
+    _check_min_count(min_count)
+    if isinstance(items, SheetModel):
+        return suppress_model(items, min_count)
+    if isinstance(items, Result):
+        return suppress_result(items, min_count)
+    out: list[SheetModel | Result] = []
+    for item in items:
+        if isinstance(item, SheetModel):
+            out.append(suppress_model(item, min_count))
+        elif isinstance(item, Result):
+            out.append(suppress_result(item, min_count))
+        else:
+            from ..errors import OptionError
+
+            raise OptionError(
+                f"Sharing mode can only hide counts in sheets or results, not in {type(item).__name__}."
+            )
+    return out
+
+
+__all__ = [
+    "DEFAULT_MIN_COUNT",
+    "SUPPRESSED_TEXT",
+    "is_small_count",
+    "scrub_text",
+    "suppress",
+    "suppress_model",
+    "suppress_result",
+]

@@ -1,0 +1,11 @@
+"""The project's vocabulary: every role, type, design, test and effect kind is a value here.
+
+Values of these enums are the words users type or pick (roles sheet, options)
+and the identifiers written to JSON; display text is made from them in
+``statmargin.words`` and nowhere else.
+"""
+
+from .columns import MeasureType, Role, ShapeHandling
+from .run import AdjustMethod, Alternative
+
+__all__ = ["AdjustMethod", "Alternative", "MeasureType", "Role", "ShapeHandling"]

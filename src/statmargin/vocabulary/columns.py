@@ -1,0 +1,37 @@
+"""Words for columns: their role in the analyses, how they are measured, how their shape is handled.
+
+Enum values are the exact words a user picks in the roles sheet's dropdowns, so
+the sheet, the command line and the Python API share one vocabulary.
+"""
+
+from __future__ import annotations
+
+from enum import Enum
+
+
+class Role(str, Enum):
+    """What a column is for in the analyses."""
+
+    OUTCOME = "outcome"
+    COMPARE_BY = "compare by"
+    PAIRING_KEY = "pairing key"
+    IGNORE = "ignore"
+
+
+class MeasureType(str, Enum):
+    """How a column's values are measured (inferred, or set by the user)."""
+
+    CONTINUOUS = "continuous"
+    CATEGORICAL = "categorical"
+    ORDINAL = "ordinal"  # only when the user says so
+    DATE = "date"
+    IDENTIFIER = "identifier"
+    EMPTY = "empty"
+
+
+class ShapeHandling(str, Enum):
+    """Whether to let the shape checks choose the test, or to fix the family."""
+
+    AUTO = "auto"
+    NORMAL = "assume normal"
+    RANK = "rank-based"

@@ -1,0 +1,1 @@
+"""All wording a user reads: numbers, p-values, reasons, readings and cautions."""
