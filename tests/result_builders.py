@@ -11,6 +11,7 @@ from __future__ import annotations
 from typing import Any
 
 from statmargin.results import Effect, Estimate, Followup, Result
+from statmargin.vocabulary import EffectKind, EstimateKind
 
 # mtcars cyl counts (R datasets: table(mtcars$cyl) = 11, 7, 14).
 CYL_COUNTS = {"4": 11, "6": 7, "8": 14}
@@ -41,7 +42,7 @@ def mtcars_cyl_by_gear(**changes: Any) -> Result:
         df=4.0,
         p_value=0.0012140660337851576,
         n=32,
-        effect=Effect("Cramer's V", 0.5308655025693249),
+        effect=Effect(EffectKind.CRAMERS_V, 0.5308655025693249),
         shape={
             "expected": [
                 [5.15625, 4.125, 1.71875],
@@ -80,7 +81,7 @@ def mtcars_cyl_shares(**changes: Any) -> Result:
 
 def cyl_share_of_4() -> Estimate:
     """Share of cyl = 4 (R datasets: 11 of 32); CI: illustrative input (invented)."""
-    return Estimate("share of 4", 11 / 32, 0.2, 0.52)
+    return Estimate(EstimateKind.SHARE, 11 / 32, 0.2, 0.52, level="4")
 
 
 def mtcars_am_by_vs(**changes: Any) -> Result:
@@ -96,8 +97,8 @@ def mtcars_am_by_vs(**changes: Any) -> Result:
         test="fisher_exact",
         p_value=0.4726974416017796,
         n=32,
-        estimate=Estimate("difference in proportions (0 - 1)", 12 / 19 - 6 / 13, -0.18, 0.50),
-        effect=Effect("odds ratio", 1.9560553993728882, 0.3825341798446402, 10.591608672988254),
+        estimate=Estimate(EstimateKind.SHARE_DIFFERENCE, 12 / 19 - 6 / 13, -0.18, 0.50, levels=("0", "1"), level="0"),
+        effect=Effect(EffectKind.ODDS_RATIO, 1.9560553993728882, 0.3825341798446402, 10.591608672988254),
         extra={"observed": [[12, 7], [6, 7]], "row_labels": ["0", "1"], "col_labels": ["0", "1"]},
     )
     return Result(**{**fields, **changes})
@@ -123,7 +124,7 @@ def sleep_welch_t(**changes: Any) -> Result:
 
 def sleep_mean_difference(value: float) -> Estimate:
     """R 4.2.2 Welch interval of the sleep difference in means (group 1 - group 2) around ``value``."""
-    return Estimate("difference in means (1 - 2)", value, -3.3654832307117104, 0.20548323071171018)
+    return Estimate(EstimateKind.MEAN_DIFFERENCE, value, -3.3654832307117104, 0.20548323071171018, levels=("1", "2"))
 
 
 def plantgrowth_anova(**changes: Any) -> Result:
@@ -143,7 +144,7 @@ def plantgrowth_anova(**changes: Any) -> Result:
         p_value=0.015909958325622912,
         p_method="asymptotic",
         n=30,
-        effect=Effect("eta-squared", 0.2641, 0.03, 0.47),
+        effect=Effect(EffectKind.ETA_SQUARED, 0.2641, 0.03, 0.47),
         shape={"spread_equality": brown_forsythe_plantgrowth()},
     )
     return Result(**{**fields, **changes})
@@ -154,11 +155,10 @@ def tukey_trt2_vs_trt1() -> Followup:
     return Followup(
         "tukey_hsd",
         ("trt2", "trt1"),
-        Estimate(
-            "difference in means (trt2 - trt1)",
+        Estimate(EstimateKind.MEAN_DIFFERENCE,
             0.8650000000000002,
             0.17378394858954183,
-            1.5562160514104586,
+            1.5562160514104586, levels=("trt2", "trt1"),
         ),
         p_value=None,
         p_adjusted=0.01200642397945273,

@@ -29,6 +29,7 @@ from statmargin.results import Estimate, Result
 from statmargin.sheets import report
 from statmargin.sheets.model import STYLES, SheetModel
 from statmargin.sheets.report import ReportContext
+from statmargin.vocabulary import EstimateKind
 from statmargin.words import explain
 
 DATA = Path(__file__).parent / "reference" / "data"
@@ -358,8 +359,7 @@ def test_two_measures_get_one_histogram_each() -> None:
         test="pearson_r",
         n=32,
         p_value=1.2939587013505163e-10,  # R 4.2.2 cor.test(mtcars$mpg, mtcars$wt)
-        estimate=Estimate(
-            "Pearson r", -0.8676593765172278, -0.9338264132849942, -0.7440871964601128
+        estimate=Estimate(EstimateKind.PEARSON_R, -0.8676593765172278, -0.9338264132849942, -0.7440871964601128
         ),
     )
     samples = {("mpg", "wt", ""): {"mpg": frame["mpg"].tolist(), "wt": frame["wt"].tolist()}}

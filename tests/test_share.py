@@ -31,6 +31,7 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.sheets import report, share
 from statmargin.sheets.model import SheetModel
 from statmargin.sheets.report import ReportContext
+from statmargin.vocabulary import EffectKind, EstimateKind
 from statmargin.words import explain
 
 DATA = Path(__file__).parent / "reference" / "data"
@@ -48,8 +49,8 @@ def small_group_result() -> Result:
         df=2.0,
         p_value=0.045,
         n=34,
-        estimate=Estimate("largest difference in medians (Hill - Coast)", 12.5, 2.0, 21.0),
-        effect=Effect("epsilon-squared", 0.19),
+        estimate=Estimate(EstimateKind.LARGEST_MEDIAN_GAP, 12.5, 2.0, 21.0, levels=("Hill", "Coast")),
+        effect=Effect(EffectKind.EPSILON_SQUARED, 0.19),
         groups=[
             {
                 "label": "Coast",

@@ -21,6 +21,7 @@ from statmargin.io.file import sink as xlsxsink
 from statmargin.io.file.sink import FileSink
 from statmargin.io.file.zipio import read_zip
 from statmargin.sheets.model import SheetModel
+from statmargin.vocabulary import EstimateKind
 from workbook_fixtures import (
     DATA_SHEET,
     SECOND_SHEET,
@@ -385,8 +386,7 @@ def test_results_print_plain_columns_first_in_libreoffice(tmp_path: Path) -> Non
         df=17.7764735161785,
         p_value=0.07939414018735817,
         n=20,
-        estimate=Estimate(
-            "difference in means (1 - 2)", -1.58, -3.3654832307117104, 0.20548323071171018
+        estimate=Estimate(EstimateKind.MEAN_DIFFERENCE, -1.58, -3.3654832307117104, 0.20548323071171018, levels=("1", "2")
         ),
         groups=[{"label": "1", "n": 10, "mean": 0.75}, {"label": "2", "n": 10, "mean": 2.33}],
     )

@@ -8,55 +8,24 @@ and the column names of the results sheet. Values stay numeric (full precision,
 from __future__ import annotations
 
 import math
-from dataclasses import asdict, dataclass, field, fields
+from dataclasses import dataclass, field, fields
+from enum import Enum
 from typing import Any
 
-# Designs, named as in the decision table (README "Which test is chosen").
-DESIGNS = (
-    "one_sample_categorical",
-    "one_sample_continuous",
-    "two_categorical",
-    "two_group_continuous",
-    "multi_group_continuous",
-    "two_continuous",
-    "paired_continuous",
-    "paired_categorical",
-)
+from .vocabulary import FOLLOWUP_TESTS, Design, EffectKind, EstimateKind, PMethod, Test
 
-# Test identifiers used in records, in the results sheet and in the docs.
-TESTS = (
-    "chi_square_goodness_of_fit",
-    "binomial_exact",
-    "one_sample_t",
-    "wilcoxon_signed_rank",
-    "chi_square_independence",
-    "fisher_exact",
-    "student_t",
-    "welch_t",
-    "mann_whitney_u",
-    "one_way_anova",
-    "welch_anova",
-    "kruskal_wallis",
-    "pearson_r",
-    "spearman_rho",
-    "paired_t",
-    "mcnemar",
-)
-
-# How a p-value was obtained; shown beside it because it changes what it means.
-P_METHODS = (
-    "exact",
-    "asymptotic",  # large-sample distribution (t, F, chi-square) of the statistic
-    "normal_approximation",
-    "normal_approximation_continuity",  # with continuity correction
-    "monte_carlo",
-)
+# Identifier tuples kept for callers that list them; the enums are the vocabulary.
+DESIGNS = tuple(d.value for d in Design)
+TESTS = tuple(t.value for t in Test if t not in FOLLOWUP_TESTS)
+P_METHODS = tuple(m.value for m in PMethod)
 
 
 def _clean(value: Any) -> Any:
     """Turn NaN/inf and numpy scalars into JSON-safe Python values (None for undefined)."""
     if value is None:
         return None
+    if isinstance(value, Enum):
+        return value.value
     if hasattr(value, "item") and not isinstance(value, (list, tuple, dict)):
         value = value.item()
     if isinstance(value, float) and not math.isfinite(value):
@@ -70,35 +39,73 @@ def _clean(value: Any) -> Any:
 
 @dataclass(frozen=True)
 class Estimate:
-    """A quantity in the outcome's own units (or a share, r, rho) with its confidence interval."""
+    """A quantity in the outcome's own units (or a share, r, rho) with its confidence interval.
 
-    name: str
+    ``levels`` are the labels compared (first minus second), ``level`` the counted
+    label of a share, ``reference`` a stated value or expected share; the display
+    name is made from these by ``statmargin.words.names``.
+    """
+
+    kind: EstimateKind
     value: float | None
     ci_low: float | None = None
     ci_high: float | None = None
+    levels: tuple[str, ...] = ()
+    level: str | None = None
+    reference: float | None = None
+
+    @property
+    def name(self) -> str:
+        from .words.names import estimate_name
+
+        return estimate_name(self)
 
     def to_record(self) -> dict[str, Any]:
-        return _clean(asdict(self))
+        return _clean(
+            {
+                "kind": self.kind.value,
+                "name": self.name,
+                "value": self.value,
+                "ci_low": self.ci_low,
+                "ci_high": self.ci_high,
+            }
+        )
 
 
 @dataclass(frozen=True)
 class Effect:
     """A standardized effect size (Hedges' g, rank-biserial r, Cramer's V, ...) with its CI."""
 
-    name: str
+    kind: EffectKind
     value: float | None
     ci_low: float | None = None
     ci_high: float | None = None
+    levels: tuple[str, ...] = ()
+    level: str | None = None
+
+    @property
+    def name(self) -> str:
+        from .words.names import effect_name
+
+        return effect_name(self)
 
     def to_record(self) -> dict[str, Any]:
-        return _clean(asdict(self))
+        return _clean(
+            {
+                "kind": self.kind.value,
+                "name": self.name,
+                "value": self.value,
+                "ci_low": self.ci_low,
+                "ci_high": self.ci_high,
+            }
+        )
 
 
 @dataclass(frozen=True)
 class Followup:
     """One pairwise comparison after a 3+ group test (or one cell of a larger table)."""
 
-    test: str  # "tukey_hsd", "games_howell", "dunn", "adjusted_residual"
+    test: Test  # a follow-up: Tukey HSD, Games-Howell, Dunn, adjusted residual
     levels: tuple[str, ...]  # the two group labels (or row label, column label for a cell)
     estimate: Estimate | None
     p_value: float | None
@@ -125,14 +132,14 @@ class Result:
 
     outcome: str
     exposure: str | None
-    design: str
-    test: str | None
+    design: Design
+    test: Test | None
     statistic_name: str | None = None
     statistic: float | None = None
     df: float | list[float] | None = None
     p_value: float | None = None
     p_adjusted: float | None = None
-    p_method: str | None = None
+    p_method: PMethod | None = None
     alternative: str = "two-sided"
     confidence: float = 0.95
     n: int = 0

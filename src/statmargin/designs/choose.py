@@ -11,23 +11,23 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from ..stats.shape import ShapeAssessment, SpreadCheck, fmt_p
-from ..vocabulary import MeasureType, ShapeHandling
+from ..vocabulary import Design, MeasureType, ShapeHandling, Test
 
 # design -> (normal-shaped test, not normal-shaped test). Common practice, no single source.
-DECISION_TABLE: dict[str, tuple[str, str]] = {
-    "one_sample_categorical": ("chi_square_goodness_of_fit", "chi_square_goodness_of_fit"),
-    "one_sample_continuous": ("one_sample_t", "wilcoxon_signed_rank"),
-    "two_categorical": ("chi_square_independence", "chi_square_independence"),
-    "two_group_continuous": ("welch_t", "mann_whitney_u"),
-    "multi_group_continuous": ("one_way_anova", "kruskal_wallis"),
-    "two_continuous": ("pearson_r", "spearman_rho"),
-    "paired_continuous": ("paired_t", "wilcoxon_signed_rank"),
-    "paired_categorical": ("mcnemar", "mcnemar"),
+DECISION_TABLE: dict[Design, tuple[Test, Test]] = {
+    Design.ONE_SAMPLE_CATEGORICAL: (Test.CHI_SQUARE_GOODNESS_OF_FIT, Test.CHI_SQUARE_GOODNESS_OF_FIT),
+    Design.ONE_SAMPLE_CONTINUOUS: (Test.ONE_SAMPLE_T, Test.WILCOXON_SIGNED_RANK),
+    Design.TWO_CATEGORICAL: (Test.CHI_SQUARE_INDEPENDENCE, Test.CHI_SQUARE_INDEPENDENCE),
+    Design.TWO_GROUP_CONTINUOUS: (Test.WELCH_T, Test.MANN_WHITNEY_U),
+    Design.MULTI_GROUP_CONTINUOUS: (Test.ONE_WAY_ANOVA, Test.KRUSKAL_WALLIS),
+    Design.TWO_CONTINUOUS: (Test.PEARSON_R, Test.SPEARMAN_RHO),
+    Design.PAIRED_CONTINUOUS: (Test.PAIRED_T, Test.WILCOXON_SIGNED_RANK),
+    Design.PAIRED_CATEGORICAL: (Test.MCNEMAR, Test.MCNEMAR),
 }
 
 # Designs whose test depends on the shape of continuous values.
 SHAPE_DESIGNS = frozenset(
-    {"one_sample_continuous", "two_group_continuous", "multi_group_continuous", "two_continuous", "paired_continuous"}
+    {"one_sample_continuous", Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS, Design.TWO_CONTINUOUS, Design.PAIRED_CONTINUOUS}
 )
 
 SPREAD_ALPHA = 0.05  # Brown-Forsythe level for switching to Welch's ANOVA (common practice)
@@ -43,8 +43,8 @@ WELCH_REASON = (
 class Choice:
     """The chosen test for one analysis, whether it is rank-based, and the reasons."""
 
-    design: str
-    test: str
+    design: Design
+    test: Test
     rank_based: bool
     reasons: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)  # caveats to carry into Result.notes
@@ -58,10 +58,10 @@ def _sentence(text: str) -> str:
     return text
 
 
-def _shape_sentence(design: str, outcome: str, by: str | None, shape: ShapeAssessment) -> str:
+def _shape_sentence(design: Design, outcome: str, by: str | None, shape: ShapeAssessment) -> str:
     """Say where the shape check failed or passed, in one sentence (without the conclusion)."""
     summaries = shape.summaries
-    if design in ("multi_group_continuous", "two_group_continuous"):
+    if design in (Design.MULTI_GROUP_CONTINUOUS, Design.TWO_GROUP_CONTINUOUS):
         k = len(summaries)
         if shape.unchecked:
             names = ", ".join(repr(u) for u in shape.unchecked)
@@ -76,12 +76,12 @@ def _shape_sentence(design: str, outcome: str, by: str | None, shape: ShapeAsses
             worst = min(bad, key=lambda s: s.check_p if s.check_p is not None else -1.0)
             return f"{outcome} is {direction} in {len(bad)} of {k} groups of {by} ({worst.evidence})"
         return f"{outcome} looks close to normal in all {k} groups of {by}"
-    if design == "paired_continuous":
+    if design == Design.PAIRED_CONTINUOUS:
         s = summaries[0]
         if s.normal_shaped is None:
             return f"there are too few pairs to check the shape of the differences in {outcome}"
         return f"the differences in {outcome} are {s.verdict}"
-    if design == "two_continuous":
+    if design == Design.TWO_CONTINUOUS:
         bad = [s for s in summaries if s.normal_shaped is False]
         if shape.unchecked:
             return f"there are too few values to check the shape of {outcome} and {by}"
@@ -95,7 +95,7 @@ def _shape_sentence(design: str, outcome: str, by: str | None, shape: ShapeAsses
 
 
 def choose_test(
-    design: str,
+    design: Design,
     *,
     outcome: str,
     by: str | None = None,
@@ -154,7 +154,7 @@ def choose_test(
     reasons: list[str] = []
     notes: list[str] = []
 
-    if design == "one_sample_categorical":
+    if design == Design.ONE_SAMPLE_CATEGORICAL:
         small = min_expected is not None and min_expected < COCHRAN_MIN_EXPECTED
         if single_share or n_levels == 2 and small:
             if single_share:
@@ -164,25 +164,25 @@ def choose_test(
                     f"An expected count is below 5 (smallest {min_expected:.3g}), so the exact binomial"
                     " test was used instead of chi-square (Cochran's rule)."
                 )
-            return Choice(design, "binomial_exact", False, reasons, notes)
+            return Choice(design, Test.BINOMIAL_EXACT, False, reasons, notes)
         # Small expected counts with 3+ categories: the method itself says how its p-value was
         # obtained (and switches to Monte Carlo), so no second caveat is added here.
         reasons.append(f"{outcome} is compared with the given shares by a chi-square goodness-of-fit test.")
         return Choice(design, normal_test, False, reasons, notes)
 
-    if design == "two_categorical":
+    if design == Design.TWO_CATEGORICAL:
         small = min_expected is not None and min_expected < COCHRAN_MIN_EXPECTED
         if table_shape == (2, 2) and small:
             reasons.append(
                 f"An expected count is below 5 (smallest {min_expected:.3g}) in a 2x2 table, so Fisher's"
                 " exact test was used (Cochran's rule)."
             )
-            return Choice(design, "fisher_exact", False, reasons, notes)
+            return Choice(design, Test.FISHER_EXACT, False, reasons, notes)
         # Larger tables with small expected counts: the method reports its own caveat and p method.
         reasons.append(f"{outcome} and {by} are both categories, so a chi-square test of independence was used.")
         return Choice(design, normal_test, False, reasons, notes)
 
-    if design == "paired_categorical":
+    if design == Design.PAIRED_CATEGORICAL:
         reasons.append(f"{outcome} is a two-level category measured twice on the same units, so McNemar's test was used.")
         return Choice(design, normal_test, False, reasons, notes)
 
@@ -215,11 +215,11 @@ def choose_test(
         return Choice(design, rank_test, True, reasons, notes)
 
     test = normal_test
-    if design == "two_group_continuous":
+    if design == Design.TWO_GROUP_CONTINUOUS:
         reasons.append(WELCH_REASON)
-    elif design == "multi_group_continuous":
+    elif design == Design.MULTI_GROUP_CONTINUOUS:
         if spread is not None and spread.p_value < SPREAD_ALPHA:
-            test = "welch_anova"
+            test = Test.WELCH_ANOVA
             reasons.append(
                 f"The spread of {outcome} differs between the groups of {by} (Brown-Forsythe {fmt_p(spread.p_value)}),"
                 " so Welch's ANOVA was used."
@@ -230,7 +230,7 @@ def choose_test(
                 " so the classic one-way ANOVA was used."
             )
         else:
-            test = "welch_anova"
+            test = Test.WELCH_ANOVA
             reasons.append(
                 f"The spread of {outcome} across the groups of {by} could not be checked, so Welch's ANOVA"
                 " (which does not assume equal spreads) was used."

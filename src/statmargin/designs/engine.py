@@ -22,7 +22,16 @@ from ..plan.types import ColumnValues, TypeInfo, category_labels, infer_type, us
 from ..read.table import Column, Table
 from ..results import Effect, Result
 from ..stats.shape import assess, count_check, expected_counts, spread_check
-from ..vocabulary import AdjustMethod, Alternative, MeasureType, Role, ShapeHandling
+from ..vocabulary import (
+    AdjustMethod,
+    Alternative,
+    Design,
+    EffectKind,
+    MeasureType,
+    Role,
+    ShapeHandling,
+    Test,
+)
 from .choose import DECISION_TABLE, Choice, choose_test
 
 USABLE_TYPES = (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)
@@ -397,7 +406,7 @@ def _both(a: ColumnValues, b: ColumnValues) -> tuple[np.ndarray, int]:
     return usable, excluded
 
 
-def _skipped(design: str, test: str | None, outcome: str, exposure: str | None, reason: str,
+def _skipped(design: Design, test: Test | None, outcome: str, exposure: str | None, reason: str,
              settings: Settings, *, n: int = 0, n_excluded: int = 0, reasons: list[str] | None = None) -> Result:
     return Result(
         outcome=outcome, exposure=exposure, design=design, test=test, skipped=reason,
@@ -406,7 +415,7 @@ def _skipped(design: str, test: str | None, outcome: str, exposure: str | None, 
     )
 
 
-def _finish(result: Result, *, design: str, outcome: str, exposure: str | None, choice: Choice | None,
+def _finish(result: Result, *, design: Design, outcome: str, exposure: str | None, choice: Choice | None,
             n: int, n_excluded: int, groups: list[dict], shape: dict, settings: Settings) -> Result:
     """Fill the engine's fields on a method's Result (which arrives with outcome '' and exposure None)."""
     result.outcome = outcome
@@ -435,7 +444,7 @@ def _finish(result: Result, *, design: str, outcome: str, exposure: str | None, 
     return result
 
 
-def _run(test: str, call, *, design: str, outcome: str, exposure: str | None, choice: Choice | None,
+def _run(test: Test, call, *, design: Design, outcome: str, exposure: str | None, choice: Choice | None,
          n: int, n_excluded: int, groups: list[dict], shape: dict, settings: Settings) -> Result:
     """Call a method; a NotEnoughDataError becomes a skipped Result with the method's message."""
     try:
@@ -483,7 +492,7 @@ def _one_sample(col: Column, info: TypeInfo, analysis: Analysis, handling: Shape
             str(analysis.against_text or against), info, column=name)
         assert isinstance(parsed, dict)  # a categorical outcome always parses to shares by label
         shares: dict[str, float] = parsed
-        design = "one_sample_categorical"
+        design = Design.ONE_SAMPLE_CATEGORICAL
         labels = vals.values[vals.usable]
         levels = list(info.levels) or sorted(set(labels))
         counts = {lev: int(np.sum(labels == lev)) for lev in levels}
@@ -501,7 +510,7 @@ def _one_sample(col: Column, info: TypeInfo, analysis: Analysis, handling: Shape
         choice = choose_test(design, outcome=name, min_expected=check["min_expected"],
                              n_expected_lt_5=check["n_expected_lt_5"], n_levels=len(levels), single_share=single)
         shape = {"counts": check}
-        if choice.test == "binomial_exact":
+        if choice.test == Test.BINOMIAL_EXACT:
             if single:
                 label, share = next(iter(shares.items()))
             else:
@@ -517,7 +526,7 @@ def _one_sample(col: Column, info: TypeInfo, analysis: Analysis, handling: Shape
         result.against = shares
         return result, _Prepared()
 
-    design = "one_sample_continuous"
+    design = Design.ONE_SAMPLE_CONTINUOUS
     x = vals.values[vals.usable].astype(float)
     if against is None or isinstance(against, dict):
         raise OptionError(
@@ -538,7 +547,7 @@ def _one_sample(col: Column, info: TypeInfo, analysis: Analysis, handling: Shape
         r.against, r.groups, r.shape = mu, groups, shape
         return r, _Prepared()
     choice = choose_test(design, outcome=name, outcome_type=info.type, shape_handling=handling, shape=shape_a)
-    if choice.test == "one_sample_t":
+    if choice.test == Test.ONE_SAMPLE_T:
         call = lambda: onesample.one_sample_t(x, mu=mu, **_opts(settings))  # noqa: E731
     else:
         call = lambda: onesample.wilcoxon_signed_rank(x, mu=mu, **_opts(settings))  # noqa: E731
@@ -590,7 +599,7 @@ def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: Type
     levels = _levels_present(grp_info, labels)
     groups = {lev: values[labels == lev] for lev in levels}
     n = int(values.size)
-    design = "two_group_continuous" if len(levels) == 2 else "multi_group_continuous"
+    design = Design.TWO_GROUP_CONTINUOUS if len(levels) == 2 else Design.MULTI_GROUP_CONTINUOUS
     name, by = num_col.name, grp_col.name
     ordinal = num_info.type is MeasureType.ORDINAL
     lead = [extra_reason] if extra_reason else []
@@ -602,7 +611,7 @@ def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: Type
     if len(levels) < 2:
         only = f" ({levels[0]!r})" if levels else ""
         reason = f"{by} has fewer than two groups{only} among the usable rows, so there is nothing to compare."
-        r = _skipped("two_group_continuous", None, report_outcome, report_exposure, reason, settings,
+        r = _skipped(Design.TWO_GROUP_CONTINUOUS, None, report_outcome, report_exposure, reason, settings,
                      n=n, n_excluded=n_excl, reasons=lead)
         r.groups, r.shape = summaries, shape
         return r, _Prepared()
@@ -616,30 +625,30 @@ def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: Type
                          shape=shape_a, spread=spread)
     choice.reasons[:0] = lead
     opts = _opts(settings)
-    if design == "two_group_continuous":
+    if design == Design.TWO_GROUP_CONTINUOUS:
         x, z = groups[levels[0]], groups[levels[1]]
         lab = (levels[0], levels[1])
-        pair_fn = {"welch_t": twogroup.welch_t, "student_t": twogroup.student_t,
-                   "mann_whitney_u": twogroup.mann_whitney_u}[choice.test]
+        pair_fn = {"welch_t": twogroup.welch_t, Test.STUDENT_T: twogroup.student_t,
+                   Test.MANN_WHITNEY_U: twogroup.mann_whitney_u}[choice.test]
         call = lambda: pair_fn(x, z, labels=lab, **opts)  # noqa: E731
     else:
-        many_fn = {"one_way_anova": multigroup.one_way_anova, "welch_anova": multigroup.welch_anova,
-                   "kruskal_wallis": multigroup.kruskal_wallis}[choice.test]
+        many_fn = {"one_way_anova": multigroup.one_way_anova, Test.WELCH_ANOVA: multigroup.welch_anova,
+                   Test.KRUSKAL_WALLIS: multigroup.kruskal_wallis}[choice.test]
         call = lambda: many_fn(groups, **opts)  # noqa: E731
     result = _run(choice.test, call, design=design, outcome=report_outcome, exposure=report_exposure,
                   choice=choice, n=n, n_excluded=n_excl, groups=summaries, shape=shape, settings=settings)
-    if result.skipped is None and design == "two_group_continuous" and (choice.rank_based or ordinal):
+    if result.skipped is None and design == Design.TWO_GROUP_CONTINUOUS and (choice.rank_based or ordinal):
         ps = probability_of_superiority(groups[levels[0]], groups[levels[1]])
         result.extra["probability_of_superiority"] = ps
         result.extra["probability_of_superiority_levels"] = [levels[0], levels[1]]
-        if ordinal and result.effect is not None and result.effect.name == "rank-biserial r":
+        if ordinal and result.effect is not None and result.effect.kind is EffectKind.RANK_BISERIAL:
             # For ordered labels the chance that a record of the first group ranks above one
             # of the second (ties half) reads more plainly than r; r = 2 * PS - 1 exactly
             # (Kerby 2014, Comprehensive Psychology 3:11.IT.3.1), so its interval maps across.
             rank_r = result.effect
             result.extra["rank_biserial_r"] = rank_r.to_record()
             result.effect = Effect(
-                "probability of superiority",
+                EffectKind.PROBABILITY_OF_SUPERIORITY,
                 ps,
                 None if rank_r.ci_low is None else (rank_r.ci_low + 1) / 2,
                 None if rank_r.ci_high is None else (rank_r.ci_high + 1) / 2,
@@ -689,7 +698,7 @@ def _two_continuous(out_col: Column, out_info: TypeInfo, by_col: Column, by_info
     x = a.values[usable].astype(float)
     y = b.values[usable].astype(float)
     n = int(x.size)
-    design = "two_continuous"
+    design = Design.TWO_CONTINUOUS
     name, by = out_col.name, by_col.name
     shape_a = assess({name: x, by: y})
     shape = {"assessment": shape_a.to_record()}
@@ -704,7 +713,7 @@ def _two_continuous(out_col: Column, out_info: TypeInfo, by_col: Column, by_info
             return r, _Prepared()
     choice = choose_test(design, outcome=name, by=by, outcome_type=out_info.type, by_type=by_info.type,
                          shape_handling=handling, shape=shape_a)
-    fn = correlation.pearson_r if choice.test == "pearson_r" else correlation.spearman_rho
+    fn = correlation.pearson_r if choice.test == Test.PEARSON_R else correlation.spearman_rho
     call = lambda: fn(x, y, **_opts(settings))  # noqa: E731
     return _run(choice.test, call, design=design, outcome=name, exposure=by, choice=choice, n=n,
                 n_excluded=n_excl, groups=summaries, shape=shape, settings=settings), _Prepared()
@@ -722,7 +731,7 @@ def _two_categorical(out_col: Column, out_info: TypeInfo, by_col: Column, by_inf
     rows = _levels_present(by_info, by_labels)
     cols = _levels_present(out_info, out_labels)
     n = int(usable.sum())
-    design = "two_categorical"
+    design = Design.TWO_CATEGORICAL
     name, by = out_col.name, by_col.name
     observed = np.array([[int(np.sum((by_labels == r) & (out_labels == c))) for c in cols] for r in rows])
     groups = [{"label": r, "n": int(observed[i].sum()),
@@ -739,7 +748,7 @@ def _two_categorical(out_col: Column, out_info: TypeInfo, by_col: Column, by_inf
     shape = {"counts": {**check, "observed": observed.tolist(), "row_labels": rows, "col_labels": cols}}
     choice = choose_test(design, outcome=name, by=by, min_expected=check["min_expected"],
                          n_expected_lt_5=check["n_expected_lt_5"], table_shape=observed.shape)
-    if choice.test == "fisher_exact":
+    if choice.test == Test.FISHER_EXACT:
         call = lambda: categorical.fisher_exact(observed, rows, cols, **_opts(settings))  # noqa: E731
     else:
         call = lambda: categorical.chi_square_independence(  # noqa: E731
@@ -763,7 +772,7 @@ def _paired_long(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: T
                  handling: ShapeHandling, settings: Settings) -> tuple[Result, _Prepared]:
     name, by, key = out_col.name, by_col.name, key_col.name
     cat = out_info.type is MeasureType.CATEGORICAL
-    design = "paired_categorical" if cat else "paired_continuous"
+    design = Design.PAIRED_CATEGORICAL if cat else Design.PAIRED_CONTINUOUS
     y = usable_values(out_col, out_info)
     g = usable_values(by_col, by_info)
     keys, key_present = _key_labels(key_col)
@@ -773,7 +782,7 @@ def _paired_long(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: T
             reason = (f"{by} has {len(conditions)} conditions; paired comparisons of more than two"
                       f" conditions per {key} are not supported yet. Keep two conditions, or remove the"
                       f" pairing key if every row is a different unit.")
-            r = _skipped("multi_group_continuous" if not cat else design, None, name, by, reason, settings)
+            r = _skipped(Design.MULTI_GROUP_CONTINUOUS if not cat else design, None, name, by, reason, settings)
         else:
             r = _skipped(design, None, name, by, f"{by} needs two conditions to pair {name} by {key}.", settings)
         r.pairing = key
@@ -825,7 +834,7 @@ def _paired_wide(a_col: Column, a_info: TypeInfo, b_col: Column, b_info: TypeInf
             f"{a_col.name!r} and {b_col.name!r} are paired but one holds categories and the other numbers;"
             " set both to the same type."
         )
-    design = "paired_categorical" if a_cat else "paired_continuous"
+    design = Design.PAIRED_CATEGORICAL if a_cat else Design.PAIRED_CONTINUOUS
     if a_cat:
         # Both columns must share one set of two levels.
         levels = tuple(sorted(set(a_info.levels) | set(b_info.levels), key=_level_key))
@@ -854,18 +863,18 @@ def _level_key(label: str):
         return (1, 0.0, label)
 
 
-def _paired_core(name: str, info: TypeInfo, a: np.ndarray, b: np.ndarray, labels: tuple[str, str], design: str,
+def _paired_core(name: str, info: TypeInfo, a: np.ndarray, b: np.ndarray, labels: tuple[str, str], design: Design,
                  handling: ShapeHandling, settings: Settings, *, exposure: str | None,
                  n_excl: int) -> tuple[Result, _Prepared]:
     from ..stats import categorical, paired
 
     n_pairs = int(a.size)
-    if design == "paired_categorical":
+    if design == Design.PAIRED_CATEGORICAL:
         levels = [lev for lev in info.levels if lev in set(a) | set(b)] or sorted(set(a) | set(b))
         if len(levels) != 2:
             reason = (f"{name} must have exactly two categories for a paired comparison of counts;"
                       f" found {len(levels)} among the complete pairs.")
-            return _skipped(design, "mcnemar", name, exposure, reason, settings, n=n_pairs,
+            return _skipped(design, Test.MCNEMAR, name, exposure, reason, settings, n=n_pairs,
                             n_excluded=n_excl), _Prepared()
         table = np.array([[int(np.sum((a == r) & (b == c))) for c in levels] for r in levels])
         choice = choose_test(design, outcome=name)
@@ -874,7 +883,7 @@ def _paired_core(name: str, info: TypeInfo, a: np.ndarray, b: np.ndarray, labels
         call = lambda: categorical.mcnemar(table, list(levels), **_opts(settings))  # noqa: E731
         groups = [{"label": labels[0], "n": n_pairs, "counts": {lv: int(np.sum(a == lv)) for lv in levels}},
                   {"label": labels[1], "n": n_pairs, "counts": {lv: int(np.sum(b == lv)) for lv in levels}}]
-        return _run("mcnemar", call, design=design, outcome=name, exposure=exposure, choice=choice, n=n_pairs,
+        return _run(Test.MCNEMAR, call, design=design, outcome=name, exposure=exposure, choice=choice, n=n_pairs,
                     n_excluded=n_excl, groups=groups, shape=shape, settings=settings), _Prepared()
     diff = a - b
     shape_a = assess({f"{labels[0]} - {labels[1]}": diff})
@@ -891,7 +900,7 @@ def _paired_core(name: str, info: TypeInfo, a: np.ndarray, b: np.ndarray, labels
         r.groups, r.shape = summaries, shape
         return r, _Prepared()
     choice = choose_test(design, outcome=name, outcome_type=info.type, shape_handling=handling, shape=shape_a)
-    fn = paired.paired_t if choice.test == "paired_t" else paired.wilcoxon_paired
+    fn = paired.paired_t if choice.test == Test.PAIRED_T else paired.wilcoxon_paired
     call = lambda: fn(a, b, labels=labels, **_opts(settings))  # noqa: E731
     return _run(choice.test, call, design=design, outcome=name, exposure=exposure, choice=choice, n=n_pairs,
                 n_excluded=n_excl, groups=summaries, shape=shape, settings=settings), _Prepared()
@@ -906,21 +915,21 @@ def _follow_up(result: Result, prepared: _Prepared, settings: Settings) -> None:
         return
     from ..stats import followup
 
-    if result.design == "multi_group_continuous" and len(prepared.groups) >= 3:
-        if result.test == "one_way_anova":
+    if result.design == Design.MULTI_GROUP_CONTINUOUS and len(prepared.groups) >= 3:
+        if result.test == Test.ONE_WAY_ANOVA:
             result.followups = list(followup.tukey_hsd(prepared.groups, confidence=settings.confidence, alpha=settings.alpha))
             what = "Tukey HSD"
-        elif result.test == "welch_anova":
+        elif result.test == Test.WELCH_ANOVA:
             result.followups = list(followup.games_howell(prepared.groups, confidence=settings.confidence, alpha=settings.alpha))
             what = "Games-Howell"
-        elif result.test == "kruskal_wallis":
+        elif result.test == Test.KRUSKAL_WALLIS:
             result.followups = list(followup.dunn(prepared.groups, adjust="holm", alpha=settings.alpha,
                                                          confidence=settings.confidence))
             what = "Dunn's test with Holm adjustment"
         else:
             return
         result.reasons.append(f"The overall test was below {settings.alpha:g} after adjustment, so pairs of groups were compared with {what}.")
-    elif result.design == "two_categorical" and prepared.table is not None and prepared.table.size > 4:
+    elif result.design == Design.TWO_CATEGORICAL and prepared.table is not None and prepared.table.size > 4:
         result.followups = list(
             followup.adjusted_residuals(prepared.table, prepared.row_labels, prepared.col_labels,
                                         threshold=RESIDUAL_FLAG)

@@ -22,6 +22,7 @@ from .._version import __version__
 from ..plan.model import Settings
 from ..read.table import Column, DataNote, Table, column_letter
 from ..results import Result
+from ..vocabulary import Design
 from ..words import explain
 from .model import Cell, Chart, ChartSeries, SheetModel
 from .share import DEFAULT_MIN_COUNT, suppress
@@ -502,9 +503,9 @@ def samples_from_table(result: Result, table: Table) -> dict[str, list[float]]:
     in sharing mode's sum checks.
     """
     if result.skipped or result.design in (
-        "one_sample_categorical",
-        "two_categorical",
-        "paired_categorical",
+        Design.ONE_SAMPLE_CATEGORICAL,
+        Design.TWO_CATEGORICAL,
+        Design.PAIRED_CATEGORICAL,
     ):
         return {}
     columns = table.columns
@@ -514,16 +515,16 @@ def samples_from_table(result: Result, table: Table) -> dict[str, list[float]]:
         for g in result.groups
         if isinstance(g, Mapping) and g.get("label") is not None
     ]
-    if result.design == "one_sample_continuous" and outcome is not None:
+    if result.design == Design.ONE_SAMPLE_CONTINUOUS and outcome is not None:
         return {outcome.name: [float(v) for v in outcome.numbers if math.isfinite(v)]}
-    if result.design == "two_continuous" and outcome is not None and exposure is not None:
+    if result.design == Design.TWO_CONTINUOUS and outcome is not None and exposure is not None:
         both = np.isfinite(outcome.numbers) & np.isfinite(exposure.numbers)
         return {
             outcome.name: outcome.numbers[both].tolist(),
             exposure.name: exposure.numbers[both].tolist(),
         }
     if (
-        result.design in ("two_group_continuous", "multi_group_continuous")
+        result.design in (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS)
         and outcome
         and exposure
         and labels
@@ -533,7 +534,7 @@ def samples_from_table(result: Result, table: Table) -> dict[str, list[float]]:
             if any(found.values()):
                 return found
         return {}
-    if result.design == "paired_continuous" and outcome is not None:
+    if result.design == Design.PAIRED_CONTINUOUS and outcome is not None:
         if exposure is not None:
             levels = list(explain.two_labels(result))
             found = _grouped(outcome, exposure, levels)
@@ -983,11 +984,11 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
         if result.groups and _continuous_groups(result):
             row, n_cells = _put_group_table(model, row, result)
             row += 1
-        elif result.groups and result.design in ("one_sample_categorical",):
+        elif result.groups and result.design in (Design.ONE_SAMPLE_CATEGORICAL,):
             row, chart = _put_level_table(model, row, result)
             if chart:
                 charts.append(chart)
-        if result.design in ("two_categorical", "paired_categorical"):
+        if result.design in (Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL):
             row, chart = _put_crosstab(model, row, result)
             if chart:
                 charts.append(chart)
@@ -1003,7 +1004,7 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
             row += 2
         samples = _samples_for(result, context)
         units = explain.units_for(context, result.outcome)
-        if samples and result.design == "two_continuous":
+        if samples and result.design == Design.TWO_CONTINUOUS:
             for name, values in samples.items():
                 row, chart = _put_histogram(
                     model,

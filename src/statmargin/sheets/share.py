@@ -40,18 +40,20 @@ import copy
 import math
 import re
 from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import replace
 from typing import Any, overload
 
 from ..read.table import column_index
-from ..results import Effect, Estimate, Result
+from ..results import Result
+from ..vocabulary import Design, Test
 from ..words import explain
 from .model import Cell, SheetModel
 
 DEFAULT_MIN_COUNT = 11
 SUPPRESSED_TEXT = "suppressed"
 
-_CATEGORICAL = ("one_sample_categorical", "two_categorical", "paired_categorical")
-_GROUPED_CONTINUOUS = ("two_group_continuous", "multi_group_continuous", "paired_continuous")
+_CATEGORICAL = (Design.ONE_SAMPLE_CATEGORICAL, Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL)
+_GROUPED_CONTINUOUS = (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS, Design.PAIRED_CONTINUOUS)
 
 
 def is_small_count(value: Any, min_count: int = DEFAULT_MIN_COUNT) -> bool:
@@ -276,11 +278,11 @@ def _small_cells(result: Result, min_count: int) -> bool:
 
 
 def _is_two_by_two(result: Result) -> bool:
-    if result.test in ("fisher_exact", "mcnemar"):
+    if result.test in (Test.FISHER_EXACT, Test.MCNEMAR):
         return True
     df = result.df
     return (
-        result.design in ("two_categorical", "paired_categorical")
+        result.design in (Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL)
         and isinstance(df, (int, float))
         and df == 1
     )
@@ -318,13 +320,13 @@ def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Resul
         hidden.add("estimate")
         if _is_two_by_two(out):
             hidden |= {"effect", "statistic", "p_value", "p_adjusted"}
-        out.followups = [f for f in out.followups if f.test != "adjusted_residual"]
+        out.followups = [f for f in out.followups if f.test != Test.ADJUSTED_RESIDUAL]
     elif out.design in _GROUPED_CONTINUOUS and small_group:
         hidden.add("estimate")
     if "estimate" in hidden and out.estimate is not None:
-        out.estimate = Estimate(out.estimate.name, None)
+        out.estimate = replace(out.estimate, value=None, ci_low=None, ci_high=None)
     if "effect" in hidden and out.effect is not None:
-        out.effect = Effect(out.effect.name, None)
+        out.effect = replace(out.effect, value=None, ci_low=None, ci_high=None)
     if "statistic" in hidden:
         out.statistic = None
     if "p_value" in hidden:

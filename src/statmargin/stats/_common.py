@@ -14,6 +14,7 @@ import numpy as np
 from scipy import stats
 
 from statmargin.errors import NotEnoughDataError, OptionError
+from statmargin.vocabulary import PMethod
 
 ALTERNATIVES = ("two-sided", "greater", "less")
 
@@ -200,7 +201,7 @@ def check_exact(exact: bool | str) -> None:
         raise OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
 
 
-def normal_approximation(correct: bool) -> tuple[str, str]:
+def normal_approximation(correct: bool) -> tuple[PMethod, str]:
     """``p_method`` and the plain note for a rank test's normal approximation.
 
     Returns
@@ -209,7 +210,7 @@ def normal_approximation(correct: bool) -> tuple[str, str]:
         The p-method name (with or without continuity correction) and the note
         for ``Result.notes``.
     """
-    p_method = "normal_approximation_continuity" if correct else "normal_approximation"
+    p_method = PMethod.NORMAL_APPROXIMATION_CONTINUITY if correct else PMethod.NORMAL_APPROXIMATION
     note = "The p-value uses the normal approximation with the tie correction" + (
         " and a continuity correction." if correct else " (no continuity correction)."
     )

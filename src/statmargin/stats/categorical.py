@@ -20,7 +20,7 @@ from statmargin.errors import NotEnoughDataError, OptionError
 from statmargin.plan.model import Settings
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats._common import caveat, check_confidence
-from statmargin.vocabulary import Alternative
+from statmargin.vocabulary import Alternative, Design, EffectKind, EstimateKind, PMethod, Test
 
 _DEFAULTS = Settings()
 DEFAULT_SEED = _DEFAULTS.seed
@@ -447,10 +447,12 @@ def _difference_of_shares(
         x1, n1, x2, n2, confidence=confidence, alternative=alternative
     )
     return Estimate(
-        name=(f"difference in share of '{col_labels[0]}' ('{row_labels[0]}' - '{row_labels[1]}')"),
+        EstimateKind.SHARE_DIFFERENCE,
         value=x1 / n1 - x2 / n2,
         ci_low=low,
         ci_high=high,
+        levels=(str(row_labels[0]), str(row_labels[1])),
+        level=str(col_labels[0]),
     )
 
 
@@ -487,7 +489,7 @@ def chi_square_goodness_of_fit(
     Returns
     -------
     Result
-        design "one_sample_categorical", test "chi_square_goodness_of_fit".
+        design Design.ONE_SAMPLE_CATEGORICAL, test Test.CHI_SQUARE_GOODNESS_OF_FIT.
         ``estimate`` is the share of the category furthest from its expected
         share, with a Wilson interval; ``effect`` is Cohen's w with a
         noncentrality-based interval; ``groups`` has count, share, expected and
@@ -574,7 +576,7 @@ def chi_square_goodness_of_fit(
         sims = rng.multinomial(n, expected_share, size=monte_carlo_resamples)
         sim_x2 = _pearson_x2(sims.astype(float), expected)
         p_value, se = _monte_carlo_p(sim_x2, x2, monte_carlo_resamples)
-        p_method = "monte_carlo"
+        p_method = PMethod.MONTE_CARLO
         extra.update(monte_carlo_resamples=monte_carlo_resamples, monte_carlo_se=se, seed=seed)
         caveat(
             notes,
@@ -582,23 +584,22 @@ def chi_square_goodness_of_fit(
         )
     else:
         p_value = float(stats.chi2.sf(x2, df))
-        p_method = "asymptotic"
+        p_method = PMethod.ASYMPTOTIC
 
     observed_share = observed / n
     furthest = int(np.argmax(np.abs(observed_share - expected_share)))
     low, high = wilson_interval(int(observed[furthest]), n, confidence=confidence)
     estimate = Estimate(
-        name=(
-            f"share of '{labels[furthest]}' (expected {expected_share[furthest]:.4g}; "
-            "the category furthest from its expected share)"
-        ),
+        EstimateKind.SHARE_FURTHEST,
         value=float(observed_share[furthest]),
         ci_low=low,
         ci_high=high,
+        level=str(labels[furthest]),
+        reference=float(expected_share[furthest]),
     )
     nc_low, nc_high = noncentrality_interval(x2, df, confidence=confidence)
     effect = Effect(
-        name="Cohen's w",
+        EffectKind.COHENS_W,
         value=math.sqrt(x2 / n),
         ci_low=math.sqrt(nc_low / n),
         ci_high=math.sqrt(nc_high / n),
@@ -616,8 +617,8 @@ def chi_square_goodness_of_fit(
     return Result(
         outcome="",
         exposure=None,
-        design="one_sample_categorical",
-        test="chi_square_goodness_of_fit",
+        design=Design.ONE_SAMPLE_CATEGORICAL,
+        test=Test.CHI_SQUARE_GOODNESS_OF_FIT,
         statistic_name="chi-square",
         statistic=x2,
         df=float(df),
@@ -669,7 +670,7 @@ def binomial_exact(
     Returns
     -------
     Result
-        design "one_sample_categorical", test "binomial_exact". ``estimate`` is
+        design Design.ONE_SAMPLE_CATEGORICAL, test Test.BINOMIAL_EXACT. ``estimate`` is
         the observed share with a Wilson interval; the Clopper-Pearson exact
         interval is in ``extra["clopper_pearson"]``; ``effect`` is Cohen's h
         against the target share.
@@ -727,7 +728,7 @@ def binomial_exact(
             f"The target share {share} must be between 0 and 1 (exclusive); give e.g. 0.5."
         )
     test = stats.binomtest(successes, n, p=share, alternative=alt)
-    exact = test.proportion_ci(confidence_level=confidence, method="exact")
+    exact = test.proportion_ci(confidence_level=confidence, method=PMethod.EXACT)
     phat = successes / n
     low, high = wilson_interval(successes, n, confidence=confidence, alternative=alt)
 
@@ -747,18 +748,18 @@ def binomial_exact(
     return Result(
         outcome="",
         exposure=None,
-        design="one_sample_categorical",
-        test="binomial_exact",
+        design=Design.ONE_SAMPLE_CATEGORICAL,
+        test=Test.BINOMIAL_EXACT,
         statistic_name="number of successes",
         statistic=float(successes),
         df=None,
         p_value=float(test.pvalue),
-        p_method="exact",
+        p_method=PMethod.EXACT,
         alternative=alt,
         confidence=confidence,
         n=n,
-        estimate=Estimate(name=f"share of '{label}'", value=phat, ci_low=low, ci_high=high),
-        effect=Effect(name="Cohen's h", value=h(phat), ci_low=h(low), ci_high=h(high)),
+        estimate=Estimate(EstimateKind.SHARE, value=phat, ci_low=low, ci_high=high, level=str(label)),
+        effect=Effect(EffectKind.COHENS_H, value=h(phat), ci_low=h(low), ci_high=h(high)),
         groups=groups,
         against=share,
         extra={
@@ -804,7 +805,7 @@ def chi_square_independence(
     Returns
     -------
     Result
-        design "two_categorical", test "chi_square_independence"; ``effect`` is
+        design Design.TWO_CATEGORICAL, test Test.CHI_SQUARE_INDEPENDENCE; ``effect`` is
         Cramer's V with a noncentrality-based interval; for 2x2 tables
         ``estimate`` is the difference in the share of the first column between
         the two rows (Newcombe interval) and ``extra["odds_ratio"]`` the sample
@@ -893,7 +894,7 @@ def chi_square_independence(
         )
         sim_x2 = _pearson_x2(sims.astype(float), expected)
         p_value, se = _monte_carlo_p(sim_x2, x2, resamples)
-        p_method = "monte_carlo"
+        p_method = PMethod.MONTE_CARLO
         extra.update(monte_carlo_resamples=resamples, monte_carlo_se=se, seed=seed)
         caveat(
             notes,
@@ -904,7 +905,7 @@ def chi_square_independence(
     else:
         p_value = float(stats.chi2.sf(x2, df))
         p_method = (
-            "normal_approximation_continuity" if extra["continuity_correction"] else "asymptotic"
+            PMethod.NORMAL_APPROXIMATION_CONTINUITY if extra["continuity_correction"] else PMethod.ASYMPTOTIC
         )
         if small:
             advice = (
@@ -921,7 +922,7 @@ def chi_square_independence(
     min_dim = min(nrow, ncol) - 1
     nc_low, nc_high = noncentrality_interval(x2_plain, df, confidence=confidence)
     effect = Effect(
-        name="Cramer's V",
+        EffectKind.CRAMERS_V,
         value=math.sqrt(x2_plain / (n * min_dim)),
         ci_low=min(1.0, math.sqrt(nc_low / (n * min_dim))),
         ci_high=min(1.0, math.sqrt(nc_high / (n * min_dim))),
@@ -934,8 +935,8 @@ def chi_square_independence(
     return Result(
         outcome="",
         exposure=None,
-        design="two_categorical",
-        test="chi_square_independence",
+        design=Design.TWO_CATEGORICAL,
+        test=Test.CHI_SQUARE_INDEPENDENCE,
         statistic_name="chi-square",
         statistic=x2,
         df=float(df),
@@ -1000,7 +1001,7 @@ def fisher_exact(
     Returns
     -------
     Result
-        design "two_categorical", test "fisher_exact"; ``effect`` is the
+        design Design.TWO_CATEGORICAL, test Test.FISHER_EXACT; ``effect`` is the
         conditional maximum-likelihood odds ratio with its exact interval;
         ``estimate`` is the difference in the share of the first column between
         the rows, with Newcombe's interval.
@@ -1048,13 +1049,13 @@ def fisher_exact(
     return Result(
         outcome="",
         exposure=None,
-        design="two_categorical",
-        test="fisher_exact",
+        design=Design.TWO_CATEGORICAL,
+        test=Test.FISHER_EXACT,
         statistic_name=None,
         statistic=None,
         df=None,
         p_value=p_value,
-        p_method="exact",
+        p_method=PMethod.EXACT,
         alternative=alt,
         confidence=confidence,
         n=int(counts.sum()),
@@ -1062,13 +1063,12 @@ def fisher_exact(
             counts, row_labels, col_labels, confidence=confidence, alternative=alt
         ),
         effect=Effect(
-            name=(
-                f"odds ratio of '{col_labels[0]}' ('{row_labels[0]}' vs '{row_labels[1]}'), "
-                "conditional MLE"
-            ),
+            EffectKind.ODDS_RATIO,
             value=float(odds.statistic),
             ci_low=float(ci.low),
             ci_high=float(ci.high),
+            levels=(str(row_labels[0]), str(row_labels[1])),
+            level=str(col_labels[0]),
         ),
         groups=_row_groups(counts, row_labels, col_labels),
         extra={
@@ -1111,7 +1111,7 @@ def mcnemar(
     Returns
     -------
     Result
-        design "paired_categorical", test "mcnemar". ``estimate``: first share
+        design Design.PAIRED_CATEGORICAL, test Test.MCNEMAR. ``estimate``: first share
         minus second share of ``labels[0]`` = (b - c)/n with Newcombe's paired
         interval (two-sided); ``effect``: the odds ratio of discordant pairs b/c
         with an exact interval from the Clopper-Pearson limits for b/(b + c).
@@ -1177,17 +1177,17 @@ def mcnemar(
     binom = stats.binomtest(b, discordant, p=0.5, alternative=alt)
     if use_exact:
         statistic_name, statistic, df = "discordant pairs b", float(b), None
-        p_value, p_method = float(binom.pvalue), "exact"
+        p_value, p_method = float(binom.pvalue), PMethod.EXACT
     else:
         statistic_name = "chi-square"
         statistic = (abs(b - c) - 1.0) ** 2 / discordant
         df = 1.0
         p_value = float(stats.chi2.sf(statistic, 1))
-        p_method = "normal_approximation_continuity"
+        p_method = PMethod.NORMAL_APPROXIMATION_CONTINUITY
 
     low, high = newcombe_paired_difference_interval(counts, confidence=confidence)
     cp = stats.binomtest(b, discordant, p=0.5).proportion_ci(
-        confidence_level=confidence, method="exact"
+        confidence_level=confidence, method=PMethod.EXACT
     )
 
     def odds(pi: float) -> float | None:
@@ -1204,8 +1204,8 @@ def mcnemar(
     return Result(
         outcome="",
         exposure=None,
-        design="paired_categorical",
-        test="mcnemar",
+        design=Design.PAIRED_CATEGORICAL,
+        test=Test.MCNEMAR,
         statistic_name=statistic_name,
         statistic=statistic,
         df=df,
@@ -1215,13 +1215,14 @@ def mcnemar(
         confidence=confidence,
         n=n,
         estimate=Estimate(
-            name=f"difference in share of '{labels[0]}' (first - second measurement)",
+            EstimateKind.PAIRED_SHARE_DIFFERENCE,
             value=(b - c) / n,
             ci_low=low,
             ci_high=high,
+            level=str(labels[0]),
         ),
         effect=Effect(
-            name="odds ratio of discordant pairs (b/c)",
+            EffectKind.DISCORDANT_ODDS_RATIO,
             value=ratio,
             ci_low=odds(float(cp.low)),
             ci_high=odds(float(cp.high)),

@@ -10,6 +10,7 @@ from scipy import stats
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
+from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 
 
 def _pairs(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray, int]:
@@ -120,19 +121,19 @@ def pearson_r(
     return Result(
         outcome="",
         exposure=None,
-        design="two_continuous",
-        test="pearson_r",
+        design=Design.TWO_CONTINUOUS,
+        test=Test.PEARSON_R,
         statistic_name="t",
         statistic=t,
         df=float(df),
         p_value=_p_of_t(t, df, alternative),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative=alternative,
         confidence=confidence,
         n=int(n),
         n_excluded=dropped,
-        estimate=Estimate("Pearson r", r, low, high),
-        effect=Effect("Pearson r", r, low, high),
+        estimate=Estimate(EstimateKind.PEARSON_R, r, low, high),
+        effect=Effect(EffectKind.PEARSON_R, r, low, high),
         groups=_summaries(a, b, labels),
         notes=notes,
         extra={"r_squared": r * r},
@@ -212,19 +213,19 @@ def spearman_rho(
     return Result(
         outcome="",
         exposure=None,
-        design="two_continuous",
-        test="spearman_rho",
+        design=Design.TWO_CONTINUOUS,
+        test=Test.SPEARMAN_RHO,
         statistic_name="S",
         statistic=s,
         df=None,
         p_value=_p_of_t(t, df, alternative),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative=alternative,
         confidence=confidence,
         n=int(n),
         n_excluded=dropped,
-        estimate=Estimate("Spearman rho", rho, low, high),
-        effect=Effect("Spearman rho", rho, low, high),
+        estimate=Estimate(EstimateKind.SPEARMAN_RHO, rho, low, high),
+        effect=Effect(EffectKind.SPEARMAN_RHO, rho, low, high),
         groups=_summaries(a, b, labels),
         notes=notes,
         extra={"t": t, "t_df": float(df)},

@@ -13,6 +13,7 @@ from collections.abc import Callable
 from scipy import optimize, special, stats
 
 from statmargin.results import Effect
+from statmargin.vocabulary import EffectKind
 
 
 def hedges_correction(df: float) -> float:
@@ -147,7 +148,7 @@ def _noncentrality_normal_interval(
 
 
 def standardized_effect(
-    name: str,
+    kind: EffectKind,
     t: float,
     df: float,
     scale: float,
@@ -158,8 +159,8 @@ def standardized_effect(
 
     Parameters
     ----------
-    name : str
-        Name shown for the effect.
+    kind : EffectKind
+        Hedges' g or g_z.
     t, df : float
         The t statistic that standardizes the difference, and its degrees of freedom.
     scale : float
@@ -177,7 +178,7 @@ def standardized_effect(
     correction = hedges_correction(df)
     low, high = noncentrality_interval(t, df, alternative, confidence)
     return Effect(
-        name=name,
+        kind,
         value=correction * t * scale,
         ci_low=correction * low * scale,
         ci_high=correction * high * scale,
@@ -249,7 +250,7 @@ def rank_biserial_signed(
     r = 2.0 * v_plus / total - 1.0
     se = math.sqrt(n * (n + 1) * (2 * n + 1) / 6.0) / total
     low, high = fisher_z_interval(r, se, alternative, confidence, edge=1.0 - 2.0 / (n * (n + 1)))
-    return Effect(name="rank-biserial r (matched pairs)", value=r, ci_low=low, ci_high=high)
+    return Effect(EffectKind.RANK_BISERIAL_PAIRED, value=r, ci_low=low, ci_high=high)
 
 
 def rank_biserial_two_sample(
@@ -274,7 +275,7 @@ def rank_biserial_two_sample(
     r = 2.0 * u_first / (n1 * n2) - 1.0
     se = math.sqrt((n1 + n2 + 1) / (3.0 * n1 * n2))
     low, high = fisher_z_interval(r, se, alternative, confidence, edge=1.0 - 1.0 / (n1 * n2))
-    return Effect(name="rank-biserial r", value=r, ci_low=low, ci_high=high)
+    return Effect(EffectKind.RANK_BISERIAL, value=r, ci_low=low, ci_high=high)
 
 
 def eta_squared(between: float, total: float) -> float:

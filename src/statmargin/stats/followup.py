@@ -28,7 +28,7 @@ from statmargin.stats._common import (
 )
 from statmargin.stats.adjust import adjust_p
 from statmargin.stats.categorical import _count_table
-from statmargin.vocabulary import AdjustMethod
+from statmargin.vocabulary import AdjustMethod, EstimateKind, PMethod, Test
 
 DEFAULT_ALPHA = 0.05  # level for flags (common practice), as Settings.alpha
 RESIDUAL_FLAG = 2.0  # |adjusted residual| above this is flagged (Agresti, common practice)
@@ -61,13 +61,8 @@ def _pairs(
             yield items[j], items[i]
 
 
-def _pair_name(quantity: str, a: str, b: str, method: str = "") -> str:
-    """Name of a pairwise estimate, later level minus earlier one (and the method, if named)."""
-    return f"{quantity} ('{a}' - '{b}'{', ' + method if method else ''})"
-
-
 def _interval_followup(
-    test: str,
+    test: Test,
     a: str,
     b: str,
     diff: float,
@@ -81,7 +76,8 @@ def _interval_followup(
         test=test,
         levels=(a, b),
         estimate=Estimate(
-            name=_pair_name("difference in means", a, b),
+            EstimateKind.MEAN_DIFFERENCE,
+            levels=(a, b),
             value=diff,
             ci_low=diff - half_width,
             ci_high=diff + half_width,
@@ -94,18 +90,16 @@ def _interval_followup(
 
 
 def _adjusted_followups(
-    test: str,
-    quantity: str,
+    test: Test,
+    kind: EstimateKind,
     rows: Sequence[tuple[str, str, float, float, float | None]],
     adjust: AdjustMethod | str,
     alpha: float,
     intervals: list[tuple[float, float]] | None = None,
-    method: str = "",
 ) -> list[Followup]:
     """Followups from (later, earlier, estimate, statistic, p) rows, p adjusted over the rows.
 
-    ``intervals`` gives each row's (low, high) confidence bounds when there are any;
-    ``method`` is named in the estimate after the levels.
+    ``intervals`` gives each row's (low, high) confidence bounds when there are any.
     """
     adjusted = adjust_p([r[4] for r in rows], adjust)
     bounds = intervals if intervals is not None else [(None, None)] * len(rows)
@@ -113,7 +107,7 @@ def _adjusted_followups(
         Followup(
             test=test,
             levels=(a, b),
-            estimate=Estimate(name=_pair_name(quantity, a, b, method), value=value, ci_low=low, ci_high=high),
+            estimate=Estimate(kind, value=value, ci_low=low, ci_high=high, levels=(a, b)),
             p_value=p,
             p_adjusted=p_adj,
             statistic=statistic,
@@ -140,7 +134,7 @@ def tukey_hsd(
     Returns
     -------
     list of Followup
-        test "tukey_hsd"; ``estimate`` is the difference in means (later -
+        test Test.TUKEY_HSD; ``estimate`` is the difference in means (later -
         earlier level) with its simultaneous interval; ``statistic`` is the
         studentized range q; ``p_adjusted`` is the family-wise p-value;
         ``p_value`` is None because Tukey's method has no per-pair unadjusted
@@ -207,7 +201,7 @@ def tukey_hsd(
         se = math.sqrt(mse / 2.0 * (1.0 / xa.size + 1.0 / xb.size))
         q = abs(diff) / se
         p_adj = float(np.clip(stats.studentized_range.sf(q, k, df), 0.0, 1.0))
-        out.append(_interval_followup("tukey_hsd", a, b, diff, q_crit * se, p_adj, q, alpha))
+        out.append(_interval_followup(Test.TUKEY_HSD, a, b, diff, q_crit * se, p_adj, q, alpha))
     return out
 
 
@@ -228,7 +222,7 @@ def games_howell(
     Returns
     -------
     list of Followup
-        test "games_howell"; ``estimate`` the difference in means (later -
+        test Test.GAMES_HOWELL; ``estimate`` the difference in means (later -
         earlier) with its interval; ``statistic`` the Welch t; ``p_adjusted`` the
         studentized-range p-value; ``p_value`` None (no unadjusted version).
 
@@ -291,7 +285,7 @@ def games_howell(
         t = diff / se
         p_adj = float(np.clip(stats.studentized_range.sf(abs(t) * math.sqrt(2.0), k, df), 0.0, 1.0))
         half = float(stats.studentized_range.ppf(confidence, k, df)) / math.sqrt(2.0) * se
-        out.append(_interval_followup("games_howell", a, b, diff, half, p_adj, t, alpha))
+        out.append(_interval_followup(Test.GAMES_HOWELL, a, b, diff, half, p_adj, t, alpha))
     return out
 
 
@@ -318,7 +312,7 @@ def dunn(
     Returns
     -------
     list of Followup
-        test "dunn"; ``estimate`` the Hodges-Lehmann location shift (later -
+        test Test.DUNN; ``estimate`` the Hodges-Lehmann location shift (later -
         earlier level, in the outcome's units) with an approximate interval;
         ``statistic`` z from the mean ranks; ``p_value`` two-sided normal;
         ``p_adjusted`` after ``adjust``.
@@ -372,8 +366,8 @@ def dunn(
     Each pair's estimate is the median of all later-minus-earlier differences:
 
     >>> first = dunn(groups)[0]
-    >>> first.estimate.name, round(first.estimate.value, 4)
-    ("location shift ('centre' - 'north', Hodges-Lehmann)", 1.3)
+    >>> first.estimate.kind.value, first.estimate.levels, round(first.estimate.value, 4)
+    ('location_shift', ('centre', 'north'), 1.3)
     >>> first.estimate.value == float(np.median(np.subtract.outer(groups["centre"], groups["north"])))
     True
     """
@@ -400,7 +394,7 @@ def dunn(
         shift = median_pairwise_difference(xa, xb)
         rows.append((a, b, shift, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
         intervals.append(twogroup._rank_sum_approx_interval(xa, xb, "two-sided", confidence, True))
-    return _adjusted_followups("dunn", "location shift", rows, adjust, alpha, intervals, "Hodges-Lehmann")
+    return _adjusted_followups(Test.DUNN, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha, intervals)
 
 
 def pairwise_mann_whitney(
@@ -426,7 +420,7 @@ def pairwise_mann_whitney(
     Returns
     -------
     list of Followup
-        test "pairwise_mann_whitney"; ``estimate`` the Hodges-Lehmann shift (median of
+        test Test.PAIRWISE_MANN_WHITNEY; ``estimate`` the Hodges-Lehmann shift (median of
         all later-minus-earlier differences, no interval); ``statistic`` U of
         the later level; ``p_value`` unadjusted; ``p_adjusted`` after ``adjust``.
 
@@ -468,12 +462,12 @@ def pairwise_mann_whitney(
     rows = []
     for (a, xa), (b, xb) in _pairs(items):
         test = stats.mannwhitneyu(
-            xa, xb, use_continuity=correct, alternative="two-sided", method="asymptotic"
+            xa, xb, use_continuity=correct, alternative="two-sided", method=PMethod.ASYMPTOTIC
         )
         shift = median_pairwise_difference(xa, xb)
         p = float(test.pvalue)
         rows.append((a, b, shift, float(test.statistic), p if math.isfinite(p) else None))
-    return _adjusted_followups("pairwise_mann_whitney", "Hodges-Lehmann shift", rows, adjust, alpha)
+    return _adjusted_followups(Test.PAIRWISE_MANN_WHITNEY, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha)
 
 
 def adjusted_residuals(
@@ -500,7 +494,7 @@ def adjusted_residuals(
     Returns
     -------
     list of Followup
-        Row by row; test "adjusted_residual", levels (row, column);
+        Row by row; test Test.ADJUSTED_RESIDUAL, levels (row, column);
         ``statistic`` the residual; ``estimate`` observed minus expected count;
         ``p_value`` two-sided normal p of the residual; ``p_adjusted`` after
         ``adjust``; ``flagged`` when |residual| > ``threshold``.
@@ -557,9 +551,9 @@ def adjusted_residuals(
     adjusted = adjust_p(raw, adjust)
     return [
         Followup(
-            test="adjusted_residual",
+            test=Test.ADJUSTED_RESIDUAL,
             levels=(row, col),
-            estimate=Estimate(name="observed minus expected count", value=diff),
+            estimate=Estimate(EstimateKind.OBSERVED_MINUS_EXPECTED, value=diff),
             p_value=p,
             p_adjusted=p_adj,
             statistic=z,

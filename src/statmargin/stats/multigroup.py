@@ -16,6 +16,7 @@ from scipy import stats
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
+from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 
 BOOTSTRAP_RESAMPLES = 2000
 BOOTSTRAP_SEED = 20240917  # fixed so the same data always give the same interval
@@ -111,7 +112,7 @@ def _share_of_variance(
     df1, df2 = k - 1, n_total - k
     classic_f = (between / df1) / (within / df2)
     low, high = effects.variance_share_interval(classic_f, df1, df2, n_total, confidence)
-    effect = Effect("eta-squared", effects.eta_squared(between, between + within), low, high)
+    effect = Effect(EffectKind.ETA_SQUARED, effects.eta_squared(between, between + within), low, high)
     omega = {
         "omega_squared": effects.omega_squared(between, within, k, n_total),
         "omega_squared_ci": [low, high],
@@ -119,7 +120,7 @@ def _share_of_variance(
     return effect, omega
 
 
-def _largest_gap(summaries: list[dict[str, Any]], key: str, what: str) -> Estimate:
+def _largest_gap(summaries: list[dict[str, Any]], key: str, kind: EstimateKind) -> Estimate:
     """Largest difference between group ``key`` values (highest minus lowest), no interval.
 
     Notes
@@ -129,10 +130,7 @@ def _largest_gap(summaries: list[dict[str, Any]], key: str, what: str) -> Estima
     """
     high = max(summaries, key=lambda g: g[key])
     low = min(summaries, key=lambda g: g[key])
-    return Estimate(
-        f"largest difference between group {what} ({high['label']} - {low['label']})",
-        high[key] - low[key],
-    )
+    return Estimate(kind, high[key] - low[key], levels=(str(high["label"]), str(low["label"])))
 
 
 def one_way_anova(
@@ -205,18 +203,18 @@ def one_way_anova(
     return Result(
         outcome="",
         exposure=None,
-        design="multi_group_continuous",
-        test="one_way_anova",
+        design=Design.MULTI_GROUP_CONTINUOUS,
+        test=Test.ONE_WAY_ANOVA,
         statistic_name="F",
         statistic=f,
         df=[float(df1), float(df2)],
         p_value=float(stats.f.sf(f, df1, df2)),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative="two-sided",
         confidence=confidence,
         n=int(n_total),
         n_excluded=dropped,
-        estimate=_largest_gap(summaries, "mean", "means"),
+        estimate=_largest_gap(summaries, "mean", EstimateKind.LARGEST_MEAN_GAP),
         effect=effect,
         groups=summaries,
         notes=notes,
@@ -306,18 +304,18 @@ def welch_anova(
     return Result(
         outcome="",
         exposure=None,
-        design="multi_group_continuous",
-        test="welch_anova",
+        design=Design.MULTI_GROUP_CONTINUOUS,
+        test=Test.WELCH_ANOVA,
         statistic_name="F",
         statistic=f,
         df=[df1, df2],
         p_value=float(stats.f.sf(f, df1, df2)),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative="two-sided",
         confidence=confidence,
         n=n_total,
         n_excluded=dropped,
-        estimate=_largest_gap(summaries, "mean", "means"),
+        estimate=_largest_gap(summaries, "mean", EstimateKind.LARGEST_MEAN_GAP),
         effect=effect,
         groups=summaries,
         notes=notes,
@@ -453,19 +451,19 @@ def kruskal_wallis(
     return Result(
         outcome="",
         exposure=None,
-        design="multi_group_continuous",
-        test="kruskal_wallis",
+        design=Design.MULTI_GROUP_CONTINUOUS,
+        test=Test.KRUSKAL_WALLIS,
         statistic_name="H",
         statistic=h,
         df=float(df),
         p_value=float(stats.chi2.sf(h, df)),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative="two-sided",
         confidence=confidence,
         n=int(n_total),
         n_excluded=dropped,
-        estimate=_largest_gap(summaries, "median", "medians"),
-        effect=Effect("epsilon-squared", float(effects.epsilon_squared(h, n_total)), low, high),
+        estimate=_largest_gap(summaries, "median", EstimateKind.LARGEST_MEDIAN_GAP),
+        effect=Effect(EffectKind.EPSILON_SQUARED, float(effects.epsilon_squared(h, n_total)), low, high),
         groups=summaries,
         notes=notes,
         extra={"bootstrap_resamples": BOOTSTRAP_RESAMPLES, "bootstrap_seed": BOOTSTRAP_SEED},

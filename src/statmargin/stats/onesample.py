@@ -15,6 +15,7 @@ from scipy import optimize, stats
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
+from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 
 EXACT_LIMIT = 50  # exact null distribution below this many non-zero differences (R's rule)
 
@@ -32,7 +33,7 @@ class MeanT(NamedTuple):
 
 
 def mean_t(
-    values: np.ndarray, mu: float, label: str, effect_name: str, alternative: str, confidence: float
+    values: np.ndarray, mu: float, label: str, effect_kind: EffectKind, alternative: str, confidence: float
 ) -> MeanT:
     """One-sample t of ``values`` against ``mu``, shared by the one-sample and paired t-tests.
 
@@ -44,8 +45,8 @@ def mean_t(
         The fixed value.
     label : str
         Label of the summary of ``values``.
-    effect_name : str
-        Name of the standardized effect (Hedges' g, or g_z for differences).
+    effect_kind : EffectKind
+        The standardized effect (Hedges' g, or g_z for differences).
     alternative, confidence
         Sidedness and level of the intervals.
 
@@ -63,7 +64,7 @@ def mean_t(
     >>> import math
     >>> from scipy import stats
     >>> extra = np.array([0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0])
-    >>> tested = mean_t(extra, 0.0, "drug 1", "Hedges' g", "two-sided", 0.95)
+    >>> tested = mean_t(extra, 0.0, "drug 1", EffectKind.HEDGES_G, "two-sided", 0.95)
     >>> round(tested.t, 4), tested.df, round(tested.ci_low, 4), round(tested.ci_high, 4)
     (1.3257, 9, -0.5298, 2.0298)
     >>> math.isclose(tested.t, stats.ttest_1samp(extra, 0.0).statistic)
@@ -76,7 +77,7 @@ def mean_t(
     t = difference / se
     df = n - 1
     low, high = common.t_interval(difference, se, df, alternative, confidence)
-    effect = effects.standardized_effect(effect_name, t, df, 1.0 / math.sqrt(n), alternative, confidence)
+    effect = effects.standardized_effect(effect_kind, t, df, 1.0 / math.sqrt(n), alternative, confidence)
     return MeanT(summary, difference, t, df, low, high, effect)
 
 
@@ -136,23 +137,24 @@ def one_sample_t(
     values, dropped = common.clean(x)
     common.require_count(values, 2, "the outcome")
     common.require_spread(values, "the outcome")
-    tested = mean_t(values, mu, "all", "Hedges' g", alternative, confidence)
+    tested = mean_t(values, mu, "all", EffectKind.HEDGES_G, alternative, confidence)
     return Result(
         outcome="",
         exposure=None,
-        design="one_sample_continuous",
-        test="one_sample_t",
+        design=Design.ONE_SAMPLE_CONTINUOUS,
+        test=Test.ONE_SAMPLE_T,
         statistic_name="t",
         statistic=tested.t,
         df=float(tested.df),
         p_value=common.p_from_t(tested.t, tested.df, alternative),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative=alternative,
         confidence=confidence,
         n=int(values.size),
         n_excluded=dropped,
         estimate=Estimate(
-            f"mean difference from {common.format_number(mu)}", tested.difference, tested.ci_low, tested.ci_high
+            EstimateKind.MEAN_DIFFERENCE_FROM_VALUE, tested.difference, tested.ci_low, tested.ci_high,
+            reference=float(mu),
         ),
         effect=tested.effect,
         groups=[tested.summary],
@@ -244,11 +246,11 @@ def wilcoxon_signed_rank(
         correct=correct,
         what="the outcome",
     )
-    result.design = "one_sample_continuous"
+    result.design = Design.ONE_SAMPLE_CONTINUOUS
     result.groups = [common.describe("all", values)]
     result.n_excluded = dropped
     result.against = mu
-    result.estimate = Estimate("pseudo-median", *_estimate_parts(result.estimate))
+    result.estimate = Estimate(EstimateKind.PSEUDO_MEDIAN, *_estimate_parts(result.estimate))
     return result
 
 
@@ -347,7 +349,7 @@ def signed_rank_result(
         walsh = _walsh_averages(kept)
         centre = float(np.median(walsh))
         p_value = _signed_rank_exact_p(v_plus, n, alternative)
-        p_method = "exact"
+        p_method = PMethod.EXACT
         low, high = order_statistic_interval(walsh, signed_rank_counts(n), 2**n, alternative, confidence)
         notes.append("The p-value is exact (no ties, fewer than 50 values).")
     else:  # possibly many values: select the median Walsh average without listing them all
@@ -361,8 +363,8 @@ def signed_rank_result(
     return Result(
         outcome="",
         exposure=None,
-        design="one_sample_continuous",
-        test="wilcoxon_signed_rank",
+        design=Design.ONE_SAMPLE_CONTINUOUS,
+        test=Test.WILCOXON_SIGNED_RANK,
         statistic_name="V",
         statistic=v_plus,
         df=None,
@@ -371,7 +373,7 @@ def signed_rank_result(
         alternative=alternative,
         confidence=confidence,
         n=int(values.size),
-        estimate=Estimate("pseudo-median", centre, low, high),
+        estimate=Estimate(EstimateKind.PSEUDO_MEDIAN, centre, low, high),
         effect=effect,
         notes=notes,
         extra={"n_zero_differences": n_zero, "n_ranked": int(n), "ties": bool(ties)},

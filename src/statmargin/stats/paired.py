@@ -10,6 +10,7 @@ import numpy as np
 from statmargin.results import Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats.onesample import mean_t, signed_rank_result
+from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 
 
 def _differences(
@@ -89,23 +90,23 @@ def paired_t(
     common.check_options(alternative, confidence)
     a, b, differences, dropped, first, second = _differences(x1, x2, labels, 2)
     common.require_spread(differences, f"the differences {first} - {second}")
-    tested = mean_t(differences, 0.0, f"{first} - {second}", "Hedges' g_z", alternative, confidence)
+    tested = mean_t(differences, 0.0, f"{first} - {second}", EffectKind.HEDGES_G_Z, alternative, confidence)
     mean = tested.summary["mean"]
     return Result(
         outcome="",
         exposure=None,
-        design="paired_continuous",
-        test="paired_t",
+        design=Design.PAIRED_CONTINUOUS,
+        test=Test.PAIRED_T,
         statistic_name="t",
         statistic=tested.t,
         df=float(tested.df),
         p_value=common.p_from_t(tested.t, tested.df, alternative),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative=alternative,
         confidence=confidence,
         n=int(differences.size),
         n_excluded=dropped,
-        estimate=Estimate(f"mean difference ({first} - {second})", mean, tested.ci_low, tested.ci_high),
+        estimate=Estimate(EstimateKind.PAIRED_MEAN_DIFFERENCE, mean, tested.ci_low, tested.ci_high, levels=(first, second)),
         effect=tested.effect,
         groups=[common.describe(first, a), common.describe(second, b), tested.summary],
         extra={"d_z": mean / tested.summary["sd"]},
@@ -189,13 +190,14 @@ def wilcoxon_paired(
         what=f"the differences {first} - {second}",
     )
     assert result.estimate is not None
-    result.design = "paired_continuous"
+    result.design = Design.PAIRED_CONTINUOUS
     result.n_excluded = dropped
     result.estimate = Estimate(
-        f"pseudo-median of differences ({first} - {second})",
+        EstimateKind.PAIRED_PSEUDO_MEDIAN,
         result.estimate.value,
         result.estimate.ci_low,
         result.estimate.ci_high,
+        levels=(first, second),
     )
     result.groups = [
         common.describe(first, a),

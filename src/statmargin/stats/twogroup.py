@@ -14,6 +14,7 @@ from statmargin.results import Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.stats.onesample import EXACT_LIMIT, exact_p_from_counts, order_statistic_interval
+from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 
 
 def _two_groups(x: np.ndarray, y: np.ndarray, labels: tuple[str, str]) -> tuple[np.ndarray, np.ndarray, int, str, str]:
@@ -168,23 +169,23 @@ def _t_test(
     t = difference / se
     low, high = common.t_interval(difference, se, df, alternative, confidence)
     effect = effects.standardized_effect(
-        "Hedges' g", pooled_t, n1 + n2 - 2, math.sqrt(1.0 / n1 + 1.0 / n2), alternative, confidence
+        EffectKind.HEDGES_G, pooled_t, n1 + n2 - 2, math.sqrt(1.0 / n1 + 1.0 / n2), alternative, confidence
     )
     return Result(
         outcome="",
         exposure=None,
-        design="two_group_continuous",
-        test="student_t" if equal_variances else "welch_t",
+        design=Design.TWO_GROUP_CONTINUOUS,
+        test=Test.STUDENT_T if equal_variances else Test.WELCH_T,
         statistic_name="t",
         statistic=t,
         df=df,
         p_value=common.p_from_t(t, df, alternative),
-        p_method="asymptotic",
+        p_method=PMethod.ASYMPTOTIC,
         alternative=alternative,
         confidence=confidence,
         n=int(n1 + n2),
         n_excluded=dropped,
-        estimate=Estimate(f"difference in means ({first} - {second})", difference, low, high),
+        estimate=Estimate(EstimateKind.MEAN_DIFFERENCE, difference, low, high, levels=(first, second)),
         effect=effect,
         groups=[ga, gb],
     )
@@ -295,7 +296,7 @@ def mann_whitney_u(
         differences = np.sort(np.subtract.outer(a, b).ravel())
         shift = float(np.median(differences))
         p_value = _rank_sum_exact_p(u_first, n1, n2, alternative)
-        p_method = "exact"
+        p_method = PMethod.EXACT
         low, high = _rank_sum_exact_interval(differences, n1, n2, alternative, confidence)
         notes.append("The p-value is exact (no ties, fewer than 50 values per group).")
     else:  # possibly large groups: select the median difference without listing them all
@@ -307,8 +308,8 @@ def mann_whitney_u(
     return Result(
         outcome="",
         exposure=None,
-        design="two_group_continuous",
-        test="mann_whitney_u",
+        design=Design.TWO_GROUP_CONTINUOUS,
+        test=Test.MANN_WHITNEY_U,
         statistic_name="W",
         statistic=u_first,
         df=None,
@@ -318,9 +319,7 @@ def mann_whitney_u(
         confidence=confidence,
         n=int(n1 + n2),
         n_excluded=dropped,
-        estimate=Estimate(
-            f"location shift ({first} - {second}, Hodges-Lehmann)", shift, low, high
-        ),
+        estimate=Estimate(EstimateKind.LOCATION_SHIFT, shift, low, high, levels=(first, second)),
         effect=effects.rank_biserial_two_sample(u_first, n1, n2, alternative, confidence),
         groups=[common.describe(first, a), common.describe(second, b)],
         notes=notes,

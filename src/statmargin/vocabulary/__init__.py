@@ -6,6 +6,20 @@ and the identifiers written to JSON; display text is made from them in
 """
 
 from .columns import MeasureType, Role, ShapeHandling
+from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
+from .effects import EffectKind, EstimateKind
 from .run import AdjustMethod, Alternative
 
-__all__ = ["AdjustMethod", "Alternative", "MeasureType", "Role", "ShapeHandling"]
+__all__ = [
+    "FOLLOWUP_TESTS",
+    "AdjustMethod",
+    "Alternative",
+    "Design",
+    "EffectKind",
+    "EstimateKind",
+    "MeasureType",
+    "PMethod",
+    "Role",
+    "ShapeHandling",
+    "Test",
+]

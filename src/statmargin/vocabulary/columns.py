@@ -6,10 +6,10 @@ the sheet, the command line and the Python API share one vocabulary.
 
 from __future__ import annotations
 
-from enum import Enum
+from .base import Word
 
 
-class Role(str, Enum):
+class Role(Word):
     """What a column is for in the analyses."""
 
     OUTCOME = "outcome"
@@ -18,7 +18,7 @@ class Role(str, Enum):
     IGNORE = "ignore"
 
 
-class MeasureType(str, Enum):
+class MeasureType(Word):
     """How a column's values are measured (inferred, or set by the user)."""
 
     CONTINUOUS = "continuous"
@@ -29,7 +29,7 @@ class MeasureType(str, Enum):
     EMPTY = "empty"
 
 
-class ShapeHandling(str, Enum):
+class ShapeHandling(Word):
     """Whether to let the shape checks choose the test, or to fix the family."""
 
     AUTO = "auto"

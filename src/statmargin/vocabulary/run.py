@@ -2,10 +2,10 @@
 
 from __future__ import annotations
 
-from enum import Enum
+from .base import Word
 
 
-class AdjustMethod(str, Enum):
+class AdjustMethod(Word):
     """Multiple-comparison adjustment across one run."""
 
     HOLM = "holm"
@@ -13,7 +13,7 @@ class AdjustMethod(str, Enum):
     NONE = "none"
 
 
-class Alternative(str, Enum):
+class Alternative(Word):
     TWO_SIDED = "two-sided"
     GREATER = "greater"
     LESS = "less"

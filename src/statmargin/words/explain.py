@@ -21,31 +21,31 @@ from typing import Any, TypeGuard
 
 from ..plan.model import Settings
 from ..results import Estimate, Followup, Result
-from ..vocabulary import AdjustMethod
+from ..vocabulary import AdjustMethod, Design, EstimateKind, PMethod, Test
 from .magnitude import NEGLIGIBLE, Magnitude, effect_kind, magnitude
 
 # Human names of the tests (published methods keep their published names).
 TEST_NAMES: dict[str, str] = {
-    "chi_square_goodness_of_fit": "Chi-square goodness-of-fit test",
-    "binomial_exact": "Exact binomial test",
-    "one_sample_t": "One-sample t-test",
-    "wilcoxon_signed_rank": "Wilcoxon signed-rank test",
-    "chi_square_independence": "Chi-square test of independence",
-    "fisher_exact": "Fisher's exact test",
-    "student_t": "Student's t-test",
-    "welch_t": "Welch's t-test",
-    "mann_whitney_u": "Mann-Whitney U test",
-    "one_way_anova": "One-way ANOVA",
-    "welch_anova": "Welch's ANOVA",
-    "kruskal_wallis": "Kruskal-Wallis test",
-    "pearson_r": "Pearson correlation",
-    "spearman_rho": "Spearman rank correlation",
-    "paired_t": "Paired t-test",
-    "mcnemar": "McNemar's test",
-    "tukey_hsd": "Tukey HSD",
-    "games_howell": "Games-Howell",
-    "dunn": "Dunn's test",
-    "adjusted_residual": "Adjusted standardized residual",
+    Test.CHI_SQUARE_GOODNESS_OF_FIT: "Chi-square goodness-of-fit test",
+    Test.BINOMIAL_EXACT: "Exact binomial test",
+    Test.ONE_SAMPLE_T: "One-sample t-test",
+    Test.WILCOXON_SIGNED_RANK: "Wilcoxon signed-rank test",
+    Test.CHI_SQUARE_INDEPENDENCE: "Chi-square test of independence",
+    Test.FISHER_EXACT: "Fisher's exact test",
+    Test.STUDENT_T: "Student's t-test",
+    Test.WELCH_T: "Welch's t-test",
+    Test.MANN_WHITNEY_U: "Mann-Whitney U test",
+    Test.ONE_WAY_ANOVA: "One-way ANOVA",
+    Test.WELCH_ANOVA: "Welch's ANOVA",
+    Test.KRUSKAL_WALLIS: "Kruskal-Wallis test",
+    Test.PEARSON_R: "Pearson correlation",
+    Test.SPEARMAN_RHO: "Spearman rank correlation",
+    Test.PAIRED_T: "Paired t-test",
+    Test.MCNEMAR: "McNemar's test",
+    Test.TUKEY_HSD: "Tukey HSD",
+    Test.GAMES_HOWELL: "Games-Howell",
+    Test.DUNN: "Dunn's test",
+    Test.ADJUSTED_RESIDUAL: "Adjusted standardized residual",
 }
 
 # Names of the shape checks (shape.GroupSummary.check) for the shape-check sheet.
@@ -149,8 +149,8 @@ EVIDENCE_BANDS: tuple[tuple[float, str], ...] = (
     (0.10, "weak evidence"),
 )
 
-_ONE_SAMPLE = ("one_sample_continuous", "one_sample_categorical")
-_PAIRED = ("paired_continuous", "paired_categorical")
+_ONE_SAMPLE = (Design.ONE_SAMPLE_CONTINUOUS, Design.ONE_SAMPLE_CATEGORICAL)
+_PAIRED = (Design.PAIRED_CONTINUOUS, Design.PAIRED_CATEGORICAL)
 
 
 # ---------------------------------------------------------------- numbers as text
@@ -267,47 +267,6 @@ def count_text(count: int, context: Any = None) -> str:
 # ---------------------------------------------------------------- labels and questions
 
 
-def _labels_from_name(name: str | None) -> tuple[str, str] | None:
-    """The two labels of an estimate name such as 'difference in means (A - B)'."""
-    if not name or "(" not in name or not name.endswith(")"):
-        return None
-    depth, start = 0, -1
-    for i in range(len(name) - 1, -1, -1):  # the "(" that matches the final ")"
-        depth += {")": 1, "(": -1}.get(name[i], 0)
-        if depth == 0:
-            start = i
-            break
-    if start < 0:
-        return None
-    inner = name[start + 1 : -1]
-    for sep in (" - ", " minus ", " vs "):
-        if sep in inner:
-            first, second = (_unquote(part) for part in inner.split(sep, 1))
-            if first and second:
-                if (first, second) == ("first", "second measurement"):
-                    return "the first measurement", "the second measurement"
-                return first, second
-    return None
-
-
-def _unquote(text: str) -> str:
-    text = text.strip()
-    if len(text) >= 2 and text[0] == text[-1] and text[0] in "'\"":
-        return text[1:-1]
-    return text
-
-
-_SHARE_OF = re.compile(r"share of '([^']*)'|share of (\S+)")
-
-
-def _level_from_name(name: str | None) -> str | None:
-    """The level in an estimate name such as "share of 'Yes' (...)"."""
-    match = _SHARE_OF.search(name or "")
-    if not match:
-        return None
-    return match.group(1) if match.group(1) is not None else match.group(2)
-
-
 def _group_labels(result: Result) -> list[str]:
     return [
         str(g.get("label"))
@@ -331,12 +290,14 @@ def _wide_pair(result: Result) -> bool:
 
 
 def two_labels(result: Result) -> tuple[str, str]:
-    """The two compared labels, first minus second (from the estimate name, else the groups)."""
-    from_name = _labels_from_name(result.estimate.name if result.estimate else None)
-    if from_name == ("the first measurement", "the second measurement") and _wide_pair(result):
-        return result.outcome, str(result.pairing)
-    if from_name:
-        return from_name
+    """The two compared labels, first minus second (from the estimate, else the groups)."""
+    est = result.estimate
+    if est is not None and est.kind is EstimateKind.PAIRED_SHARE_DIFFERENCE:
+        if _wide_pair(result):
+            return result.outcome, str(result.pairing)
+        return "the first measurement", "the second measurement"
+    if est is not None and len(est.levels) >= 2:
+        return est.levels[0], est.levels[1]
     labels = _group_labels(result)
     if len(labels) >= 2:
         return labels[0], labels[1]
@@ -362,27 +323,27 @@ def question(result: Result) -> str:
     """The analysis as a question in words, e.g. 'Does Wait differ by District?'."""
     outcome, by = result.outcome or "the outcome", result.exposure or "the groups"
     design = result.design
-    if design == "one_sample_continuous":
+    if design == Design.ONE_SAMPLE_CONTINUOUS:
         return f"Does {outcome} differ from {_against_text(result.against)}?"
-    if design == "one_sample_categorical":
-        if result.test == "binomial_exact":
+    if design == Design.ONE_SAMPLE_CATEGORICAL:
+        if result.test == Test.BINOMIAL_EXACT:
             label, target = _share_label_and_target(result)
             if target is not None:
                 return f"Does the share of {outcome} = {label} differ from {fmt_percent(target)}?"
         return f"Do the shares of {outcome} differ from the stated shares ({_against_text(result.against)})?"
-    if design in ("two_group_continuous", "multi_group_continuous"):
+    if design in (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS):
         return f"Does {outcome} differ by {by}?"
-    if design == "two_categorical":
+    if design == Design.TWO_CATEGORICAL:
         return f"Does the mix of {outcome} differ by {by}?"
-    if design == "two_continuous":
+    if design == Design.TWO_CONTINUOUS:
         return f"Do {outcome} and {by} go together?"
     if design in _PAIRED:
         if _wide_pair(result):
-            what = "the mix of values" if design == "paired_categorical" else "the value"
+            what = "the mix of values" if design == Design.PAIRED_CATEGORICAL else "the value"
             return f"Does {what} change from {outcome} to {result.pairing} on the same records?"
         first, second = (_named(result, label) for label in two_labels(result))
         pairing = f" (paired by {result.pairing})" if result.pairing else ""
-        what = "the share of " if design == "paired_categorical" else ""
+        what = "the share of " if design == Design.PAIRED_CATEGORICAL else ""
         return f"Does {what}{outcome} change between {first} and {second}{pairing}?"
     return f"What does {outcome} show?"
 
@@ -454,13 +415,12 @@ def _estimate_sentence(result: Result, context: Any) -> str:
     units = _display_units(context, result.outcome)
     test, design = result.test, result.design
     if est is None or not _finite(est.value):
-        if design == "two_categorical":
+        if design == Design.TWO_CATEGORICAL:
             return f"This compares the mix of {outcome} across the groups of {result.exposure or 'the other column'}."
         return _groups_sentence(result, units) or f"{question(result)}"
-    name = (est.name or "").lower()
-    if design == "one_sample_continuous":
+    if design == Design.ONE_SAMPLE_CONTINUOUS:
         against = _against_text(result.against)
-        if "difference" in name:
+        if est.kind is EstimateKind.MEAN_DIFFERENCE_FROM_VALUE:
             value, low, high = est.value, est.ci_low, est.ci_high
             word = "above" if value >= 0 else "below"
             if value < 0:
@@ -470,7 +430,7 @@ def _estimate_sentence(result: Result, context: Any) -> str:
                     (-low if _finite(low) else None),
                 )
             decimals = decimals_for(value, low, high)
-            centre = "Mean" if test == "one_sample_t" else "Typical"
+            centre = "Mean" if test == Test.ONE_SAMPLE_T else "Typical"
             return (
                 f"{centre} {outcome} was {fmt_number(value, decimals)}{_units_suffix(units)} {word} "
                 f"the stated value of {against}{_ci_tail(result, low, high, decimals)}."
@@ -481,11 +441,11 @@ def _estimate_sentence(result: Result, context: Any) -> str:
             f"(a median-type centre of the values; {ci_label(result.confidence)} "
             f"{fmt_ci(est.ci_low, est.ci_high, decimals)}), against a stated value of {against}."
         )
-    if design == "one_sample_categorical":
+    if design == Design.ONE_SAMPLE_CATEGORICAL:
         return _share_sentence(result, est)
-    if test in ("welch_t", "student_t"):
+    if test in (Test.WELCH_T, Test.STUDENT_T):
         return _difference_sentence(result, est, f"Mean {outcome} was", units)
-    if test == "mann_whitney_u":
+    if test == Test.MANN_WHITNEY_U:
         return _difference_sentence(
             result,
             est,
@@ -493,9 +453,9 @@ def _estimate_sentence(result: Result, context: Any) -> str:
             units,
             how="median of all differences between the two groups",
         )
-    if test == "paired_t":
+    if test == Test.PAIRED_T:
         return _difference_sentence(result, est, f"Mean {outcome} was", units, within="at")
-    if design == "paired_continuous":
+    if design == Design.PAIRED_CONTINUOUS:
         return _difference_sentence(
             result,
             est,
@@ -504,12 +464,13 @@ def _estimate_sentence(result: Result, context: Any) -> str:
             within="at",
             how="median-type centre of the paired differences",
         )
-    if design in ("two_categorical", "paired_categorical") and (
-        "proportion" in name or "share" in name
+    if design in (Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL) and est.kind in (
+        EstimateKind.SHARE_DIFFERENCE,
+        EstimateKind.PAIRED_SHARE_DIFFERENCE,
     ):
         return _proportion_difference_sentence(result, est.value, est.ci_low, est.ci_high)
-    if design == "two_continuous":
-        kind = "rank correlation" if test == "spearman_rho" else "correlation"
+    if design == Design.TWO_CONTINUOUS:
+        kind = "rank correlation" if test == Test.SPEARMAN_RHO else "correlation"
         by = result.exposure or "the other measure"
         decimals = max(2, decimals_for(est.value, est.ci_low, est.ci_high))
         tendency = (
@@ -526,7 +487,7 @@ def _estimate_sentence(result: Result, context: Any) -> str:
     groups = _groups_sentence(result, units)
     if (
         groups
-        and (est.name or "").lower().startswith("largest difference")
+        and est.kind in (EstimateKind.LARGEST_MEAN_GAP, EstimateKind.LARGEST_MEDIAN_GAP)
         and not fmt_ci(est.ci_low, est.ci_high, 2)
     ):
         return groups  # the range of group values already says it
@@ -551,7 +512,7 @@ def _proportion_difference_sentence(
         )
     decimals = decimals_for(value * 100, (low or 0) * 100, (high or 0) * 100)
     subject = _outcome_level_phrase(result)
-    if result.design == "two_categorical" and result.exposure:
+    if result.design == Design.TWO_CATEGORICAL and result.exposure:
         # Rows of the table are the compare-by groups; name the column with them.
         where = f"for {result.exposure} {first} than for {result.exposure} {second}"
     else:
@@ -566,7 +527,7 @@ def _outcome_level_phrase(result: Result) -> str:
     level = result.extra.get("level") if isinstance(result.extra, Mapping) else None
     outcome = result.outcome or "the outcome"
     if level is None:
-        level = _level_from_name(result.estimate.name if result.estimate else None)
+        level = result.estimate.level if result.estimate else None
     if level is not None and _wide_pair(result):
         return f"The share with the value {level}"
     if level is not None:
@@ -581,7 +542,7 @@ def _share_sentence(result: Result, est: Estimate) -> str:
     ci = fmt_ci(est.ci_low, est.ci_high, 1, scale=100.0)
     ci_part = f" ({ci_label(result.confidence)} {ci.replace(' to', '% to')}%)" if ci else ""
     target_part = f", against a stated {fmt_percent(target)}" if _finite(target) else ""
-    if result.test == "binomial_exact":
+    if result.test == Test.BINOMIAL_EXACT:
         return f"{fmt_percent(est.value)} of records had {outcome} = {label}{ci_part}{target_part}."
     return (
         f"The largest departure from the stated shares was for {label}: "
@@ -596,7 +557,7 @@ def _share_label_and_target(result: Result) -> tuple[str, float | None]:
     if isinstance(result.extra, Mapping):
         label = result.extra.get("level") or result.extra.get("label")
     if label is None and est is not None:
-        label = _level_from_name(est.name)
+        label = est.level
     if label is None and len(against) == 1:
         label = next(iter(against))
     target = against.get(label, against.get(str(label))) if label is not None else None
@@ -611,13 +572,13 @@ def _share_label_and_target(result: Result) -> tuple[str, float | None]:
 
 def _groups_sentence(result: Result, units: str) -> str:
     """For 3+ groups: the range of group means (or medians for rank-based tests)."""
-    stat = "median" if result.test == "kruskal_wallis" else "mean"
+    stat = "median" if result.test == Test.KRUSKAL_WALLIS else "mean"
     rows: list[tuple[str, float]] = [
         (str(g.get("label")), g[stat])
         for g in result.groups
         if isinstance(g, Mapping) and _finite(g.get(stat))
     ]
-    if len(rows) < 2 or result.design not in ("multi_group_continuous", "two_group_continuous"):
+    if len(rows) < 2 or result.design not in (Design.MULTI_GROUP_CONTINUOUS, Design.TWO_GROUP_CONTINUOUS):
         return ""
     low = min(rows, key=lambda r: r[1])
     high = max(rows, key=lambda r: r[1])
@@ -658,16 +619,16 @@ def effect_magnitude(result: Result) -> Magnitude | None:
     eff = result.effect
     if eff is None:
         return None
-    return magnitude(eff.name, eff.value, table_min_dim=_table_min_dim(result))
+    return magnitude(eff.kind, eff.value, table_min_dim=_table_min_dim(result))
 
 
 def _size_noun(result: Result) -> str:
-    if result.design in ("two_continuous",):
+    if result.design in (Design.TWO_CONTINUOUS,):
         return "association"
     if result.design in _ONE_SAMPLE:
         return (
             "departure from the stated value"
-            if result.design == "one_sample_continuous"
+            if result.design == Design.ONE_SAMPLE_CONTINUOUS
             else "departure from the stated shares"
         )
     return "difference"
@@ -679,11 +640,11 @@ def _article(phrase: str) -> str:
 
 
 def _null_phrase(result: Result) -> str:
-    if result.design == "two_continuous":
+    if result.design == Design.TWO_CONTINUOUS:
         return "no difference from zero correlation (no association)"
-    if result.design == "one_sample_continuous":
+    if result.design == Design.ONE_SAMPLE_CONTINUOUS:
         return "no difference from the stated value"
-    if result.design == "one_sample_categorical":
+    if result.design == Design.ONE_SAMPLE_CATEGORICAL:
         return "no difference from the stated shares"
     return "no difference"
 
@@ -703,7 +664,7 @@ def _flips_direction(result: Result) -> bool:
     est = result.estimate
     return (
         result.design
-        in ("two_group_continuous", "paired_continuous", "two_categorical", "paired_categorical")
+        in (Design.TWO_GROUP_CONTINUOUS, Design.PAIRED_CONTINUOUS, Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL)
         and est is not None
         and _finite(est.value)
         and est.value < 0
@@ -715,7 +676,7 @@ def _effect_clause(result: Result, mag: Magnitude | None, significant: bool) -> 
     if eff is None or not _finite(eff.value):
         return ""
     value, low, high = eff.value, eff.ci_low, eff.ci_high
-    if _flips_direction(result) and effect_kind(eff.name) in ("d", "r", "h"):
+    if _flips_direction(result) and effect_kind(eff.kind) in ("d", "r", "h"):
         # Keep the effect's sign in step with the reading's group order.
         value, low, high = (
             -value,
@@ -750,7 +711,7 @@ def _evidence_sentence(result: Result, settings: Settings, n_comparisons: int | 
     ci = ""
     est = result.estimate
     if est is not None and fmt_ci(est.ci_low, est.ci_high, 2):
-        noun = "correlation" if result.design == "two_continuous" else "difference"
+        noun = "correlation" if result.design == Design.TWO_CONTINUOUS else "difference"
         ci = f" as well as with any {noun} inside the {ci_label(result.confidence)}"
     return (
         f"With {evidence_words(p)} ({p_text}), the data are compatible with {_null_phrase(result)}"
@@ -862,7 +823,7 @@ def cautions(
     if _finite(result.p_adjusted) and n_comparisons and n_comparisons > 1:
         out.append(multiple_line(n_comparisons, settings))
     sizes = _group_sizes(result)
-    grouped = result.design in ("two_group_continuous", "multi_group_continuous")
+    grouped = result.design in (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS)
     if grouped and sizes:
         if min(sizes) < SMALL_GROUP_LIMIT:
             out.append(SMALL_GROUPS_LINE.format(limit=SMALL_GROUP_LIMIT))
@@ -870,19 +831,19 @@ def cautions(
             out.append(UNEQUAL_GROUPS_LINE.format(ratio=f"{UNEQUAL_RATIO:g}"))
     elif (
         not grouped
-        and result.design not in ("two_categorical", "one_sample_categorical")
+        and result.design not in (Design.TWO_CATEGORICAL, Design.ONE_SAMPLE_CATEGORICAL)
         and 0 < result.n < SMALL_SAMPLE_LIMIT
     ):
         out.append(SMALL_SAMPLE_LINE.format(limit=SMALL_SAMPLE_LIMIT))
     smallest = _min_expected(result)
     if (
-        result.test in ("chi_square_goodness_of_fit", "chi_square_independence")
+        result.test in (Test.CHI_SQUARE_GOODNESS_OF_FIT, Test.CHI_SQUARE_INDEPENDENCE)
         and smallest is not None
         and smallest < 5
     ):
         p_how = (
             "the p-value was estimated by simulation instead"
-            if result.p_method == "monte_carlo"
+            if result.p_method == PMethod.MONTE_CARLO
             else "treat the p-value as rough"
         )
         line = EXPECTED_LINE.format(
@@ -1008,7 +969,7 @@ def count_comparisons(results: Iterable[Result]) -> int:
 def followup_label(followup: Followup) -> str:
     """'North vs South' (or 'Yes with North' for a table cell)."""
     levels = [str(x) for x in followup.levels]
-    if followup.test == "adjusted_residual" and len(levels) == 2:
+    if followup.test == Test.ADJUSTED_RESIDUAL and len(levels) == 2:
         return f"{levels[0]} with {levels[1]}"
     return " vs ".join(levels)
 
@@ -1032,7 +993,7 @@ def followup_reading(
     str
     """
     outcome = parent.outcome or "the outcome"
-    if followup.test == "adjusted_residual":
+    if followup.test == Test.ADJUSTED_RESIDUAL:
         z = followup.statistic
         if not _finite(z):
             return f"{followup_label(followup)}: no residual could be computed."
@@ -1066,20 +1027,12 @@ def followup_reading(
         decimals = decimals_for(value, low, high)
         ci = fmt_ci(low, high, decimals)
         ci_part = f" ({ci_label(parent.confidence)} {ci})" if ci else ""
-        name = (est.name or "").lower()
-        if name.startswith("difference in mean ranks"):
-            size = (
-                f"values of {outcome} ranked higher on average in {first} than in {second} "
-                f"(difference in mean ranks {fmt_number(value, decimals)}"
-                f"{'; ' + ci_label(parent.confidence) + ' ' + ci if ci else ''}); "
-            )
-        else:
-            # A Hodges-Lehmann shift is a typical difference, not a difference in means.
-            typically = "typically " if name.startswith(("location shift", "hodges-lehmann shift")) else ""
-            size = (
-                f"{outcome} {typically}{fmt_number(value, decimals)}{_units_suffix(units)} higher in {first} "
-                f"than in {second}{ci_part}; "
-            )
+        # A Hodges-Lehmann shift is a typical difference, not a difference in means.
+        typically = "typically " if est.kind is EstimateKind.LOCATION_SHIFT else ""
+        size = (
+            f"{outcome} {typically}{fmt_number(value, decimals)}{_units_suffix(units)} higher in {first} "
+            f"than in {second}{ci_part}; "
+        )
     significant = _finite(p) and p < settings.alpha
     verdict = (
         f"{evidence_words(p)} of a difference" if significant else "compatible with no difference"

@@ -10,8 +10,9 @@ benchmarks should replace them where they exist.
 from __future__ import annotations
 
 import math
-import re
 from dataclasses import dataclass
+
+from ..vocabulary import EffectKind
 
 # Word for an effect below the "small" threshold.
 NEGLIGIBLE = "negligible"
@@ -68,54 +69,31 @@ CONVENTIONS: dict[str, Convention] = {
     ),
 }
 
-# Effect names (as methods write them) -> convention kind. Matching is on a
-# simplified name (lower case, letters and digits only), so "Hedges' g",
-# "hedges_g" and "Hedges g" all match.
-_NAME_PATTERNS: tuple[tuple[str, str], ...] = (
-    (r"cramer", "cramers_v"),
-    (r"odds", "odds_ratio"),
-    (r"(eta|omega|epsilon)\s*(squared|sq|2|\u00b2)", "eta_squared"),
-    (r"hedges|cohensd|cohen s d|\bd z\b|\bdz\b|\bd\b|\bg\b", "d"),
-    (r"cohensh|cohen s h|\bh\b", "h"),
-    (r"cohensw|cohen s w|\bw\b", "w"),
-    (r"biserial|correlation|pearson|spearman|\brho\b|\br\b", "r"),
-)
+# Effect kind -> convention. Rank-biserial r and Spearman's rho are read with the
+# r thresholds, and omega- and epsilon-squared with the eta-squared thresholds;
+# both are common practice rather than Cohen's own recommendation. The
+# probability of superiority has no convention here.
+CONVENTION_OF: dict[EffectKind, str] = {
+    EffectKind.HEDGES_G: "d",
+    EffectKind.HEDGES_G_Z: "d",
+    EffectKind.RANK_BISERIAL: "r",
+    EffectKind.RANK_BISERIAL_PAIRED: "r",
+    EffectKind.PEARSON_R: "r",
+    EffectKind.SPEARMAN_RHO: "r",
+    EffectKind.COHENS_H: "h",
+    EffectKind.COHENS_W: "w",
+    EffectKind.CRAMERS_V: "cramers_v",
+    EffectKind.ETA_SQUARED: "eta_squared",
+    EffectKind.OMEGA_SQUARED: "eta_squared",
+    EffectKind.EPSILON_SQUARED: "eta_squared",
+    EffectKind.ODDS_RATIO: "odds_ratio",
+    EffectKind.DISCORDANT_ODDS_RATIO: "odds_ratio",
+}
 
 
-def _simplify(name: str) -> str:
-    text = name.lower().replace("\u2019", "'").replace("'s", "s").replace("_", " ")
-    text = re.sub(r"[^a-z0-9\u00b2]+", " ", text)
-    return f" {text.strip()} "
-
-
-def effect_kind(name: str | None) -> str | None:
-    """The convention kind for an effect name, or None when no convention applies.
-
-    Parameters
-    ----------
-    name : str or None
-        An effect name as a method writes it, e.g. "Hedges' g", "rank-biserial r",
-        "Cramer's V", "epsilon-squared", "odds ratio".
-
-    Returns
-    -------
-    str or None
-        "d", "r", "h", "w", "cramers_v", "eta_squared", "odds_ratio", or None.
-
-    Notes
-    -----
-    Rank-biserial r and Spearman's rho are read with the r thresholds, and
-    omega- and epsilon-squared with the eta-squared thresholds; both are common
-    practice rather than Cohen's own recommendation.
-    """
-    if not name:
-        return None
-    text = _simplify(name)
-    squeezed = text.replace(" ", "")
-    for pattern, kind in _NAME_PATTERNS:
-        if re.search(pattern, text) or re.search(pattern, squeezed):
-            return kind
-    return None
+def effect_kind(kind: EffectKind | None) -> str | None:
+    """The convention an effect kind is read with ("d", "r", ...), or None when none applies."""
+    return CONVENTION_OF.get(kind) if kind is not None else None
 
 
 def cramers_v_convention(min_dim_minus_one: int) -> Convention:
@@ -150,13 +128,13 @@ def cramers_v_convention(min_dim_minus_one: int) -> Convention:
     )
 
 
-def convention_for(name: str | None, *, table_min_dim: int | None = None) -> Convention | None:
-    """The convention that applies to an effect name, or None.
+def convention_for(kind: EffectKind | None, *, table_min_dim: int | None = None) -> Convention | None:
+    """The convention that applies to an effect kind, or None.
 
     Parameters
     ----------
-    name : str or None
-        The effect's name.
+    kind : EffectKind or None
+        The effect's kind.
     table_min_dim : int, optional
         For Cramer's V: the number of levels on the smaller side of the table.
         Unknown sizes use k = 1 (the strictest thresholds, so words err small).
@@ -165,24 +143,24 @@ def convention_for(name: str | None, *, table_min_dim: int | None = None) -> Con
     -------
     Convention or None
     """
-    kind = effect_kind(name)
-    if kind is None:
+    convention = effect_kind(kind)
+    if convention is None:
         return None
-    if kind == "cramers_v":
+    if convention == "cramers_v":
         k = (table_min_dim - 1) if table_min_dim and table_min_dim >= 2 else 1
         return cramers_v_convention(k)
-    return CONVENTIONS[kind]
+    return CONVENTIONS[convention]
 
 
 def magnitude(
-    name: str | None, value: float | None, *, table_min_dim: int | None = None
+    kind: EffectKind | None, value: float | None, *, table_min_dim: int | None = None
 ) -> Magnitude | None:
     """The size word for an effect value under its named rule of thumb.
 
     Parameters
     ----------
-    name : str or None
-        The effect's name (see ``effect_kind``).
+    kind : EffectKind or None
+        The effect's kind (see ``CONVENTION_OF``).
     value : float or None
         The effect's value. The sign is ignored (a size, not a direction); an odds
         ratio below 1 is read through its inverse.
@@ -205,7 +183,7 @@ def magnitude(
     """
     if value is None or not isinstance(value, (int, float)) or not math.isfinite(value):
         return None
-    convention = convention_for(name, table_min_dim=table_min_dim)
+    convention = convention_for(kind, table_min_dim=table_min_dim)
     if convention is None:
         return None
     size = abs(float(value))

@@ -1,0 +1,68 @@
+"""Words for what is asked and how it is answered: designs, tests and how a p-value was obtained.
+
+A design is the shape of a question (one outcome against a value, by two groups,
+paired, ...); each design has one module in ``statmargin.designs``. A test is a
+published procedure and keeps its published name in ``statmargin.words``; the
+values here are the identifiers written to JSON and the results sheet.
+"""
+
+from __future__ import annotations
+
+from .base import Word
+
+
+class Design(Word):
+    """The shape of a question (see the decision table in README "Which test is chosen")."""
+
+    ONE_SAMPLE_CATEGORICAL = "one_sample_categorical"
+    ONE_SAMPLE_CONTINUOUS = "one_sample_continuous"
+    TWO_CATEGORICAL = "two_categorical"
+    TWO_GROUP_CONTINUOUS = "two_group_continuous"
+    MULTI_GROUP_CONTINUOUS = "multi_group_continuous"
+    TWO_CONTINUOUS = "two_continuous"
+    PAIRED_CONTINUOUS = "paired_continuous"
+    PAIRED_CATEGORICAL = "paired_categorical"
+
+
+class Test(Word):
+    """A test or follow-up procedure, by its identifier."""
+
+    __test__ = False  # not a pytest test class, despite the name
+
+    CHI_SQUARE_GOODNESS_OF_FIT = "chi_square_goodness_of_fit"
+    BINOMIAL_EXACT = "binomial_exact"
+    ONE_SAMPLE_T = "one_sample_t"
+    WILCOXON_SIGNED_RANK = "wilcoxon_signed_rank"
+    CHI_SQUARE_INDEPENDENCE = "chi_square_independence"
+    FISHER_EXACT = "fisher_exact"
+    STUDENT_T = "student_t"
+    WELCH_T = "welch_t"
+    MANN_WHITNEY_U = "mann_whitney_u"
+    ONE_WAY_ANOVA = "one_way_anova"
+    WELCH_ANOVA = "welch_anova"
+    KRUSKAL_WALLIS = "kruskal_wallis"
+    PEARSON_R = "pearson_r"
+    SPEARMAN_RHO = "spearman_rho"
+    PAIRED_T = "paired_t"
+    MCNEMAR = "mcnemar"
+    # follow-ups
+    TUKEY_HSD = "tukey_hsd"
+    GAMES_HOWELL = "games_howell"
+    DUNN = "dunn"
+    PAIRWISE_MANN_WHITNEY = "pairwise_mann_whitney"
+    ADJUSTED_RESIDUAL = "adjusted_residual"
+
+
+FOLLOWUP_TESTS = frozenset(
+    {Test.TUKEY_HSD, Test.GAMES_HOWELL, Test.DUNN, Test.PAIRWISE_MANN_WHITNEY, Test.ADJUSTED_RESIDUAL}
+)
+
+
+class PMethod(Word):
+    """How a p-value was obtained; shown beside it because it changes what it means."""
+
+    EXACT = "exact"
+    ASYMPTOTIC = "asymptotic"  # large-sample distribution (t, F, chi-square) of the statistic
+    NORMAL_APPROXIMATION = "normal_approximation"
+    NORMAL_APPROXIMATION_CONTINUITY = "normal_approximation_continuity"  # with continuity correction
+    MONTE_CARLO = "monte_carlo"

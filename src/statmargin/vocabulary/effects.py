@@ -1,0 +1,50 @@
+"""Words for what a result estimates: estimates in the outcome's units and standardized effects.
+
+An ``Estimate`` or ``Effect`` carries its kind from here plus the labels it
+compares; its display name is made in ``statmargin.words.names`` and nowhere
+else, so no code ever parses meaning back out of a name.
+"""
+
+from __future__ import annotations
+
+from .base import Word
+
+
+class EstimateKind(Word):
+    """A quantity in the outcome's own units (or a share, r, rho)."""
+
+    MEAN_DIFFERENCE = "mean_difference"  # levels (first, second): first minus second
+    LOCATION_SHIFT = "location_shift"  # Hodges-Lehmann shift, levels (first, second)
+    MEAN_DIFFERENCE_FROM_VALUE = "mean_difference_from_value"  # reference: the stated value
+    PSEUDO_MEDIAN = "pseudo_median"  # one-sample Hodges-Lehmann centre
+    PAIRED_MEAN_DIFFERENCE = "paired_mean_difference"  # levels (first, second)
+    PAIRED_PSEUDO_MEDIAN = "paired_pseudo_median"  # of the differences, levels (first, second)
+    SHARE = "share"  # level: the counted label
+    SHARE_FURTHEST = "share_furthest"  # level, reference: its expected share
+    SHARE_DIFFERENCE = "share_difference"  # level, levels (row 1, row 2)
+    PAIRED_SHARE_DIFFERENCE = "paired_share_difference"  # level; first minus second measurement
+    LARGEST_MEAN_GAP = "largest_mean_gap"  # levels (highest, lowest), no interval
+    LARGEST_MEDIAN_GAP = "largest_median_gap"  # levels (highest, lowest), no interval
+    PEARSON_R = "pearson_r"
+    SPEARMAN_RHO = "spearman_rho"
+    OBSERVED_MINUS_EXPECTED = "observed_minus_expected"  # a table cell's residual count
+
+
+class EffectKind(Word):
+    """A standardized effect size."""
+
+    HEDGES_G = "hedges_g"
+    HEDGES_G_Z = "hedges_g_z"  # of paired differences
+    RANK_BISERIAL = "rank_biserial"
+    RANK_BISERIAL_PAIRED = "rank_biserial_paired"
+    PROBABILITY_OF_SUPERIORITY = "probability_of_superiority"
+    ETA_SQUARED = "eta_squared"
+    OMEGA_SQUARED = "omega_squared"
+    EPSILON_SQUARED = "epsilon_squared"
+    PEARSON_R = "pearson_r"
+    SPEARMAN_RHO = "spearman_rho"
+    COHENS_W = "cohens_w"
+    COHENS_H = "cohens_h"
+    CRAMERS_V = "cramers_v"
+    ODDS_RATIO = "odds_ratio"  # conditional MLE, level and levels (row 1, row 2)
+    DISCORDANT_ODDS_RATIO = "discordant_odds_ratio"  # b/c of McNemar's table
