@@ -12,6 +12,7 @@ from typing import Any
 
 from statmargin.results import Effect, Estimate, Followup, Result
 from statmargin.vocabulary import EffectKind, EstimateKind
+from statmargin.vocabulary.codes import Coded
 
 # mtcars cyl counts (R datasets: table(mtcars$cyl) = 11, 7, 14).
 CYL_COUNTS = {"4": 11, "6": 7, "8": 14}
@@ -166,7 +167,7 @@ def tukey_trt2_vs_trt1() -> Followup:
     )
 
 
-def skipped_wait_by_district(reason: str, **changes: Any) -> Result:
+def skipped_wait_by_district(reason: Coded, **changes: Any) -> Result:
     """Invented: a Welch comparison of waits by district that could not run, with ``reason``."""
     fields: dict[str, Any] = dict(
         outcome="Wait",

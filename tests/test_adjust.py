@@ -11,6 +11,7 @@ from statmargin.errors import OptionError
 from statmargin.results import Result
 from statmargin.stats.adjust import adjust_p, adjust_results
 from statmargin.vocabulary import AdjustMethod
+from statmargin.vocabulary.codes import Skip, coded
 
 RAW = [0.01, 0.04, 0.03, 0.005]
 
@@ -83,7 +84,7 @@ def _result(p: float | None, skipped: str | None = None) -> Result:
 
 def test_adjust_results_skips_skipped() -> None:
     """Skipped results get no adjusted p and do not count in the family."""
-    results = [_result(0.01), _result(None, skipped="constant column"), _result(0.04)]
+    results = [_result(0.01), _result(None, skipped=coded(Skip.CONSTANT_COLUMN, name="y", value=1.0)), _result(0.04)]
     out = adjust_results(results, "holm")
     assert out is results
     # Holm with m = 2 (definition): 2*0.01 = 0.02, max(0.02, 1*0.04) = 0.04.
@@ -92,7 +93,7 @@ def test_adjust_results_skips_skipped() -> None:
 
 def test_adjust_results_ignores_p_of_skipped() -> None:
     """A skipped result's stray p-value is not adjusted nor counted."""
-    results = [_result(0.01), _result(0.001, skipped="no pairs")]
+    results = [_result(0.01), _result(0.001, skipped=coded(Skip.NO_COMPLETE_PAIRS, outcome="y"))]
     adjust_results(results, AdjustMethod.HOLM)
     assert results[0].p_adjusted == pytest.approx(0.01)
     assert results[1].p_adjusted is None

@@ -14,6 +14,7 @@ from statmargin.designs.choose import DECISION_TABLE, choose_test
 from statmargin.results import DESIGNS, TESTS
 from statmargin.stats.shape import SpreadCheck, assess
 from statmargin.vocabulary import MeasureType, ShapeHandling
+from statmargin.words.sentences import say
 
 RNG = np.random.default_rng(20261202)
 NORMALISH = {"a": RNG.normal(10, 2, 30), "b": RNG.normal(12, 2, 30), "c": RNG.normal(11, 2, 30)}
@@ -51,7 +52,7 @@ def test_continuous_rows(design, k, normal_test, rank_test):
     assert normal.test == normal_test and not normal.rank_based
     skewed = choose_test(design, outcome="y", by="g", shape=shape_of(SKEWED, k), spread=spread)
     assert skewed.test == rank_test and skewed.rank_based
-    assert "rank-based" in skewed.reasons[0]
+    assert "rank-based" in say(skewed.reasons[0])
 
 
 def test_welch_anova_when_spreads_differ():
@@ -59,22 +60,22 @@ def test_welch_anova_when_spreads_differ():
     c = choose_test("multi_group_continuous", outcome="y", by="site", shape=shape_of(NORMALISH, 3),
                     spread=SpreadCheck(5.0, (2.0, 87.0), 0.009))
     assert c.test == "welch_anova"
-    assert "Brown-Forsythe p = 0.009" in c.reasons[1]
+    assert "Brown-Forsythe p = 0.009" in say(c.reasons[1])
 
 
 def test_welch_t_reason_names_source():
     """Two normal-shaped groups take Welch's t-test with its reason and source."""
     c = choose_test("two_group_continuous", outcome="y", by="g", shape=shape_of(NORMALISH, 2))
     assert c.test == "welch_t"
-    assert any("Delacre, Lakens & Leys 2017" in r for r in c.reasons)
+    assert any("Delacre, Lakens & Leys 2017" in say(r) for r in c.reasons)
 
 
 def test_reason_counts_failing_groups():
     """The shape reason says in how many groups the check failed and what the check was."""
     mixed = assess({"a": NORMALISH["a"], "b": SKEWED["b"], "c": SKEWED["c"]})
     c = choose_test("multi_group_continuous", outcome="wait", by="site", shape=mixed)
-    assert c.reasons[0].startswith("wait is right-skewed in 2 of 3 groups of site (Shapiro-Wilk p")
-    assert c.reasons[0].endswith("so a rank-based test was used.")
+    assert say(c.reasons[0]).startswith("wait is right-skewed in 2 of 3 groups of site (Shapiro-Wilk p")
+    assert say(c.reasons[0]).endswith("so a rank-based test was used.")
 
 
 @pytest.mark.parametrize("design,k,normal_test,rank_test", CONTINUOUS_ROWS)
@@ -102,7 +103,7 @@ def test_groups_too_small_take_rank_test():
     shape = assess({"a": np.array([1.0, 2.0]), "b": NORMALISH["b"]})
     c = choose_test("two_group_continuous", outcome="y", by="g", shape=shape)
     assert c.test == "mann_whitney_u"
-    assert "too few values" in c.reasons[0]
+    assert "too few values" in say(c.reasons[0])
 
 
 @pytest.mark.parametrize(

@@ -19,6 +19,7 @@ from hypothesis import strategies as st
 from statmargin import analyze
 from statmargin.errors import ColumnNotFoundError, OptionError, RoleError
 from statmargin.read.table import Table
+from statmargin.words.sentences import say
 
 REF = Path(__file__).parent / "reference"
 CASES = {c["case_id"]: c for c in json.loads((REF / "r_cases.json").read_text())["cases"]}
@@ -96,7 +97,7 @@ class TestDesignsAgainstR:
         assert r.test == "mann_whitney_u"
         assert r.statistic == pytest.approx(ref["statistic"])
         assert r.p_value == pytest.approx(ref["p_value"], rel=1e-10)
-        assert r.reasons[0].startswith("len is left-skewed in 1 of 2 groups of supp (Shapiro-Wilk p = 0.024)")
+        assert say(r.reasons[0]).startswith("len is left-skewed in 1 of 2 groups of supp (Shapiro-Wilk p = 0.024)")
 
     def test_multi_group_anova_with_tukey(self):
         """PlantGrowth runs one-way ANOVA then Tukey HSD (adjusted p < 0.05)."""
@@ -191,7 +192,7 @@ class TestEngineBehaviour:
                               "arm": data("sleep_extra_by_group")["group"].map({1: "a", 2: "b"})})
         r = only(analyze(frame, outcome="arm", by="weight"))
         assert r.design == "two_group_continuous" and r.outcome == "arm" and r.exposure == "weight"
-        assert "weight was compared across the levels of arm" in r.reasons[0]
+        assert "weight was compared across the levels of arm" in say(r.reasons[0])
         ref = r_test("sleep_extra_by_group", "t_test_welch")  # R 4.2.2: t.test(extra ~ group, data = sleep)
         assert r.statistic == pytest.approx(ref["statistic"], rel=1e-10)
 
@@ -219,14 +220,14 @@ class TestDegenerateData:
         """A constant outcome is skipped with a plain reason, not a NaN."""
         frame = pd.DataFrame({"y": [5.5] * 8, "g": ["a", "b"] * 4})
         r = only(analyze(frame, outcome="y", by="g"))
-        assert r.skipped == "Every usable value of y is the same (5.5), so there is nothing to test."
+        assert say(r.skipped) == "Every usable value of y is the same (5.5), so there is nothing to test."
         assert r.p_value is None and r.test == "welch_t"
 
     def test_single_group(self):
         """A compare-by column with one group is skipped."""
         frame = pd.DataFrame({"y": [1.5, 2.5, 3.5, 4.5], "g": ["a"] * 4})
         r = only(analyze(frame, outcome="y", by="g"))
-        assert "fewer than two groups ('a')" in r.skipped
+        assert "fewer than two groups ('a')" in say(r.skipped)
 
     def test_group_of_one_is_not_a_crash(self):
         """A group with one value still gives a result (rank-based) or a skipped reason, never NaN."""
@@ -239,7 +240,7 @@ class TestDegenerateData:
         """Long-form pairs with no key in both conditions are skipped and listed."""
         frame = pd.DataFrame({"id": [1, 2, 3, 4], "when": ["pre", "post", "pre", "post"], "y": [1.0, 2.0, 3.0, 4.5]})
         r = only(analyze(frame, outcome="y", by="when", paired_by="id"))
-        assert r.skipped == "There are no complete pairs of y."
+        assert say(r.skipped) == "There are no complete pairs of y."
         assert r.extra["incomplete_pairs"] == ["1", "2", "3", "4"]
 
     def test_incomplete_pairs_reported(self):
@@ -250,19 +251,19 @@ class TestDegenerateData:
         r = only(analyze(frame, outcome="y", by="when", paired_by="id", shape="normal"))
         assert r.extra["incomplete_pairs"] == ["3", "6"]
         assert r.n == 4 and r.n_excluded == 3
-        assert any("2 id value(s)" in n for n in r.notes)
+        assert any("2 id value(s)" in say(n) for n in r.notes)
 
     def test_duplicate_key_rows(self):
         """Two rows for the same key and condition are skipped with what to fix."""
         frame = pd.DataFrame({"id": [1, 1, 1, 2, 2], "when": ["pre", "pre", "post", "pre", "post"], "y": [1.0, 2.0, 3.0, 4.0, 5.0]})
         r = only(analyze(frame, outcome="y", by="when", paired_by="id"))
-        assert "more than one row" in r.skipped and "'1'" in r.skipped
+        assert "more than one row" in say(r.skipped) and "'1'" in say(r.skipped)
 
     def test_single_category(self):
         """A categorical table with one outcome category is skipped."""
         frame = pd.DataFrame({"a": ["yes"] * 6, "b": ["x", "y"] * 3})
         r = only(analyze(frame, outcome="a", by="b", treat={"a": "categorical"}))
-        assert "only one category" in r.skipped
+        assert "only one category" in say(r.skipped)
 
     def test_identifier_outcome_is_refused(self):
         """An identifier cannot be an outcome; the message says what to do."""
@@ -373,7 +374,7 @@ class TestTypeOptions:
                               "p2": ["mild", "mild", "severe", "severe", "mild", "severe", "none"]})
         r = only(analyze(frame, outcome="p1", paired_with="p2", treat=["p1=ordinal:none,mild,severe"]))
         assert (r.design, r.test) == ("paired_continuous", "wilcoxon_signed_rank")
-        assert r.reasons == ["p1 is ordinal, so a rank-based test was used."]
+        assert [say(x) for x in r.reasons] == ["p1 is ordinal, so a rank-based test was used."]
         # Ranks p1 = 1,2,3,2,1,3,2 and p2 = 2,2,3,3,2,3,1: differences -1,0,0,-1,-1,0,1 (hand computation);
         # zeros dropped, four tied |d| = 1 share mid-rank 2.5, and one difference is positive, so V = 2.5.
         assert r.statistic == pytest.approx(2.5)

@@ -27,8 +27,10 @@ from result_builders import (
 from statmargin.plan.model import Settings
 from statmargin.results import Effect, Estimate, Followup, Result
 from statmargin.vocabulary import AdjustMethod, EffectKind, EstimateKind
+from statmargin.vocabulary.codes import Note, Reason, Skip, coded
 from statmargin.words import explain
 from statmargin.words import magnitude as mag
+from statmargin.words.sentences import say
 
 UNITS = {"mpg": "miles per gallon", "extra": "hours", "len": "mm", "weight": "g"}
 SETTINGS = Settings()
@@ -422,9 +424,7 @@ def test_prove_never_appears() -> None:
 
 def test_review_line_is_always_last() -> None:
     """Every result, skipped or not, ends its cautions with the fixed review line."""
-    skipped = skipped_wait_by_district(
-        "Every value of Wait is the same (4.0), so there is no spread to test."
-    )
+    skipped = skipped_wait_by_district(coded(Skip.NO_SPREAD, what="Wait", value=4.0))
     for result in [*make_cases().values(), skipped]:
         _, cautions = explain.explain(result, settings=SETTINGS, context=UNITS)
         assert cautions[-1] == (
@@ -448,13 +448,11 @@ def test_adjusted_p_is_used_and_the_run_size_named() -> None:
 
 def test_skipped_result_says_why_no_test_ran() -> None:
     """A skipped analysis gets a plain reason instead of numbers."""
-    skipped = skipped_wait_by_district(
-        "Every value of Wait is the same (4.0), so there is no spread to test."
-    )
+    skipped = skipped_wait_by_district(coded(Skip.NO_SPREAD, what="Wait", value=4.0))
     reading = explain.reading(skipped, settings=SETTINGS, context=UNITS)
     assert reading == (
         'No test was run for the question "Does Wait differ by District?": Every value of Wait '
-        "is the same (4.0), so there is no spread to test."
+        "is the same (4), so there is no spread to test."
     )
 
 
@@ -597,9 +595,9 @@ def test_large_but_not_significant_effect_is_flagged() -> None:
 def test_method_notes_become_cautions() -> None:
     """Caveats a method raised (Result.notes) are passed on as cautions before the review line."""
     result = make_cases()["chi_square_gof"]
-    result.notes = ["The p-value comes from 20000 Monte Carlo resamples."]
+    result.notes = [coded(Note.EXACT_P, per_group=False)]
     cautions = _cautions(result)
-    assert cautions[-2] == "The p-value comes from 20000 Monte Carlo resamples."
+    assert cautions[-2] == "The p-value is exact (no ties, fewer than 50 values)."
 
 
 # ---------------------------------------------------------------- follow-ups and apply
@@ -676,7 +674,7 @@ def test_apply_fills_every_reading_and_counts_the_run() -> None:
         exposure=None,
         design="one_sample_continuous",
         test=None,
-        skipped="No values could be read.",
+        skipped=coded(Skip.NO_USABLE_VALUES, name="Wait"),
     )
     run = [anova, cases["welch_t"], skipped]
     assert explain.count_comparisons(run) == 2
@@ -711,11 +709,11 @@ def test_technical_note_names_test_statistic_and_checks() -> None:
     # R 4.2.2: oneway.test(weight ~ group, var.equal = TRUE) F = 4.846, df 2 and 27, p = 0.01591;
     # Brown-Forsythe F = 1.119, p = 0.3412 (r_cases.json homogeneity_of_variance)
     result = make_cases()["anova"]
-    result.reasons = ["every group looks roughly normal (Shapiro-Wilk p > 0.05)"]
+    result.reasons = [coded(Reason.SPREAD_SIMILAR, outcome="weight", by="group", p=0.3412)]
     lines = explain.technical_lines(result, SETTINGS)
     assert lines[:4] == [
         "One-way ANOVA (two-sided), 30 records used.",
-        "Chosen because: every group looks roughly normal (Shapiro-Wilk p > 0.05).",
+        "Chosen because: The spread of weight is similar across the groups of group (Brown-Forsythe p = 0.341), so the classic one-way ANOVA was used.",
         "F = 4.85 on 2 and 27 df.",
         "Unadjusted p = 0.016 (asymptotic).",
     ]
@@ -903,8 +901,9 @@ def test_level_named_like_rank_keeps_shift_reading() -> None:
 def test_method_note_on_expected_counts_is_not_repeated() -> None:
     """A method's own small-expected-count note is left to the technical note, not repeated as a caution."""
     result = make_cases()["chi_square_independence"]
-    note = "6 of 9 expected counts are below 5, so the chi-square approximation may be poor; the p-value comes from 20000 Monte Carlo resamples."
-    result.notes = [note]
+    item = coded(Note.MONTE_CARLO_P, n_small=6, n_cells=9, small=True, resamples=20000, se=0.003, margins=True)
+    note = say(item)
+    result.notes = [item]
     assert note not in _cautions(result)
     assert note in explain.technical_note(result)
 

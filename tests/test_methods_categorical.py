@@ -14,6 +14,7 @@ from scipy import stats
 from reference_cases import load_case
 from statmargin.errors import NotEnoughDataError, OptionError
 from statmargin.stats import categorical as cat
+from statmargin.words.sentences import say
 
 REL_STAT = 1e-9
 REL_P = 1e-6
@@ -76,7 +77,7 @@ def test_goodness_of_fit_small_counts_use_monte_carlo() -> None:
         again = cat.chi_square_goodness_of_fit(counts, shares, seed=7, monte_carlo_resamples=4000)
     assert first.p_method == "monte_carlo"
     assert first.p_value == again.p_value
-    assert "3 of 3 expected counts are below 5" in first.notes[0]
+    assert "3 of 3 expected counts are below 5" in say(first.notes[0])
     # Exact multinomial p by enumeration, from the definition (sum of null
     # probabilities of all outcomes with X2 >= observed X2): the simulated p must
     # lie within 4 Monte Carlo standard errors of it.
@@ -170,7 +171,7 @@ def test_independence_matches_r(case_id: str) -> None:
         result = cat.chi_square_independence(table, rows, cols, monte_carlo=False)
     # R 4.2.2 warns "Chi-squared approximation may be incorrect" exactly when we add a note.
     assert bool(result.notes) == bool(ref_warnings := case["tests"]["chisq_pearson"]["warnings"])
-    assert ref_warnings == [] or "may be poor" in result.notes[0]
+    assert ref_warnings == [] or "may be poor" in say(result.notes[0])
     ref = case["tests"]["chisq_pearson"]  # R 4.2.2: chisq.test(tab, correct = FALSE)
     assert result.statistic == pytest.approx(ref["statistic"], rel=REL_STAT)
     assert result.df == ref["df"][0]
@@ -203,7 +204,7 @@ def test_independence_small_counts_use_monte_carlo() -> None:
         result = cat.chi_square_independence(table, rows, cols, seed=11, resamples=5000)
     assert result.p_method == "monte_carlo"
     assert result.extra["monte_carlo_resamples"] == 5000
-    assert "6 of 9 expected counts are below 5" in result.notes[0]
+    assert "6 of 9 expected counts are below 5" in say(result.notes[0])
     se = result.extra["monte_carlo_se"]
     assert se == pytest.approx(math.sqrt(result.p_value * (1 - result.p_value) / 5000))
     # Exact conditional p of X2 from the definition: enumerate every table with
@@ -255,7 +256,7 @@ def test_small_2x2_recommends_fisher() -> None:
     with pytest.warns(UserWarning, match="Fisher"):
         result = cat.chi_square_independence([[3, 1], [1, 3]], ["a", "b"], ["y", "n"])
     assert result.p_method == "asymptotic"
-    assert "Fisher's exact test" in result.notes[0]
+    assert "Fisher's exact test" in say(result.notes[0])
 
 
 def test_agresti_party_identification() -> None:

@@ -15,6 +15,7 @@ from reference_cases import assert_close, cases_by_design, group_arrays, load_ca
 from statmargin.errors import NotEnoughDataError
 from statmargin.stats.effects import omega_squared, variance_share_interval
 from statmargin.stats.multigroup import kruskal_wallis, one_way_anova, welch_anova
+from statmargin.words.sentences import say
 
 CASES = cases_by_design("multi_group_continuous")
 TESTS = [("anova_oneway", one_way_anova), ("welch_anova", welch_anova), ("kruskal_wallis", kruskal_wallis)]
@@ -92,7 +93,7 @@ def test_kruskal_wallis_textbook_example() -> None:
         result = kruskal_wallis(groups)
     assert result.statistic == pytest.approx(27 / 35, rel=1e-12)
     assert round(result.p_value, 2) == 0.68
-    assert any("fewer than 5" in note for note in result.notes)
+    assert any("fewer than 5" in say(note) for note in result.notes)
 
 
 def test_omega_squared_can_be_negative() -> None:
@@ -117,7 +118,7 @@ def test_one_sided_request_is_noted() -> None:
     groups = {"a": np.array([1.0, 2.0, 3.0]), "b": np.array([3.0, 4.0, 6.0]), "c": np.array([5.0, 7.0, 8.0])}
     result = one_way_anova(groups, alternative="greater")
     assert result.alternative == "two-sided"
-    assert any("two-sided" in note for note in result.notes)
+    assert any("two-sided" in say(note) for note in result.notes)
 
 
 group_values = st.lists(st.integers(-200, 200).map(lambda v: v / 10), min_size=2, max_size=10)

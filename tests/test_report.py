@@ -30,6 +30,7 @@ from statmargin.sheets import report
 from statmargin.sheets.model import STYLES, SheetModel
 from statmargin.sheets.report import ReportContext
 from statmargin.vocabulary import EstimateKind
+from statmargin.vocabulary.codes import Reason, Skip, coded
 from statmargin.words import explain
 
 DATA = Path(__file__).parent / "reference" / "data"
@@ -67,7 +68,7 @@ def anova_result() -> Result:
     return plantgrowth_anova(  # effect CI: illustrative input (invented)
         p_adjusted=0.031819916651245824,
         groups=groups,
-        reasons=["every group looks roughly normal", "spreads look similar"],
+        reasons=[coded(Reason.SPREAD_SIMILAR, outcome="weight", by="group", p=0.3412)],
         followups=[tukey_trt2_vs_trt1()],  # R 4.2.2: TukeyHSD(aov(weight ~ group))
     )
 
@@ -173,7 +174,7 @@ def test_results_table_has_one_row_per_analysis_and_followup() -> None:
     assert model.cells[(anova_row, col["Test"])].value == "One-way ANOVA"
     assert (
         model.cells[(anova_row, col["Why this test"])].value
-        == "every group looks roughly normal; spreads look similar"
+        == "The spread of weight is similar across the groups of group (Brown-Forsythe p = 0.341), so the classic one-way ANOVA was used."
     )
     # R 4.2.2 oneway.test: F = 4.846087862380137, p = 0.015909958325622912 kept at full precision
     assert model.cells[(anova_row, col["Statistic value"])].value == 4.846087862380137
@@ -217,12 +218,12 @@ def test_results_rows_link_to_their_shape_blocks() -> None:
 
 def test_skipped_result_row_says_why() -> None:
     """A skipped analysis still gets a row, with the reason and no numbers."""
-    skipped = skipped_wait_by_district("South has only one record.", n=3)
+    skipped = skipped_wait_by_district(coded(Skip.FEWER_THAN_TWO_GROUPS, by="District", level="South"), n=3)
     model = report.results_sheet([skipped], context())
     row = header_row(model) + 1
     assert (
         model.cells[(row, report.COL["Why this test"])].value
-        == "not run: South has only one record."
+        == "not run: District has fewer than two groups ('South') among the usable rows, so there is nothing to compare."
     )
     assert model.cells[(row, report.COL["p"])].value is None
     assert model.cells[(row, report.COL["Reading"])].value.startswith("No test was run")

@@ -24,6 +24,7 @@ import click
 from . import errors
 from ._version import __version__
 from .results import Result
+from .words.sentences import say
 
 # ---------------------------------------------------------------- shared plumbing
 
@@ -423,7 +424,7 @@ def summary_text(results: list[Result], *, sheet: str | None = None) -> str:
         lines.append("")
         lines.append(f"{r.outcome} {'by ' if r.exposure else ''}{target}".rstrip() + f"  [{r.test or 'no test'}]")
         if r.skipped:
-            lines.append(f"  skipped: {r.skipped}")
+            lines.append(f"  skipped: {say(r.skipped)}")
         else:
             stat = f"{r.statistic_name or 'statistic'} = {_num(r.statistic)}" if r.statistic is not None else ""
             df = f", df = {_num(r.df)}" if r.df is not None else ""
@@ -436,9 +437,9 @@ def summary_text(results: list[Result], *, sheet: str | None = None) -> str:
             if r.effect is not None:
                 lines.append(f"  {r.effect.name} = {_num(r.effect.value)}{_ci(r.effect, r.confidence)}")
         for reason in r.reasons:
-            lines.append(f"  why: {reason}")
+            lines.append(f"  why: {say(reason)}")
         for note in r.notes:
-            lines.append(f"  note: {note}")
+            lines.append(f"  note: {say(note)}")
         if r.reading:
             lines.append(f"  reading: {r.reading}")
         for caution in r.cautions:

@@ -7,6 +7,8 @@ decides exit codes.
 
 from __future__ import annotations
 
+from .vocabulary.codes import Coded
+
 
 class StatmarginError(Exception):
     """Base class: a problem with the user's input or file, explained in one line."""
@@ -33,7 +35,21 @@ class OptionError(StatmarginError):
 
 
 class NotEnoughDataError(StatmarginError):
-    """Too little usable data to run the requested test."""
+    """Too little usable data to run the requested test.
+
+    Raised with a ``vocabulary.codes.Coded`` skip reason (kept as ``reason`` so a
+    design can report the analysis as skipped) or, at the edges, a plain message.
+    """
+
+    def __init__(self, reason: Coded | str) -> None:
+        if isinstance(reason, str):
+            self.reason: Coded | None = None
+            super().__init__(reason)
+            return
+        from .words.sentences import say
+
+        self.reason = reason
+        super().__init__(say(reason))
 
 
 class WorkbookLockedError(StatmarginError):

@@ -13,6 +13,7 @@ from enum import Enum
 from typing import Any
 
 from .vocabulary import FOLLOWUP_TESTS, Design, EffectKind, EstimateKind, PMethod, Test
+from .vocabulary.codes import Coded
 
 # Identifier tuples kept for callers that list them; the enums are the vocabulary.
 DESIGNS = tuple(d.value for d in Design)
@@ -148,10 +149,10 @@ class Result:
     effect: Effect | None = None
     groups: list[dict[str, Any]] = field(default_factory=list)
     shape: dict[str, Any] = field(default_factory=dict)
-    reasons: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)  # statistical caveats raised while computing
+    reasons: list[Coded] = field(default_factory=list)  # why this test (codes; words makes sentences)
+    notes: list[Coded] = field(default_factory=list)  # statistical caveats raised while computing
     followups: list[Followup] = field(default_factory=list)
-    skipped: str | None = None
+    skipped: Coded | None = None
     against: Any = None  # the fixed value or shares of a one-sample question
     pairing: str | None = None  # the pairing key or second measurement column
     reading: str | None = None
@@ -161,6 +162,8 @@ class Result:
 
     def to_record(self) -> dict[str, Any]:
         """A JSON-ready dict with the documented keys (see README "JSON output")."""
+        from .words.sentences import say
+
         rec: dict[str, Any] = {}
         for f in fields(self):
             value = getattr(self, f.name)
@@ -168,5 +171,9 @@ class Result:
                 value = value.to_record()
             elif f.name == "followups":
                 value = [fu.to_record() for fu in value]
+            elif f.name in ("reasons", "notes"):
+                value = [say(item) for item in value]
+            elif f.name == "skipped" and value is not None:
+                value = say(value)
             rec[f.name] = value
         return _clean(rec)

@@ -10,8 +10,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from ..stats.shape import ShapeAssessment, SpreadCheck, fmt_p
+from ..stats.shape import ShapeAssessment, SpreadCheck
 from ..vocabulary import Design, MeasureType, ShapeHandling, Test
+from ..vocabulary.codes import Coded, Note, Reason, coded
 
 # design -> (normal-shaped test, not normal-shaped test). Common practice, no single source.
 DECISION_TABLE: dict[Design, tuple[Test, Test]] = {
@@ -33,10 +34,6 @@ SHAPE_DESIGNS = frozenset(
 SPREAD_ALPHA = 0.05  # Brown-Forsythe level for switching to Welch's ANOVA (common practice)
 COCHRAN_MIN_EXPECTED = 5.0  # Cochran 1954, Biometrics 10(4):417-451, doi:10.2307/3001616
 
-WELCH_REASON = (
-    "Welch's t-test was used because it stays accurate when the two groups' spreads differ"
-    " and loses little when they do not (Delacre, Lakens & Leys 2017)."
-)
 
 
 @dataclass
@@ -46,52 +43,8 @@ class Choice:
     design: Design
     test: Test
     rank_based: bool
-    reasons: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)  # caveats to carry into Result.notes
-
-
-def _sentence(text: str) -> str:
-    """Capitalize a leading lowercase article only; column names keep their own spelling."""
-    for word in ("the ", "there "):
-        if text.startswith(word):
-            return text[0].upper() + text[1:]
-    return text
-
-
-def _shape_sentence(design: Design, outcome: str, by: str | None, shape: ShapeAssessment) -> str:
-    """Say where the shape check failed or passed, in one sentence (without the conclusion)."""
-    summaries = shape.summaries
-    if design in (Design.MULTI_GROUP_CONTINUOUS, Design.TWO_GROUP_CONTINUOUS):
-        k = len(summaries)
-        if shape.unchecked:
-            names = ", ".join(repr(u) for u in shape.unchecked)
-            return f"the {by} group {names} has too few values to check the shape of {outcome}"
-        if shape.constant and not shape.failing:
-            names = ", ".join(repr(u) for u in shape.constant)
-            return f"all values of {outcome} are equal in the {by} group {names}, so its shape cannot be checked"
-        if shape.failing:
-            bad = [s for s in summaries if s.normal_shaped is False]
-            directions = {s.direction for s in bad}
-            direction = directions.pop() if len(directions) == 1 else "not normal-shaped"
-            worst = min(bad, key=lambda s: s.check_p if s.check_p is not None else -1.0)
-            return f"{outcome} is {direction} in {len(bad)} of {k} groups of {by} ({worst.evidence})"
-        return f"{outcome} looks close to normal in all {k} groups of {by}"
-    if design == Design.PAIRED_CONTINUOUS:
-        s = summaries[0]
-        if s.normal_shaped is None:
-            return f"there are too few pairs to check the shape of the differences in {outcome}"
-        return f"the differences in {outcome} are {s.verdict}"
-    if design == Design.TWO_CONTINUOUS:
-        bad = [s for s in summaries if s.normal_shaped is False]
-        if shape.unchecked:
-            return f"there are too few values to check the shape of {outcome} and {by}"
-        if bad:
-            return " and ".join(f"{s.label} is {s.verdict}" for s in bad)
-        return f"{outcome} and {by} both look close to normal"
-    s = summaries[0]
-    if s.normal_shaped is None:
-        return f"there are too few values to check the shape of {outcome}"
-    return f"{outcome} is {s.verdict}"
+    reasons: list[Coded] = field(default_factory=list)
+    notes: list[Coded] = field(default_factory=list)  # caveats to carry into Result.notes
 
 
 def choose_test(
@@ -151,88 +104,72 @@ def choose_test(
     if design not in DECISION_TABLE:
         raise ValueError(f"unknown design {design!r}")
     normal_test, rank_test = DECISION_TABLE[design]
-    reasons: list[str] = []
-    notes: list[str] = []
+    reasons: list[Coded] = []
+    notes: list[Coded] = []
 
     if design == Design.ONE_SAMPLE_CATEGORICAL:
         small = min_expected is not None and min_expected < COCHRAN_MIN_EXPECTED
         if single_share or n_levels == 2 and small:
             if single_share:
-                reasons.append(f"One share was given for {outcome}, so the exact binomial test was used.")
+                reasons.append(coded(Reason.ONE_SHARE_BINOMIAL, outcome=outcome))
             else:
-                reasons.append(
-                    f"An expected count is below 5 (smallest {min_expected:.3g}), so the exact binomial"
-                    " test was used instead of chi-square (Cochran's rule)."
-                )
+                reasons.append(coded(Reason.SMALL_EXPECTED_BINOMIAL, smallest=min_expected))
             return Choice(design, Test.BINOMIAL_EXACT, False, reasons, notes)
         # Small expected counts with 3+ categories: the method itself says how its p-value was
         # obtained (and switches to Monte Carlo), so no second caveat is added here.
-        reasons.append(f"{outcome} is compared with the given shares by a chi-square goodness-of-fit test.")
+        reasons.append(coded(Reason.GOODNESS_OF_FIT, outcome=outcome))
         return Choice(design, normal_test, False, reasons, notes)
 
     if design == Design.TWO_CATEGORICAL:
         small = min_expected is not None and min_expected < COCHRAN_MIN_EXPECTED
         if table_shape == (2, 2) and small:
-            reasons.append(
-                f"An expected count is below 5 (smallest {min_expected:.3g}) in a 2x2 table, so Fisher's"
-                " exact test was used (Cochran's rule)."
-            )
+            reasons.append(coded(Reason.SMALL_EXPECTED_FISHER, smallest=min_expected))
             return Choice(design, Test.FISHER_EXACT, False, reasons, notes)
         # Larger tables with small expected counts: the method reports its own caveat and p method.
-        reasons.append(f"{outcome} and {by} are both categories, so a chi-square test of independence was used.")
+        reasons.append(coded(Reason.CHI_SQUARE_INDEPENDENCE, outcome=outcome, by=by))
         return Choice(design, normal_test, False, reasons, notes)
 
     if design == Design.PAIRED_CATEGORICAL:
-        reasons.append(f"{outcome} is a two-level category measured twice on the same units, so McNemar's test was used.")
+        reasons.append(coded(Reason.MCNEMAR_PAIRED, outcome=outcome))
         return Choice(design, normal_test, False, reasons, notes)
 
     # Continuous designs: ordinal -> rank; user handling; else the shape checks.
     if outcome_type is MeasureType.ORDINAL or by_type is MeasureType.ORDINAL:
         which = outcome if outcome_type is MeasureType.ORDINAL else by
-        reasons.append(f"{which} is ordinal, so a rank-based test was used.")
+        reasons.append(coded(Reason.ORDINAL_RANK, column=which))
         return Choice(design, rank_test, True, reasons, notes)
     if shape_handling is ShapeHandling.RANK:
-        reasons.append(f"Shape handling for {outcome} is set to rank-based, so a rank-based test was used.")
+        reasons.append(coded(Reason.USER_RANK, outcome=outcome))
         return Choice(design, rank_test, True, reasons, notes)
     if shape_handling is ShapeHandling.NORMAL:
-        reasons.append(f"Shape handling for {outcome} is set to assume normal, so the shape checks were not used.")
+        reasons.append(coded(Reason.USER_NORMAL, outcome=outcome))
         if shape is not None and not shape.normal_shaped:
-            notes.append(
-                f"The shape checks suggest {_shape_sentence(design, outcome, by, shape)}; the test assumes"
-                " normal-shaped data because that was chosen."
-            )
+            notes.append(coded(Note.ASSUMED_NORMAL_DESPITE_SHAPE, **_shape_facts(design, outcome, by, shape)))
         rank_based = False
     else:
         if shape is None:
             raise ValueError("shape assessment needed for automatic shape handling")
-        sentence = _shape_sentence(design, outcome, by, shape)
         rank_based = not shape.normal_shaped
-        if rank_based:
-            reasons.append(_sentence(f"{sentence}, so a rank-based test was used."))
-        else:
-            reasons.append(_sentence(f"{sentence}, so a test that assumes normal-shaped data was used."))
+        code = Reason.SHAPE_RANK if rank_based else Reason.SHAPE_NORMAL
+        reasons.append(coded(code, **_shape_facts(design, outcome, by, shape)))
     if rank_based:
         return Choice(design, rank_test, True, reasons, notes)
 
     test = normal_test
     if design == Design.TWO_GROUP_CONTINUOUS:
-        reasons.append(WELCH_REASON)
+        reasons.append(coded(Reason.WELCH_DEFAULT))
     elif design == Design.MULTI_GROUP_CONTINUOUS:
         if spread is not None and spread.p_value < SPREAD_ALPHA:
             test = Test.WELCH_ANOVA
-            reasons.append(
-                f"The spread of {outcome} differs between the groups of {by} (Brown-Forsythe {fmt_p(spread.p_value)}),"
-                " so Welch's ANOVA was used."
-            )
+            reasons.append(coded(Reason.SPREAD_DIFFERS, outcome=outcome, by=by, p=spread.p_value))
         elif spread is not None:
-            reasons.append(
-                f"The spread of {outcome} is similar across the groups of {by} (Brown-Forsythe {fmt_p(spread.p_value)}),"
-                " so the classic one-way ANOVA was used."
-            )
+            reasons.append(coded(Reason.SPREAD_SIMILAR, outcome=outcome, by=by, p=spread.p_value))
         else:
             test = Test.WELCH_ANOVA
-            reasons.append(
-                f"The spread of {outcome} across the groups of {by} could not be checked, so Welch's ANOVA"
-                " (which does not assume equal spreads) was used."
-            )
+            reasons.append(coded(Reason.SPREAD_UNCHECKED, outcome=outcome, by=by))
     return Choice(design, test, False, reasons, notes)
+
+
+def _shape_facts(design: Design, outcome: str, by: str | None, shape: ShapeAssessment) -> dict[str, object]:
+    """The facts a shape reason is worded from: the design, the columns and the per-group checks."""
+    return {"design": design, "outcome": outcome, "by": by, "assessment": shape.to_record()}

@@ -32,6 +32,7 @@ from ..vocabulary import (
     ShapeHandling,
     Test,
 )
+from ..vocabulary.codes import Coded, Count, Note, Reason, Skip, coded
 from .choose import DECISION_TABLE, Choice, choose_test
 
 USABLE_TYPES = (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)
@@ -406,8 +407,8 @@ def _both(a: ColumnValues, b: ColumnValues) -> tuple[np.ndarray, int]:
     return usable, excluded
 
 
-def _skipped(design: Design, test: Test | None, outcome: str, exposure: str | None, reason: str,
-             settings: Settings, *, n: int = 0, n_excluded: int = 0, reasons: list[str] | None = None) -> Result:
+def _skipped(design: Design, test: Test | None, outcome: str, exposure: str | None, reason: Coded,
+             settings: Settings, *, n: int = 0, n_excluded: int = 0, reasons: list[Coded] | None = None) -> Result:
     return Result(
         outcome=outcome, exposure=exposure, design=design, test=test, skipped=reason,
         alternative=_alt(settings), confidence=settings.confidence, n=n,
@@ -439,7 +440,7 @@ def _finish(result: Result, *, design: Design, outcome: str, exposure: str | Non
     result.shape = {**shape, **result.shape}
     if result.p_value is None or (isinstance(result.p_value, float) and math.isnan(result.p_value)):
         if result.skipped is None:
-            result.skipped = "The test could not give a p-value for these data."
+            result.skipped = coded(Skip.NO_P_VALUE)
             result.p_value = None
     return result
 
@@ -450,7 +451,8 @@ def _run(test: Test, call, *, design: Design, outcome: str, exposure: str | None
     try:
         result = call()
     except NotEnoughDataError as err:
-        result = _skipped(design, test, outcome, exposure, str(err), settings, n=n, n_excluded=n_excluded,
+        reason = err.reason if err.reason is not None else coded(Skip.NO_P_VALUE)
+        result = _skipped(design, test, outcome, exposure, reason, settings, n=n, n_excluded=n_excluded,
                           reasons=choice.reasons if choice else None)
         result.groups = groups
         result.shape = shape
@@ -468,11 +470,9 @@ def _opts(settings: Settings) -> dict[str, Any]:
     return {"alternative": _alt(settings), "confidence": settings.confidence}
 
 
-def _constant_reason(name: str, values: np.ndarray) -> str | None:
+def _constant_reason(name: str, values: np.ndarray) -> Coded | None:
     if values.size >= 2 and np.all(values == values[0]):
-        v = values[0]
-        shown = str(int(v)) if float(v).is_integer() else f"{v:g}"
-        return f"Every usable value of {name} is the same ({shown}), so there is nothing to test."
+        return coded(Skip.CONSTANT_COLUMN, name=name, value=float(values[0]))
     return None
 
 
@@ -499,7 +499,7 @@ def _one_sample(col: Column, info: TypeInfo, analysis: Analysis, handling: Shape
         groups = [{"label": lev, "n": c, "share": c / n if n else None} for lev, c in counts.items()]
         single = len(shares) == 1
         if n == 0:
-            return _skipped(design, None, name, None, f"{name} has no usable values.", settings,
+            return _skipped(design, None, name, None, coded(Skip.NO_USABLE_VALUES, name=name), settings,
                             n_excluded=n_excl), _Prepared()
         if single:
             label, share = next(iter(shares.items()))
@@ -535,7 +535,7 @@ def _one_sample(col: Column, info: TypeInfo, analysis: Analysis, handling: Shape
         )
     mu = float(against)
     if n == 0:
-        return _skipped(design, None, name, None, f"{name} has no usable values.", settings,
+        return _skipped(design, None, name, None, coded(Skip.NO_USABLE_VALUES, name=name), settings,
                         n_excluded=n_excl), _Prepared()
     constant = _constant_reason(name, x)
     shape_a = assess({name: x})
@@ -578,8 +578,7 @@ def _by(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: TypeInfo, 
         return _two_continuous(out_col, out_info, by_col, by_info, handling, settings)
     if out_cat:
         # A categorical outcome by a numeric column: compare the numbers across the outcome's levels.
-        swap = (f"{out_col.name} is a category and {by_col.name} holds numbers, so {by_col.name}"
-                f" was compared across the levels of {out_col.name}.")
+        swap = coded(Reason.CATEGORY_BY_NUMBER, outcome=out_col.name, by=by_col.name)
         return _groups(by_col, by_info, out_col, out_info, handling, settings,
                        report_outcome=out_col.name, report_exposure=by_col.name, extra_reason=swap)
     return _groups(out_col, out_info, by_col, by_info, handling, settings,
@@ -588,7 +587,7 @@ def _by(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: TypeInfo, 
 
 def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: TypeInfo,
             handling: ShapeHandling, settings: Settings, *, report_outcome: str, report_exposure: str,
-            extra_reason: str | None = None) -> tuple[Result, _Prepared]:
+            extra_reason: Coded | None = None) -> tuple[Result, _Prepared]:
     from ..stats import multigroup, twogroup
 
     y = usable_values(num_col, num_info)
@@ -609,8 +608,7 @@ def _groups(num_col: Column, num_info: TypeInfo, grp_col: Column, grp_info: Type
     summaries = [s.to_record() for s in shape_a.summaries]
     would = DECISION_TABLE[design][1 if ordinal or handling is ShapeHandling.RANK else 0]
     if len(levels) < 2:
-        only = f" ({levels[0]!r})" if levels else ""
-        reason = f"{by} has fewer than two groups{only} among the usable rows, so there is nothing to compare."
+        reason = coded(Skip.FEWER_THAN_TWO_GROUPS, by=by, level=levels[0] if levels else None)
         r = _skipped(Design.TWO_GROUP_CONTINUOUS, None, report_outcome, report_exposure, reason, settings,
                      n=n, n_excluded=n_excl, reasons=lead)
         r.groups, r.shape = summaries, shape
@@ -707,7 +705,7 @@ def _two_continuous(out_col: Column, out_info: TypeInfo, by_col: Column, by_info
         constant = _constant_reason(col_name, values)
         if constant or n == 0:
             r = _skipped(design, DECISION_TABLE[design][0], name, by,
-                         constant or f"{name} and {by} have no rows with both values.", settings,
+                         constant or coded(Skip.NO_ROWS_WITH_BOTH, outcome=name, by=by), settings,
                          n=n, n_excluded=n_excl)
             r.groups, r.shape = summaries, shape
             return r, _Prepared()
@@ -738,8 +736,7 @@ def _two_categorical(out_col: Column, out_info: TypeInfo, by_col: Column, by_inf
                "counts": {c: int(observed[i, j]) for j, c in enumerate(cols)}} for i, r in enumerate(rows)]
     if len(rows) < 2 or len(cols) < 2:
         which, levels = (by, rows) if len(rows) < 2 else (name, cols)
-        only = f" ({levels[0]!r})" if levels else ""
-        reason = f"{which} has only one category{only} among the usable rows, so there is nothing to compare."
+        reason = coded(Skip.ONE_LEVEL, column=which, level=levels[0] if levels else None)
         r = _skipped(design, None, name, by, reason, settings, n=n, n_excluded=n_excl)
         r.groups = groups
         return r, _Prepared()
@@ -779,12 +776,11 @@ def _paired_long(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: T
     conditions = _levels_present(by_info, g.values[g.usable])
     if len(conditions) != 2:
         if len(conditions) > 2:
-            reason = (f"{by} has {len(conditions)} conditions; paired comparisons of more than two"
-                      f" conditions per {key} are not supported yet. Keep two conditions, or remove the"
-                      f" pairing key if every row is a different unit.")
+            reason = coded(Skip.TOO_MANY_CONDITIONS, by=by, n=len(conditions), key=key)
             r = _skipped(Design.MULTI_GROUP_CONTINUOUS if not cat else design, None, name, by, reason, settings)
         else:
-            r = _skipped(design, None, name, by, f"{by} needs two conditions to pair {name} by {key}.", settings)
+            r = _skipped(design, None, name, by, coded(Skip.NEED_TWO_CONDITIONS, by=by, outcome=name, key=key),
+                         settings)
         r.pairing = key
         return r, _Prepared()
     first, second = conditions
@@ -802,10 +798,8 @@ def _paired_long(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: T
             duplicates.append(k)
         cells[k][cond] = y.values[i] if y.usable[i] else None
     if duplicates:
-        shown = ", ".join(repr(d) for d in dict.fromkeys(duplicates))
         r = _skipped(design, None, name, by,
-                     f"{key} has more than one row for the same {by} (keys {shown}); each key needs one row"
-                     f" per condition.", settings)
+                     coded(Skip.DUPLICATE_KEYS, key=key, by=by, keys=list(dict.fromkeys(duplicates))), settings)
         r.pairing = key
         return r, _Prepared()
     complete = [k for k in order if cells[k].get(first) is not None and cells[k].get(second) is not None]
@@ -820,7 +814,7 @@ def _paired_long(out_col: Column, out_info: TypeInfo, by_col: Column, by_info: T
     result.extra["incomplete_pairs"] = incomplete
     if incomplete:
         result.notes.append(
-            f"{len(incomplete)} {key} value(s) lacked a usable {name} for both {first} and {second} and were left out."
+            coded(Note.INCOMPLETE_PAIRS, n=Count(len(incomplete)), key=key, outcome=name, first=first, second=second)
         )
     return result, prepared
 
@@ -872,8 +866,7 @@ def _paired_core(name: str, info: TypeInfo, a: np.ndarray, b: np.ndarray, labels
     if design == Design.PAIRED_CATEGORICAL:
         levels = [lev for lev in info.levels if lev in set(a) | set(b)] or sorted(set(a) | set(b))
         if len(levels) != 2:
-            reason = (f"{name} must have exactly two categories for a paired comparison of counts;"
-                      f" found {len(levels)} among the complete pairs.")
+            reason = coded(Skip.PAIRED_NOT_TWO_LEVELS, outcome=name, n=len(levels))
             return _skipped(design, Test.MCNEMAR, name, exposure, reason, settings, n=n_pairs,
                             n_excluded=n_excl), _Prepared()
         table = np.array([[int(np.sum((a == r) & (b == c))) for c in levels] for r in levels])
@@ -892,7 +885,7 @@ def _paired_core(name: str, info: TypeInfo, a: np.ndarray, b: np.ndarray, labels
     ordinal = info.type is MeasureType.ORDINAL
     would = DECISION_TABLE[design][1 if ordinal or handling is ShapeHandling.RANK else 0]
     if n_pairs == 0:
-        return _skipped(design, would, name, exposure, f"There are no complete pairs of {name}.", settings,
+        return _skipped(design, would, name, exposure, coded(Skip.NO_COMPLETE_PAIRS, outcome=name), settings,
                         n_excluded=n_excl), _Prepared()
     constant = _constant_reason(f"the differences in {name}", diff)
     if constant:
@@ -918,23 +911,19 @@ def _follow_up(result: Result, prepared: _Prepared, settings: Settings) -> None:
     if result.design == Design.MULTI_GROUP_CONTINUOUS and len(prepared.groups) >= 3:
         if result.test == Test.ONE_WAY_ANOVA:
             result.followups = list(followup.tukey_hsd(prepared.groups, confidence=settings.confidence, alpha=settings.alpha))
-            what = "Tukey HSD"
         elif result.test == Test.WELCH_ANOVA:
             result.followups = list(followup.games_howell(prepared.groups, confidence=settings.confidence, alpha=settings.alpha))
-            what = "Games-Howell"
         elif result.test == Test.KRUSKAL_WALLIS:
             result.followups = list(followup.dunn(prepared.groups, adjust="holm", alpha=settings.alpha,
                                                          confidence=settings.confidence))
-            what = "Dunn's test with Holm adjustment"
         else:
             return
-        result.reasons.append(f"The overall test was below {settings.alpha:g} after adjustment, so pairs of groups were compared with {what}.")
+        test = result.followups[0].test if result.followups else None
+        result.reasons.append(coded(Reason.FOLLOWUP_PAIRS, alpha=settings.alpha, test=test,
+                                    holm=result.test == Test.KRUSKAL_WALLIS))
     elif result.design == Design.TWO_CATEGORICAL and prepared.table is not None and prepared.table.size > 4:
         result.followups = list(
             followup.adjusted_residuals(prepared.table, prepared.row_labels, prepared.col_labels,
                                         threshold=RESIDUAL_FLAG)
         )
-        result.reasons.append(
-            f"The table is larger than 2x2, so each cell's adjusted residual was computed; |z| > {RESIDUAL_FLAG:g}"
-            " marks a cell that stands out (common practice)."
-        )
+        result.reasons.append(coded(Reason.FOLLOWUP_RESIDUALS, threshold=RESIDUAL_FLAG))

@@ -24,6 +24,7 @@ from ..read.table import Column, DataNote, Table, column_letter
 from ..results import Result
 from ..vocabulary import Design
 from ..words import explain
+from ..words.sentences import say, say_all
 from .model import Cell, Chart, ChartSeries, SheetModel
 from .share import DEFAULT_MIN_COUNT, suppress
 
@@ -395,9 +396,9 @@ def results_sheet(
         put(row, COL["n used"], int(result.n), "integer", is_count=True)
         put(row, COL["n excluded"], int(result.n_excluded), "integer", is_count=True)
         put(row, COL["Test"], explain.TEST_NAMES.get(result.test or "", result.test or "none"))
-        why = "; ".join(result.reasons)
+        why = "; ".join(say_all(result.reasons))
         if result.skipped:
-            why = (why + "; " if why else "") + f"not run: {result.skipped}"
+            why = (why + "; " if why else "") + f"not run: {say(result.skipped)}"
         put(row, COL["Why this test"], why, "wrap")
         put(row, COL["Statistic"], result.statistic_name or "")
         _value(

@@ -46,6 +46,7 @@ from typing import Any, overload
 from ..read.table import column_index
 from ..results import Result
 from ..vocabulary import Design, Test
+from ..vocabulary.codes import Note, coded
 from ..words import explain
 from .model import Cell, SheetModel
 
@@ -339,7 +340,7 @@ def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Resul
         out.extra["suppressed"] = sorted(
             set(previous) | hidden | ({"groups"} if small_group else set())
         )
-        caution = explain.SHARE_CAUTION.format(floor=min_count)
+        caution = coded(Note.SHARE_HIDDEN, floor=min_count)
         if caution not in out.notes:  # keeps a second pass idempotent
             out.notes = list(out.notes) + [caution]
     return out

@@ -15,6 +15,7 @@ from scipy import stats
 
 from statmargin.errors import NotEnoughDataError, OptionError
 from statmargin.vocabulary import PMethod
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
 ALTERNATIVES = ("two-sided", "greater", "less")
 
@@ -75,9 +76,7 @@ def clean(values: Any, what: str = "the outcome") -> tuple[np.ndarray, int]:
     try:
         array = np.asarray(values, dtype=float).ravel()
     except (TypeError, ValueError):
-        raise NotEnoughDataError(
-            f"Some values of {what} are not numbers; mark that column as a category or fix the cells."
-        ) from None
+        raise NotEnoughDataError(coded(Skip.NOT_NUMBERS, what=what)) from None
     keep = np.isfinite(array)
     return array[keep], int(array.size - keep.sum())
 
@@ -93,9 +92,7 @@ def clean_pairs(first: Any, second: Any, what: str = "the pairs") -> tuple[np.nd
     a = np.asarray(first, dtype=float).ravel()
     b = np.asarray(second, dtype=float).ravel()
     if a.size != b.size:
-        raise NotEnoughDataError(
-            f"The two columns of {what} have different lengths ({a.size} and {b.size}); give one value of each per row."
-        )
+        raise NotEnoughDataError(coded(Skip.LENGTH_MISMATCH, what=what, first=a.size, second=b.size))
     keep = np.isfinite(a) & np.isfinite(b)
     return a[keep], b[keep], int(a.size - keep.sum())
 
@@ -103,17 +100,13 @@ def clean_pairs(first: Any, second: Any, what: str = "the pairs") -> tuple[np.nd
 def require_count(values: np.ndarray, minimum: int, what: str) -> None:
     """Raise ``NotEnoughDataError`` when fewer than ``minimum`` values remain."""
     if values.size < minimum:
-        raise NotEnoughDataError(
-            f"{what[0].upper() + what[1:]} has {values.size} usable value(s); at least {minimum} are needed."
-        )
+        raise NotEnoughDataError(coded(Skip.TOO_FEW_VALUES, what=what, n=Count(values.size), minimum=minimum))
 
 
 def require_spread(values: np.ndarray, what: str) -> None:
     """Raise ``NotEnoughDataError`` when every value is the same."""
     if values.size and np.all(values == values[0]):
-        raise NotEnoughDataError(
-            f"Every value of {what} is the same ({format_number(values[0])}), so there is no spread to test."
-        )
+        raise NotEnoughDataError(coded(Skip.NO_SPREAD, what=what, value=float(values[0])))
 
 
 def format_number(value: float) -> str:
@@ -201,19 +194,17 @@ def check_exact(exact: bool | str) -> None:
         raise OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
 
 
-def normal_approximation(correct: bool) -> tuple[PMethod, str]:
-    """``p_method`` and the plain note for a rank test's normal approximation.
+def normal_approximation(correct: bool) -> tuple[PMethod, Coded]:
+    """``p_method`` and the note for a rank test's normal approximation.
 
     Returns
     -------
-    str, str
-        The p-method name (with or without continuity correction) and the note
+    PMethod, Coded
+        The p-method (with or without continuity correction) and the note
         for ``Result.notes``.
     """
     p_method = PMethod.NORMAL_APPROXIMATION_CONTINUITY if correct else PMethod.NORMAL_APPROXIMATION
-    note = "The p-value uses the normal approximation with the tie correction" + (
-        " and a continuity correction." if correct else " (no continuity correction)."
-    )
+    note = coded(Note.NORMAL_APPROXIMATION, continuity=bool(correct))
     return p_method, note
 
 
@@ -235,10 +226,12 @@ def tie_counts(values: np.ndarray) -> np.ndarray:
     return counts.astype(float)
 
 
-def caveat(notes: list[str], sentence: str) -> None:
-    """Record a statistical caveat in ``notes`` and as a Python warning."""
-    notes.append(sentence)
-    warnings.warn(sentence, stacklevel=3)
+def caveat(notes: list[Coded], note: Coded) -> None:
+    """Record a statistical caveat in ``notes`` and as a Python warning (worded by ``words``)."""
+    from statmargin.words.sentences import say
+
+    notes.append(note)
+    warnings.warn(say(note), stacklevel=3)
 
 
 def labels_pair(labels: Iterable[str]) -> tuple[str, str]:
@@ -432,7 +425,7 @@ def median_pairwise_difference(a: np.ndarray, b: np.ndarray, *, work_limit: int 
     b_descending = b_sorted[::-1]
     total = a_sorted.size * b_sorted.size
     if total == 0:
-        raise NotEnoughDataError("A Hodges-Lehmann shift needs at least one value in each group.")
+        raise NotEnoughDataError(coded(Skip.NO_VALUES_FOR_SHIFT))
     limit = _work_limit(work_limit, a_sorted.size + b_sorted.size)
     if total % 2:
         return kth_pairwise_difference(a_sorted, b_sorted, total // 2, work_limit=limit)
@@ -539,7 +532,7 @@ def median_walsh_average(x: np.ndarray, *, work_limit: int | None = None) -> flo
     n = x_sorted.size
     total = n * (n + 1) // 2
     if total == 0:
-        raise NotEnoughDataError("A pseudo-median needs at least one value.")
+        raise NotEnoughDataError(coded(Skip.NO_VALUES_FOR_PSEUDO_MEDIAN))
     limit = _work_limit(work_limit, n)
     if total % 2:
         return kth_walsh_average(x_sorted, total // 2, work_limit=limit)

@@ -21,6 +21,7 @@ from statmargin.plan.model import Settings
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats._common import caveat, check_confidence
 from statmargin.vocabulary import Alternative, Design, EffectKind, EstimateKind, PMethod, Test
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
 _DEFAULTS = Settings()
 DEFAULT_SEED = _DEFAULTS.seed
@@ -79,23 +80,6 @@ def _monte_carlo_p(simulated: np.ndarray, observed: float, resamples: int) -> tu
     """
     p_value = (1 + int((simulated >= _ALMOST_ONE * observed).sum())) / (resamples + 1)
     return p_value, _mc_se(p_value, resamples)
-
-
-def _monte_carlo_sentence(
-    n_small: int, n_counts: int, small: bool, resamples: int, se: float, simulated: str = ""
-) -> str:
-    """The note saying the p-value was simulated, and why when expected counts are small."""
-    reason = (
-        f"{n_small} of {n_counts} expected counts are below 5, so the chi-square "
-        "approximation may be poor; "
-        if small
-        else ""
-    )
-    sentence = (
-        f"{reason}the p-value comes from {resamples} Monte Carlo resamples{simulated} "
-        f"(Monte Carlo standard error {se:.2g})."
-    )
-    return sentence[0].upper() + sentence[1:]
 
 
 # --------------------------------------------------------------------------- intervals
@@ -375,22 +359,15 @@ def _count_table(table: Any, row_labels: Sequence[str], col_labels: Sequence[str
         )
     counts = np.array([[_as_count(v, "A table cell") for v in row] for row in arr], dtype=np.int64)
     if counts.shape[0] < 2 or counts.shape[1] < 2:
-        raise NotEnoughDataError(
-            "Only one category was found on one side of the table; a test of "
-            "association needs at least two on each side."
-        )
+        raise NotEnoughDataError(coded(Skip.ONE_CATEGORY_SIDE))
     if counts.sum() == 0:
-        raise NotEnoughDataError("The table has no counts (n = 0); there is nothing to test.")
+        raise NotEnoughDataError(coded(Skip.EMPTY_TABLE))
     for i, label in enumerate(row_labels):
         if counts[i].sum() == 0:
-            raise NotEnoughDataError(
-                f"Row '{label}' has no counts; remove the empty category and run again."
-            )
+            raise NotEnoughDataError(coded(Skip.EMPTY_ROW, label=label))
     for j, label in enumerate(col_labels):
         if counts[:, j].sum() == 0:
-            raise NotEnoughDataError(
-                f"Column '{label}' has no counts; remove the empty category and run again."
-            )
+            raise NotEnoughDataError(coded(Skip.EMPTY_COLUMN, label=label))
     return counts
 
 
@@ -538,9 +515,7 @@ def chi_square_goodness_of_fit(
             f"Category '{missing[0]}' has counts but no expected share; give a share for every category."
         )
     if len(labels) < 2:
-        raise NotEnoughDataError(
-            "Only one category was given; a goodness-of-fit test needs at least two."
-        )
+        raise NotEnoughDataError(coded(Skip.ONE_CATEGORY_GIVEN))
     by_label = {str(k): v for k, v in counts.items()}
     observed = np.array(
         [_as_count(by_label.get(lab, 0), f"The count of '{lab}'") for lab in labels], dtype=float
@@ -555,12 +530,12 @@ def chi_square_goodness_of_fit(
     expected_share = expected_share / expected_share.sum()
     n = int(observed.sum())
     if n == 0:
-        raise NotEnoughDataError("There are no counts (n = 0); there is nothing to test.")
+        raise NotEnoughDataError(coded(Skip.EMPTY_TABLE))
 
     expected = n * expected_share
     x2 = float(_pearson_x2(observed, expected))
     df = len(labels) - 1
-    notes: list[str] = []
+    notes: list[Coded] = []
     extra: dict[str, Any] = {
         "categories": labels,
         "observed": observed.astype(int).tolist(),
@@ -580,7 +555,8 @@ def chi_square_goodness_of_fit(
         extra.update(monte_carlo_resamples=monte_carlo_resamples, monte_carlo_se=se, seed=seed)
         caveat(
             notes,
-            _monte_carlo_sentence(n_small, len(labels), n_small > 0, monte_carlo_resamples, se),
+            coded(Note.MONTE_CARLO_P, n_small=n_small, n_cells=len(labels), small=n_small > 0,
+                  resamples=monte_carlo_resamples, se=se, margins=False),
         )
     else:
         p_value = float(stats.chi2.sf(x2, df))
@@ -717,7 +693,7 @@ def binomial_exact(
     n = _as_count(n, "The number of observations")
     successes = _as_count(successes, f"The count of '{label}'")
     if n == 0:
-        raise NotEnoughDataError("There are no observations (n = 0); there is nothing to test.")
+        raise NotEnoughDataError(coded(Skip.NO_OBSERVATIONS))
     if successes > n:
         raise OptionError(
             f"The count of '{label}' ({successes}) is larger than the total ({n}); check the counts."
@@ -877,7 +853,7 @@ def chi_square_independence(
     n_cells = nrow * ncol
     n_small = int((expected < SMALL_EXPECTED).sum())
     small = n_small / n_cells > MAX_SHARE_SMALL or expected.min() < TINY_EXPECTED
-    notes: list[str] = []
+    notes: list[Coded] = []
     extra: dict[str, Any] = {
         "observed": _labelled(counts, row_labels, col_labels),
         "expected": _labelled(expected, row_labels, col_labels),
@@ -898,9 +874,8 @@ def chi_square_independence(
         extra.update(monte_carlo_resamples=resamples, monte_carlo_se=se, seed=seed)
         caveat(
             notes,
-            _monte_carlo_sentence(
-                n_small, n_cells, small, resamples, se, " of tables with the same row and column totals"
-            ),
+            coded(Note.MONTE_CARLO_P, n_small=n_small, n_cells=n_cells, small=small,
+                  resamples=resamples, se=se, margins=True),
         )
     else:
         p_value = float(stats.chi2.sf(x2, df))
@@ -908,15 +883,10 @@ def chi_square_independence(
             PMethod.NORMAL_APPROXIMATION_CONTINUITY if extra["continuity_correction"] else PMethod.ASYMPTOTIC
         )
         if small:
-            advice = (
-                "Fisher's exact test is the better choice for this table."
-                if is_2x2
-                else "treat the p-value with caution."
-            )
             caveat(
                 notes,
-                f"{n_small} of {n_cells} expected counts are below 5 (smallest "
-                f"{expected.min():.2g}), so the chi-square approximation may be poor; {advice}",
+                coded(Note.EXPECTED_BELOW_5, n_small=n_small, n_cells=n_cells,
+                      smallest=float(expected.min()), two_by_two=is_2x2),
             )
 
     min_dim = min(nrow, ncol) - 1
@@ -1163,17 +1133,15 @@ def mcnemar(
     counts = np.array([[_as_count(v, "A table cell") for v in row] for row in arr], dtype=np.int64)
     n = int(counts.sum())
     if n == 0:
-        raise NotEnoughDataError("There are no complete pairs (n = 0); there is nothing to test.")
+        raise NotEnoughDataError(coded(Skip.NO_COMPLETE_PAIRS))
     b, c = int(counts[0, 1]), int(counts[1, 0])
     discordant = b + c
     if discordant == 0:
-        raise NotEnoughDataError(
-            "No pair changed between the two measurements (no discordant pairs), so McNemar's test cannot be run."
-        )
+        raise NotEnoughDataError(coded(Skip.NO_DISCORDANT_PAIRS))
     use_exact = (discordant < MCNEMAR_EXACT_BELOW) if exact == "auto" else bool(exact)
     if alt != "two-sided":
         use_exact = True
-    notes: list[str] = []
+    notes: list[Coded] = []
     binom = stats.binomtest(b, discordant, p=0.5, alternative=alt)
     if use_exact:
         statistic_name, statistic, df = "discordant pairs b", float(b), None
@@ -1195,11 +1163,7 @@ def mcnemar(
 
     ratio = None if c == 0 else b / c
     if c == 0:
-        caveat(
-            notes,
-            f"All {b} discordant pairs changed the same way, so the odds ratio of "
-            "discordant pairs has no finite value.",
-        )
+        caveat(notes, coded(Note.ONE_WAY_DISCORDANT, n=Count(b)))
     first, second = int(counts[0].sum()) / n, int(counts[:, 0].sum()) / n
     return Result(
         outcome="",

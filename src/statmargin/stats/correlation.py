@@ -11,15 +11,14 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
 
 def _pairs(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray, int]:
     """Complete pairs; at least three, and both variables must vary."""
     a, b, dropped = common.clean_pairs(x, y, "the two measurements")
     if a.size < 3:
-        raise common.NotEnoughDataError(
-            f"Only {a.size} complete pair(s) of values; a correlation needs at least 3."
-        )
+        raise common.NotEnoughDataError(coded(Skip.TOO_FEW_PAIRS, n=Count(a.size), minimum=3))
     common.require_spread(a, "the first measurement")
     common.require_spread(b, "the second measurement")
     return a, b, dropped
@@ -114,10 +113,10 @@ def pearson_r(
     r = _pearson_coefficient(a, b)
     df = n - 2
     t = _t_of_r(r, df)
-    notes: list[str] = []
+    notes: list[Coded] = []
     low, high = _fisher_interval(r, n, alternative, confidence, notes)
     if abs(r) == 1.0:
-        notes.append("The points lie exactly on a straight line; the correlation is perfect.")
+        notes.append(coded(Note.PERFECT_LINE))
     return Result(
         outcome="",
         exposure=None,
@@ -141,11 +140,11 @@ def pearson_r(
 
 
 def _fisher_interval(
-    r: float, n: int, alternative: str, confidence: float, notes: list[str], se: float | None = None
+    r: float, n: int, alternative: str, confidence: float, notes: list[Coded], se: float | None = None
 ) -> tuple[float | None, float | None]:
     """Fisher-z interval; None when n < 4 leaves no degrees of freedom for it."""
     if n < 4:
-        notes.append("With fewer than 4 pairs no confidence interval for the correlation can be given.")
+        notes.append(coded(Note.NO_CI_FEW_PAIRS))
         return None, None
     return effects.fisher_z_interval(r, se if se is not None else 1.0 / math.sqrt(n - 3), alternative, confidence)
 
@@ -207,7 +206,7 @@ def spearman_rho(
     s = total * (1.0 - rho)
     df = n - 2
     t = _t_of_r(rho, df)
-    notes: list[str] = []
+    notes: list[Coded] = []
     se = math.sqrt((1.0 + rho * rho / 2.0) / (n - 3)) if n >= 4 else None
     low, high = _fisher_interval(rho, n, alternative, confidence, notes, se)
     return Result(

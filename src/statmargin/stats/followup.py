@@ -29,6 +29,7 @@ from statmargin.stats._common import (
 from statmargin.stats.adjust import adjust_p
 from statmargin.stats.categorical import _count_table
 from statmargin.vocabulary import AdjustMethod, EstimateKind, PMethod, Test
+from statmargin.vocabulary.codes import Count, Skip, coded
 
 DEFAULT_ALPHA = 0.05  # level for flags (common practice), as Settings.alpha
 RESIDUAL_FLAG = 2.0  # |adjusted residual| above this is flagged (Agresti, common practice)
@@ -41,14 +42,11 @@ def _clean_groups(groups: Mapping[str, Any], minimum: int = 2) -> list[tuple[str
         kept, _ = clean(values, f"group '{label}'")
         if kept.size < minimum:
             raise NotEnoughDataError(
-                f"Group '{label}' has {kept.size} usable value(s); pairwise comparisons need "
-                f"at least {minimum} per group, so merge or drop that group."
+                coded(Skip.PAIRWISE_TOO_FEW, label=str(label), n=Count(kept.size), minimum=minimum)
             )
         cleaned.append((str(label), kept))
     if len(cleaned) < 2:
-        raise NotEnoughDataError(
-            "Pairwise comparisons need at least two groups; only one was given."
-        )
+        raise NotEnoughDataError(coded(Skip.PAIRWISE_ONE_GROUP))
     return cleaned
 
 
@@ -191,9 +189,7 @@ def tukey_hsd(
     means = {label: accurate_mean(v) for label, v in items}
     mse = sum(sum_of_squares(v, means[label]) for label, v in items) / df
     if mse <= 0.0:
-        raise NotEnoughDataError(
-            "Every group has no spread (all values equal within each group), so Tukey's comparisons cannot be made."
-        )
+        raise NotEnoughDataError(coded(Skip.NO_WITHIN_SPREAD))
     q_crit = float(stats.studentized_range.ppf(confidence, k, df))
     out = []
     for (a, xa), (b, xb) in _pairs(items):
@@ -277,9 +273,7 @@ def games_howell(
         wa, wb = var_a / n_a, var_b / n_b
         se = math.sqrt(wa + wb)
         if se == 0.0:
-            raise NotEnoughDataError(
-                f"Groups '{a}' and '{b}' both have no spread (all values equal), so they cannot be compared this way."
-            )
+            raise NotEnoughDataError(coded(Skip.PAIR_NO_SPREAD, first=a, second=b))
         df = (wa + wb) ** 2 / (wa**2 / (n_a - 1) + wb**2 / (n_b - 1))
         diff = mean_a - mean_b
         t = diff / se
@@ -380,9 +374,7 @@ def dunn(
     tie_term = float(np.sum(ties**3 - ties)) / (12.0 * (n_total - 1))
     variance = n_total * (n_total + 1) / 12.0 - tie_term
     if variance <= 0.0:
-        raise NotEnoughDataError(
-            "Every value is the same in all groups, so there are no rank differences to compare."
-        )
+        raise NotEnoughDataError(coded(Skip.ALL_RANKS_EQUAL))
     mean_rank, size, start = {}, {}, 0
     for label, values in items:
         mean_rank[label] = float(ranks[start : start + values.size].mean())

@@ -17,20 +17,18 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
+from statmargin.vocabulary.codes import Coded, Note, Skip, coded
 
 BOOTSTRAP_RESAMPLES = 2000
 BOOTSTRAP_SEED = 20240917  # fixed so the same data always give the same interval
 
 
-def _prepare(groups: Mapping[str, Any], alternative: str, confidence: float) -> tuple[dict[str, np.ndarray], int, list[str]]:
+def _prepare(groups: Mapping[str, Any], alternative: str, confidence: float) -> tuple[dict[str, np.ndarray], int, list[Coded]]:
     """Clean every group, require two values each, at least two groups and some spread."""
     common.check_options(alternative, confidence)
-    notes: list[str] = []
+    notes: list[Coded] = []
     if alternative != "two-sided":
-        notes.append(
-            "A comparison of three or more groups has no direction, so the test is two-sided "
-            f"whatever was asked ('{alternative}')."
-        )
+        notes.append(coded(Note.MULTIGROUP_TWO_SIDED, alternative=alternative))
     cleaned: dict[str, np.ndarray] = {}
     dropped = 0
     for label, values in groups.items():
@@ -39,9 +37,7 @@ def _prepare(groups: Mapping[str, Any], alternative: str, confidence: float) -> 
         cleaned[str(label)] = kept
         dropped += lost
     if len(cleaned) < 2:
-        raise common.NotEnoughDataError(
-            f"Only {len(cleaned)} group(s) have data; at least two groups are needed to compare."
-        )
+        raise common.NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
     common.require_spread(np.concatenate(list(cleaned.values())), "the outcome in every group")
     return cleaned, dropped, notes
 
@@ -193,9 +189,7 @@ def one_way_anova(
     n_total = sum(values.size for values in cleaned.values())
     df1, df2 = k - 1, n_total - k
     if within == 0.0:
-        raise common.NotEnoughDataError(
-            "Every group has a single repeated value, so there is no spread within groups to test against."
-        )
+        raise common.NotEnoughDataError(coded(Skip.NO_SPREAD_WITHIN_GROUPS))
     ms_between, ms_within = between / df1, within / df2
     f = ms_between / ms_within
     effect, omega = _share_of_variance(between, within, k, n_total, confidence)
@@ -282,8 +276,7 @@ def welch_anova(
     for summary in summaries:
         if summary["sd"] == 0.0:
             raise common.NotEnoughDataError(
-                f"Every value in group {summary['label']} is the same ({common.format_number(summary['mean'])}), "
-                "so Welch's ANOVA cannot weight it; use the classic ANOVA or check the data."
+                coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"])
             )
     k = len(summaries)
     n = np.array([s["n"] for s in summaries], dtype=float)
@@ -297,10 +290,7 @@ def welch_anova(
     between, within, _ = sums_of_squares(cleaned)
     n_total = int(n.sum())
     effect, omega = _share_of_variance(between, within, k, n_total, confidence)
-    notes.append(
-        "The effect size and its interval come from the classic sums of squares; they describe the share of "
-        "variation between groups and do not use Welch's weighting."
-    )
+    notes.append(coded(Note.WELCH_EFFECT_CLASSIC))
     return Result(
         outcome="",
         exposure=None,
@@ -442,10 +432,7 @@ def kruskal_wallis(
     h = kruskal_wallis_h(arrays)
     df = len(arrays) - 1
     if min(values.size for values in arrays) < 5:
-        common.caveat(
-            notes,
-            "At least one group has fewer than 5 values, so the chi-square p-value of Kruskal-Wallis is only a rough guide.",
-        )
+        common.caveat(notes, coded(Note.KRUSKAL_SMALL_GROUPS))
     low, high = _epsilon_bootstrap(arrays, n_total, confidence)
     summaries = [common.describe(label, values) for label, values in cleaned.items()]
     return Result(

@@ -16,6 +16,7 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
 EXACT_LIMIT = 50  # exact null distribution below this many non-zero differences (R's rule)
 
@@ -322,27 +323,18 @@ def signed_rank_result(
     nonzero = shifted[shifted != 0]
     n_zero = int(shifted.size - nonzero.size)
     if nonzero.size == 0:
-        raise common.NotEnoughDataError(
-            f"Every value of {what} equals {common.format_number(mu)}, so there is no difference to test."
-        )
+        raise common.NotEnoughDataError(coded(Skip.ALL_EQUAL_TARGET, what=what, value=float(mu)))
     n = nonzero.size
     ranks = stats.rankdata(np.abs(nonzero))
     v_plus = float(ranks[nonzero > 0].sum())
     ties = common.has_ties(ranks)
-    notes: list[str] = []
+    notes: list[Coded] = []
     can_be_exact = n < EXACT_LIMIT and not ties and n_zero == 0
     use_exact = can_be_exact and exact in ("auto", True)
     if exact is True and not can_be_exact:
-        common.caveat(
-            notes,
-            "An exact p-value was asked for, but ties or zero differences (or 50 or more values) rule it out; "
-            "the normal approximation was used instead.",
-        )
+        common.caveat(notes, coded(Note.EXACT_RULED_OUT, one_sample=True))
     if n_zero:
-        notes.append(
-            f"{n_zero} value(s) equal to {common.format_number(mu)} were left out of the ranking and of the "
-            "pseudo-median, as the test requires."
-        )
+        notes.append(coded(Note.ZEROS_DROPPED, n=Count(n_zero), value=float(mu)))
     # R's convention: the estimate and interval use the values left after dropping zeros.
     kept = nonzero + mu
     if use_exact:  # fewer than 50 values: listing the n (n + 1) / 2 Walsh averages is cheap
@@ -351,7 +343,7 @@ def signed_rank_result(
         p_value = _signed_rank_exact_p(v_plus, n, alternative)
         p_method = PMethod.EXACT
         low, high = order_statistic_interval(walsh, signed_rank_counts(n), 2**n, alternative, confidence)
-        notes.append("The p-value is exact (no ties, fewer than 50 values).")
+        notes.append(coded(Note.EXACT_P, per_group=False))
     else:  # possibly many values: select the median Walsh average without listing them all
         centre = common.median_walsh_average(kept)
         z = _signed_rank_z(nonzero, alternative, correct)
@@ -558,7 +550,7 @@ def _signed_rank_z(shifted_nonzero: np.ndarray, alternative: str, correct: bool)
 
 
 def _signed_rank_approx_interval(
-    values: np.ndarray, alternative: str, confidence: float, correct: bool, notes: list[str]
+    values: np.ndarray, alternative: str, confidence: float, correct: bool, notes: list[Coded]
 ) -> tuple[float, float]:
     """Interval from inverting the approximate signed-rank statistic in the centre d.
 
@@ -579,11 +571,7 @@ def _signed_rank_approx_interval(
     q_lower, q_upper = common.z_quantiles(alternative, confidence)
     reachable = (q_lower is None or at_low >= q_lower) and (q_upper is None or at_high <= q_upper)
     if not reachable:
-        common.caveat(
-            notes,
-            f"With so few values the {confidence:.0%} interval for the pseudo-median cannot be reached; "
-            "the range of the data is shown instead.",
-        )
+        common.caveat(notes, coded(Note.CI_NOT_REACHABLE, confidence=confidence))
         return low_end, high_end
 
     def root(q: float) -> float:

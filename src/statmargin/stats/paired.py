@@ -11,6 +11,7 @@ from statmargin.results import Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats.onesample import mean_t, signed_rank_result
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
+from statmargin.vocabulary.codes import Count, Skip, coded
 
 
 def _differences(
@@ -21,13 +22,11 @@ def _differences(
     a, b, dropped = common.clean_pairs(x1, x2, "the paired measurements")
     if a.size < minimum:
         raise common.NotEnoughDataError(
-            f"Only {a.size} complete pair(s) of {first} and {second}; at least {minimum} are needed."
+            coded(Skip.TOO_FEW_PAIRS, n=Count(a.size), minimum=minimum, first=first, second=second)
         )
     differences = a - b
     if np.all(differences == 0):
-        raise common.NotEnoughDataError(
-            f"Every {first} value equals its {second} value, so there is no difference to test."
-        )
+        raise common.NotEnoughDataError(coded(Skip.ALL_DIFFERENCES_ZERO, first=first, second=second))
     return a, b, differences, dropped, first, second
 
 

@@ -15,6 +15,7 @@ from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.stats.onesample import EXACT_LIMIT, exact_p_from_counts, order_statistic_interval
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
+from statmargin.vocabulary.codes import Coded, Note, Skip, coded
 
 
 def _two_groups(x: np.ndarray, y: np.ndarray, labels: tuple[str, str]) -> tuple[np.ndarray, np.ndarray, int, str, str]:
@@ -155,8 +156,8 @@ def _t_test(
     pooled_var = ((n1 - 1) * va + (n2 - 1) * vb) / (n1 + n2 - 2)
     if pooled_var == 0.0:
         raise common.NotEnoughDataError(
-            f"Each group holds a single repeated value ({first}: {common.format_number(ga['mean'])}, "
-            f"{second}: {common.format_number(gb['mean'])}), so there is no spread within groups to test against."
+            coded(Skip.SINGLE_VALUE_GROUPS, first=first, first_value=ga["mean"], second=second,
+                  second_value=gb["mean"])
         )
     pooled_t = difference / math.sqrt(pooled_var * (1.0 / n1 + 1.0 / n2))
     if equal_variances:
@@ -283,22 +284,18 @@ def mann_whitney_u(
     ranks = stats.rankdata(np.concatenate([a, b]))
     u_first = float(ranks[:n1].sum() - n1 * (n1 + 1) / 2.0)
     ties = common.has_ties(ranks)
-    notes: list[str] = []
+    notes: list[Coded] = []
     can_be_exact = n1 < EXACT_LIMIT and n2 < EXACT_LIMIT and not ties
     use_exact = can_be_exact and exact in ("auto", True)
     if exact is True and not can_be_exact:
-        common.caveat(
-            notes,
-            "An exact p-value was asked for, but ties (or 50 or more values in a group) rule it out; "
-            "the normal approximation was used instead.",
-        )
+        common.caveat(notes, coded(Note.EXACT_RULED_OUT, one_sample=False))
     if use_exact:  # fewer than 50 per group: listing the n1 * n2 differences is cheap
         differences = np.sort(np.subtract.outer(a, b).ravel())
         shift = float(np.median(differences))
         p_value = _rank_sum_exact_p(u_first, n1, n2, alternative)
         p_method = PMethod.EXACT
         low, high = _rank_sum_exact_interval(differences, n1, n2, alternative, confidence)
-        notes.append("The p-value is exact (no ties, fewer than 50 values per group).")
+        notes.append(coded(Note.EXACT_P, per_group=True))
     else:  # possibly large groups: select the median difference without listing them all
         shift = common.median_pairwise_difference(a, b)
         p_value = common.p_from_z(_rank_sum_z(a, b, alternative, correct), alternative)

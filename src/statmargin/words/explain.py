@@ -22,7 +22,9 @@ from typing import Any, TypeGuard
 from ..plan.model import Settings
 from ..results import Estimate, Followup, Result
 from ..vocabulary import AdjustMethod, Design, EstimateKind, PMethod, Test
+from ..vocabulary.codes import Note
 from .magnitude import NEGLIGIBLE, Magnitude, effect_kind, magnitude
+from .sentences import say
 
 # Human names of the tests (published methods keep their published names).
 TEST_NAMES: dict[str, str] = {
@@ -742,7 +744,7 @@ def reading(
     """
     if result.skipped:
         return (
-            f'No test was run for the question "{question(result)}": {result.skipped.rstrip(".")}.'
+            f'No test was run for the question "{question(result)}": {say(result.skipped).rstrip(".")}.'
         )
     hidden = result.extra.get("suppressed", ()) if isinstance(result.extra, Mapping) else ()
     if "p_value" in hidden:
@@ -863,10 +865,12 @@ def cautions(
         elif p >= settings.alpha and mag.word in ("medium", "large"):
             out.append(UNDERPOWERED_LINE.format(word=mag.word, source=mag.convention.source))
     said_expected = any(line.startswith("Some expected counts are below 5") for line in out)
-    for note in result.notes:
+    for item in result.notes:
         # A method's own note on small expected counts repeats the line above (the
         # technical note keeps its details).
-        if note and note not in out and not (said_expected and "expected count" in note):
+        note = say(item)
+        repeats = said_expected and item.code in (Note.EXPECTED_BELOW_5, Note.MONTE_CARLO_P)
+        if note not in out and not repeats:
             out.append(note)
     out.append(REVIEW_LINE)
     return out
@@ -1163,13 +1167,13 @@ def technical_lines(
     name = TEST_NAMES.get(result.test or "", result.test or "no test")
     parts: list[str] = []
     if result.skipped:
-        parts.append(f"{name} was not run: {result.skipped.rstrip('.')}.")
+        parts.append(f"{name} was not run: {say(result.skipped).rstrip('.')}.")
     else:
         parts.append(
             f"{name} ({result.alternative}), {count_text(result.n, context)} records used."
         )
     if result.reasons:
-        parts.append("Chosen because: " + "; ".join(r.rstrip(".") for r in result.reasons) + ".")
+        parts.append("Chosen because: " + "; ".join(say(r).rstrip(".") for r in result.reasons) + ".")
     if _finite(result.statistic):
         df = _fmt_df(result.df)
         df_part = f" on {df} df" if df else ""
@@ -1205,6 +1209,5 @@ def technical_lines(
     if smallest is not None and _share_floor(context) is None:  # it reveals margins
         parts.append(f"Smallest expected count {fmt_number(smallest, decimals_for(smallest))}.")
     for note in result.notes:
-        if note:
-            parts.append(note.rstrip(".") + ".")
+        parts.append(say(note).rstrip(".") + ".")
     return parts

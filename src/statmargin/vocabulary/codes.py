@@ -1,0 +1,134 @@
+"""Codes with facts: what the methods and designs report instead of sentences.
+
+A method or design never writes a sentence. It reports a code with its facts
+(numbers, labels, column names), and ``statmargin.words.sentences`` turns the
+code into words. Sharing mode can then hide small counts in the facts before any
+wording exists: every fact that is a record count is a ``Count``.
+
+Four families:
+
+- ``Skip``: why no test could be run (a skipped analysis carries one).
+- ``Note``: a statistical caveat raised while computing (ties, approximations,
+  small expected counts); methods also raise it as a Python warning.
+- ``Reason``: why the test was chosen.
+- ``Caution``: a caution about how to read a result (design-specific ones
+  included); the explain step adds the run-wide ones.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from typing import Any
+
+from .base import Word
+
+
+class Count(int):
+    """A record count among a code's facts; sharing mode hides it when it is small."""
+
+    __slots__ = ()
+
+
+class Skip(Word):
+    """Why no test could be run."""
+
+    NOT_NUMBERS = "not_numbers"  # what
+    LENGTH_MISMATCH = "length_mismatch"  # what, first, second
+    TOO_FEW_VALUES = "too_few_values"  # what, n, minimum
+    NO_SPREAD = "no_spread"  # what, value
+    NO_VALUES_FOR_SHIFT = "no_values_for_shift"
+    NO_VALUES_FOR_PSEUDO_MEDIAN = "no_values_for_pseudo_median"
+    ONE_CATEGORY_SIDE = "one_category_side"
+    EMPTY_TABLE = "empty_table"
+    EMPTY_ROW = "empty_row"  # label
+    EMPTY_COLUMN = "empty_column"  # label
+    ONE_CATEGORY_GIVEN = "one_category_given"
+    NO_OBSERVATIONS = "no_observations"
+    NO_COMPLETE_PAIRS = "no_complete_pairs"  # outcome (optional)
+    NO_DISCORDANT_PAIRS = "no_discordant_pairs"
+    TOO_FEW_PAIRS = "too_few_pairs"  # n, minimum, first, second (optional)
+    PAIRWISE_TOO_FEW = "pairwise_too_few"  # label, n, minimum
+    PAIRWISE_ONE_GROUP = "pairwise_one_group"
+    NO_WITHIN_SPREAD = "no_within_spread"
+    PAIR_NO_SPREAD = "pair_no_spread"  # first, second
+    ALL_RANKS_EQUAL = "all_ranks_equal"
+    TOO_FEW_GROUPS = "too_few_groups"  # n
+    GROUP_CONSTANT_WELCH = "group_constant_welch"  # label, value
+    ALL_EQUAL_TARGET = "all_equal_target"  # what, value
+    ALL_DIFFERENCES_ZERO = "all_differences_zero"  # first, second
+    SINGLE_VALUE_GROUPS = "single_value_groups"  # first, first_value, second, second_value
+    NO_SPREAD_WITHIN_GROUPS = "no_spread_within_groups"
+    CONSTANT_COLUMN = "constant_column"  # name, value
+    NO_USABLE_VALUES = "no_usable_values"  # name
+    NO_ROWS_WITH_BOTH = "no_rows_with_both"  # outcome, by
+    ONE_LEVEL = "one_level"  # column, level (optional)
+    FEWER_THAN_TWO_GROUPS = "fewer_than_two_groups"  # by, level (optional)
+    TOO_MANY_CONDITIONS = "too_many_conditions"  # by, n, key
+    NEED_TWO_CONDITIONS = "need_two_conditions"  # by, outcome, key
+    DUPLICATE_KEYS = "duplicate_keys"  # key, by, keys
+    PAIRED_NOT_TWO_LEVELS = "paired_not_two_levels"  # outcome, n
+    NO_P_VALUE = "no_p_value"
+
+
+class Note(Word):
+    """A statistical caveat raised while computing a result."""
+
+    EXACT_P = "exact_p"  # per_group: bool
+    NORMAL_APPROXIMATION = "normal_approximation"  # continuity: bool
+    EXACT_RULED_OUT = "exact_ruled_out"  # zeros: bool (one sample) / per group
+    ZEROS_DROPPED = "zeros_dropped"  # n, value
+    MONTE_CARLO_P = "monte_carlo_p"  # n_small, n_cells, small, resamples, se, margins
+    EXPECTED_BELOW_5 = "expected_below_5"  # n_small, n_cells, smallest, advice
+    ONE_WAY_DISCORDANT = "one_way_discordant"  # n
+    PERFECT_LINE = "perfect_line"
+    NO_CI_FEW_PAIRS = "no_ci_few_pairs"
+    MULTIGROUP_TWO_SIDED = "multigroup_two_sided"  # alternative
+    WELCH_EFFECT_CLASSIC = "welch_effect_classic"
+    KRUSKAL_SMALL_GROUPS = "kruskal_small_groups"
+    CI_NOT_REACHABLE = "ci_not_reachable"  # confidence
+    ASSUMED_NORMAL_DESPITE_SHAPE = "assumed_normal_despite_shape"  # shape (a Coded of Reason.SHAPE_*)
+    INCOMPLETE_PAIRS = "incomplete_pairs"  # n, key, outcome, first, second
+    SHARE_HIDDEN = "share_hidden"  # floor
+
+
+class Reason(Word):
+    """Why the test was chosen (or why a follow-up was run)."""
+
+    ONE_SHARE_BINOMIAL = "one_share_binomial"  # outcome
+    SMALL_EXPECTED_BINOMIAL = "small_expected_binomial"  # smallest
+    GOODNESS_OF_FIT = "goodness_of_fit"  # outcome
+    SMALL_EXPECTED_FISHER = "small_expected_fisher"  # smallest
+    CHI_SQUARE_INDEPENDENCE = "chi_square_independence"  # outcome, by
+    MCNEMAR_PAIRED = "mcnemar_paired"  # outcome
+    ORDINAL_RANK = "ordinal_rank"  # column
+    USER_RANK = "user_rank"  # outcome
+    USER_NORMAL = "user_normal"  # outcome
+    SHAPE_RANK = "shape_rank"  # shape facts (see words.sentences.shape_phrase)
+    SHAPE_NORMAL = "shape_normal"  # shape facts
+    WELCH_DEFAULT = "welch_default"
+    SPREAD_DIFFERS = "spread_differs"  # outcome, by, p
+    SPREAD_SIMILAR = "spread_similar"  # outcome, by, p
+    SPREAD_UNCHECKED = "spread_unchecked"  # outcome, by
+    CATEGORY_BY_NUMBER = "category_by_number"  # outcome, by
+    FOLLOWUP_PAIRS = "followup_pairs"  # alpha, test
+    FOLLOWUP_RESIDUALS = "followup_residuals"  # threshold
+
+
+class Caution(Word):
+    """A caution about reading one result."""
+
+    SHARE_HIDDEN = "share_hidden"  # floor
+
+
+@dataclass(frozen=True)
+class Coded:
+    """A code with the facts its sentence needs (numbers, labels, column names)."""
+
+    code: Skip | Note | Reason | Caution
+    facts: Mapping[str, Any] = field(default_factory=dict)
+
+
+def coded(code: Skip | Note | Reason | Caution, **facts: Any) -> Coded:
+    """A ``Coded`` from keyword facts: ``coded(Skip.NO_SPREAD, what="wait", value=3.0)``."""
+    return Coded(code, dict(facts))
