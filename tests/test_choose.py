@@ -1,4 +1,4 @@
-"""The decision table (statmargin.choose).
+"""The decision table: each design module's choice of test (statmargin.designs).
 
 The table itself is common practice with no single source; refinements are
 checked against the rules their sources state (Cochran 1954 for expected counts
@@ -10,15 +10,47 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from statmargin.designs.choose import DECISION_TABLE, choose_test
+from statmargin.designs import (
+    multi_group_continuous,
+    one_sample_categorical,
+    paired_categorical,
+    two_categorical,
+    two_group_continuous,
+)
+from statmargin.designs.continuous import choose_family
+from statmargin.designs.registry import REGISTRY, decision_table
 from statmargin.results import DESIGNS, TESTS
 from statmargin.stats.shape import SpreadCheck, assess
-from statmargin.vocabulary import MeasureType, ShapeHandling
+from statmargin.vocabulary import Design, MeasureType, ShapeHandling
 from statmargin.words.sentences import say
 
 RNG = np.random.default_rng(20261202)
 NORMALISH = {"a": RNG.normal(10, 2, 30), "b": RNG.normal(12, 2, 30), "c": RNG.normal(11, 2, 30)}
 SKEWED = {"a": RNG.lognormal(0, 1.2, 30), "b": RNG.lognormal(0.3, 1.2, 30), "c": RNG.lognormal(0, 1.2, 30)}
+
+
+DECISION_TABLE = decision_table()
+
+
+def choose_test(design, *, outcome, by=None, outcome_type=MeasureType.CONTINUOUS, by_type=None,
+                shape_handling=ShapeHandling.AUTO, shape=None, spread=None, min_expected=None,
+                table_shape=None, n_levels=None, single_share=False):
+    """Ask the design module of ``design`` for its choice, from the facts its data would give."""
+    design = Design(design)
+    if design is Design.ONE_SAMPLE_CATEGORICAL:
+        return one_sample_categorical.decide(outcome=outcome, n_levels=n_levels, single_share=single_share,
+                                             min_expected=min_expected)
+    if design is Design.TWO_CATEGORICAL:
+        return two_categorical.decide(outcome=outcome, by=by, table_shape=table_shape, min_expected=min_expected)
+    if design is Design.PAIRED_CATEGORICAL:
+        return paired_categorical.decide(outcome=outcome)
+    facts = dict(outcome=outcome, by=by, outcome_type=outcome_type, by_type=by_type, handling=shape_handling,
+                 shape=shape)
+    if design is Design.TWO_GROUP_CONTINUOUS:
+        return two_group_continuous.decide(**facts)
+    if design is Design.MULTI_GROUP_CONTINUOUS:
+        return multi_group_continuous.decide(**facts, spread=spread)
+    return choose_family(design, DECISION_TABLE[design], **facts)
 
 
 def shape_of(groups: dict, k: int):
@@ -142,7 +174,8 @@ def test_paired_categorical_is_mcnemar():
     assert choose_test("paired_categorical", outcome="a").test == "mcnemar"
 
 
-def test_unknown_design_is_refused():
-    """An unknown design is a programming error, not a silent default."""
-    with pytest.raises(ValueError):
-        choose_test("three_way", outcome="y")
+def test_every_design_has_one_module():
+    """Each design of the vocabulary is answered by exactly one registered design module."""
+    designs = [spec.design for spec in REGISTRY]
+    assert sorted(designs) == sorted(set(designs))
+    assert set(designs) == set(Design)

@@ -275,11 +275,11 @@ class TestDegenerateData:
         "kwargs,error,message",
         [
             ({"outcome": "nope", "by": "group"}, ColumnNotFoundError, "not a header"),
-            ({"outcome": "weight", "by": "group", "alternative": "up"}, OptionError, "Unknown alternative"),
+            ({"outcome": "weight", "by": "group", "alternative": "up"}, OptionError, "--alternative: 'up' is not known"),
             ({"outcome": "weight", "by": "group", "confidence": 95}, OptionError, "between 0 and 1"),
-            ({"outcome": "weight", "by": "group", "shape": "wild"}, OptionError, "Shape handling"),
+            ({"outcome": "weight", "by": "group", "shape": "wild"}, OptionError, "--shape: 'wild' is not known"),
             ({"outcome": "weight", "by": "group", "treat": ["group=nominal"]}, OptionError, "not known"),
-            ({"outcome": "weight", "paired_by": "group"}, OptionError, "--paired-by needs --by"),
+            ({"outcome": "weight", "paired_by": "group"}, OptionError, "--pairing-key needs --by"),
         ],
     )
     def test_bad_options(self, kwargs, error, message):
@@ -353,7 +353,7 @@ def test_p_values_in_range_and_adjusted_not_smaller(a, b, c, method):
 class TestTypeOptions:
     def test_parse_treat_with_order(self):
         """--treat style overrides parse types and ordinal label orders."""
-        from statmargin.designs.engine import parse_treat
+        from statmargin.options import parse_treat
         from statmargin.vocabulary import MeasureType
 
         got = parse_treat(["pain=ordinal:none,mild,severe", "site=categorical"])
@@ -391,7 +391,8 @@ def test_run_plan_reports_progress_after_each_analysis():
     """run_plan calls the progress callback with (done, total) once per analysis, in order."""
     import pandas as pd
 
-    from statmargin.designs.engine import build_plan, make_settings, run_plan
+    from statmargin.designs.engine import run_plan
+    from statmargin.options import build_plan, make_settings
     from statmargin.read.table import Table
 
     frame = pd.DataFrame(  # invented visits at two clinics

@@ -713,7 +713,7 @@ def test_technical_note_names_test_statistic_and_checks() -> None:
     lines = explain.technical_lines(result, SETTINGS)
     assert lines[:4] == [
         "One-way ANOVA (two-sided), 30 records used.",
-        "Chosen because: The spread of weight is similar across the groups of group (Brown-Forsythe p = 0.341), so the classic one-way ANOVA was used.",
+        "Chosen because: The spread of weight is similar across the groups of group (Brown-Forsythe p = 0.34), so the classic one-way ANOVA was used.",
         "F = 4.85 on 2 and 27 df.",
         "Unadjusted p = 0.016 (asymptotic).",
     ]

@@ -11,8 +11,9 @@ from __future__ import annotations
 import pandas as pd
 import pytest
 
-from statmargin.designs.engine import make_settings, run_analysis
+from statmargin.designs.engine import run_analysis
 from statmargin.errors import OptionError
+from statmargin.options import make_settings
 from statmargin.plan.expand import Analysis
 from statmargin.read.reader import first_data_sheet
 from statmargin.read.table import Table

@@ -14,7 +14,7 @@ import pytest
 import xlsxwriter
 
 from reference_cases import assert_close, load_case
-from statmargin.errors import ColumnNotFoundError, RoleError
+from statmargin.errors import ColumnNotFoundError, OptionError, RoleError
 from statmargin.io.file.source import FileSource
 from statmargin.jobs.workbook import plan_workbook, read_roles, run_workbook
 from statmargin.plan.roles_sheet import STATUS_MISSING, STATUS_NEW
@@ -138,7 +138,7 @@ class TestPlanKeepsChoices:
         with pytest.raises(ColumnNotFoundError, match="weight"):
             plan_workbook(path, outcome=["weigth"])
         assert path.read_bytes() == before
-        with pytest.raises(RoleError, match="--treat"):
+        with pytest.raises(OptionError, match="--treat"):
             plan_workbook(path, outcome=["weight"], treat={"weight": "numberish"})
         assert path.read_bytes() == before
 

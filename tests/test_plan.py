@@ -9,7 +9,8 @@ import pandas as pd
 import pytest
 
 from statmargin.errors import ColumnNotFoundError, OptionError, RoleError
-from statmargin.plan.expand import expand, parse_against
+from statmargin.options import parse_against
+from statmargin.plan.expand import expand
 from statmargin.plan.model import ColumnChoice, Plan
 from statmargin.plan.types import TypeInfo
 from statmargin.read.table import Table

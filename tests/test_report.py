@@ -174,7 +174,7 @@ def test_results_table_has_one_row_per_analysis_and_followup() -> None:
     assert model.cells[(anova_row, col["Test"])].value == "One-way ANOVA"
     assert (
         model.cells[(anova_row, col["Why this test"])].value
-        == "The spread of weight is similar across the groups of group (Brown-Forsythe p = 0.341), so the classic one-way ANOVA was used."
+        == "The spread of weight is similar across the groups of group (Brown-Forsythe p = 0.34), so the classic one-way ANOVA was used."
     )
     # R 4.2.2 oneway.test: F = 4.846087862380137, p = 0.015909958325622912 kept at full precision
     assert model.cells[(anova_row, col["Statistic value"])].value == 4.846087862380137

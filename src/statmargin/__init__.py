@@ -14,6 +14,7 @@ and the workbook jobs mirror ``statmargin plan`` and ``statmargin run``::
 from . import errors
 from ._version import __version__
 from .designs.engine import analyze
+from .jobs.question import test_workbook
 from .jobs.workbook import plan_workbook, run_workbook
 from .plan.model import Plan
 from .read.reader import read_table
@@ -33,4 +34,5 @@ __all__ = [
     "plan_workbook",
     "read_table",
     "run_workbook",
+    "test_workbook",
 ]

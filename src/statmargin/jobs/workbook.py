@@ -16,11 +16,12 @@ from typing import Any
 from .._version import __version__
 from ..errors import RoleError
 from ..io.protocol import WorkbookSink, WorkbookSource, WriteReport
+from ..options import parse_col_values, parse_treat
 from ..plan.model import ColumnChoice, Plan
 from ..plan.roles_sheet import KIND as ROLES_KIND
 from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
 from ..read.table import Table
-from ..vocabulary import MeasureType, Role, ShapeHandling
+from ..vocabulary import MeasureType, Role
 
 # Called as each step starts; during the analyses also with (done, total) so a
 # front end can draw a progress bar.
@@ -101,10 +102,9 @@ def plan_workbook(
     outcome: Iterable[str] = (),
     by: Iterable[str] = (),
     pairing_key: str | None = None,
-    treat: Mapping[str, str] | None = None,
-    against: Mapping[str, str] | None = None,
-    paired_with: Mapping[str, str] | None = None,
-    order: Mapping[str, list[str]] | None = None,
+    treat: Mapping[str, str] | Iterable[str] | None = None,
+    against: Mapping[str, str] | Iterable[str] | None = None,
+    paired_with: Mapping[str, str] | Iterable[str] | None = None,
     shape: Mapping[str, str] | None = None,
     out: str | Path | None = None,
     source: WorkbookSource | None = None,
@@ -119,8 +119,11 @@ def plan_workbook(
     sheet, header_row
         The data sheet and its header row (default: the roles sheet's settings, else
         the first sheet with data and its first non-empty row).
-    outcome, by, pairing_key, treat, against, paired_with, order, shape
-        Presets for unattended refreshes; they override what the sheet says.
+    outcome, by, pairing_key, treat, against, paired_with, shape
+        Presets for unattended refreshes; they override what the sheet says. ``treat``
+        takes ``COL=TYPE`` items (an ordinal type may list its labels,
+        ``pain=ordinal:none,mild,severe``); ``against`` ``COL=VALUE`` and
+        ``paired_with`` ``COL=COL2`` items, or mappings.
     out
         Write to this new file instead of ``path`` (which is then left untouched).
     """
@@ -139,8 +142,9 @@ def plan_workbook(
 
     choices = {c.name: c for c in plan.columns}
     _apply_presets(
-        choices, table, outcome=outcome, by=by, pairing_key=pairing_key, treat=treat,
-        against=against, paired_with=paired_with, order=order, shape=shape,
+        choices, table, outcome=outcome, by=by, pairing_key=pairing_key, treat=parse_treat(treat),
+        against=parse_col_values(against, "--against"), paired_with=parse_col_values(paired_with, "--paired-with"),
+        shape=shape,
     )
     facts = []
     for name, column in table.columns.items():
@@ -186,13 +190,13 @@ def _apply_presets(
     outcome: Iterable[str],
     by: Iterable[str],
     pairing_key: str | None,
-    treat: Mapping[str, str] | None,
-    against: Mapping[str, str] | None,
-    paired_with: Mapping[str, str] | None,
-    order: Mapping[str, list[str]] | None,
+    treat: Mapping[str, tuple[MeasureType, list[str] | None]],
+    against: Mapping[str, str],
+    paired_with: Mapping[str, str],
     shape: Mapping[str, str] | None,
 ) -> None:
     """Set roles given as options; every named column must exist (closest names suggested)."""
+    from ..options.columns import parse_shape
 
     def choice(name: str) -> ColumnChoice:
         table.column(name)  # raises ColumnNotFoundError with suggestions
@@ -204,25 +208,18 @@ def _apply_presets(
         choice(name).role = Role.COMPARE_BY
     if pairing_key:
         choice(pairing_key).role = Role.PAIRING_KEY
-    for name, word in (treat or {}).items():
-        choice(name).treat_as = _enum(MeasureType, word, f"--treat {name}")
+    for name, (kind, order) in treat.items():
+        column = choice(name)
+        column.treat_as = kind
+        if order:
+            column.order = list(order)
     for name, word in (shape or {}).items():
-        choice(name).shape = _enum(ShapeHandling, word, f"--shape {name}")
-    for name, value in (against or {}).items():
+        choice(name).shape = parse_shape(word)
+    for name, value in against.items():
         choice(name).against = str(value)
-    for name, other in (paired_with or {}).items():
+    for name, other in paired_with.items():
         table.column(other)
         choice(name).paired_with = other
-    for name, labels in (order or {}).items():
-        choice(name).order = list(labels)
-
-
-def _enum(enum, word: str, where: str):
-    try:
-        return enum(str(word).strip().lower())
-    except ValueError:
-        allowed = ", ".join(m.value for m in enum)
-        raise RoleError(f"{where}: {word!r} is not one of: {allowed}.") from None
 
 
 def run_workbook(

@@ -14,16 +14,26 @@ difference".
 
 from __future__ import annotations
 
-import math
 import re
 from collections.abc import Iterable, Mapping, Sequence
-from typing import Any, TypeGuard
+from typing import Any
 
 from ..plan.model import Settings
 from ..results import Estimate, Followup, Result
 from ..vocabulary import AdjustMethod, Design, EstimateKind, PMethod, Test
 from ..vocabulary.codes import Note
 from .magnitude import NEGLIGIBLE, Magnitude, effect_kind, magnitude
+from .numbers import (
+    ci_label,
+    decimals_for,
+    evidence_words,
+    fmt_ci,
+    fmt_df,
+    fmt_number,
+    fmt_p,
+    fmt_percent,
+    is_number,
+)
 from .sentences import say
 
 # Human names of the tests (published methods keep their published names).
@@ -142,76 +152,8 @@ SMALL_GROUP_LIMIT = 10
 SMALL_SAMPLE_LIMIT = 20
 UNEQUAL_RATIO = 2.0
 
-# Evidence words by p-value band: common practice, e.g. Bland M. An Introduction
-# to Medical Statistics, 4th ed. (2015), on interpreting p-values (recalled from memory).
-EVIDENCE_BANDS: tuple[tuple[float, str], ...] = (
-    (0.001, "very strong evidence"),
-    (0.01, "strong evidence"),
-    (0.05, "moderate evidence"),
-    (0.10, "weak evidence"),
-)
-
 _ONE_SAMPLE = (Design.ONE_SAMPLE_CONTINUOUS, Design.ONE_SAMPLE_CATEGORICAL)
 _PAIRED = (Design.PAIRED_CONTINUOUS, Design.PAIRED_CATEGORICAL)
-
-
-# ---------------------------------------------------------------- numbers as text
-
-
-def _finite(value: Any) -> TypeGuard[int | float]:
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
-
-
-def decimals_for(*values: float | None) -> int:
-    """Decimals that show the largest of ``values`` to three significant digits (0 to 6)."""
-    finite = [abs(float(v)) for v in values if _finite(v) and v != 0]
-    if not finite:
-        return 2
-    top = max(finite)
-    return int(min(6, max(0, 2 - math.floor(math.log10(top)))))
-
-
-def fmt_number(value: float | None, decimals: int | None = None) -> str:
-    """A number for a sentence: three significant digits, thousands separators, '-' for none."""
-    if not _finite(value):
-        return "not available"
-    if decimals is None:
-        decimals = decimals_for(value)
-    text = f"{float(value):,.{decimals}f}"
-    return "0" if text.strip("-0.,") == "" else text
-
-
-def fmt_p(p: float | None) -> str:
-    """'p < 0.001', 'p = 0.004' or 'p = 0.31' (two decimals from 0.1 up)."""
-    if not _finite(p):
-        return "p not available"
-    if p < 0.001:
-        return "p < 0.001"
-    if p < 0.1:
-        return f"p = {p:.3f}"
-    return f"p = {p:.2f}"
-
-
-def fmt_ci(low: float | None, high: float | None, decimals: int, *, scale: float = 1.0) -> str:
-    """'6 to 22' for an interval, or '' when either end is missing."""
-    if not (_finite(low) and _finite(high)):
-        return ""
-    return f"{fmt_number(low * scale, decimals)} to {fmt_number(high * scale, decimals)}"
-
-
-def ci_label(confidence: float) -> str:
-    """'95% CI' for a confidence level of 0.95."""
-    return f"{confidence * 100:g}% CI"
-
-
-def evidence_words(p: float | None) -> str:
-    """Words for the strength of evidence against 'no difference' at p-value ``p``."""
-    if not _finite(p):
-        return "no usable evidence"
-    for limit, words in EVIDENCE_BANDS:
-        if p < limit:
-            return words
-    return "little or no evidence"
 
 
 # ---------------------------------------------------------------- context lookups
@@ -309,16 +251,9 @@ def two_labels(result: Result) -> tuple[str, str]:
 def _against_text(against: Any) -> str:
     if isinstance(against, Mapping):
         return ", ".join(f"{k} {fmt_percent(v)}" for k, v in against.items())
-    if _finite(against):
+    if is_number(against):
         return f"{float(against):g}"
     return str(against) if against is not None else "the stated value"
-
-
-def fmt_percent(share: Any, decimals: int = 1) -> str:
-    """A share 0..1 as '12.5%'."""
-    if not _finite(share):
-        return str(share)
-    return f"{float(share) * 100:.{decimals}f}%"
 
 
 def question(result: Result) -> str:
@@ -355,9 +290,9 @@ def question(result: Result) -> str:
 
 def _p_used(result: Result) -> tuple[float | None, bool]:
     """The p-value the reading uses (adjusted when present) and whether it is adjusted."""
-    if _finite(result.p_adjusted):
+    if is_number(result.p_adjusted):
         return float(result.p_adjusted), True
-    return (float(result.p_value) if _finite(result.p_value) else None), False
+    return (float(result.p_value) if is_number(result.p_value) else None), False
 
 
 def _units_suffix(units: str) -> str:
@@ -374,10 +309,10 @@ def _difference_sentence(
     """
     first, second = (_named(result, label) for label in two_labels(result))
     value, low, high = est.value, est.ci_low, est.ci_high
-    if _finite(value) and value < 0:
+    if is_number(value) and value < 0:
         first, second = second, first
         value = -value
-        low, high = (-high if _finite(high) else None), (-low if _finite(low) else None)
+        low, high = (-high if is_number(high) else None), (-low if is_number(low) else None)
     decimals = decimals_for(value, low, high)
     if _wide_pair(result):
         same, within = " on the same records", "in"
@@ -416,7 +351,7 @@ def _estimate_sentence(result: Result, context: Any) -> str:
     outcome = result.outcome or "the outcome"
     units = _display_units(context, result.outcome)
     test, design = result.test, result.design
-    if est is None or not _finite(est.value):
+    if est is None or not is_number(est.value):
         if design == Design.TWO_CATEGORICAL:
             return f"This compares the mix of {outcome} across the groups of {result.exposure or 'the other column'}."
         return _groups_sentence(result, units) or f"{question(result)}"
@@ -428,8 +363,8 @@ def _estimate_sentence(result: Result, context: Any) -> str:
             if value < 0:
                 value, low, high = (
                     -value,
-                    (-high if _finite(high) else None),
-                    (-low if _finite(low) else None),
+                    (-high if is_number(high) else None),
+                    (-low if is_number(low) else None),
                 )
             decimals = decimals_for(value, low, high)
             centre = "Mean" if test == Test.ONE_SAMPLE_T else "Typical"
@@ -509,8 +444,8 @@ def _proportion_difference_sentence(
         first, second = second, first
         value, low, high = (
             -value,
-            (-high if _finite(high) else None),
-            (-low if _finite(low) else None),
+            (-high if is_number(high) else None),
+            (-low if is_number(low) else None),
         )
     decimals = decimals_for(value * 100, (low or 0) * 100, (high or 0) * 100)
     subject = _outcome_level_phrase(result)
@@ -543,7 +478,7 @@ def _share_sentence(result: Result, est: Estimate) -> str:
     label, target = _share_label_and_target(result)
     ci = fmt_ci(est.ci_low, est.ci_high, 1, scale=100.0)
     ci_part = f" ({ci_label(result.confidence)} {ci.replace(' to', '% to')}%)" if ci else ""
-    target_part = f", against a stated {fmt_percent(target)}" if _finite(target) else ""
+    target_part = f", against a stated {fmt_percent(target)}" if is_number(target) else ""
     if result.test == Test.BINOMIAL_EXACT:
         return f"{fmt_percent(est.value)} of records had {outcome} = {label}{ci_part}{target_part}."
     return (
@@ -563,12 +498,12 @@ def _share_label_and_target(result: Result) -> tuple[str, float | None]:
     if label is None and len(against) == 1:
         label = next(iter(against))
     target = against.get(label, against.get(str(label))) if label is not None else None
-    if target is None and _finite(result.against):
+    if target is None and is_number(result.against):
         target = result.against
     if target is None and isinstance(result.extra, Mapping):
         target = result.extra.get("target_share")
     return (str(label) if label is not None else "the counted value"), (
-        float(target) if _finite(target) else None
+        float(target) if is_number(target) else None
     )
 
 
@@ -578,7 +513,7 @@ def _groups_sentence(result: Result, units: str) -> str:
     rows: list[tuple[str, float]] = [
         (str(g.get("label")), g[stat])
         for g in result.groups
-        if isinstance(g, Mapping) and _finite(g.get(stat))
+        if isinstance(g, Mapping) and is_number(g.get(stat))
     ]
     if len(rows) < 2 or result.design not in (Design.MULTI_GROUP_CONTINUOUS, Design.TWO_GROUP_CONTINUOUS):
         return ""
@@ -668,22 +603,22 @@ def _flips_direction(result: Result) -> bool:
         result.design
         in (Design.TWO_GROUP_CONTINUOUS, Design.PAIRED_CONTINUOUS, Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL)
         and est is not None
-        and _finite(est.value)
+        and is_number(est.value)
         and est.value < 0
     )
 
 
 def _effect_clause(result: Result, mag: Magnitude | None, significant: bool) -> str:
     eff = result.effect
-    if eff is None or not _finite(eff.value):
+    if eff is None or not is_number(eff.value):
         return ""
     value, low, high = eff.value, eff.ci_low, eff.ci_high
     if _flips_direction(result) and effect_kind(eff.kind) in ("d", "r", "h"):
         # Keep the effect's sign in step with the reading's group order.
         value, low, high = (
             -value,
-            (-high if _finite(high) else None),
-            (-low if _finite(low) else None),
+            (-high if is_number(high) else None),
+            (-low if is_number(low) else None),
         )
     decimals = max(2, decimals_for(value, low, high))
     ci = fmt_ci(low, high, decimals)
@@ -705,7 +640,7 @@ def _evidence_sentence(result: Result, settings: Settings, n_comparisons: int | 
     unadjusted_run = getattr(settings.adjust, "value", settings.adjust) == AdjustMethod.NONE.value
     tail = _adjust_tail(adjusted and not unadjusted_run, n_comparisons)
     p_text = f"{fmt_p(p)}{tail}"
-    significant = _finite(p) and p < settings.alpha
+    significant = is_number(p) and p < settings.alpha
     mag = effect_magnitude(result)
     effect = _effect_clause(result, mag, significant)
     if significant:
@@ -761,7 +696,7 @@ def _group_sizes(result: Result) -> list[int]:
         if not isinstance(g, Mapping):
             continue
         n = g.get("n", g.get("count"))
-        if _finite(n):
+        if is_number(n):
             sizes.append(int(n))
     return sizes
 
@@ -779,7 +714,7 @@ def _count_sources(result: Result) -> list[Mapping[str, Any]]:
 
 def _min_expected(result: Result) -> float | None:
     for source in _count_sources(result):
-        if isinstance(source, Mapping) and _finite(source.get("min_expected")):
+        if isinstance(source, Mapping) and is_number(source.get("min_expected")):
             return float(source["min_expected"])
     return None
 
@@ -822,7 +757,7 @@ def cautions(
         out.append(CAUSATION_LINE)
     if _observational(context):
         out.append(OBSERVATIONAL_LINE)
-    if _finite(result.p_adjusted) and n_comparisons and n_comparisons > 1:
+    if is_number(result.p_adjusted) and n_comparisons and n_comparisons > 1:
         out.append(multiple_line(n_comparisons, settings))
     sizes = _group_sizes(result)
     grouped = result.design in (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS)
@@ -859,7 +794,7 @@ def cautions(
         out.append(_excluded_line(result.n_excluded, context))
     p, _ = _p_used(result)
     mag = effect_magnitude(result)
-    if mag is not None and _finite(p):
+    if mag is not None and is_number(p):
         if p < settings.alpha and mag.word == NEGLIGIBLE:
             out.append(TINY_EFFECT_LINE.format(source=mag.convention.source))
         elif p >= settings.alpha and mag.word in ("medium", "large"):
@@ -942,7 +877,7 @@ def run_wide_cautions(
     out = [REVIEW_LINE]
     if _observational(context):
         out.append(OBSERVATIONAL_LINE)
-    adjusted = [r for r in results if not r.skipped and _finite(r.p_adjusted)]
+    adjusted = [r for r in results if not r.skipped and is_number(r.p_adjusted)]
     if adjusted and n_comparisons > 1:
         out.append(multiple_line(n_comparisons, settings))
     run = [r for r in results if not r.skipped]
@@ -964,7 +899,7 @@ def row_cautions(caution_list: Sequence[str], run_wide: Sequence[str]) -> list[s
 
 def count_comparisons(results: Iterable[Result]) -> int:
     """How many analyses of a run produced a p-value (the family adjusted together)."""
-    return sum(1 for r in results if not r.skipped and _finite(r.p_value))
+    return sum(1 for r in results if not r.skipped and is_number(r.p_value))
 
 
 # ---------------------------------------------------------------- follow-ups
@@ -999,7 +934,7 @@ def followup_reading(
     outcome = parent.outcome or "the outcome"
     if followup.test == Test.ADJUSTED_RESIDUAL:
         z = followup.statistic
-        if not _finite(z):
+        if not is_number(z):
             return f"{followup_label(followup)}: no residual could be computed."
         more = "more" if z > 0 else "fewer"
         flag = (
@@ -1013,20 +948,20 @@ def followup_reading(
             f"{fmt_number(z, 2)}{flag}."
         )
     units = _display_units(context, parent.outcome)
-    p = followup.p_adjusted if _finite(followup.p_adjusted) else followup.p_value
-    p_word = "adjusted p" if _finite(followup.p_adjusted) else "p"
+    p = followup.p_adjusted if is_number(followup.p_adjusted) else followup.p_value
+    p_word = "adjusted p" if is_number(followup.p_adjusted) else "p"
     p_text = fmt_p(p).replace("p ", f"{p_word} ", 1)
     est = followup.estimate
     first, second = (list(followup.levels) + ["", ""])[:2]
     size = ""
-    if est is not None and _finite(est.value):
+    if est is not None and is_number(est.value):
         value, low, high = est.value, est.ci_low, est.ci_high
         if value < 0:
             first, second = second, first
             value, low, high = (
                 -value,
-                (-high if _finite(high) else None),
-                (-low if _finite(low) else None),
+                (-high if is_number(high) else None),
+                (-low if is_number(low) else None),
             )
         decimals = decimals_for(value, low, high)
         ci = fmt_ci(low, high, decimals)
@@ -1037,7 +972,7 @@ def followup_reading(
             f"{outcome} {typically}{fmt_number(value, decimals)}{_units_suffix(units)} higher in {first} "
             f"than in {second}{ci_part}; "
         )
-    significant = _finite(p) and p < settings.alpha
+    significant = is_number(p) and p < settings.alpha
     verdict = (
         f"{evidence_words(p)} of a difference" if significant else "compatible with no difference"
     )
@@ -1105,16 +1040,6 @@ def incomplete_pairs_note(result: Result, count: int, context: Any = None) -> st
 # ---------------------------------------------------------------- technical note
 
 
-def _fmt_df(df: Any) -> str:
-    if isinstance(df, (list, tuple)):
-        return " and ".join(
-            fmt_number(d, 2 if not float(d).is_integer() else 0) for d in df if _finite(d)
-        )
-    if _finite(df):
-        return fmt_number(df, 2 if not float(df).is_integer() else 0)
-    return ""
-
-
 def spread_check(result: Result) -> Mapping[str, Any] | None:
     """The spread-equality check of a result (``shape["spread_equality"]`` or ``shape["spread"]``)."""
     if not isinstance(result.shape, Mapping):
@@ -1174,23 +1099,23 @@ def technical_lines(
         )
     if result.reasons:
         parts.append("Chosen because: " + "; ".join(say(r).rstrip(".") for r in result.reasons) + ".")
-    if _finite(result.statistic):
-        df = _fmt_df(result.df)
+    if is_number(result.statistic):
+        df = fmt_df(result.df)
         df_part = f" on {df} df" if df else ""
         parts.append(
             f"{result.statistic_name or 'Statistic'} = {fmt_number(result.statistic)}{df_part}."
         )
-    if _finite(result.p_value):
+    if is_number(result.p_value):
         how = f" ({result.p_method.replace('_', ' ')})" if result.p_method else ""
         parts.append(f"Unadjusted {fmt_p(result.p_value)}{how}.")
-    if _finite(result.p_adjusted):
+    if is_number(result.p_adjusted):
         method = ""
         if settings is not None:
             key = getattr(settings.adjust, "value", str(settings.adjust))
             method = f" ({ADJUST_NAMES.get(key, key)})"
         parts.append(f"Adjusted {fmt_p(result.p_adjusted)}{method}.")
     for label, item in (("Estimate", result.estimate), ("Effect", result.effect)):
-        if item is not None and _finite(item.value):
+        if item is not None and is_number(item.value):
             decimals = decimals_for(item.value, item.ci_low, item.ci_high)
             ci = fmt_ci(item.ci_low, item.ci_high, decimals)
             ci_part = f", {ci_label(result.confidence)} {ci}" if ci else ""
@@ -1199,9 +1124,9 @@ def technical_lines(
     if mag is not None:
         parts.append(f"Size word '{mag.word}' from a rule of thumb: {mag.convention.detail}.")
     spread = spread_check(result)
-    if spread is not None and _finite(spread.get("p_value")):
+    if spread is not None and is_number(spread.get("p_value")):
         stat = spread.get("statistic")
-        stat_part = f" statistic {fmt_number(stat)}," if _finite(stat) else ""
+        stat_part = f" statistic {fmt_number(stat)}," if is_number(stat) else ""
         parts.append(
             f"Spread check ({spread_name(spread)}):{stat_part} {fmt_p(spread['p_value'])}."
         )

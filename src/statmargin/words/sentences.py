@@ -16,6 +16,7 @@ from collections.abc import Callable, Mapping
 from typing import Any
 
 from ..vocabulary.codes import Caution, Coded, Note, Reason, Skip
+from .numbers import fmt_p
 
 Facts = Mapping[str, Any]
 
@@ -331,11 +332,6 @@ def shape_phrase(f: Facts) -> str:
     return f"{outcome} is {first['verdict']}"
 
 
-def _p_clause(p: float) -> str:
-    """A p-value inside a reason: 'p < 0.001' or 'p = 0.012'."""
-    return "p < 0.001" if p < 0.001 else f"p = {p:.3f}"
-
-
 def _followup_pairs(f: Facts) -> str:
     from .explain import TEST_NAMES
 
@@ -380,11 +376,11 @@ REASON_TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], s
     ),
     Reason.SPREAD_DIFFERS: lambda f: (
         f"The spread of {f['outcome']} differs between the groups of {f['by']} (Brown-Forsythe "
-        f"{_p_clause(f['p'])}), so Welch's ANOVA was used."
+        f"{fmt_p(f['p'])}), so Welch's ANOVA was used."
     ),
     Reason.SPREAD_SIMILAR: lambda f: (
         f"The spread of {f['outcome']} is similar across the groups of {f['by']} (Brown-Forsythe "
-        f"{_p_clause(f['p'])}), so the classic one-way ANOVA was used."
+        f"{fmt_p(f['p'])}), so the classic one-way ANOVA was used."
     ),
     Reason.SPREAD_UNCHECKED: (
         "The spread of {outcome} across the groups of {by} could not be checked, so Welch's ANOVA (which "

@@ -1,0 +1,101 @@
+"""Numbers by the groups of a category column: the data of the two-group and several-group designs.
+
+When the outcome is the category and the compare-by column holds numbers, the
+numbers are compared across the outcome's levels (the reason says so).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..plan.types import TypeInfo
+from ..read.table import Column
+from ..stats.shape import assess, spread_check
+from ..vocabulary import Design, MeasureType, ShapeHandling
+from ..vocabulary.codes import Coded, Reason, Skip, coded
+from .base import Prepared, Skipped, constant_reason
+from .question import Question
+
+
+@dataclass
+class GroupData:
+    """The numeric column, the grouping column and the usable values by group."""
+
+    numbers: Column
+    numbers_info: TypeInfo
+    grouping: Column
+    grouping_info: TypeInfo
+    levels: list[str]
+    groups: dict[str, np.ndarray]
+    n: int
+    n_excluded: int
+    lead: list[Coded]  # the reason for swapping roles, when the outcome is the category
+
+
+def levels_present(info: TypeInfo, labels: np.ndarray) -> list[str]:
+    """Levels seen in the usable rows: the column's level order first, then any others."""
+    present = {lab for lab in labels if lab is not None}
+    ordered = [lev for lev in info.levels if lev in present]
+    rest = sorted(present - set(ordered))
+    return ordered + rest
+
+
+def is_grouped(question: Question) -> bool:
+    """One column holds categories and the other numbers (not a long-form pairing)."""
+    if question.by is None or question.key is not None or question.by_info is None:
+        return False
+    out_cat = question.outcome_info.type is MeasureType.CATEGORICAL
+    by_cat = question.by_info.type is MeasureType.CATEGORICAL
+    return out_cat != by_cat
+
+
+def group_data(question: Question) -> GroupData:
+    """The usable numbers by group (computed once per question)."""
+    cached = question.cache.get("groups")
+    if isinstance(cached, GroupData):
+        return cached
+    assert question.by is not None and question.by_info is not None
+    lead: list[Coded] = []
+    if question.outcome_info.type is MeasureType.CATEGORICAL:
+        numbers, numbers_info = question.by, question.by_info
+        grouping, grouping_info = question.outcome, question.outcome_info
+        lead.append(coded(Reason.CATEGORY_BY_NUMBER, outcome=question.outcome.name, by=question.by.name))
+    else:
+        numbers, numbers_info = question.outcome, question.outcome_info
+        grouping, grouping_info = question.by, question.by_info
+    y = question.values(numbers, numbers_info)
+    g = question.values(grouping, grouping_info)
+    usable = y.usable & g.usable
+    n_excluded = int(np.sum(~usable & (y.present | g.present)))
+    values = y.values[usable].astype(float)
+    labels = g.values[usable]
+    levels = levels_present(grouping_info, labels)
+    groups = {lev: values[labels == lev] for lev in levels}
+    data = GroupData(numbers, numbers_info, grouping, grouping_info, levels, groups, int(values.size),
+                     n_excluded, lead)
+    question.cache["groups"] = data
+    return data
+
+
+def prepare_groups(question: Question, design: Design, would: tuple[object, object]) -> Prepared:
+    """Prepared groups with their shape checks; skip fewer than two groups or a constant outcome."""
+    data = group_data(question)
+    name, by = data.numbers.name, data.grouping.name
+    prepared = Prepared(design, n=data.n, n_excluded=data.n_excluded, groups=data.groups)
+    shape = assess(data.groups)
+    spread = spread_check(data.groups) if len(data.levels) >= 3 else None
+    prepared.shape = {"assessment": shape.to_record(), "spread": spread.to_record() if spread else None}
+    prepared.extra.update(assessment=shape, spread=spread, lead=data.lead)
+    prepared.summaries = [s.to_record() for s in shape.summaries]
+    prepared.samples = {label: values.tolist() for label, values in data.groups.items()}
+    if len(data.levels) < 2:
+        reason = coded(Skip.FEWER_THAN_TWO_GROUPS, by=by, level=data.levels[0] if data.levels else None)
+        raise Skipped(reason, prepared, design=Design.TWO_GROUP_CONTINUOUS, reasons=data.lead)
+    ordinal = data.numbers_info.type is MeasureType.ORDINAL
+    rank = ordinal or question.handling is ShapeHandling.RANK
+    constant = constant_reason(name, np.concatenate(list(data.groups.values())))
+    if constant:
+        raise Skipped(constant, prepared, test=would[1] if rank else would[0], reasons=data.lead)  # type: ignore[arg-type]
+    return prepared

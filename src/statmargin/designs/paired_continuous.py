@@ -1,0 +1,73 @@
+"""Paired continuous (or ordinal) measurements: the paired t-test or the Wilcoxon signed-rank test."""
+
+from __future__ import annotations
+
+from ..results import Result
+from ..stats import paired
+from ..stats.shape import assess
+from ..vocabulary import Design, MeasureType, ShapeHandling, Test
+from ..vocabulary.codes import Skip, coded
+from .base import Choice, DesignSpec, Prepared, Skipped, constant_reason, method_options
+from .continuous import choose_family
+from .pairing import is_categorical, is_paired, prepare_pairs
+from .question import Question
+
+TESTS = (Test.PAIRED_T, Test.WILCOXON_SIGNED_RANK)
+
+
+class PairedContinuous(DesignSpec):
+    design = Design.PAIRED_CONTINUOUS
+    tests = TESTS
+
+    def accepts(self, question: Question) -> bool:
+        return is_paired(question) and not is_categorical(question)
+
+    def prepare(self, question: Question) -> Prepared:
+        prepared, data = prepare_pairs(question, self.design)
+        name = question.outcome.name
+        a, b = data.first, data.second
+        first, second = data.labels
+        diff = a - b
+        shape = assess({f"{first} - {second}": diff})
+        prepared.shape = {"assessment": shape.to_record()}
+        prepared.extra["assessment"] = shape
+        prepared.summaries = [s.to_record() for s in assess({first: a, second: b}).summaries]
+        prepared.groups = {first: a, second: b}
+        prepared.samples = {first: a.tolist(), second: b.tolist()}
+        ordinal = data.info.type is MeasureType.ORDINAL
+        would = TESTS[1 if ordinal or question.handling is ShapeHandling.RANK else 0]
+        if data.n == 0:
+            prepared.summaries, prepared.shape = [], {}
+            raise Skipped(coded(Skip.NO_COMPLETE_PAIRS, outcome=name), prepared, test=would)
+        constant = constant_reason(f"the differences in {name}", diff)
+        if constant:
+            raise Skipped(constant, prepared, test=would)
+        return prepared
+
+    def choose(self, question: Question, prepared: Prepared) -> Choice:
+        return choose_family(
+            self.design, TESTS, outcome=question.outcome.name, by=None,
+            outcome_type=question.outcome_info.type, by_type=None, handling=question.handling,
+            shape=prepared.extra["assessment"],
+        )
+
+    def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
+        first, second = prepared.extra["labels"]
+        fn = paired.paired_t if choice.test is Test.PAIRED_T else paired.wilcoxon_paired
+        return fn(prepared.groups[first], prepared.groups[second], labels=(first, second),
+                  **method_options(question.settings))
+
+    def decorate(self, result: Result, question: Question, prepared: Prepared) -> None:
+        decorate_pairs(result, question, prepared)
+
+
+def decorate_pairs(result: Result, question: Question, prepared: Prepared) -> None:
+    """The pairing column, the incomplete pairs and their note, on every paired result."""
+    result.pairing = prepared.extra.get("pairing")
+    if question.partner is not None:
+        result.exposure = None
+    if "incomplete_pairs" in prepared.extra:
+        result.extra["incomplete_pairs"] = prepared.extra["incomplete_pairs"]
+    for note in prepared.extra.get("pair_notes", []):
+        if note not in result.notes:
+            result.notes.append(note)

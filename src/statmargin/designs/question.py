@@ -1,0 +1,119 @@
+"""One question ready for a design: the analysis with its columns, their types and the settings.
+
+Column types are inferred once per column and choice for the whole run
+(``ColumnTypes``), and usable values once per column and type, so a run with
+twenty analyses of the same columns reads each column once.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import OptionError, RoleError
+from ..plan.expand import Analysis
+from ..plan.model import ColumnChoice, Settings
+from ..plan.types import ColumnValues, TypeInfo, infer_type, usable_values
+from ..read.table import Column, Table
+from ..vocabulary import MeasureType, ShapeHandling
+from ..words import refusals
+
+USABLE_TYPES = (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)
+
+
+@dataclass
+class ColumnTypes:
+    """Types and usable values of a table's columns, each worked out once per run."""
+
+    table: Table
+    _types: dict[tuple[str, object, tuple[str, ...] | None], TypeInfo] = field(default_factory=dict)
+    _values: dict[tuple[str, TypeInfo], ColumnValues] = field(default_factory=dict)
+
+    def info(self, name: str, choice: ColumnChoice | None) -> TypeInfo:
+        """The column's type under the user's choice (treat-as and level order)."""
+        key = (name, choice.treat_as if choice else None, tuple(choice.order) if choice and choice.order else None)
+        if key not in self._types:
+            self._types[key] = infer_type(self.table.column(name), choice)
+        return self._types[key]
+
+    def values(self, name: str, info: TypeInfo) -> ColumnValues:
+        """The column's usable values read as ``info.type``."""
+        key = (name, info)
+        if key not in self._values:
+            self._values[key] = usable_values(self.table.column(name), info)
+        return self._values[key]
+
+    def usable_info(self, name: str, choice: ColumnChoice | None, role: str) -> TypeInfo:
+        """The type of a column that an analysis uses; refuse empty, date and identifier columns."""
+        info = self.info(name, choice)
+        if info.type is MeasureType.EMPTY:
+            raise RoleError(refusals.empty_column(name, role))
+        if info.type not in USABLE_TYPES:
+            raise RoleError(refusals.unusable_type(name, info.type.value, info.reason, role))
+        return info
+
+
+@dataclass
+class Question:
+    """An analysis with its resolved columns and types, as a design sees it."""
+
+    analysis: Analysis
+    table: Table
+    settings: Settings
+    types: ColumnTypes
+    outcome: Column
+    outcome_info: TypeInfo
+    by: Column | None = None
+    by_info: TypeInfo | None = None
+    partner: Column | None = None
+    partner_info: TypeInfo | None = None
+    key: Column | None = None
+    cache: dict[str, object] = field(default_factory=dict)  # data shared by a design's steps
+
+    @property
+    def handling(self) -> ShapeHandling:
+        choice = self.analysis.outcome_choice
+        return choice.shape if choice else ShapeHandling.AUTO
+
+    @property
+    def report_outcome(self) -> str:
+        return self.outcome.name
+
+    @property
+    def report_exposure(self) -> str | None:
+        return self.by.name if self.by is not None else None
+
+    @property
+    def rows(self) -> np.ndarray | None:
+        """Sheet row numbers of the table's rows (for notes that point at cells)."""
+        return self.table.rows
+
+    def values(self, column: Column, info: TypeInfo) -> ColumnValues:
+        return self.types.values(column.name, info)
+
+
+def build_question(analysis: Analysis, table: Table, settings: Settings, types: ColumnTypes) -> Question:
+    """Resolve an analysis's columns and types; refuse columns that cannot take their role."""
+    outcome = table.column(analysis.outcome)
+    out_info = types.usable_info(outcome.name, analysis.outcome_choice, refusals.ROLE_OUTCOME)
+    question = Question(analysis, table, settings, types, outcome, out_info)
+    if analysis.against is not None:
+        return question
+    if analysis.paired_with:
+        other = table.column(analysis.paired_with)
+        partner = analysis.by_choice
+        if (partner is None or partner.treat_as is None) and analysis.outcome_choice is not None:
+            # The second measurement is the same kind of value as the first unless said otherwise.
+            first = analysis.outcome_choice
+            partner = ColumnChoice(other.name, treat_as=first.treat_as, order=first.order)
+        question.partner = other
+        question.partner_info = types.usable_info(other.name, partner, refusals.ROLE_PAIRED)
+        return question
+    if analysis.by is None:
+        raise OptionError(refusals.nothing_to_compare(analysis.outcome))
+    question.by = table.column(analysis.by)
+    question.by_info = types.usable_info(question.by.name, analysis.by_choice, refusals.ROLE_BY)
+    if analysis.pairing_key and question.by_info.type is MeasureType.CATEGORICAL:
+        question.key = table.column(analysis.pairing_key)
+    return question

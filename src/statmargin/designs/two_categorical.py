@@ -1,0 +1,90 @@
+"""Two categorical columns: the chi-square test of independence or Fisher's exact test.
+
+Tables larger than 2x2 with a clear overall result get each cell's adjusted
+standardized residual as a follow-up.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..plan.model import Settings
+from ..results import Followup, Result
+from ..stats import categorical, followup
+from ..stats.shape import count_check, expected_counts
+from ..vocabulary import Design, MeasureType, Test
+from ..vocabulary.codes import Coded, Reason, Skip, coded
+from .base import Choice, DesignSpec, Prepared, Skipped, method_options
+from .groups import levels_present
+from .question import Question
+
+COCHRAN_MIN_EXPECTED = 5.0  # Cochran 1954, Biometrics 10(4):417-451, doi:10.2307/3001616
+# |adjusted residual| > 2 flags a cell (common practice; Agresti 2013, Categorical Data Analysis, 3rd ed., sec. 3.3.1)
+RESIDUAL_FLAG = 2.0
+
+
+def decide(*, outcome: str, by: str, table_shape: tuple[int, ...], min_expected: float) -> Choice:
+    """Fisher's exact test for a 2x2 table with an expected count below 5 (Cochran's rule), else chi-square."""
+    design = Design.TWO_CATEGORICAL
+    if tuple(table_shape) == (2, 2) and min_expected < COCHRAN_MIN_EXPECTED:
+        return Choice(design, Test.FISHER_EXACT, False, [coded(Reason.SMALL_EXPECTED_FISHER, smallest=min_expected)])
+    # Larger tables with small expected counts: the method reports its own caveat and p method.
+    return Choice(design, Test.CHI_SQUARE_INDEPENDENCE, False,
+                  [coded(Reason.CHI_SQUARE_INDEPENDENCE, outcome=outcome, by=by)])
+
+
+class TwoCategorical(DesignSpec):
+    design = Design.TWO_CATEGORICAL
+    tests = (Test.CHI_SQUARE_INDEPENDENCE, Test.CHI_SQUARE_INDEPENDENCE)
+
+    def accepts(self, question: Question) -> bool:
+        return (
+            question.by_info is not None
+            and question.key is None
+            and question.outcome_info.type is MeasureType.CATEGORICAL
+            and question.by_info.type is MeasureType.CATEGORICAL
+        )
+
+    def prepare(self, question: Question) -> Prepared:
+        assert question.by is not None and question.by_info is not None
+        name, by = question.outcome.name, question.by.name
+        a = question.values(question.outcome, question.outcome_info)
+        b = question.values(question.by, question.by_info)
+        usable = a.usable & b.usable
+        n_excl = int(np.sum(~usable & (a.present | b.present)))
+        out_labels, by_labels = a.values[usable], b.values[usable]
+        rows = levels_present(question.by_info, by_labels)
+        cols = levels_present(question.outcome_info, out_labels)
+        observed = np.array([[int(np.sum((by_labels == r) & (out_labels == c))) for c in cols] for r in rows])
+        prepared = Prepared(self.design, n=int(usable.sum()), n_excluded=n_excl, table=observed,
+                            row_labels=rows, col_labels=cols)
+        prepared.summaries = [
+            {"label": r, "n": int(observed[i].sum()), "counts": {c: int(observed[i, j]) for j, c in enumerate(cols)}}
+            for i, r in enumerate(rows)
+        ]
+        if len(rows) < 2 or len(cols) < 2:
+            which, levels = (by, rows) if len(rows) < 2 else (name, cols)
+            raise Skipped(coded(Skip.ONE_LEVEL, column=which, level=levels[0] if levels else None), prepared)
+        check = count_check(expected_counts(observed))
+        prepared.shape = {"counts": {**check, "observed": observed.tolist(), "row_labels": rows, "col_labels": cols}}
+        return prepared
+
+    def choose(self, question: Question, prepared: Prepared) -> Choice:
+        assert prepared.table is not None and question.by is not None
+        return decide(outcome=question.outcome.name, by=question.by.name, table_shape=prepared.table.shape,
+                      min_expected=prepared.shape["counts"]["min_expected"])
+
+    def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
+        settings = question.settings
+        table, rows, cols = prepared.table, prepared.row_labels, prepared.col_labels
+        if choice.test is Test.FISHER_EXACT:
+            return categorical.fisher_exact(table, rows, cols, **method_options(settings))
+        return categorical.chi_square_independence(table, rows, cols, confidence=settings.confidence,
+                                                   seed=settings.seed, resamples=settings.monte_carlo_resamples)
+
+    def follow_up(self, result: Result, prepared: Prepared, settings: Settings) -> tuple[list[Followup], list[Coded]]:
+        if prepared.table is None or prepared.table.size <= 4:
+            return [], []
+        cells = followup.adjusted_residuals(prepared.table, prepared.row_labels, prepared.col_labels,
+                                            threshold=RESIDUAL_FLAG)
+        return list(cells), [coded(Reason.FOLLOWUP_RESIDUALS, threshold=RESIDUAL_FLAG)]

@@ -1,0 +1,64 @@
+"""Two continuous (or ordinal) measures of the same records: Pearson or Spearman correlation."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..results import Result
+from ..stats import correlation
+from ..stats.shape import assess
+from ..vocabulary import Design, MeasureType, Test
+from ..vocabulary.codes import Skip, coded
+from .base import Choice, DesignSpec, Prepared, Skipped, constant_reason, method_options
+from .continuous import choose_family
+from .question import Question
+
+TESTS = (Test.PEARSON_R, Test.SPEARMAN_RHO)
+
+
+class TwoContinuous(DesignSpec):
+    design = Design.TWO_CONTINUOUS
+    tests = TESTS
+
+    def accepts(self, question: Question) -> bool:
+        return (
+            question.by_info is not None
+            and question.key is None
+            and question.outcome_info.type is not MeasureType.CATEGORICAL
+            and question.by_info.type is not MeasureType.CATEGORICAL
+        )
+
+    def prepare(self, question: Question) -> Prepared:
+        assert question.by is not None and question.by_info is not None
+        name, by = question.outcome.name, question.by.name
+        a = question.values(question.outcome, question.outcome_info)
+        b = question.values(question.by, question.by_info)
+        usable = a.usable & b.usable
+        n_excl = int(np.sum(~usable & (a.present | b.present)))
+        x = a.values[usable].astype(float)
+        y = b.values[usable].astype(float)
+        prepared = Prepared(self.design, n=int(x.size), n_excluded=n_excl, groups={name: x, by: y})
+        shape = assess({name: x, by: y})
+        prepared.shape = {"assessment": shape.to_record()}
+        prepared.extra["assessment"] = shape
+        prepared.summaries = [s.to_record() for s in shape.summaries]
+        prepared.samples = {name: x.tolist(), by: y.tolist()}
+        for column, values in ((name, x), (by, y)):
+            constant = constant_reason(column, values)
+            if constant or x.size == 0:
+                raise Skipped(constant or coded(Skip.NO_ROWS_WITH_BOTH, outcome=name, by=by), prepared,
+                              test=TESTS[0])
+        return prepared
+
+    def choose(self, question: Question, prepared: Prepared) -> Choice:
+        assert question.by_info is not None and question.by is not None
+        return choose_family(
+            self.design, TESTS, outcome=question.outcome.name, by=question.by.name,
+            outcome_type=question.outcome_info.type, by_type=question.by_info.type,
+            handling=question.handling, shape=prepared.extra["assessment"],
+        )
+
+    def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
+        x, y = prepared.groups.values()
+        fn = correlation.pearson_r if choice.test is Test.PEARSON_R else correlation.spearman_rho
+        return fn(x, y, **method_options(question.settings))

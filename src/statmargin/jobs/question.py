@@ -1,0 +1,94 @@
+"""The one-off question: read a workbook, run the tests the options ask for, change nothing.
+
+``test_workbook`` is what ``statmargin test`` calls, with the same keyword
+names as its options; ``statmargin.analyze`` asks the same question of a
+DataFrame, through the same option checks.
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from .._version import __version__
+from ..results import Result
+
+
+@dataclass
+class TestSummary:
+    """What ``test_workbook`` found: the data sheet and one result per question."""
+
+    __test__ = False  # not a pytest test class, despite the name
+
+    path: str
+    sheet: str
+    results: list[Result]
+
+    def to_record(self) -> dict[str, Any]:
+        """The JSON document of ``statmargin test --json``."""
+        return {"tool": "statmargin", "version": __version__, "analyses": [r.to_record() for r in self.results]}
+
+
+def test_workbook(
+    path: str | Path,
+    *,
+    outcome: str | Sequence[str],
+    by: str | Sequence[str] = (),
+    against: str | Mapping[str, str] | Iterable[str] | None = None,
+    pairing_key: str | None = None,
+    paired_with: str | Mapping[str, str] | Iterable[str] | None = None,
+    treat: Mapping[str, str] | Iterable[str] | None = None,
+    shape: str = "auto",
+    alternative: str = "two-sided",
+    confidence: float = 0.95,
+    adjust: str = "holm",
+    sheet: str | None = None,
+) -> TestSummary:
+    """Run the fitting tests on a workbook's data sheet; the workbook is only read.
+
+    Parameters
+    ----------
+    path
+        The workbook.
+    outcome, by, against, pairing_key, paired_with, treat, shape, alternative, confidence, adjust
+        As for :func:`statmargin.analyze` (``against`` and ``paired_with`` take
+        ``[COL=]VALUE`` items, as the command line does).
+    sheet
+        The data sheet (default: the first sheet with data).
+
+    Returns
+    -------
+    TestSummary
+        The sheet read and the results, with readings and cautions.
+    """
+    from ..designs.engine import run_plan
+    from ..options import build_plan, make_settings, parse_col_values, parse_treat
+    from ..read.reader import read_table
+    from ..words.explain import apply as explain_results
+
+    outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
+    bys = [by] if isinstance(by, str) else list(by)
+    settings = make_settings(alternative=alternative, confidence=confidence, adjust=adjust)
+    plan = build_plan(
+        outcomes,
+        bys,
+        against=parse_col_values(against, "--against", outcomes),
+        pairing_key=pairing_key,
+        paired_with=parse_col_values(paired_with, "--paired-with", outcomes),
+        treat=parse_treat(treat),
+        shape=shape,
+        settings=settings,
+    )
+    with warnings.catch_warnings():
+        # Caveats are already in each result's notes; no Python warning lines.
+        warnings.simplefilter("ignore")
+        table = read_table(path, sheet=sheet)
+        results = run_plan(table, plan)
+        explain_results(results, settings)
+    return TestSummary(str(path), table.sheet, results)
+
+
+test_workbook.__test__ = False  # type: ignore[attr-defined]  # not a pytest test, despite the name

@@ -1,0 +1,163 @@
+"""What the command line prints: summaries of a test, a plan and a run, progress lines, help hints."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from typing import Any
+
+from ..results import Result
+from .numbers import ci_label, decimals_for, fmt_ci, fmt_df, fmt_number, fmt_p, is_number
+from .sentences import say
+
+INTERNAL_ERROR = (
+    "statmargin hit an internal error ({kind}: {detail}); rerun with --debug for the details and report it"
+)
+
+
+def error_line(message: str) -> str:
+    """A refusal as the one line the command prints."""
+    return "statmargin: " + " ".join(message.split())
+
+
+def internal_error_line(kind: str, detail: str) -> str:
+    return INTERNAL_ERROR.format(kind=kind, detail=" ".join(detail.split()))
+
+
+def json_is_workbook() -> str:
+    return "--json points at the workbook itself; give another file name."
+
+
+def json_folder_missing(path: str) -> str:
+    return f"Cannot write the JSON file {path}: its folder does not exist; choose another path."
+
+
+def json_not_written(path: str, reason: str) -> str:
+    return f"Cannot write the JSON file {path}: {reason}; choose another path."
+
+
+def min_count_without_share() -> str:
+    return "--min-count goes with --share; add --share or drop --min-count."
+
+
+def old_option(old: str, new: str) -> str:
+    return f"statmargin: {old} is now {new}; the old spelling still works in this release."
+
+
+def progress_step(message: str) -> str:
+    return f"statmargin: {message} ..."
+
+
+def progress_bar(done: int, total: int, message: str, width: int = 30) -> str:
+    filled = width * done // total
+    return f"  [{'#' * filled}{'.' * (width - filled)}] {done}/{total} {message}"
+
+
+# ---------------------------------------------------------------- progress messages
+
+
+def reading_sheet(sheet: str | None) -> str:
+    return f"reading sheet {sheet!r}"
+
+
+def running_on_rows(rows: int) -> str:
+    return f"running analyses on {rows:,} rows"
+
+
+RUNNING = "running analyses"
+WRITING = "writing results sheets"
+
+
+# ---------------------------------------------------------------- test
+
+
+def _number(value: Any) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, (list, tuple)):
+        return ", ".join(_number(v) for v in value)
+    return fmt_number(value) if is_number(value) else str(value)
+
+
+def _interval(item: Any, confidence: float) -> str:
+    text = fmt_ci(item.ci_low, item.ci_high, decimals_for(item.value, item.ci_low, item.ci_high))
+    return f" ({ci_label(confidence)} {text})" if text else ""
+
+
+def test_summary(results: Sequence[Result], *, sheet: str | None = None) -> str:
+    """A short summary of a one-off question: test, statistic, df, p, estimate and effect, reasons."""
+    lines: list[str] = []
+    if sheet:
+        lines.append(f"Sheet {sheet!r}: {len(results)} analysis(es)")
+    for r in results:
+        target = r.exposure or r.pairing or (f"against {r.against}" if r.against is not None else "")
+        lines.append("")
+        lines.append(f"{r.outcome} {'by ' if r.exposure else ''}{target}".rstrip() + f"  [{r.test or 'no test'}]")
+        if r.skipped:
+            lines.append(f"  skipped: {say(r.skipped)}")
+        else:
+            stat = f"{r.statistic_name or 'statistic'} = {_number(r.statistic)}" if r.statistic is not None else ""
+            df = f", df = {fmt_df(r.df)}" if r.df is not None else ""
+            adjusted = f", adjusted {fmt_p(r.p_adjusted)}" if r.p_adjusted is not None else ""
+            parts = [part for part in (stat + df, fmt_p(r.p_value)) if part]
+            lines.append("  " + ", ".join(parts) + adjusted)
+            lines.append(f"  n = {r.n} ({r.n_excluded} row(s) left out)")
+            if r.estimate is not None:
+                lines.append(f"  {r.estimate.name} = {_number(r.estimate.value)}{_interval(r.estimate, r.confidence)}")
+            if r.effect is not None:
+                lines.append(f"  {r.effect.name} = {_number(r.effect.value)}{_interval(r.effect, r.confidence)}")
+        lines.extend(f"  why: {say(reason)}" for reason in r.reasons)
+        lines.extend(f"  note: {say(note)}" for note in r.notes)
+        if r.reading:
+            lines.append(f"  reading: {r.reading}")
+        lines.extend(f"  caution: {caution}" for caution in r.cautions)
+        for fu in r.followups:
+            if fu.flagged:
+                lines.append(f"  follow-up {fu.test}: {' vs '.join(fu.levels)}, adjusted {fmt_p(fu.p_adjusted)}")
+    return "\n".join(lines).lstrip("\n")
+
+
+# ---------------------------------------------------------------- plan
+
+
+def plan_summary(summary: Any, workbook_name: str) -> str:
+    """What ``statmargin plan`` did: the roles sheet written and the roles marked so far."""
+    roles_sheet = summary.write.sheets.get("roles", "roles")
+    lines = [
+        f"Wrote sheet {roles_sheet!r} to {summary.path}: {len(summary.columns)} columns of "
+        f"sheet {summary.data_sheet!r} (headers in row {summary.header_row})."
+    ]
+    marked = [c for c in summary.columns if c["role"] != "ignore"]
+    lines.extend(f"  {c['column']}: {c['role']} ({c['inferred_type']})" for c in marked)
+    if not marked:
+        lines.append(
+            "  No roles chosen yet: open the file, pick roles in the shaded cells, save, then run "
+            f"'statmargin run {workbook_name}'."
+        )
+    lines.extend(f"  new column: {name}" for name in summary.new_columns)
+    lines.extend(f"  no longer in the data: {name}" for name in summary.missing_columns)
+    lines.extend(f"  {line}" for line in summary.write.renamed)
+    return "\n".join(lines)
+
+
+# ---------------------------------------------------------------- run and demo
+
+
+def run_summary(summary: Any) -> str:
+    """A few lines about a workbook run: where results went and how many analyses were done."""
+    results = summary.results
+    skipped = sum(1 for r in results if r.skipped)
+    flagged = sum(1 for r in results if r.p_adjusted is not None and r.p_adjusted < 1 - r.confidence)
+    lines = [
+        f"{summary.path}: {len(results)} analyses of sheet {summary.data_sheet!r} "
+        f"({summary.rows_read:,} rows read, {summary.notes} data notes).",
+        f"  {flagged} with adjusted p below {1 - results[0].confidence:.2g}, {skipped} could not be run."
+        if results
+        else "  No analyses were run.",
+        "  Sheets written: " + ", ".join(summary.write.sheets.values()),
+    ]
+    lines.extend(f"  {m}" for m in summary.messages)
+    return "\n".join(lines)
+
+
+def demo_done(folder: str) -> str:
+    return f"Open the workbooks in {folder} to see the results sheets; the empty template is there too."
