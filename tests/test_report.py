@@ -23,13 +23,15 @@ from result_builders import (
     sleep_welch_t,
     tukey_trt2_vs_trt1,
 )
+from statmargin.designs.engine import run_answers
+from statmargin.options import build_plan
 from statmargin.plan.model import Settings
 from statmargin.read.table import DataNote, NoteKind, Table, column_index
 from statmargin.results import Estimate, Result
 from statmargin.sheets import report
 from statmargin.sheets.model import STYLES, SheetModel
 from statmargin.sheets.report import ReportContext
-from statmargin.vocabulary import EstimateKind
+from statmargin.vocabulary import EstimateKind, MeasureType
 from statmargin.vocabulary.codes import Reason, Skip, coded
 from statmargin.words import explain
 
@@ -446,14 +448,16 @@ def test_context_settings_reach_the_readings() -> None:
 
 
 def test_context_from_run_fills_from_the_table() -> None:
-    """from_run takes sheet, rows, letters, units, fingerprint and histogram values from the table."""
+    """from_run takes sheet, rows, letters, units and fingerprint from the table, histograms from the samples."""
     frame = pd.read_csv(DATA / "plantgrowth_weight_by_group.csv")  # PlantGrowth (R datasets)
     table = Table.from_frame(frame, sheet="Plant data")
     table.columns["weight"].units = "g"
     table.fingerprint = "f00d"
-    result = anova_result()
+    [answer] = run_answers(table, build_plan(["weight"], ["group"]))
+    result = answer.result
     made = ReportContext.from_run(
-        workbook="plants.xlsx", table=table, results=[result], started=RUN_TIME, share_min_count=5
+        workbook="plants.xlsx", table=table, results=[result], samples=[answer.prepared.samples],
+        started=RUN_TIME, share_min_count=5,
     )
     assert (made.data_sheet, made.rows_read, made.rows_used) == ("Plant data", 30, 30)
     assert made.units == {"weight": "g"} and made.column_letters == {"weight": "A", "group": "B"}
@@ -465,22 +469,17 @@ def test_context_from_run_fills_from_the_table() -> None:
 
 
 def test_samples_follow_the_design() -> None:
-    """Histogram values: one sample, two measures, and groups matched by their labels."""
+    """Histogram values from each design: one sample, groups by their labels, none for a table."""
     frame = pd.read_csv(DATA / "mtcars_cyl_by_gear.csv")  # mtcars (R datasets)
     table = Table.from_frame(frame, sheet="cars")
-    one = Result(outcome="mpg", exposure=None, design="one_sample_continuous", test="one_sample_t")
-    assert len(report.samples_from_table(one, table)["mpg"]) == 32
-    by_gear = Result(
-        outcome="mpg",
-        exposure="gear",
-        design="multi_group_continuous",
-        test="one_way_anova",
-        groups=[{"label": "3", "n": 15}, {"label": "4", "n": 12}, {"label": "5", "n": 5}],
-    )
-    counts = {k: len(v) for k, v in report.samples_from_table(by_gear, table).items()}
+    plan = build_plan(["mpg"], against={"mpg": "20"})
+    [one] = run_answers(table, plan)
+    assert len(one.prepared.samples["mpg"]) == 32
+    [by_gear] = run_answers(table, build_plan(["mpg"], ["gear"], treat={"gear": (MeasureType.CATEGORICAL, None)}))
+    counts = {k: len(v) for k, v in by_gear.prepared.samples.items()}
     assert counts == {"3": 15, "4": 12, "5": 5}  # R: table(mtcars$gear)
-    crosstab = crosstab_result()
-    assert report.samples_from_table(crosstab, table) == {}
+    [crosstab] = run_answers(table, build_plan(["cyl"], ["gear"]))
+    assert crosstab.prepared.samples == {}
 
 
 def test_parse_log_rows_reads_back_a_written_log() -> None:
@@ -614,14 +613,16 @@ def test_incomplete_pairs_reach_the_notes_sheet() -> None:
 
 def test_sheets_from_the_engine_on_r_data() -> None:
     """End to end on PlantGrowth: the engine's results become linked, charted sheets."""
-    from statmargin.designs.engine import analyze
+    from statmargin.words.explain import apply
 
     table = Table.from_frame(
         pd.read_csv(DATA / "plantgrowth_weight_by_group.csv"), sheet="Plant data"
     )
-    results = analyze(table, outcome="weight", by="group")
+    answers = run_answers(table, build_plan(["weight"], ["group"]))
+    results = apply([a.result for a in answers], Settings())
     made = ReportContext.from_run(
-        workbook="plants.xlsx", table=table, results=results, started=RUN_TIME
+        workbook="plants.xlsx", table=table, results=results,
+        samples=[a.prepared.samples for a in answers], started=RUN_TIME,
     )
     models = report.build_sheets(results, table, made)
     results_model, shape = models[0], models[1]

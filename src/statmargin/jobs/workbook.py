@@ -22,6 +22,7 @@ from ..plan.roles_sheet import KIND as ROLES_KIND
 from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
 from ..read.table import Table
 from ..vocabulary import MeasureType, Role
+from ..words import console
 
 # Called as each step starts; during the analyses also with (done, total) so a
 # front end can draw a progress bar.
@@ -245,7 +246,7 @@ def run_workbook(
     progress
         Called with a short message as each step starts.
     """
-    from ..designs.engine import run_plan
+    from ..designs.engine import run_answers
     from ..read.reader import read_table
     from ..sheets import report
     from ..words.explain import apply as explain_results
@@ -265,16 +266,18 @@ def run_workbook(
     plan = roles.plan
     _check_roles(plan, roles)
     used = _used_columns(plan)
-    say(f"reading sheet {plan.sheet!r}")
+    say(console.reading_sheet(plan.sheet))
     table = read_table(path, sheet=plan.sheet, header_row=plan.header_row, columns=used, source=source)
-    say(f"running analyses on {len(table.rows):,} rows")
-    results = run_plan(
-        table, plan, progress=lambda done, total: say("running analyses", done=done, total=total)
+    say(console.running_on_rows(len(table.rows)))
+    answers = run_answers(
+        table, plan, progress=lambda done, total: say(console.RUNNING, done=done, total=total)
     )
+    results = [answer.result for answer in answers]
     context = report.ReportContext.from_run(
         workbook=Path(path).name,
         table=table,
         results=results,
+        samples=[answer.prepared.samples for answer in answers],
         settings=plan.settings,
         version=__version__,
         started=datetime.now(timezone.utc),
@@ -282,7 +285,7 @@ def run_workbook(
         share_min_count=(min_count or _default_min_count()) if share else None,
     )
     explain_results(results, plan.settings, context)
-    say("writing results sheets")
+    say(console.WRITING)
     previous_log = _previous_log_rows(source)
     models = report.build_sheets(results, table, context, previous_log=previous_log)
     if share:

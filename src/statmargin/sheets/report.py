@@ -20,7 +20,7 @@ import numpy as np
 
 from .._version import __version__
 from ..plan.model import Settings
-from ..read.table import Column, DataNote, Table, column_letter
+from ..read.table import DataNote, Table, column_letter
 from ..results import Result
 from ..vocabulary import Design
 from ..words import explain
@@ -75,6 +75,7 @@ class ReportContext:
         workbook: str,
         table: Table | None = None,
         results: Sequence[Result] = (),
+        samples: Sequence[Mapping[str, Sequence[float]]] = (),
         settings: Settings | None = None,
         version: str = __version__,
         started: datetime | None = None,
@@ -90,10 +91,12 @@ class ReportContext:
             The workbook's file name.
         table : Table, optional
             The data as read: sheet, header row, rows read, fingerprint, column
-            letters and units come from it, and the histogram values
-            (``samples_from_table``) for each result.
+            letters and units come from it.
         results : sequence of Result
             The run's results; rows used is the largest ``n`` among them.
+        samples : sequence of mappings, optional
+            The values behind each result, by group label (``designs.base.Prepared.samples``),
+            in the order of ``results``; what the histograms draw.
         settings : Settings, optional
         version : str
         started : datetime, optional
@@ -108,16 +111,16 @@ class ReportContext:
         del seconds  # the run time shown is the start time
         unit_map: dict[str, str] = dict(units or {})
         letters: dict[str, str] = {}
-        samples: dict[tuple[str, str, str], Mapping[str, Sequence[float]]] = {}
         if table is not None:
             for name, column in table.columns.items():
                 letters[name] = column.letter
                 if column.units and name not in unit_map:
                     unit_map[name] = column.units
-            for result in results:
-                values = samples_from_table(result, table)
-                if values:
-                    samples[analysis_key(result)] = values
+        drawn = {
+            analysis_key(result): values
+            for result, values in zip(results, samples, strict=False)
+            if values and not result.skipped
+        }
         used = max((int(r.n) for r in results if not r.skipped), default=0)
         return cls(
             workbook=workbook,
@@ -133,7 +136,7 @@ class ReportContext:
             share_min_count=share_min_count if share_min_count is not None else DEFAULT_MIN_COUNT,
             link_sheet=table.sheet if table is not None else None,
             column_letters=letters,
-            samples=samples,
+            samples=drawn,
             fingerprint=table.fingerprint if table is not None else "",
         )
 
@@ -453,101 +456,6 @@ def results_sheet(
     if not results:
         model.put(row, 0, "No analyses were run: no column has the role 'outcome'.", "muted")
     return model
-
-
-# ---------------------------------------------------------------- values for histograms
-
-
-def _row_labels(column: Column) -> list[str | None]:
-    """Each row's category label: text stripped, whole numbers without a decimal point."""
-    out: list[str | None] = []
-    for number, label in zip(column.numbers, column.labels, strict=True):
-        if label is not None and str(label).strip():
-            out.append(str(label).strip())
-        elif math.isfinite(number):
-            out.append(str(int(number)) if float(number).is_integer() else repr(float(number)))
-        else:
-            out.append(None)
-    return out
-
-
-def _grouped(numbers: Column, groups: Column, levels: Sequence[str]) -> dict[str, list[float]]:
-    wanted = set(levels)
-    out: dict[str, list[float]] = {level: [] for level in levels}
-    for value, label in zip(numbers.numbers, _row_labels(groups), strict=True):
-        if label in wanted and math.isfinite(value):
-            out[label].append(float(value))
-    return out
-
-
-def samples_from_table(result: Result, table: Table) -> dict[str, list[float]]:
-    """The values behind a continuous analysis, by group, for its histogram.
-
-    Parameters
-    ----------
-    result : Result
-    table : Table
-        The data as read.
-
-    Returns
-    -------
-    dict
-        Group label (or column name) -> values; empty when the analysis is not
-        continuous, was skipped, or its columns or groups cannot be matched.
-
-    Notes
-    -----
-    Groups are matched by the labels in ``result.groups`` (the outcome may be the
-    grouping column when the engine swapped roles). Rows are taken as read, so
-    ordinal ranks or rows the engine left out for other reasons may make the
-    counts differ slightly from the analysis n; the bins are then not tied to n
-    in sharing mode's sum checks.
-    """
-    if result.skipped or result.design in (
-        Design.ONE_SAMPLE_CATEGORICAL,
-        Design.TWO_CATEGORICAL,
-        Design.PAIRED_CATEGORICAL,
-    ):
-        return {}
-    columns = table.columns
-    outcome, exposure = columns.get(result.outcome or ""), columns.get(result.exposure or "")
-    labels = [
-        str(g.get("label"))
-        for g in result.groups
-        if isinstance(g, Mapping) and g.get("label") is not None
-    ]
-    if result.design == Design.ONE_SAMPLE_CONTINUOUS and outcome is not None:
-        return {outcome.name: [float(v) for v in outcome.numbers if math.isfinite(v)]}
-    if result.design == Design.TWO_CONTINUOUS and outcome is not None and exposure is not None:
-        both = np.isfinite(outcome.numbers) & np.isfinite(exposure.numbers)
-        return {
-            outcome.name: outcome.numbers[both].tolist(),
-            exposure.name: exposure.numbers[both].tolist(),
-        }
-    if (
-        result.design in (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS)
-        and outcome
-        and exposure
-        and labels
-    ):
-        for numbers, groups in ((outcome, exposure), (exposure, outcome)):
-            found = _grouped(numbers, groups, labels)
-            if any(found.values()):
-                return found
-        return {}
-    if result.design == Design.PAIRED_CONTINUOUS and outcome is not None:
-        if exposure is not None:
-            levels = list(explain.two_labels(result))
-            found = _grouped(outcome, exposure, levels)
-            return found if all(found.values()) else {}
-        second = columns.get(result.pairing or "")
-        if second is not None:
-            both = np.isfinite(outcome.numbers) & np.isfinite(second.numbers)
-            return {
-                outcome.name: outcome.numbers[both].tolist(),
-                second.name: second.numbers[both].tolist(),
-            }
-    return {}
 
 
 # ---------------------------------------------------------------- shape sheet
