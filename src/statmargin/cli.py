@@ -37,7 +37,7 @@ def _set_debug(ctx: click.Context, _param: click.Parameter, value: bool) -> bool
 
 debug_option = click.option(
     "--debug", is_flag=True, expose_value=False, is_eager=True, callback=_set_debug,
-    help="Show the full traceback when something goes wrong.",
+    help=console.HELP["debug"],
 )
 
 
@@ -80,46 +80,44 @@ def _old_spelling(new: str, param_name: str) -> Callable[[click.Context, click.P
 
 sheet_option = click.option(
     "--sheet", metavar="NAME", default=None,
-    help="Data sheet (default: the first sheet with data).",
+    help=console.HELP["sheet"],
 )
 treat_option = click.option(
     "--treat", metavar="COL=TYPE", multiple=True,
-    help="Set a column's type: categorical, continuous or ordinal (ordinal may list labels: "
-         "pain=ordinal:none,mild,severe). Repeatable.",
+    help=console.HELP["treat"],
 )
 shape_option = click.option(
     "--shape", type=click.Choice(["auto", "normal", "rank"]), default="auto", show_default=True,
-    help="Let the shape checks choose the test, or fix it to normal-based or rank-based.",
+    help=console.HELP["shape"],
 )
 alternative_option = click.option(
     "--alternative", type=click.Choice(["two-sided", "greater", "less"]), default="two-sided",
-    show_default=True, help="Direction of the question.",
+    show_default=True, help=console.HELP["alternative"],
 )
 confidence_option = click.option(
-    "--confidence", type=float, default=0.95, show_default=True, help="Confidence level of intervals.",
+    "--confidence", type=float, default=0.95, show_default=True, help=console.HELP["confidence"],
 )
 adjust_option = click.option(
     "--adjust", type=click.Choice(["holm", "benjamini-hochberg", "none"]), default="holm", show_default=True,
-    help="P-value adjustment across the analyses of this run.",
+    help=console.HELP["adjust"],
 )
 json_option = click.option(
     "--json", "json_path", metavar="PATH|-", default=None,
-    help="Also write the results as JSON to PATH ('-' for standard output, without the summary).",
+    help=console.HELP["json"],
 )
-outcome_option = click.option("--outcome", metavar="COL", multiple=True, help="Outcome column (repeatable).")
-by_option = click.option("--by", metavar="COL", multiple=True, help="Compare-by column (repeatable).")
+outcome_option = click.option("--outcome", metavar="COL", multiple=True, help=console.HELP["outcome"])
+by_option = click.option("--by", metavar="COL", multiple=True, help=console.HELP["by"])
 against_option = click.option(
     "--against", metavar="[COL=]VALUE", multiple=True,
-    help="Compare an outcome with a fixed value: a number, or LABEL=SHARE / A=0.25,B=0.75 for categories; "
-         "COL= names the outcome (e.g. Score=85). Repeatable.",
+    help=console.HELP["against"],
 )
 pairing_key_option = click.option(
     "--pairing-key", metavar="COL", default=None,
-    help="Key of long-form pairs (with --by naming the two conditions).",
+    help=console.HELP["pairing_key"],
 )
 paired_with_option = click.option(
     "--paired-with", metavar="[COL=]COL2", multiple=True,
-    help="Second measurement column of wide-form pairs; COL= names the outcome it pairs. Repeatable.",
+    help=console.HELP["paired_with"],
 )
 # Old spellings, kept for one release: test --paired-by, plan --pair.
 paired_by_alias = click.option(
@@ -132,9 +130,9 @@ pair_alias = click.option(
 )
 out_option = click.option(
     "--out", metavar="PATH", type=click.Path(dir_okay=False, path_type=Path), default=None,
-    help="Write to this new file and leave WORKBOOK untouched.",
+    help=console.HELP["out"],
 )
-quiet_option = click.option("--quiet", is_flag=True, help="No progress lines.")
+quiet_option = click.option("--quiet", is_flag=True, help=console.HELP["quiet"])
 
 
 def check_json_target(path: str | None, *protect: Path | None) -> None:
@@ -252,7 +250,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @main.command("plan")
 @click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
 @sheet_option
-@click.option("--header-row", type=int, default=None, metavar="N", help="Row of the headers (default: first non-empty row).")
+@click.option("--header-row", type=int, default=None, metavar="N", help=console.HELP["header_row"])
 @outcome_option
 @by_option
 @pairing_key_option
@@ -290,9 +288,9 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 @main.command("run")
 @click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
 @out_option
-@click.option("--share", is_flag=True, help="Sharing mode: hide small counts in the tool's sheets.")
+@click.option("--share", is_flag=True, help=console.HELP["share"])
 @click.option("--min-count", type=click.IntRange(min=2), default=None, metavar="N",
-              help="Sharing mode: hide counts below N (default 11, a common public-health practice).")
+              help=console.HELP["min_count"])
 @json_option
 @quiet_option
 @debug_option

@@ -61,7 +61,7 @@ class TwoGroupContinuous(DesignSpec):
             return
         levels = list(prepared.groups)
         ps = probability_of_superiority(prepared.groups[levels[0]], prepared.groups[levels[1]])
-        result.extra["probability_of_superiority"] = ps
+        result.extra[EffectKind.PROBABILITY_OF_SUPERIORITY.value] = ps
         result.extra["probability_of_superiority_levels"] = [levels[0], levels[1]]
         if ordinal and result.effect is not None and result.effect.kind is EffectKind.RANK_BISERIAL:
             # For ordered labels the chance that a record of the first group ranks above one

@@ -11,6 +11,7 @@ from importlib import resources
 from pathlib import Path
 
 from ..errors import WorkbookError
+from ..words import refusals
 from .workbook import Progress, RunSummary, run_workbook
 
 DEMO_WORKBOOKS = ("inspections_demo.xlsx", "outreach_demo.xlsx")
@@ -21,9 +22,7 @@ def packaged_file(name: str) -> Path:
     """Path of a workbook bundled with the package."""
     path = Path(str(resources.files("statmargin") / "data" / name))
     if not path.is_file():
-        raise WorkbookError(
-            f"The bundled workbook {name!r} is missing from this installation; reinstall statmargin."
-        )
+        raise WorkbookError(refusals.demo_file_missing(repr(name)))
     return path
 
 
@@ -37,7 +36,7 @@ def run_demo(folder: str | Path = "statmargin-demo", *, progress: Progress | Non
     try:
         target.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
-        raise WorkbookError(f"Cannot make the folder {str(target)!r} ({exc.strerror}); choose another folder.") from None
+        raise WorkbookError(refusals.demo_folder(repr(str(target)), str(exc.strerror))) from None
     summaries = []
     for name in (*DEMO_WORKBOOKS, TEMPLATE):
         dest = target / name

@@ -22,7 +22,7 @@ from ..plan.roles_sheet import KIND as ROLES_KIND
 from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
 from ..read.table import Table
 from ..vocabulary import MeasureType, Role
-from ..words import console
+from ..words import console, refusals
 
 # Called as each step starts; during the analyses also with (done, total) so a
 # front end can draw a progress bar.
@@ -259,10 +259,7 @@ def run_workbook(
     sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
     roles = read_roles(source)
     if roles is None:
-        raise RoleError(
-            f"{Path(path).name} has no roles sheet yet; run 'statmargin plan {Path(path).name}' first "
-            "and mark at least one outcome column."
-        )
+        raise RoleError(refusals.no_roles_sheet(Path(path).name))
     plan = roles.plan
     _check_roles(plan, roles)
     used = _used_columns(plan)
@@ -313,16 +310,10 @@ def _default_min_count() -> int:
 def _check_roles(plan: Plan, roles: RolesSheet) -> None:
     outcomes = [c for c in plan.columns if c.role is Role.OUTCOME]
     if not outcomes:
-        raise RoleError(
-            "No column has the role 'outcome' on the roles sheet; pick 'outcome' in the Role column "
-            "for at least one column, save, and run again."
-        )
+        raise RoleError(refusals.no_outcome_on_sheet())
     gone = [c.name for c in plan.columns if c.name in roles.missing and c.role is not Role.IGNORE]
     if gone:
-        raise RoleError(
-            f"Column {gone[0]!r} has a role but is no longer in the data; run 'statmargin plan' "
-            "to refresh the roles sheet, or set its role to 'ignore'."
-        )
+        raise RoleError(refusals.role_for_missing_column(gone[0]))
 
 
 def _used_columns(plan: Plan) -> list[str]:

@@ -900,7 +900,7 @@ def chi_square_independence(
     estimate = None
     if is_2x2:
         estimate = _difference_of_shares(counts, row_labels, col_labels, confidence=confidence)
-        extra["odds_ratio"] = _woolf_odds_ratio(counts, confidence, col_labels, row_labels)
+        extra[EffectKind.ODDS_RATIO.value] = _woolf_odds_ratio(counts, confidence, col_labels, row_labels)
 
     return Result(
         outcome="",

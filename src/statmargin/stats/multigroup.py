@@ -110,7 +110,7 @@ def _share_of_variance(
     low, high = effects.variance_share_interval(classic_f, df1, df2, n_total, confidence)
     effect = Effect(EffectKind.ETA_SQUARED, effects.eta_squared(between, between + within), low, high)
     omega = {
-        "omega_squared": effects.omega_squared(between, within, k, n_total),
+        EffectKind.OMEGA_SQUARED.value: effects.omega_squared(between, within, k, n_total),
         "omega_squared_ci": [low, high],
     }
     return effect, omega

@@ -161,3 +161,27 @@ def run_summary(summary: Any) -> str:
 
 def demo_done(folder: str) -> str:
     return f"Open the workbooks in {folder} to see the results sheets; the empty template is there too."
+
+
+# ---------------------------------------------------------------- option help
+
+HELP: dict[str, str] = {
+    'debug': 'Show the full traceback when something goes wrong.',
+    'sheet': 'Data sheet (default: the first sheet with data).',
+    'treat': "Set a column's type: categorical, continuous or ordinal (ordinal may list labels: pain=ordinal:none,mild,severe). Repeatable.",
+    'shape': 'Let the shape checks choose the test, or fix it to normal-based or rank-based.',
+    'alternative': 'Direction of the question.',
+    'confidence': 'Confidence level of intervals.',
+    'adjust': 'P-value adjustment across the analyses of this run.',
+    'json': "Also write the results as JSON to PATH ('-' for standard output, without the summary).",
+    'outcome': 'Outcome column (repeatable).',
+    'by': 'Compare-by column (repeatable).',
+    'against': 'Compare an outcome with a fixed value: a number, or LABEL=SHARE / A=0.25,B=0.75 for categories; COL= names the outcome (e.g. Score=85). Repeatable.',
+    'pairing_key': 'Key of long-form pairs (with --by naming the two conditions).',
+    'paired_with': 'Second measurement column of wide-form pairs; COL= names the outcome it pairs. Repeatable.',
+    'out': 'Write to this new file and leave WORKBOOK untouched.',
+    'quiet': 'No progress lines.',
+    'header_row': 'Row of the headers (default: first non-empty row).',
+    'share': "Sharing mode: hide small counts in the tool's sheets.",
+    'min_count': 'Sharing mode: hide counts below N (default 11, a common public-health practice).',
+}

@@ -197,6 +197,35 @@ def outcome_alone(name: str) -> str:
     )
 
 
+def no_roles_sheet(workbook: str) -> str:
+    return (
+        f"{workbook} has no roles sheet yet; run 'statmargin plan {workbook}' first and mark at least one "
+        "outcome column."
+    )
+
+
+def no_outcome_on_sheet() -> str:
+    return (
+        "No column has the role 'outcome' on the roles sheet; pick 'outcome' in the Role column for at "
+        "least one column, save, and run again."
+    )
+
+
+def role_for_missing_column(name: str) -> str:
+    return (
+        f"Column {name!r} has a role but is no longer in the data; run 'statmargin plan' to refresh the "
+        "roles sheet, or set its role to 'ignore'."
+    )
+
+
+def demo_file_missing(name: str) -> str:
+    return f"The bundled workbook {name} is missing from this installation; reinstall statmargin."
+
+
+def demo_folder(folder: str, reason: str) -> str:
+    return f"Cannot make the folder {folder} ({reason}); choose another folder."
+
+
 def not_a_frame(kind: str | None = None) -> str:
     if kind is None:
         return "data must be a pandas DataFrame or a statmargin Table."
