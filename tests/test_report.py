@@ -33,7 +33,7 @@ from statmargin.sheets.model import STYLES, SheetModel
 from statmargin.sheets.report import ReportContext
 from statmargin.vocabulary import EstimateKind, MeasureType
 from statmargin.vocabulary.codes import Reason, Skip, coded
-from statmargin.words import explain
+from statmargin.words import cautions, explain
 
 DATA = Path(__file__).parent / "reference" / "data"
 RUN_TIME = datetime(2026, 12, 2, 3, 0, 0, tzinfo=timezone.utc)
@@ -729,7 +729,7 @@ def test_row_cautions_keep_what_is_specific_to_the_row() -> None:
     model = report.results_sheet(results, context())
     top = header_row(model)
     first = model.cells[(top + 1, report.COL["Cautions"])].value
-    assert explain.SMALL_GROUPS_LINE.format(limit=explain.SMALL_GROUP_LIMIT) in first
+    assert cautions.SMALL_GROUPS_LINE.format(limit=cautions.SMALL_GROUP_LIMIT) in first
     assert explain.REVIEW_LINE not in first
     assert model.cells[(top + 1, report.COL["Cautions"])].style == "wrap"
 

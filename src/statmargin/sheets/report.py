@@ -23,7 +23,8 @@ from ..plan.model import Settings
 from ..read.table import DataNote, Table, column_letter
 from ..results import Result
 from ..vocabulary import Design
-from ..words import explain
+from ..words import context as words_context
+from ..words import explain, technical
 from ..words.sentences import say, say_all
 from .model import Cell, Chart, ChartSeries, SheetModel
 from .share import DEFAULT_MIN_COUNT, suppress
@@ -901,7 +902,7 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
             row, chart = _put_crosstab(model, row, result)
             if chart:
                 charts.append(chart)
-        spread = explain.spread_check(result)
+        spread = technical.spread_check(result)
         if spread is not None:
             # The check's name runs on into the empty column C.
             model.put(row, 0, "Spread check", "label")
@@ -912,7 +913,7 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
             _value(model, row, 6, spread.get("p_value"), "p_value", False)
             row += 2
         samples = _samples_for(result, context)
-        units = explain.units_for(context, result.outcome)
+        units = words_context.units_for(context, result.outcome)
         if samples and result.design == Design.TWO_CONTINUOUS:
             for name, values in samples.items():
                 row, chart = _put_histogram(
@@ -921,7 +922,7 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
                     f"{name}: distribution",
                     {name: values},
                     {},
-                    explain.units_for(context, name),
+                    words_context.units_for(context, name),
                 )
                 charts.append(chart)
         elif samples:

@@ -1,0 +1,88 @@
+"""Readings of follow-up comparisons: pairs of groups after a clear overall result, cells of a table."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from ..plan.model import Settings
+from ..results import Followup, Result
+from ..vocabulary import EstimateKind, Test
+from . import context as ctx
+from .numbers import ci_label, decimals_for, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
+
+
+def followup_label(followup: Followup) -> str:
+    """'North vs South' (or 'Yes with North' for a table cell)."""
+    levels = [str(x) for x in followup.levels]
+    if followup.test == Test.ADJUSTED_RESIDUAL and len(levels) == 2:
+        return f"{levels[0]} with {levels[1]}"
+    return " vs ".join(levels)
+
+
+def followup_reading(
+    followup: Followup, parent: Result, *, settings: Settings, context: Any = None
+) -> str:
+    """A plain sentence for one follow-up comparison.
+
+    Parameters
+    ----------
+    followup : Followup
+    parent : Result
+        The analysis it follows (for the outcome, its units and the confidence).
+    settings : Settings
+    context : optional
+        Units per column.
+
+    Returns
+    -------
+    str
+    """
+    outcome = parent.outcome or "the outcome"
+    if followup.test == Test.ADJUSTED_RESIDUAL:
+        z = followup.statistic
+        if not is_number(z):
+            return f"{followup_label(followup)}: no residual could be computed."
+        more = "more" if z > 0 else "fewer"
+        flag = (
+            " (stands out: beyond 2 in size)"
+            if abs(z) > 2
+            else " (within the range expected by chance)"
+        )
+        return (
+            f"{followup_label(followup)}: {more} records than expected if {outcome} and "
+            f"{parent.exposure or 'the groups'} were unrelated; adjusted residual "
+            f"{fmt_number(z, 2)}{flag}."
+        )
+    units = ctx.display_units(context, parent.outcome)
+    p = followup.p_adjusted if is_number(followup.p_adjusted) else followup.p_value
+    p_word = "adjusted p" if is_number(followup.p_adjusted) else "p"
+    p_text = fmt_p(p).replace("p ", f"{p_word} ", 1)
+    est = followup.estimate
+    first, second = (list(followup.levels) + ["", ""])[:2]
+    size = ""
+    if est is not None and is_number(est.value):
+        value, low, high = est.value, est.ci_low, est.ci_high
+        if value < 0:
+            first, second = second, first
+            value, low, high = (
+                -value,
+                (-high if is_number(high) else None),
+                (-low if is_number(low) else None),
+            )
+        decimals = decimals_for(value, low, high)
+        ci = fmt_ci(low, high, decimals)
+        ci_part = f" ({ci_label(parent.confidence)} {ci})" if ci else ""
+        # A Hodges-Lehmann shift is a typical difference, not a difference in means.
+        typically = "typically " if est.kind is EstimateKind.LOCATION_SHIFT else ""
+        suffix = f" {units}" if units else ""
+        size = (
+            f"{outcome} {typically}{fmt_number(value, decimals)}{suffix} higher in {first} "
+            f"than in {second}{ci_part}; "
+        )
+    significant = is_number(p) and p < settings.alpha
+    verdict = (
+        f"{evidence_words(p)} of a difference" if significant else "compatible with no difference"
+    )
+    return f"{followup_label(followup)}: {size}{verdict} ({p_text})."
+
+

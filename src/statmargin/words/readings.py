@@ -1,0 +1,606 @@
+"""The reading of a result: two or three plain lines a manager can act on, and its headline.
+
+Line one gives the figures people ask for first: the rate in each group for
+a yes/no outcome, the mean or median in each group in the outcome's units, the
+share against its target. Line two gives the answer: the difference (or
+estimate) with its interval and the strength of evidence, from the adjusted
+p-value when there is one. A third line, when it helps, gives the size by a
+common rule of thumb. Test names, effect-size names and their sources stay on
+the shape-check sheet (``technical``).
+
+Nothing here says a result "proves" anything; a result that is not
+statistically clear is read as "compatible with no difference", never as "no
+difference". Numbers in one reading share one number of decimals, taken from
+the outcome's own precision when the run knows it.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+from ..plan.model import Settings
+from ..results import Result
+from ..vocabulary import AdjustMethod, Design, EstimateKind, Test
+from . import context as ctx
+from .magnitude import NEGLIGIBLE, Magnitude, magnitude
+from .numbers import ci_label, decimals_for, evidence_words, fmt_number, fmt_p, is_number
+from .questions import (
+    ONE_SAMPLE,
+    PAIRED,
+    group_labels,
+    named,
+    question,
+    share_label_and_target,
+    two_labels,
+    wide_pair,
+)
+from .sentences import capitalized, say
+
+SHARE_HIDDEN_READING = (
+    "The numbers for this analysis are hidden in sharing mode because some counts are small; "
+    'the question was "{question}".'
+)
+# Groups listed by name in a reading; more are summarised by their range.
+MAX_LISTED_GROUPS = 6
+RANK_TESTS = (Test.MANN_WHITNEY_U, Test.KRUSKAL_WALLIS, Test.WILCOXON_SIGNED_RANK, Test.SPEARMAN_RHO)
+
+
+@dataclass(frozen=True)
+class Headline:
+    """One line of the results sheet's answer block."""
+
+    question: str
+    answer: str  # the figures or the finding, in words
+    size: str  # the estimate with its interval, in the outcome's units
+    evidence: str  # the strength of evidence with its p-value
+    not_run: str = ""  # the reason, when no test could be run
+
+
+# ---------------------------------------------------------------- small pieces
+
+
+def p_used(result: Result) -> tuple[float | None, bool]:
+    """The p-value the reading uses (adjusted when present) and whether it is adjusted."""
+    if is_number(result.p_adjusted):
+        return float(result.p_adjusted), True
+    return (float(result.p_value) if is_number(result.p_value) else None), False
+
+
+def _units(context: Any, column: str | None) -> str:
+    units = ctx.display_units(context, column)
+    return f" {units}" if units else ""
+
+
+def _decimals(context: Any, column: str | None, *values: Any, extra: int = 1) -> int:
+    """One number of decimals for a reading: the column's precision plus ``extra``, else 3 digits."""
+    own = ctx.column_decimals(context, column)
+    if own is None:
+        return decimals_for(*values)
+    shown = [float(v) for v in values if is_number(v)]
+    if extra and shown and all(round(v, own) == v for v in shown):
+        extra = 0  # medians and shifts of whole numbers stay whole
+    return min(own + extra, 4)
+
+
+def _n(number: Any, decimals: int) -> str:
+    return fmt_number(number, decimals)
+
+
+def _percent(share: Any, decimals: int = 0) -> str:
+    if not is_number(share):
+        return "hidden"
+    return f"{float(share) * 100:.{decimals}f}%"
+
+
+def _share_decimals(*shares: Any) -> int:
+    """Whole percentages, one decimal when a share is within 10 points of 0% or 100%."""
+    values = [float(s) for s in shares if is_number(s)]
+    return 1 if any(v < 0.1 or v > 0.9 for v in values) else 0
+
+
+def _family_tail(result: Result, settings: Settings, n_family: int | None) -> str:
+    _, adjusted = p_used(result)
+    if not adjusted or settings.adjust is AdjustMethod.NONE:
+        return ""
+    if n_family and n_family > 1:
+        return f" after allowing for the {n_family} questions in this run"
+    if n_family is None:
+        return " after allowing for the other questions in this run"
+    return ""
+
+
+def _one_sided(result: Result) -> bool:
+    return result.alternative in ("greater", "less")
+
+
+def _interval(result: Result, low: Any, high: Any, decimals: int, units: str = "", scale: float = 1.0) -> str:
+    """'95% CI 2.1 to 9.1 minutes', or the one-sided bound, or '' without bounds."""
+    label = ci_label(result.confidence)
+    lo = float(low) * scale if is_number(low) else None
+    hi = float(high) * scale if is_number(high) else None
+    if lo is not None and hi is not None:
+        return f"{label} {_n(lo, decimals)} to {_n(hi, decimals)}{units}"
+    if lo is not None:
+        return f"one-sided {label}: at least {_n(lo, decimals)}{units}"
+    if hi is not None:
+        return f"one-sided {label}: at most {_n(hi, decimals)}{units}"
+    return ""
+
+
+def _excludes_null(low: Any, high: Any, null: float = 0.0) -> bool:
+    if is_number(low) and float(low) > null:
+        return True
+    return is_number(high) and float(high) < null
+
+
+@dataclass(frozen=True)
+class _Evidence:
+    significant: bool
+    words: str
+    p_text: str
+
+
+def _evidence(result: Result, settings: Settings, n_family: int | None) -> _Evidence:
+    p, _ = p_used(result)
+    p_text = fmt_p(p) + _family_tail(result, settings, n_family)
+    return _Evidence(is_number(p) and p < settings.alpha, evidence_words(p), p_text)
+
+
+def _verdict(ev: _Evidence, noun: str, *, interval_excludes: bool) -> str:
+    """'strong evidence of a difference (p = 0.004)' or the compatible-with-no-difference clause."""
+    if ev.significant:
+        return f"{ev.words} of {noun} ({ev.p_text})"
+    if interval_excludes:
+        return (
+            f"the interval leaves out no {noun.split()[-1]}, but the evidence is weak once the other "
+            f"questions are allowed for ({ev.p_text})"
+        )
+    return f"with {ev.words} ({ev.p_text}) the data are compatible with no {noun.split()[-1]}"
+
+
+# ---------------------------------------------------------------- figures by design
+
+
+def _group_stat(result: Result, key: str) -> list[tuple[str, Any, Any]]:
+    rows = []
+    for g in result.groups:
+        if isinstance(g, Mapping) and g.get("label") is not None and key in g:
+            rows.append((str(g["label"]), g.get(key), g.get("n", g.get("count"))))
+    return rows
+
+
+def _centre_key(result: Result) -> str:
+    return "median" if result.test in RANK_TESTS else "mean"
+
+
+def _listed(rows: Sequence[tuple[str, str]], by: str | None) -> str:
+    """'North 12.5, South 14.0' or, for many groups, the range with the two extremes named."""
+    if len(rows) <= MAX_LISTED_GROUPS:
+        return ", ".join(f"{label} {value}" for label, value in rows)
+    return f"{len(rows)} groups of {by or 'the groups'}"
+
+
+def _groups_line(result: Result, context: Any) -> tuple[str, int]:
+    """'Mean Wait: North 12.5, South 14.0 minutes.' with the decimals used."""
+    key = _centre_key(result)
+    rows = [(label, value) for label, value, _ in _group_stat(result, key) if is_number(value)]
+    if result.design in PAIRED:
+        rows = rows[:2]  # the third summary is of the differences
+    outcome = result.outcome or "the outcome"
+    values = [v for _, v in rows]
+    decimals = _decimals(context, outcome, *values)
+    units = _units(context, outcome)
+    if not rows:
+        return "", decimals
+    if len(rows) > 2 and len({v for _, v in rows}) == 1:
+        return (
+            f"{key.capitalize()} {outcome} was {_n(rows[0][1], decimals)}{units} in each of the "
+            f"{len(rows)} groups of {result.exposure}."
+        ), decimals
+    if len(rows) > MAX_LISTED_GROUPS:
+        low = min(rows, key=lambda r: r[1])
+        high = max(rows, key=lambda r: r[1])
+        return (
+            f"{key.capitalize()} {outcome} ranged from {_n(low[1], decimals)}{units} ({low[0]}) to "
+            f"{_n(high[1], decimals)}{units} ({high[0]}) across {len(rows)} groups of {result.exposure}."
+        ), decimals
+    shown = [(named(result, label), _n(value, decimals)) for label, value in rows]
+    return f"{key.capitalize()} {outcome}: {_listed(shown, result.exposure)}{units}.", decimals
+
+
+def _two_group_answer(result: Result, settings: Settings, context: Any, n_family: int | None,
+                      decimals: int) -> tuple[str, str, str]:
+    est = result.estimate
+    outcome = result.outcome or "the outcome"
+    units = _units(context, outcome)
+    if est is None or not is_number(est.value):
+        return "", "", ""
+    first, second = (named(result, label) for label in two_labels(result))
+    value, low, high = float(est.value), est.ci_low, est.ci_high
+    if value < 0 and not _one_sided(result):
+        first, second = second, first
+        value, low, high = -value, (-high if is_number(high) else None), (-low if is_number(low) else None)
+    ev = _evidence(result, settings, n_family)
+    typical = est.kind is EstimateKind.LOCATION_SHIFT or est.kind is EstimateKind.PAIRED_PSEUDO_MEDIAN
+    paired = result.design in PAIRED
+    within = f" within the same {_pair_noun(result)}" if paired and not wide_pair(result) else (
+        " on the same records" if paired else ""
+    )
+    where = "at" if paired and not wide_pair(result) else "in"
+    if typical:
+        subject, verb, second = f"Values {where} {first}", "were typically", f"{where} {second}"
+    elif paired and not wide_pair(result):
+        subject, verb, second = f"Mean {outcome} at {first}", "was", f"at {second}"
+    elif paired:
+        subject, verb = f"Mean {first}", "was"
+    else:
+        subject, verb = capitalized(first), "was"
+    interval = _interval(result, low, high, decimals)
+    size = f"{_n(value, decimals)}{units} ({interval})" if interval else f"{_n(value, decimals)}{units}"
+    if value == 0:
+        answer = f"{subject} {verb} the same as {second}{within}"
+    else:
+        answer = f"{subject} {verb} {_n(value, decimals)}{units} higher than {second}{within}"
+    if interval:
+        answer += f" ({interval})"
+    verdict = _verdict(ev, "a difference", interval_excludes=_excludes_null(low, high))
+    return f"{answer}: {verdict}.", size, f"{ev.words} ({ev.p_text})"
+
+
+def _pair_noun(result: Result) -> str:
+    if result.pairing and not wide_pair(result):
+        return result.pairing
+    return "records"
+
+
+def _multi_group_answer(result: Result, settings: Settings, context: Any, n_family: int | None,
+                        decimals: int) -> tuple[str, str, str]:
+    ev = _evidence(result, settings, n_family)
+    outcome, by = result.outcome or "the outcome", result.exposure or "the groups"
+    est = result.estimate
+    units = _units(context, outcome)
+    size = ""
+    gap = ""
+    if est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2:
+        high, low = (named(result, label) for label in est.levels)
+        size = f"{_n(est.value, decimals)}{units}"
+        gap = f"; the widest gap is {high} over {low}, {_n(est.value, decimals)}{units}"
+    if ev.significant:
+        flagged = [f for f in result.followups if f.flagged]
+        pairs = f"; {len(flagged)} of the pairs below stand out" if flagged else ""
+        text = f"{ev.words.capitalize()} that {outcome} differs by {by} ({ev.p_text}){gap}{pairs}."
+    else:
+        text = f"With {ev.words} ({ev.p_text}) the data are compatible with no difference by {by}{gap}."
+    return text, size, f"{ev.words} ({ev.p_text})"
+
+
+# ---------------------------------------------------------------- shares
+
+
+def _rates(result: Result, level: str | None) -> list[tuple[str, Any, Any]]:
+    """(label, share of ``level``, n) for each group of a table."""
+    rows: list[tuple[str, Any, Any]] = []
+    for g in result.groups:
+        if not isinstance(g, Mapping) or g.get("label") is None:
+            continue
+        counts = g.get("counts")
+        n = g.get("n")
+        if isinstance(counts, Mapping) and level is not None and is_number(n) and n > 0:
+            count = counts.get(level)
+            rows.append((str(g["label"]), (count / n) if is_number(count) else None, n))
+        else:
+            rows.append((str(g["label"]), None, n))
+    return rows
+
+
+def _table_levels(result: Result) -> list[str]:
+    observed = result.extra.get("observed") if isinstance(result.extra, Mapping) else None
+    if isinstance(observed, Mapping):
+        cols = observed.get("col_labels")
+        if isinstance(cols, (list, tuple)):
+            return [str(c) for c in cols]
+    counts = result.shape.get("counts") if isinstance(result.shape, Mapping) else None
+    if isinstance(counts, Mapping) and isinstance(counts.get("col_labels"), (list, tuple)):
+        return [str(c) for c in counts["col_labels"]]
+    return []
+
+
+def _event_level(result: Result) -> str | None:
+    est = result.estimate
+    if est is not None and est.level is not None:
+        return est.level
+    levels = _table_levels(result)
+    return levels[0] if len(levels) == 2 else None
+
+
+def _shares_line(result: Result) -> tuple[str, str | None]:
+    """'Share with Result = Fail: 12% in North, 22% in South.' and the level counted."""
+    outcome = result.outcome or "the outcome"
+    level = _event_level(result)
+    if level is None:
+        return f"This compares the mix of {outcome} across the groups of {result.exposure or 'the groups'}.", None
+    rows = _rates(result, level)
+    if not any(is_number(share) for _, share, _ in rows):
+        return "", level
+    decimals = _share_decimals(*[share for _, share, _ in rows])
+    shown = [(f"in {named(result, label)}", _percent(share, decimals)) for label, share, _ in rows]
+    if len(shown) > MAX_LISTED_GROUPS:
+        known = [(label, share) for label, share, _ in rows if is_number(share)]
+        low = min(known, key=lambda r: r[1])
+        high = max(known, key=lambda r: r[1])
+        return (
+            f"Share with {outcome} = {level} ranged from {_percent(low[1], decimals)} ({low[0]}) to "
+            f"{_percent(high[1], decimals)} ({high[0]}) across {len(rows)} groups of {result.exposure}."
+        ), level
+    listed = ", ".join(f"{value} {where}" for where, value in shown)
+    return f"Share with {outcome} = {level}: {listed}.", level
+
+
+def _share_difference_answer(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
+    est = result.estimate
+    ev = _evidence(result, settings, n_family)
+    if est is None or not is_number(est.value):
+        return _table_answer(result, settings, n_family)
+    first, second = (named(result, label) for label in two_labels(result))
+    value, low, high = float(est.value), est.ci_low, est.ci_high
+    if value < 0 and not _one_sided(result):
+        first, second = second, first
+        value, low, high = -value, (-high if is_number(high) else None), (-low if is_number(low) else None)
+    where = "at" if result.design == Design.PAIRED_CATEGORICAL else "in"
+    first, second = f"{where} {first}", f"{where} {second}"
+    decimals = 1
+    interval = _interval(result, low, high, decimals, scale=100.0)
+    points = f"{_n(value * 100, decimals)} percentage points"
+    size = f"{points} ({interval})" if interval else points
+    level = est.level
+    outcome = result.outcome or "the outcome"
+    subject = (
+        f"The share with the value {level}" if level is not None and wide_pair(result)
+        else f"The share with {outcome} = {level}" if level is not None
+        else "The share"
+    )
+    answer = f"{subject} was {points} higher {first} than {second}"
+    if interval:
+        answer += f" ({interval})"
+    verdict = _verdict(ev, "a difference", interval_excludes=_excludes_null(low, high))
+    return f"{answer}: {verdict}.", size, f"{ev.words} ({ev.p_text})"
+
+
+def _table_answer(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
+    ev = _evidence(result, settings, n_family)
+    outcome, by = result.outcome or "the outcome", result.exposure or "the groups"
+    if ev.significant:
+        text = f"{ev.words.capitalize()} that {outcome} differs by {by} ({ev.p_text})."
+    else:
+        text = f"With {ev.words} ({ev.p_text}) the data are compatible with no difference by {by}."
+    return text, "", f"{ev.words} ({ev.p_text})"
+
+
+# ---------------------------------------------------------------- one sample and two measures
+
+
+def _one_share(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str, str]:
+    est = result.estimate
+    outcome = result.outcome or "the outcome"
+    label, target = share_label_and_target(result)
+    ev = _evidence(result, settings, n_family)
+    if est is None or not is_number(est.value):
+        return "", *_table_answer(result, settings, n_family)
+    decimals = _share_decimals(est.value, target)
+    interval = _interval(result, est.ci_low, est.ci_high, decimals, "%", scale=100.0)
+    n = ctx.count_text(result.n)
+    if result.test == Test.BINOMIAL_EXACT:
+        figures = f"{_percent(est.value, decimals)} of {n} records had {outcome} = {label} ({interval})."
+    else:
+        figures = (
+            f"The share furthest from its stated value was {label}: {_percent(est.value, decimals)} of {n} "
+            f"records ({interval})."
+        )
+    if target is None:
+        return figures, f"{ev.words.capitalize()} ({ev.p_text}).", _percent(est.value, decimals), ev.words
+    gap = float(est.value) - target
+    side = "above" if gap >= 0 else "below"
+    points = f"{_n(abs(gap) * 100, 1)} points {side} the stated {_percent(target, decimals)}"
+    low, high = est.ci_low, est.ci_high
+    outside = is_number(low) and is_number(high) and not (float(low) <= target <= float(high))
+    verdict = _verdict(ev, "a difference", interval_excludes=outside)
+    return figures, f"That is {points}: {verdict}.", f"{_percent(est.value, decimals)} ({interval})", ev.words
+
+
+def _one_value(result: Result, settings: Settings, context: Any, n_family: int | None) -> tuple[str, str, str, str]:
+    est = result.estimate
+    outcome = result.outcome or "the outcome"
+    units = _units(context, outcome)
+    ev = _evidence(result, settings, n_family)
+    mu = float(result.against) if is_number(result.against) else None
+    if est is None or not is_number(est.value) or mu is None:
+        return "", f"{ev.words.capitalize()} ({ev.p_text}).", "", ev.words
+    if est.kind is EstimateKind.MEAN_DIFFERENCE_FROM_VALUE:
+        centre, low, high, word = mu + float(est.value), _shift(est.ci_low, mu), _shift(est.ci_high, mu), "Mean"
+    else:
+        centre, low, high, word = float(est.value), est.ci_low, est.ci_high, "Typical"
+    decimals = _decimals(context, outcome, centre, low, high)
+    interval = _interval(result, low, high, decimals)
+    figures = f"{word} {outcome} was {_n(centre, decimals)}{units} ({interval}), against a stated {mu:g}{units}."
+    gap = centre - mu
+    side = "above" if gap >= 0 else "below"
+    outside = is_number(low) and is_number(high) and not (float(low) <= mu <= float(high))
+    verdict = _verdict(ev, "a difference", interval_excludes=outside)
+    answer = f"That is {_n(abs(gap), decimals)}{units} {side} the stated value: {verdict}."
+    return figures, answer, f"{_n(centre, decimals)}{units} ({interval})", ev.words
+
+
+def _shift(value: Any, mu: float) -> float | None:
+    return float(value) + mu if is_number(value) else None
+
+
+def _correlation(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
+    est = result.estimate
+    outcome, by = result.outcome or "the outcome", result.exposure or "the other measure"
+    ev = _evidence(result, settings, n_family)
+    if est is None or not is_number(est.value):
+        return "", "", ev.words
+    kind = "rank correlation" if result.test == Test.SPEARMAN_RHO else "correlation"
+    decimals = 2
+    interval = _interval(result, est.ci_low, est.ci_high, decimals)
+    value = float(est.value)
+    tendency = (
+        f"higher {by} went with higher {outcome}" if value > 0
+        else f"higher {by} went with lower {outcome}" if value < 0
+        else f"{by} and {outcome} did not move together"
+    )
+    figures = f"The {kind} between {outcome} and {by} was {_n(value, decimals)} ({interval}): {tendency}."
+    verdict = _verdict(ev, "an association", interval_excludes=_excludes_null(est.ci_low, est.ci_high))
+    return figures, f"{verdict[:1].upper()}{verdict[1:]}.", f"{_n(value, decimals)} ({interval})"
+
+
+# ---------------------------------------------------------------- size words
+
+
+def _count_sources(result: Result) -> list[Mapping[str, Any]]:
+    """Where counts may sit: the shape checks, their "counts" entry, or ``extra``."""
+    sources: list[Mapping[str, Any]] = []
+    for source in (result.shape, result.extra):
+        if isinstance(source, Mapping):
+            sources.append(source)
+            if isinstance(source.get("counts"), Mapping):
+                sources.append(source["counts"])
+    return sources
+
+
+def min_expected(result: Result) -> float | None:
+    for source in _count_sources(result):
+        if isinstance(source, Mapping) and is_number(source.get("min_expected")):
+            return float(source["min_expected"])
+    return None
+
+
+
+def _table_min_dim(result: Result) -> int | None:
+    """The smaller side of a contingency table, from the expected or observed counts."""
+    for source in (result.shape, result.extra, result.shape.get("counts") if isinstance(result.shape, Mapping) else None):
+        if not isinstance(source, Mapping):
+            continue
+        for key in ("expected", "observed"):
+            table = source.get(key)
+            if isinstance(table, Mapping):
+                table = table.get("values")
+            if isinstance(table, Sequence) and table and isinstance(table[0], Sequence):
+                return min(len(table), len(table[0]))
+    return None
+
+
+def effect_magnitude(result: Result) -> Magnitude | None:
+    """The size word for the result's effect (None when no convention applies)."""
+    eff = result.effect
+    if eff is None:
+        return None
+    return magnitude(eff.kind, eff.value, table_min_dim=_table_min_dim(result))
+
+
+def _size_line(result: Result, settings: Settings) -> str:
+    """'By a common rule of thumb this is a medium difference.' for a clear result with a size word."""
+    p, _ = p_used(result)
+    mag = effect_magnitude(result)
+    if mag is None or not is_number(p) or p >= settings.alpha:
+        return ""
+    if result.estimate is not None and result.estimate.kind in (
+        EstimateKind.SHARE_DIFFERENCE, EstimateKind.PAIRED_SHARE_DIFFERENCE
+    ):
+        return ""  # points of difference speak for themselves; odds-ratio words would mislead
+    noun = "association" if result.design == Design.TWO_CONTINUOUS else (
+        "departure" if result.design in ONE_SAMPLE else "difference"
+    )
+    if mag.word == NEGLIGIBLE:
+        return f"By a common rule of thumb this is a negligible {noun}: judge whether it matters in practice."
+    return f"By a common rule of thumb this is a {mag.word} {noun}."
+
+
+def _one_sided_line(result: Result) -> str:
+    if not _one_sided(result):
+        return ""
+    first, second = two_labels(result)
+    if result.design in ONE_SAMPLE:
+        return f"This was a one-sided question: is the value {'above' if result.alternative == 'greater' else 'below'} the stated one?"
+    direction = "higher" if result.alternative == "greater" else "lower"
+    return f"This was a one-sided question: is {named(result, first)} {direction} than {named(result, second)}?"
+
+
+# ---------------------------------------------------------------- the reading
+
+
+def _parts(result: Result, settings: Settings, context: Any, n_family: int | None) -> tuple[str, str, str, str]:
+    """(figures, answer, size, evidence) for a result that was run."""
+    design = result.design
+    if design in (Design.TWO_GROUP_CONTINUOUS, Design.PAIRED_CONTINUOUS):
+        figures, decimals = _groups_line(result, context)
+        answer, size, evidence = _two_group_answer(result, settings, context, n_family, decimals)
+        return figures, answer, size, evidence
+    if design == Design.MULTI_GROUP_CONTINUOUS:
+        figures, decimals = _groups_line(result, context)
+        answer, size, evidence = _multi_group_answer(result, settings, context, n_family, decimals)
+        return figures, answer, size, evidence
+    if design in (Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL):
+        figures, _ = _shares_line(result)
+        if result.estimate is not None and result.estimate.kind in (
+            EstimateKind.SHARE_DIFFERENCE, EstimateKind.PAIRED_SHARE_DIFFERENCE
+        ):
+            answer, size, evidence = _share_difference_answer(result, settings, n_family)
+        else:
+            answer, size, evidence = _table_answer(result, settings, n_family)
+        return figures, answer, size, evidence
+    if design == Design.ONE_SAMPLE_CATEGORICAL:
+        return _one_share(result, settings, n_family)
+    if design == Design.ONE_SAMPLE_CONTINUOUS:
+        return _one_value(result, settings, context, n_family)
+    if design == Design.TWO_CONTINUOUS:
+        figures, answer, size = _correlation(result, settings, n_family)
+        return figures, answer, size, _evidence(result, settings, n_family).words
+    ev = _evidence(result, settings, n_family)
+    return "", f"{ev.words.capitalize()} ({ev.p_text}).", "", ev.words
+
+
+def _hidden(result: Result) -> bool:
+    hidden = result.extra.get("suppressed", ()) if isinstance(result.extra, Mapping) else ()
+    return "p_value" in hidden
+
+
+def reading(result: Result, *, settings: Settings, context: Any = None, n_comparisons: int | None = None) -> str:
+    """The two- or three-line plain reading of a result (lines separated by newlines).
+
+    Parameters
+    ----------
+    result : Result
+        A finished (or skipped) analysis.
+    settings : Settings
+        Run settings (``alpha`` separates "statistically clear" from not).
+    context : ReportContext or Mapping, optional
+        Supplies ``units`` and ``decimals`` per column (or is itself a dict column -> units).
+    n_comparisons : int, optional
+        How many questions with a p-value the run asked (the family adjusted together).
+    """
+    if result.skipped:
+        return f'No test was run for the question "{question(result)}": {say(result.skipped).rstrip(".")}.'
+    if _hidden(result):
+        return SHARE_HIDDEN_READING.format(question=question(result))
+    figures, answer, _, _ = _parts(result, settings, context, n_comparisons)
+    lines = [line for line in (figures, answer, _one_sided_line(result), _size_line(result, settings)) if line]
+    return "\n".join(lines[:3])
+
+
+def headline(result: Result, *, settings: Settings, context: Any = None, n_comparisons: int | None = None) -> Headline:
+    """The result's line in the answer block: the finding, its size with interval, the evidence."""
+    asked = question(result)
+    if result.skipped:
+        return Headline(asked, "", "", "", not_run=say(result.skipped))
+    if _hidden(result):
+        return Headline(asked, SHARE_HIDDEN_READING.format(question=asked), "", "")
+    figures, answer, size, evidence = _parts(result, settings, context, n_comparisons)
+    return Headline(asked, figures or answer, size, evidence)
+
+
+def group_names(result: Result) -> list[str]:
+    """The result's group labels as readings name them."""
+    return [named(result, label) for label in group_labels(result)]
