@@ -111,6 +111,9 @@ against_option = click.option(
     "--against", metavar="[COL=]VALUE", multiple=True,
     help=console.HELP["against"],
 )
+event_option = click.option(
+    "--event", metavar="[COL=]LEVEL", multiple=True, help=console.HELP["event"],
+)
 pairing_key_option = click.option(
     "--pairing-key", metavar="COL", default=None,
     help=console.HELP["pairing_key"],
@@ -211,6 +214,7 @@ def main() -> None:
 @pairing_key_option
 @paired_by_alias
 @paired_with_option
+@event_option
 @treat_option
 @shape_option
 @alternative_option
@@ -221,8 +225,8 @@ def main() -> None:
 @handle_errors
 def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by: tuple[str, ...],
                  against: tuple[str, ...], pairing_key: str | None, paired_with: tuple[str, ...],
-                 treat: tuple[str, ...], shape: str, alternative: str, confidence: float, adjust: str,
-                 json_path: str | None) -> None:
+                 event: tuple[str, ...], treat: tuple[str, ...], shape: str, alternative: str,
+                 confidence: float, adjust: str, json_path: str | None) -> None:
     """Run the fitting test on a workbook and print the results.
 
     The workbook is only read, never changed.
@@ -235,8 +239,8 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
     check_json_target(json_path, workbook)
     summary = test_workbook(
         workbook, sheet=sheet, outcome=outcome, by=by, against=against,
-        pairing_key=pairing_key or meta.get("old_pairing_key"), paired_with=paired_with, treat=treat,
-        shape=shape, alternative=alternative, confidence=confidence, adjust=adjust,
+        pairing_key=pairing_key or meta.get("old_pairing_key"), paired_with=paired_with, event=event,
+        treat=treat, shape=shape, alternative=alternative, confidence=confidence, adjust=adjust,
     )
     if json_path != "-":
         click.echo(console.test_summary(summary.results, sheet=summary.sheet))
@@ -257,6 +261,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @against_option
 @paired_with_option
 @pair_alias
+@event_option
 @treat_option
 @out_option
 @json_option
@@ -264,8 +269,8 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @handle_errors
 def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outcome: tuple[str, ...],
                  by: tuple[str, ...], pairing_key: str | None, against: tuple[str, ...],
-                 paired_with: tuple[str, ...], treat: tuple[str, ...], out: Path | None,
-                 json_path: str | None) -> None:
+                 paired_with: tuple[str, ...], event: tuple[str, ...], treat: tuple[str, ...],
+                 out: Path | None, json_path: str | None) -> None:
     """Add or refresh the roles sheet, keeping every choice already made; options preset roles.
 
     Example: statmargin plan clinics.xlsx --outcome wait_minutes --by site
@@ -277,7 +282,7 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
     summary = plan_workbook(
         workbook, sheet=sheet, header_row=header_row, outcome=outcome, by=by, pairing_key=pairing_key,
         treat=treat, against=against, paired_with=paired_with + tuple(meta.get("old_paired_with", ())),
-        out=out,
+        event=event, out=out,
     )
     if json_path != "-":
         click.echo(console.plan_summary(summary, workbook.name))

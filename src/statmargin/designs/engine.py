@@ -114,6 +114,7 @@ def analyze(
     alternative: str = "two-sided",
     confidence: float = 0.95,
     adjust: str = "holm",
+    event: str | Mapping[str, str] | None = None,
     paired_by: str | None = None,
 ) -> list[Result]:
     """Run the tests that fit the data and return one Result per question.
@@ -150,6 +151,10 @@ def analyze(
         Confidence level of intervals, between 0 and 1.
     adjust : {"holm", "benjamini-hochberg", "none"}
         P-value adjustment across the returned results.
+    event : str or mapping, optional
+        The event level of a two-level outcome (``"Yes"``, ``"COL=Fail"``): the
+        share readings report; inferred from common words ("Yes", "Pass",
+        "Positive", "1", ...) when not given.
 
     Returns
     -------
@@ -231,6 +236,7 @@ def analyze(
         treat=parse_treat(treat),
         shape=shape,
         settings=make_settings(alternative=alternative, confidence=confidence, adjust=adjust),
+        event=parse_col_values(event, "--event", outcomes),
     )
     results = run_plan(table, plan)
     explain_results(results, plan.settings)  # readings and cautions, as the command line shows them

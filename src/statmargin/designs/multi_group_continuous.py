@@ -52,6 +52,7 @@ class MultiGroupContinuous(DesignSpec):
         return is_grouped(question) and len(group_data(question).levels) >= 3
 
     def prepare(self, question: Question) -> Prepared:
+        question.refuse_one_sided("a comparison of three or more groups")
         return prepare_groups(question, self.design, TESTS)
 
     def choose(self, question: Question, prepared: Prepared) -> Choice:

@@ -6,6 +6,7 @@ from typing import Any
 
 import numpy as np
 
+from ..plan.levels import event_first
 from ..results import Result
 from ..stats import categorical
 from ..stats.shape import count_check
@@ -46,12 +47,16 @@ class OneSampleCategorical(DesignSpec):
         assert isinstance(shares, dict)  # a categorical outcome always parses to shares by label
         labels = vals.values[vals.usable]
         levels = list(info.levels) or sorted(set(labels))
+        if len(levels) == 2:
+            levels = event_first(levels, question.event_level(levels))
         counts = {lev: int(np.sum(labels == lev)) for lev in levels}
         prepared = Prepared(self.design, n=n, n_excluded=n_excl)
         prepared.summaries = [{"label": lev, "n": c, "share": c / n if n else None} for lev, c in counts.items()]
         prepared.extra.update(shares=dict(shares), counts=counts, levels=levels)
         if n == 0:
             raise Skipped(coded(Skip.NO_USABLE_VALUES, name=name), prepared)
+        if len(shares) > 1:
+            question.refuse_one_sided("a chi-square goodness-of-fit test of several shares")
         if len(shares) == 1:
             share = next(iter(shares.values()))
             expected = np.array([n * share, n * (1 - share)])

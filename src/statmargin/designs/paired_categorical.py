@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..plan.levels import event_first
 from ..results import Result
 from ..stats import categorical
 from ..vocabulary import Design, Test
@@ -32,6 +33,7 @@ class PairedCategorical(DesignSpec):
         first, second = data.labels
         seen = set(a) | set(b)
         levels = [lev for lev in data.info.levels if lev in seen] or sorted(seen)
+        levels = event_first(levels, question.event_level(levels))
         if len(levels) != 2:
             raise Skipped(coded(Skip.PAIRED_NOT_TWO_LEVELS, outcome=question.outcome.name, n=len(levels)),
                           prepared, test=Test.MCNEMAR)

@@ -109,6 +109,7 @@ def _long(question: Question, design: Design) -> PairData:
                       design=design if cat else Design.MULTI_GROUP_CONTINUOUS)
     if len(conditions) < 2:
         raise Skipped(coded(Skip.NEED_TWO_CONDITIONS, by=by, outcome=name, key=key))
+    question.require_order(by_col, by_info, conditions)
     first, second = conditions
     cells: dict[str, dict[str, Any]] = {}
     order: list[str] = []

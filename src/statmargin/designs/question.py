@@ -13,10 +13,11 @@ import numpy as np
 
 from ..errors import OptionError, RoleError
 from ..plan.expand import Analysis
+from ..plan.levels import infer_event
 from ..plan.model import ColumnChoice, Settings
 from ..plan.types import ColumnValues, TypeInfo, infer_type, usable_values
 from ..read.table import Column, Table
-from ..vocabulary import MeasureType, ShapeHandling
+from ..vocabulary import Alternative, MeasureType, ShapeHandling
 from ..words import refusals
 
 USABLE_TYPES = (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)
@@ -91,6 +92,27 @@ class Question:
 
     def values(self, column: Column, info: TypeInfo) -> ColumnValues:
         return self.types.values(column.name, info)
+
+    def event_level(self, levels: list[str]) -> str | None:
+        """The outcome's event level among ``levels``: the user's choice, else inferred from common words."""
+        choice = self.analysis.outcome_choice
+        if choice is not None and choice.event is not None and choice.event in levels:
+            return choice.event
+        return infer_event(levels)
+
+    def one_sided(self) -> bool:
+        return self.settings.alternative is not Alternative.TWO_SIDED
+
+    def require_order(self, column: Column, info: TypeInfo, levels: list[str]) -> None:
+        """Refuse a one-sided question whose groups have no order stated by the user."""
+        if self.one_sided() and info.inferred:
+            raise OptionError(refusals.one_sided_needs_order(column.name, levels))
+
+    def refuse_one_sided(self, test_words: str) -> None:
+        """Refuse a one-sided question for a design that has no direction."""
+        if self.one_sided():
+            by = self.by.name if self.by is not None else None
+            raise OptionError(refusals.one_sided_not_applicable(test_words, self.outcome.name, by))
 
 
 def build_question(analysis: Analysis, table: Table, settings: Settings, types: ColumnTypes) -> Question:

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..plan.levels import event_first
 from ..plan.model import Settings
 from ..results import Followup, Result
 from ..stats import categorical, followup
@@ -55,6 +56,8 @@ class TwoCategorical(DesignSpec):
         out_labels, by_labels = a.values[usable], b.values[usable]
         rows = levels_present(question.by_info, by_labels)
         cols = levels_present(question.outcome_info, out_labels)
+        if len(cols) == 2:
+            cols = event_first(cols, question.event_level(cols))
         observed = np.array([[int(np.sum((by_labels == r) & (out_labels == c))) for c in cols] for r in rows])
         prepared = Prepared(self.design, n=int(usable.sum()), n_excluded=n_excl, table=observed,
                             row_labels=rows, col_labels=cols)
@@ -65,6 +68,10 @@ class TwoCategorical(DesignSpec):
         if len(rows) < 2 or len(cols) < 2:
             which, levels = (by, rows) if len(rows) < 2 else (name, cols)
             raise Skipped(coded(Skip.ONE_LEVEL, column=which, level=levels[0] if levels else None), prepared)
+        if observed.shape == (2, 2):
+            question.require_order(question.by, question.by_info, rows)
+        else:
+            question.refuse_one_sided("a chi-square test of a table larger than 2x2")
         check = count_check(expected_counts(observed))
         prepared.shape = {"counts": {**check, "observed": observed.tolist(), "row_labels": rows, "col_labels": cols}}
         return prepared

@@ -39,7 +39,10 @@ class TwoGroupContinuous(DesignSpec):
         return is_grouped(question) and len(group_data(question).levels) <= 2
 
     def prepare(self, question: Question) -> Prepared:
-        return prepare_groups(question, self.design, TESTS)
+        prepared = prepare_groups(question, self.design, TESTS)
+        data = group_data(question)
+        question.require_order(data.grouping, data.grouping_info, data.levels)
+        return prepared
 
     def choose(self, question: Question, prepared: Prepared) -> Choice:
         data = group_data(question)

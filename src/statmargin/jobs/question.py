@@ -45,6 +45,7 @@ def test_workbook(
     alternative: str = "two-sided",
     confidence: float = 0.95,
     adjust: str = "holm",
+    event: str | Mapping[str, str] | Iterable[str] | None = None,
     sheet: str | None = None,
 ) -> TestSummary:
     """Run the fitting tests on a workbook's data sheet; the workbook is only read.
@@ -53,9 +54,9 @@ def test_workbook(
     ----------
     path
         The workbook.
-    outcome, by, against, pairing_key, paired_with, treat, shape, alternative, confidence, adjust
-        As for :func:`statmargin.analyze` (``against`` and ``paired_with`` take
-        ``[COL=]VALUE`` items, as the command line does).
+    outcome, by, against, pairing_key, paired_with, treat, shape, alternative, confidence, adjust, event
+        As for :func:`statmargin.analyze` (``against``, ``paired_with`` and ``event``
+        take ``[COL=]VALUE`` items, as the command line does).
     sheet
         The data sheet (default: the first sheet with data).
 
@@ -81,6 +82,7 @@ def test_workbook(
         treat=parse_treat(treat),
         shape=shape,
         settings=settings,
+        event=parse_col_values(event, "--event", outcomes),
     )
     with warnings.catch_warnings():
         # Caveats are already in each result's notes; no Python warning lines.

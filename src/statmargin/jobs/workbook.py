@@ -107,6 +107,7 @@ def plan_workbook(
     against: Mapping[str, str] | Iterable[str] | None = None,
     paired_with: Mapping[str, str] | Iterable[str] | None = None,
     shape: Mapping[str, str] | None = None,
+    event: Mapping[str, str] | Iterable[str] | None = None,
     out: str | Path | None = None,
     source: WorkbookSource | None = None,
     sink: WorkbookSink | None = None,
@@ -124,7 +125,8 @@ def plan_workbook(
         Presets for unattended refreshes; they override what the sheet says. ``treat``
         takes ``COL=TYPE`` items (an ordinal type may list its labels,
         ``pain=ordinal:none,mild,severe``); ``against`` ``COL=VALUE`` and
-        ``paired_with`` ``COL=COL2`` items, or mappings.
+        ``paired_with`` ``COL=COL2`` items, or mappings; ``event`` ``COL=LEVEL`` items
+        name the event level of two-level outcomes.
     out
         Write to this new file instead of ``path`` (which is then left untouched).
     """
@@ -145,7 +147,7 @@ def plan_workbook(
     _apply_presets(
         choices, table, outcome=outcome, by=by, pairing_key=pairing_key, treat=parse_treat(treat),
         against=parse_col_values(against, "--against"), paired_with=parse_col_values(paired_with, "--paired-with"),
-        shape=shape,
+        shape=shape, event=parse_col_values(event, "--event"),
     )
     facts = []
     for name, column in table.columns.items():
@@ -195,6 +197,7 @@ def _apply_presets(
     against: Mapping[str, str],
     paired_with: Mapping[str, str],
     shape: Mapping[str, str] | None,
+    event: Mapping[str, str],
 ) -> None:
     """Set roles given as options; every named column must exist (closest names suggested)."""
     from ..options.columns import parse_shape
@@ -221,6 +224,8 @@ def _apply_presets(
     for name, other in paired_with.items():
         table.column(other)
         choice(name).paired_with = other
+    for name, level in event.items():
+        choice(name).event = level
 
 
 def run_workbook(

@@ -119,6 +119,7 @@ def build_plan(
     treat: Mapping[str, tuple[MeasureType, list[str] | None]] | None = None,
     shape: str = "auto",
     settings: Settings | None = None,
+    event: Mapping[str, str] | None = None,
 ) -> Plan:
     """The plan of a one-off question from options (shared by ``analyze`` and ``statmargin test``).
 
@@ -138,9 +139,11 @@ def build_plan(
         raise OptionError(refusals.against_with_others())
     if paired_with and bys:
         raise OptionError(refusals.paired_with_and_by())
-    for name in (*against, *paired_with):
-        if name not in outcomes:
-            raise OptionError(refusals.value_for_unnamed("--against" if name in against else "--paired-with", name))
+    event = dict(event or {})
+    for option, values in (("--against", against), ("--paired-with", paired_with), ("--event", event)):
+        for name in values:
+            if name not in outcomes:
+                raise OptionError(refusals.value_for_unnamed(option, name))
     handling = parse_shape(shape)
     treat = dict(treat or {})
     choices: dict[str, ColumnChoice] = {}
@@ -160,6 +163,7 @@ def build_plan(
         c.shape = handling
         c.against = against.get(name)
         c.paired_with = paired_with.get(name)
+        c.event = event.get(name)
     for name in bys:
         choice(name, Role.COMPARE_BY)
     if pairing_key:

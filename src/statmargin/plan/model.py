@@ -29,7 +29,8 @@ class ColumnChoice:
     shape: ShapeHandling = ShapeHandling.AUTO
     against: str | None = None  # comparison value for one-sample questions, as typed
     paired_with: str | None = None  # wide-form pair: the other measurement column
-    order: list[str] | None = None  # ordinal label order, lowest first
+    order: list[str] | None = None  # label order: ordinal lowest first; groups first to last
+    event: str | None = None  # the event level of a two-level outcome (None: inferred)
 
 
 @dataclass

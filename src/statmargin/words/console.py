@@ -183,5 +183,9 @@ HELP: dict[str, str] = {
     'quiet': 'No progress lines.',
     'header_row': 'Row of the headers (default: first non-empty row).',
     'share': "Sharing mode: hide small counts in the tool's sheets.",
+    'event': (
+        "The event level of a two-level outcome, e.g. Vaccinated=Yes: the share readings report "
+        "(default: inferred from words such as Yes, Pass, Positive, 1). Repeatable."
+    ),
     'min_count': 'Sharing mode: hide counts below N (default 11, a common public-health practice).',
 }

@@ -226,6 +226,23 @@ def demo_folder(folder: str, reason: str) -> str:
     return f"Cannot make the folder {folder} ({reason}); choose another folder."
 
 
+def one_sided_needs_order(column: str, levels: list[str]) -> str:
+    example = ", ".join(levels[:2]) if len(levels) >= 2 else "first, second"
+    return (
+        f"A one-sided question compares {column}'s groups in a stated order; give it as the label "
+        f"order of {column} (Label order on the roles sheet, or --treat \"{column}=categorical:{example}\"), "
+        "first the group expected to be higher."
+    )
+
+
+def one_sided_not_applicable(test_words: str, outcome: str, by: str | None) -> str:
+    what = f"{outcome} by {by}" if by else outcome
+    return (
+        f"--alternative greater/less does not apply to {what}: {test_words} has no direction; "
+        "set the sidedness to two-sided."
+    )
+
+
 def not_a_frame(kind: str | None = None) -> str:
     if kind is None:
         return "data must be a pandas DataFrame or a statmargin Table."
