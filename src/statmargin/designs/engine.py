@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from ..errors import OptionError
+from ..plan.clean import prepare_table
 from ..plan.expand import Analysis, expand
 from ..plan.model import Plan, Settings
 from ..read.table import Table
@@ -54,13 +55,16 @@ def run_answers(
 
     Notes
     -----
+    Look-alike labels of the used columns are merged first (``plan.clean``), and
+    the cells each column's type leaves out are added to ``table.notes``.
     The adjustment family is every non-skipped result of the run
     (``stats.adjust.adjust_results``). Follow-ups run only when the adjusted p is
     below ``settings.alpha``; which ones is up to each design module.
     """
     settings = plan.settings
-    types = ColumnTypes(table)
     analyses = expand(plan, table)
+    prepare_table(table, plan)
+    types = ColumnTypes(table)
     answers: list[Answer] = []
     for analysis in analyses:
         question = build_question(analysis, table, settings, types)

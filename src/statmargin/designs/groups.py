@@ -68,7 +68,7 @@ def group_data(question: Question) -> GroupData:
     y = question.values(numbers, numbers_info)
     g = question.values(grouping, grouping_info)
     usable = y.usable & g.usable
-    n_excluded = int(np.sum(~usable & (y.present | g.present)))
+    n_excluded = question.left_out(usable)
     values = y.values[usable].astype(float)
     labels = g.values[usable]
     levels = levels_present(grouping_info, labels)

@@ -42,7 +42,7 @@ class OneSampleCategorical(DesignSpec):
         info = question.outcome_info
         name = question.outcome.name
         vals = question.values(question.outcome, info)
-        n, n_excl = vals.n, int(np.sum(vals.present & ~vals.usable))
+        n, n_excl = vals.n, question.left_out(vals.usable)
         shares = question.analysis.against
         assert isinstance(shares, dict)  # a categorical outcome always parses to shares by label
         labels = vals.values[vals.usable]

@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import numpy as np
-
 from ..errors import OptionError
 from ..results import Result
 from ..stats import onesample
@@ -28,7 +26,7 @@ class OneSampleContinuous(DesignSpec):
     def prepare(self, question: Question) -> Prepared:
         name = question.outcome.name
         vals = question.values(question.outcome, question.outcome_info)
-        n, n_excl = vals.n, int(np.sum(vals.present & ~vals.usable))
+        n, n_excl = vals.n, question.left_out(vals.usable)
         x = vals.values[vals.usable].astype(float)
         prepared = Prepared(self.design, n=n, n_excluded=n_excl)
         prepared.groups = {name: x}

@@ -79,7 +79,7 @@ def _wide(question: Question, design: Design) -> PairData:
     a = question.values(a_col, a_info)
     b = question.values(b_col, b_info)
     usable = a.usable & b.usable
-    n_excl = int(np.sum(~usable & (a.present | b.present)))
+    n_excl = question.left_out(usable)
     x, z = a.values[usable], b.values[usable]
     if not a_cat:
         x, z = x.astype(float), z.astype(float)

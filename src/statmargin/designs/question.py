@@ -30,6 +30,7 @@ class ColumnTypes:
     table: Table
     _types: dict[tuple[str, object, tuple[str, ...] | None], TypeInfo] = field(default_factory=dict)
     _values: dict[tuple[str, TypeInfo], ColumnValues] = field(default_factory=dict)
+    _masks: dict[str, np.ndarray] = field(default_factory=dict)
 
     def info(self, name: str, choice: ColumnChoice | None) -> TypeInfo:
         """The column's type under the user's choice (treat-as and level order)."""
@@ -44,6 +45,16 @@ class ColumnTypes:
         if key not in self._values:
             self._values[key] = usable_values(self.table.column(name), info)
         return self._values[key]
+
+    def records(self) -> np.ndarray:
+        """Rows that hold anything in the columns read: the records an analysis can leave out."""
+        if "records" not in self._masks:
+            mask = np.zeros(len(self.table.rows), dtype=bool)
+            for column in self.table.columns.values():
+                mask |= ~np.isnan(column.numbers)
+                mask |= np.not_equal(column.labels, None)  # type: ignore[call-overload]
+            self._masks["records"] = mask
+        return self._masks["records"]
 
     def usable_info(self, name: str, choice: ColumnChoice | None, role: str) -> TypeInfo:
         """The type of a column that an analysis uses; refuse empty, date and identifier columns."""
@@ -92,6 +103,14 @@ class Question:
 
     def values(self, column: Column, info: TypeInfo) -> ColumnValues:
         return self.types.values(column.name, info)
+
+    def left_out(self, usable: np.ndarray) -> int:
+        """Records (rows holding anything) that an analysis using ``usable`` rows leaves out.
+
+        One definition for every design, so analyses of the same outcome report the
+        same count for the outcome's blank, unreadable or unusable cells.
+        """
+        return int(np.sum(self.types.records() & ~usable))
 
     def event_level(self, levels: list[str]) -> str | None:
         """The outcome's event level among ``levels``: the user's choice, else inferred from common words."""

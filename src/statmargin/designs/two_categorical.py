@@ -52,7 +52,7 @@ class TwoCategorical(DesignSpec):
         a = question.values(question.outcome, question.outcome_info)
         b = question.values(question.by, question.by_info)
         usable = a.usable & b.usable
-        n_excl = int(np.sum(~usable & (a.present | b.present)))
+        n_excl = question.left_out(usable)
         out_labels, by_labels = a.values[usable], b.values[usable]
         rows = levels_present(question.by_info, by_labels)
         cols = levels_present(question.outcome_info, out_labels)

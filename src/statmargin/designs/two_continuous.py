@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import numpy as np
-
 from ..results import Result
 from ..stats import correlation
 from ..stats.shape import assess
@@ -34,7 +32,7 @@ class TwoContinuous(DesignSpec):
         a = question.values(question.outcome, question.outcome_info)
         b = question.values(question.by, question.by_info)
         usable = a.usable & b.usable
-        n_excl = int(np.sum(~usable & (a.present | b.present)))
+        n_excl = question.left_out(usable)
         x = a.values[usable].astype(float)
         y = b.values[usable].astype(float)
         prepared = Prepared(self.design, n=int(x.size), n_excluded=n_excl, groups={name: x, by: y})

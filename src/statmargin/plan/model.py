@@ -17,6 +17,7 @@ class Settings:
     alpha: float = 0.05  # level for flags and follow-up comparisons (common practice)
     seed: int = 20261202  # Monte Carlo p-values are reproducible run to run
     monte_carlo_resamples: int = 20000
+    merge_look_alikes: bool = True  # labels differing only in case, spacing or trailing punctuation
 
 
 @dataclass

@@ -30,6 +30,8 @@ class NoteKind(str, Enum):
     HEADER = "header"  # blank, duplicate or merged header made unique
     BLANK = "blank"  # blank cell in a used column
     INCOMPLETE_PAIR = "incomplete pair"
+    MERGED_LABEL = "label merged with a look-alike"  # case, spacing or trailing punctuation
+    NOT_A_LEVEL = "not one of the listed levels"
     OTHER = "other"
 
 

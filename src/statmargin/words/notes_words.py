@@ -1,0 +1,15 @@
+"""What the data-notes sheet says a cell became."""
+
+from __future__ import annotations
+
+
+def merged_into(kept: str) -> str:
+    return f"merged into {kept!r}"
+
+
+def left_out_as(kind: str) -> str:
+    return f"left out: {kind}"
+
+
+def more_like_this(more: int) -> str:
+    return f"and {more} more like this from this cell down (not listed one by one)"
