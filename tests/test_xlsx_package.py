@@ -19,6 +19,7 @@ import openpyxl
 import pytest
 
 from statmargin.errors import WriteError
+from statmargin.io import placement
 from statmargin.io.file import charts, package, sheetxml, styles
 from statmargin.io.file.zipio import read_zip, write_zip
 from statmargin.sheets.model import STYLES, Chart, ChartSeries, SheetModel, Validation
@@ -42,34 +43,34 @@ def _cell(root: ET.Element, ref: str) -> ET.Element:
 class TestNames:
     def test_forbidden_characters_are_replaced(self) -> None:
         """Characters a sheet name cannot hold ([]:*?/\\) are replaced and the name is trimmed."""
-        assert package.clean_sheet_name("a/b:c*d?[e]\\f", "results") == "a b c d e f"
+        assert placement.clean_sheet_name("a/b:c*d?[e]\\f", "results") == "a b c d e f"
 
     def test_name_is_cut_to_31_characters(self) -> None:
         """Names are cut to 31 characters, Excel's limit (Microsoft, Excel specifications and limits)."""
-        assert len(package.clean_sheet_name("x" * 40, "results")) == 31
+        assert len(placement.clean_sheet_name("x" * 40, "results")) == 31
 
     def test_reserved_and_empty_names_fall_back(self) -> None:
         """ "History" (reserved by Excel) and empty names fall back to the kind."""
-        assert package.clean_sheet_name("History", "log") == "log"
-        assert package.clean_sheet_name("'' ", "notes") == "notes"
+        assert placement.clean_sheet_name("History", "log") == "log"
+        assert placement.clean_sheet_name("'' ", "notes") == "notes"
 
     def test_free_preferred_name_is_kept(self) -> None:
         """A preferred name nobody uses is taken as is."""
-        assert package.choose_name("results", "results", {"data"}) == "results"
+        assert placement.choose_name("results", "results", {"data"}) == "results"
 
     def test_taken_name_gets_prefix_then_number(self) -> None:
         """A taken name becomes "statmargin <name>", then "statmargin <name> (2)"; case is ignored."""
-        assert package.choose_name("results", "results", {"results"}) == "statmargin results"
+        assert placement.choose_name("results", "results", {"results"}) == "statmargin results"
         taken = {"results", "statmargin results"}
-        assert package.choose_name("Results", "results", taken) == "statmargin Results (2)"
+        assert placement.choose_name("Results", "results", taken) == "statmargin Results (2)"
         taken |= {"statmargin results (2)"}
-        assert package.choose_name("results", "results", taken) == "statmargin results (3)"
+        assert placement.choose_name("results", "results", taken) == "statmargin results (3)"
 
     def test_numbered_long_name_stays_within_limit(self) -> None:
         """A numbered fallback for a long name still fits 31 characters."""
         long = "a" * 31
-        taken = {long, package.clean_sheet_name("statmargin " + long, "x").casefold()}
-        name = package.choose_name(long, "x", taken)
+        taken = {long, placement.clean_sheet_name("statmargin " + long, "x").casefold()}
+        name = placement.choose_name(long, "x", taken)
         assert name.endswith(" (2)") and len(name) <= 31
 
 

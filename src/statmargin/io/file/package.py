@@ -23,6 +23,7 @@ from dataclasses import dataclass, field
 
 from ...errors import WorkbookError, WriteError
 from ...sheets.model import SheetModel
+from ..placement import place
 from ..protocol import TOOL_SHEET_MARKER
 from . import charts as chartxml
 from . import sheetxml, styles
@@ -48,8 +49,6 @@ CT_STYLES = "application/vnd.openxmlformats-officedocument.spreadsheetml.styles+
 
 CONTENT_TYPES_PART = "[Content_Types].xml"
 APP_PART = "docProps/app.xml"
-FORBIDDEN_NAME_CHARS = re.compile(r"[\[\]:*?/\\]")
-MAX_SHEET_NAME = 31
 _ATTR = re.compile(r"""([\w:.-]+)\s*=\s*(?:"([^"]*)"|'([^']*)')""")
 
 
@@ -256,53 +255,6 @@ def tool_sheets(parts: dict[str, ZipEntry]) -> dict[str, str]:
     return {s.name: s.tool_kind for s in sheets if s.tool_kind}
 
 
-# --------------------------------------------------------------------------- names
-
-
-def clean_sheet_name(name: str, fallback: str) -> str:
-    """A legal sheet name: no []:*?/\\, no leading/trailing apostrophe, at most 31 characters."""
-    cleaned = FORBIDDEN_NAME_CHARS.sub(" ", sheetxml.clean_text(name))
-    cleaned = re.sub(r"\s+", " ", cleaned).strip().strip("'").strip()
-    if not cleaned or cleaned.casefold() == "history":  # "History" is reserved by Excel
-        cleaned = fallback
-    return cleaned[:MAX_SHEET_NAME].rstrip()
-
-
-def _numbered(base: str, n: int) -> str:
-    suffix = f" ({n})"
-    return base[: MAX_SHEET_NAME - len(suffix)].rstrip() + suffix
-
-
-def choose_name(preferred: str, kind: str, taken: set[str]) -> str:
-    """The preferred name if free, else "statmargin <name>", else with " (2)", " (3)" ...
-
-    Parameters
-    ----------
-    preferred : str
-        The model's preferred name (already cleaned).
-    kind : str
-        The sheet kind, used if the name is empty.
-    taken : set of str
-        Case-folded names already in use.
-
-    Returns
-    -------
-    str
-        A name not in ``taken`` (comparison ignores case, as spreadsheet programs do).
-    """
-    candidates = [preferred]
-    if not preferred.casefold().startswith("statmargin"):
-        candidates.append(clean_sheet_name(f"statmargin {preferred}", kind))
-    for name in candidates:
-        if name.casefold() not in taken:
-            return name
-    base = candidates[-1]
-    n = 2
-    while _numbered(base, n).casefold() in taken:
-        n += 1
-    return _numbered(base, n)
-
-
 # --------------------------------------------------------------------------- writing
 
 
@@ -382,11 +334,6 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
     only results are written) are kept. User sheets are never removed or
     renamed; a user sheet with a wanted name makes the tool pick another one.
     """
-    kinds = [m.kind for m in models]
-    if len(set(kinds)) != len(kinds):
-        raise WriteError(
-            "Two sheets of the same kind were given to write; the file was left as it was."
-        )
     parts = {e.name: e for e in entries}
     workbook_part, sheets = read_sheets(parts)
     wb_dir = posixpath.dirname(workbook_part)
@@ -396,47 +343,10 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
             "The workbook has no relationships part; save it again from a spreadsheet program."
         )
 
-    # Which sheets go, which stay.
-    # A copy of a tool sheet made in a spreadsheet program carries the marker too;
-    # only one sheet per kind is replaced, the others are kept as the user's own.
-    removed_idx, unmark_idx = [], []
-    notes_on_copies: list[str] = []
-    for model in models:
-        same_kind = [i for i, s in enumerate(sheets) if s.tool_kind == model.kind]
-        if not same_kind:
-            continue
-        ours = min(same_kind, key=lambda i: (sheets[i].name != model.name, i))
-        removed_idx.append(ours)
-        for i in same_kind:
-            if i != ours:
-                unmark_idx.append(i)
-                notes_on_copies.append(
-                    f"The sheet '{sheets[i].name}' looks like a copy of statmargin's {model.kind} sheet; it was kept as your own sheet."
-                )
-    removed_idx.sort()
-    kept = [s for i, s in enumerate(sheets) if i not in removed_idx]
-    old_name_by_kind = {sheets[i].tool_kind: sheets[i].name for i in removed_idx}
-    taken = {s.name.casefold() for s in kept}
-    final: dict[str, str] = {}
-    renamed: list[str] = list(notes_on_copies)
-    for model in models:
-        preferred = old_name_by_kind.get(model.kind) or clean_sheet_name(model.name, model.kind)
-        name = choose_name(preferred, model.kind, taken)
-        taken.add(name.casefold())
-        final[model.kind] = name
-        if name != model.name and model.kind not in old_name_by_kind:
-            if preferred != model.name:
-                renamed.append(
-                    f"The sheet name '{model.name}' is not allowed in a workbook, so the {model.kind} sheet is called '{name}'."
-                )
-            else:
-                renamed.append(
-                    f"A sheet of yours is already called '{model.name}', so statmargin's {model.kind} sheet is called '{name}'."
-                )
-        elif model.kind in old_name_by_kind and name != old_name_by_kind[model.kind]:
-            renamed.append(f"The {model.kind} sheet is called '{name}'.")
-    kind_to_name = {s.tool_kind: s.name for s in kept if s.tool_kind}
-    kind_to_name.update(final)
+    # Which sheets go, which stay, and the new sheets' names (shared with every back end).
+    placement = place([(s.name, s.tool_kind) for s in sheets], models)
+    removed_idx, unmark_idx = placement.removed, placement.unmarked
+    final, renamed, kind_to_name = placement.final, placement.renamed, placement.kind_to_name
 
     # Parts of removed sheets, dropped only if nothing that stays still refers to them.
     removed_sheet_parts = {sheets[i].part for i in removed_idx if sheets[i].part}

@@ -15,8 +15,8 @@ from collections.abc import Callable
 from typing import TypeGuard
 
 from ...errors import WriteError
+from ...sheets.looks import LOOKS
 from ...sheets.model import SheetModel
-from .styles import LOOKS
 
 MAIN_NS = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
 REL_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"

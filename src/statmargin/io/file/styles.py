@@ -5,83 +5,19 @@ and cell formats are appended after theirs, the ``count`` attributes are
 updated, and the result is a map from style key (see ``sheets.model.STYLES``) to
 the index of the cell format that sheets refer to with ``s="..."``.
 
-The look is our own and deliberately quiet: dark slate text, headers on a pale
-warm-grey band with a thin rule beneath, soft editable-cell shading, no strong
-colours.
+The looks themselves (colours, fonts, number formats) are defined, independent
+of the file format, in ``sheets.looks``.
 """
 
 from __future__ import annotations
 
 import html
 import re
-from dataclasses import dataclass
 from xml.sax.saxutils import quoteattr
 
 from ...errors import WriteError
+from ...sheets.looks import BUILTIN_FORMATS, CUSTOM_FORMATS, INPUT_BORDER, LOOKS, RULE, Font
 from ...sheets.model import STYLES
-
-# Colours (ARGB). Chosen to read well in print and for colour-blind readers:
-# distinctions never rely on hue alone (headers also have a rule, inputs a border).
-SLATE = "FF2F3B45"
-SLATE_SOFT = "FF4A5560"
-GREY_MUTED = "FF6F757C"
-WARM_GREY_FILL = "FFEEEBE6"
-RULE = "FF8C8579"
-INPUT_FILL = "FFFBF6E9"
-INPUT_BORDER = "FFB8AE9C"
-LINK_BLUE = "FF2B5C8A"
-CAUTION_RUST = "FF8A3B12"
-
-# Number formats. Built-in ids: 0 General, 1 "0", 2 "0.00".
-P_VALUE_FORMAT = '[<0.001]"<0.001";0.000'
-CUSTOM_FORMATS = {
-    "number": "0.000",
-    "p_value": P_VALUE_FORMAT,
-    "percent": "0.0%",
-    "date": "yyyy-mm-dd hh:mm",
-}
-BUILTIN_FORMATS = {"integer": 1, "decimal2": 2}
-
-
-@dataclass(frozen=True)
-class _Font:
-    bold: bool = False
-    italic: bool = False
-    underline: bool = False
-    color: str = SLATE
-    size_step: float = 0.0
-
-
-@dataclass(frozen=True)
-class _Look:
-    font: _Font = _Font()
-    fill: str | None = None
-    border: str | None = None  # "rule_below" or "box"
-    number_format: str | None = None  # key into CUSTOM_FORMATS or BUILTIN_FORMATS
-    wrap: bool = False  # wrap text (rows are given a fitting height by the sheet writer)
-    horizontal: str | None = None
-
-
-LOOKS: dict[str, _Look] = {
-    "text": _Look(),
-    "wrap": _Look(wrap=True),
-    "title": _Look(font=_Font(bold=True, size_step=4)),
-    "subtitle": _Look(font=_Font(bold=True, size_step=1)),
-    "header": _Look(font=_Font(bold=True), fill=WARM_GREY_FILL, border="rule_below", wrap=True),
-    "label": _Look(font=_Font(color=SLATE_SOFT)),
-    "number": _Look(number_format="number"),
-    "integer": _Look(number_format="integer"),
-    "decimal2": _Look(number_format="decimal2"),
-    "p_value": _Look(number_format="p_value"),
-    "percent": _Look(number_format="percent"),
-    "date": _Look(number_format="date"),
-    "link": _Look(font=_Font(underline=True, color=LINK_BLUE)),
-    "input": _Look(fill=INPUT_FILL, border="box"),
-    "muted": _Look(font=_Font(color=GREY_MUTED)),
-    "caution": _Look(font=_Font(bold=True, color=CAUTION_RUST), wrap=True),
-    "suppressed": _Look(font=_Font(italic=True, color=GREY_MUTED), horizontal="center"),
-}
-assert set(LOOKS) == set(STYLES), "every sheets.model style key needs a look"
 
 MINIMAL_STYLES = (
     b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
@@ -311,7 +247,7 @@ def _default_font(text: str, prefix: str) -> tuple[str, float, str | None]:
     )
 
 
-def _font_xml(prefix: str, font: _Font, name: str, size: float, family: str | None) -> str:
+def _font_xml(prefix: str, font: Font, name: str, size: float, family: str | None) -> str:
     parts = []
     if font.bold:
         parts.append(f"<{prefix}b/>")
