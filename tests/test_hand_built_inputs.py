@@ -13,6 +13,7 @@ import pytest
 
 from statmargin.designs.engine import run_analysis
 from statmargin.errors import OptionError
+from statmargin.io.memory import MemoryWorkbook
 from statmargin.options import make_settings
 from statmargin.plan.expand import Analysis
 from statmargin.read.reader import first_data_sheet
@@ -29,22 +30,9 @@ WAITS = Table.from_frame(
 )
 
 
-class ListSource:
-    """A minimal WorkbookSource holding one sheet of invented rows."""
-
-    display = "in-memory book"
-
-    def __init__(self, sheet: str) -> None:
-        self.sheet = sheet
-
-    def sheet_names(self) -> list[str]:
-        return [self.sheet]
-
-    def tool_sheets(self) -> list[str]:
-        return []
-
-    def iter_rows(self, sheet: str):
-        return iter([["Wait"], [12.0]])
+def one_sheet_book(sheet: str) -> MemoryWorkbook:
+    """A workbook held in memory with one sheet of invented rows."""
+    return MemoryWorkbook.from_sheets({sheet: [["Wait"], [12.0]]}, name="in-memory book")
 
 
 def test_question_with_nothing_to_compare_is_refused():
@@ -72,4 +60,4 @@ def test_hand_built_one_sample_question_still_runs():
 
 def test_first_data_sheet_with_a_source_in_both_places():
     """An open source passed first and another by keyword: the keyword one is read, no TypeError."""
-    assert first_data_sheet(ListSource("Ignored"), source=ListSource("Visits")) == "Visits"
+    assert first_data_sheet(one_sheet_book("Ignored"), source=one_sheet_book("Visits")) == "Visits"

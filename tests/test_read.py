@@ -25,6 +25,7 @@ from statmargin.errors import (
     WorkbookError,
 )
 from statmargin.io.file.source import FileSource
+from statmargin.io.memory import MemoryWorkbook
 from statmargin.read import reader as read
 from statmargin.read.reader import (
     first_data_sheet,
@@ -588,32 +589,19 @@ class TestHelpers:
     def test_other_source_with_ragged_rows(self):
         """Any WorkbookSource works: ragged rows and None blanks are read like a file's."""
 
-        class ListSource:
-            def sheet_names(self):
-                return ["S"]
-
-            def iter_rows(self, sheet):
-                return iter(
-                    [
-                        ["Site", "Wait", "Flag"],
-                        ["North", 1],
-                        ["South", None, True],
-                        [None, 3.5, "NA"],
-                        [],
-                        [None],
-                    ]
-                )
-
-            def tables(self, sheet):
-                return []
-
-            def merged_ranges(self, sheet):
-                return []
-
-            def tool_sheets(self):
-                return {}
-
-        table = read_table(None, source=ListSource())
+        source = MemoryWorkbook.from_sheets(
+            {
+                "S": [
+                    ["Site", "Wait", "Flag"],
+                    ["North", 1],
+                    ["South", None, True],
+                    [None, 3.5, "NA"],
+                    [],
+                    [None],
+                ]
+            }
+        )
+        table = read_table(None, source=source)
         assert table.rows.tolist() == [2, 3, 4]
         np.testing.assert_array_equal(table.column("Wait").numbers, [1.0, np.nan, 3.5])
         assert table.column("Wait").n_blank == 1

@@ -80,11 +80,23 @@ class RunSummary:
         }
 
 
-def _file_backends(path: str | Path) -> tuple[WorkbookSource, WorkbookSink]:
-    from ..io.file.sink import FileSink
-    from ..io.file.source import FileSource
+def _backends(
+    path: str | Path, source: WorkbookSource | None, sink: WorkbookSink | None
+) -> tuple[WorkbookSource, WorkbookSink, WorkbookSource | None]:
+    """The source and sink to use, opening the back end for ``path`` (``io.backends``) for what is not given.
 
-    return FileSource(path), FileSink(path)
+    The third item is the source opened here, which the job closes once it has read
+    everything (None when the caller passed its own source).
+    """
+    if source is not None and sink is not None:
+        return source, sink, None
+    from ..io import backends
+
+    opened_source, opened_sink = backends.open_backend(path)
+    if source is not None:
+        opened_source.close()
+        return source, opened_sink, None
+    return opened_source, sink or opened_sink, opened_source
 
 
 def read_roles(source: WorkbookSource) -> RolesSheet | None:
@@ -133,15 +145,15 @@ def plan_workbook(
     from ..plan.types import infer_type, usable_values
     from ..read.reader import first_data_sheet, read_table, sample_values
 
-    if source is None or sink is None:
-        file_source, file_sink = _file_backends(path)
-        source, sink = source or file_source, sink or file_sink
+    source, sink, opened = _backends(path, source, sink)
     previous = read_roles(source)
     plan = previous.plan if previous else Plan()
     data_sheet = sheet or plan.sheet or first_data_sheet(source)
     if header_row is None and plan.sheet == data_sheet:
         header_row = plan.header_row
     table = read_table(path, sheet=data_sheet, header_row=header_row, source=source)
+    if opened is not None:
+        opened.close()  # everything is read; the write does not need the source
 
     choices = {c.name: c for c in plan.columns}
     _apply_presets(
@@ -258,13 +270,11 @@ def run_workbook(
 
     say = progress or (lambda message, done=None, total=None: None)
     started = time.perf_counter()
-    if source is None or sink is None:
-        file_source, file_sink = _file_backends(path)
-        source, sink = source or file_source, sink or file_sink
+    source, sink, opened = _backends(path, source, sink)
     sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
     roles = read_roles(source)
     if roles is None:
-        raise RoleError(refusals.no_roles_sheet(Path(path).name))
+        raise RoleError(refusals.no_roles_sheet(source.display_name))
     plan = roles.plan
     _check_roles(plan, roles)
     used = _used_columns(plan)
@@ -276,7 +286,7 @@ def run_workbook(
     )
     results = [answer.result for answer in answers]
     context = report.ReportContext.from_run(
-        workbook=Path(path).name,
+        workbook=source.display_name,
         table=table,
         results=results,
         samples=[answer.prepared.samples for answer in answers],
@@ -289,6 +299,8 @@ def run_workbook(
     explain_results(results, plan.settings, context)
     say(console.WRITING)
     previous_log = _previous_log_rows(source)
+    if opened is not None:
+        opened.close()  # everything is read; the write does not need the source
     models = report.build_sheets(results, table, context, previous_log=previous_log)
     if share:
         from ..sheets.share import suppress

@@ -53,7 +53,8 @@ from typing import Any
 import numpy as np
 
 from ..errors import ColumnNotFoundError, NotEnoughDataError, OptionError, WorkbookError
-from ..io.protocol import TableRange, WorkbookSource
+from ..io.protocol import ERROR_ISSUE, CellIssues, TableRange, WorkbookSource
+from ..words.workbook_messages import no_workbook_given
 from .table import Column, DataNote, NoteKind, Table, column_letter
 
 NOTE_CAP = 1000  # notes kept per (column, kind); the rest are summarised in one note
@@ -333,41 +334,21 @@ def unique_names(
 # -----------------------------------------------------------------------------
 def _open_source(
     path: str | os.PathLike[str] | None, source: WorkbookSource | None
-) -> tuple[Any, bool]:
+) -> tuple[WorkbookSource, bool]:
+    """The source to read and whether it was opened here (and so is closed here)."""
     if source is not None:
         return source, False
     if path is None:
-        raise OptionError("No workbook was given. Pass the path of the workbook file.")
-    from ..io.file.source import FileSource
+        raise OptionError(no_workbook_given())
+    from ..io import backends  # the job edge picks the back end for a path
 
-    return FileSource(path), True
-
-
-def _display(path: Any, source: Any) -> str:
-    if path is not None:
-        return os.path.basename(os.fspath(path)) or os.fspath(path)
-    return str(getattr(source, "display", "the workbook"))
+    return backends.open_source(path), True
 
 
-def _resolve_sheet(source: Any, sheet: str, display: str) -> str:
-    if hasattr(source, "resolve_sheet"):
-        return str(source.resolve_sheet(sheet))
-    names = list(source.sheet_names())
-    if sheet in names:
-        return sheet
-    from ..errors import SheetNotFoundError
-
-    listed = ", ".join(repr(n) for n in names)
-    raise SheetNotFoundError(f"Sheet {sheet!r} is not in {display!r}. Its sheets are: {listed}.")
-
-
-def _rows_at(source: Any, sheet: str) -> tuple[int, Iterator[list[Any]]]:
+def _rows_at(source: WorkbookSource, sheet: str) -> tuple[int, Iterator[list[Any]]]:
     """Rows from row 1 and the column their first element belongs to."""
-    fast = getattr(source, "iter_rows_at", None)
-    if fast is not None:
-        first_col, rows = fast(sheet)
-        return int(first_col), iter(rows)
-    return 0, iter(source.iter_rows(sheet))
+    first_col, rows = source.iter_rows_at(sheet)
+    return int(first_col), iter(rows)
 
 
 def first_data_sheet(
@@ -402,15 +383,15 @@ def first_data_sheet(
         file_path, source = None, source if source is not None else path
     src, owned = _open_source(file_path, source)
     try:
-        return _first_data_sheet(src, _display(file_path, src))
+        return _first_data_sheet(src, src.display_name)
     finally:
         if owned:
             src.close()
 
 
-def _first_data_sheet(source: Any, display: str) -> str:
+def _first_data_sheet(source: WorkbookSource, display: str) -> str:
     tool = set(source.tool_sheets())
-    hidden = set(getattr(source, "hidden_sheet_names", lambda: [])())
+    hidden = set(source.hidden_sheet_names())
     candidates = [n for n in source.sheet_names() if n not in tool and n not in hidden]
     for name in candidates:
         _, rows = _rows_at(source, name)
@@ -444,7 +425,7 @@ def _pick_table(
 
 
 def _locate(
-    source: Any,
+    source: WorkbookSource,
     sheet: str,
     header_row: int | None,
     table: str | None,
@@ -746,7 +727,8 @@ def read_table(
     Parameters
     ----------
     path : str or os.PathLike or None
-        Workbook file. Ignored for reading when ``source`` is given (still used in messages).
+        Workbook file, opened with ``io.backends.open_source``; ignored when
+        ``source`` is given. Messages name the workbook by its ``display_name``.
     sheet : str, optional
         Sheet to read; default: ``first_data_sheet``. Case is ignored when unique.
     header_row : int, optional
@@ -782,25 +764,21 @@ def read_table(
     """
     src, owned = _open_source(path, source)
     try:
-        return _read(src, _display(path, src), sheet, header_row, columns, table)
+        return _read(src, src.display_name, sheet, header_row, columns, table)
     finally:
         if owned:
             src.close()
 
 
 def _read(
-    source: Any,
+    source: WorkbookSource,
     display: str,
     sheet: str | None,
     header_row: int | None,
     columns: Sequence[str] | None,
     table: str | None,
 ) -> Table:
-    sheet = (
-        _first_data_sheet(source, display)
-        if sheet is None
-        else _resolve_sheet(source, sheet, display)
-    )
+    sheet = _first_data_sheet(source, display) if sheet is None else source.resolve_sheet(sheet)
     layout = _locate(source, sheet, header_row, table, display)
     chosen = _select(layout, columns)
     states = [
@@ -1002,26 +980,29 @@ def _stray_notes(sheet: str, stray: dict[int, list[Any]]) -> list[DataNote]:
 
 
 def _cell_issues(
-    source: Any, sheet: str, first_row: int, last_row: int | None, chosen: list[HeaderColumn]
-) -> dict[tuple[int, int], tuple[str, str]]:
-    """Error cells and uncalculated formulas the source read as empty (file sources only)."""
-    finder = getattr(source, "cell_issues", None)
-    if finder is None or not chosen:
+    source: WorkbookSource,
+    sheet: str,
+    first_row: int,
+    last_row: int | None,
+    chosen: list[HeaderColumn],
+) -> CellIssues:
+    """Error cells and uncalculated formulas the source read as empty."""
+    if not chosen:
         return {}
     return dict(
-        finder(sheet, first_row=first_row, last_row=last_row, columns=[h.index for h in chosen])
+        source.cell_issues(
+            sheet, first_row=first_row, last_row=last_row, columns=[h.index for h in chosen]
+        )
     )
 
 
 def _apply_issues(
     states: list[_ColumnState],
-    issues: dict[tuple[int, int], tuple[str, str]],
+    issues: CellIssues,
     first_row: int,
     content: np.ndarray,
 ) -> tuple[int, int]:
     """Turn cells read as blank into error or no-saved-value notes; returns (errors, no-value)."""
-    from ..io.file.source import ERROR_ISSUE
-
     by_col = {s.head.index: s for s in states}
     n_errors = n_no_value = 0
     for (row, col), (kind, text) in sorted(issues.items()):
@@ -1098,12 +1079,8 @@ def read_header(
     """
     src, owned = _open_source(path, source)
     try:
-        display = _display(path, src)
-        name = (
-            _first_data_sheet(src, display)
-            if sheet is None
-            else _resolve_sheet(src, sheet, display)
-        )
+        display = src.display_name
+        name = _first_data_sheet(src, display) if sheet is None else src.resolve_sheet(sheet)
         layout = _locate(src, name, header_row, table, display)
         return [(h.name, column_letter(h.index)) for h in layout.columns]
     finally:

@@ -16,7 +16,7 @@ from typing import TypeGuard
 
 from ...errors import WriteError
 from ...sheets.looks import LOOKS
-from ...sheets.model import SheetModel
+from ...sheets.model import SheetModel, Validation
 
 MAIN_NS = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
 REL_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
@@ -464,7 +464,7 @@ def _string_cell(head: str, text: str) -> str:
     )
 
 
-def _validation_xml(validation, sheet: str) -> str:  # noqa: ANN001 - sheets.model.Validation
+def _validation_xml(validation: Validation, sheet: str) -> str:
     items = []
     for choice in validation.choices:
         text = clean_text(str(choice))

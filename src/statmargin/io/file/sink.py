@@ -18,7 +18,7 @@ from pathlib import Path
 from ...errors import StatmarginError, WorkbookError, WorkbookLockedError, WriteError
 from ...sheets.model import SheetModel
 from ..protocol import WriteReport
-from .package import build_package, office_document_part
+from .package import PackageResult, build_package, office_document_part
 from .zipio import read_zip, write_zip
 
 WRITABLE_SUFFIXES = (".xlsx", ".xlsm")
@@ -58,7 +58,7 @@ def lock_files(path: str | os.PathLike[str]) -> list[Path]:
 
 
 class FileSink:
-    """A ``backend.WorkbookSink`` that writes tool sheets into an .xlsx or .xlsm file.
+    """A ``protocol.WorkbookSink`` that writes tool sheets into an .xlsx or .xlsm file.
 
     Parameters
     ----------
@@ -168,8 +168,8 @@ class FileSink:
         target: Path,
         new_blob: bytes,
         original: dict[str, tuple[bytes, int]],
-        result,
-        expected: list[str],  # noqa: ANN001
+        result: PackageResult,
+        expected: list[str],
     ) -> None:
         folder = target.parent if str(target.parent) else Path(".")
         try:
@@ -208,7 +208,7 @@ def _umask() -> int:
     return mask
 
 
-def _sheet_names_after(result) -> list[str]:  # noqa: ANN001 - PackageResult
+def _sheet_names_after(result: PackageResult) -> list[str]:
     from .package import read_sheets
 
     parts = {e.name: e for e in result.entries}
@@ -217,8 +217,8 @@ def _sheet_names_after(result) -> list[str]:  # noqa: ANN001 - PackageResult
 
 
 def verify(
-    path: Path, original: dict[str, tuple[bytes, int]], result, expected_sheets: list[str]
-) -> None:  # noqa: ANN001
+    path: Path, original: dict[str, tuple[bytes, int]], result: PackageResult, expected_sheets: list[str]
+) -> None:
     """Check a freshly written workbook before it replaces the user's file.
 
     Parameters

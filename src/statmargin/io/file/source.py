@@ -1,6 +1,6 @@
 """Read access to a workbook file: python-calamine for cell values, small XML parts for the rest.
 
-``FileSource`` implements ``backend.WorkbookSource`` for every format
+``FileSource`` implements ``protocol.WorkbookSource`` for every format
 python-calamine opens (.xlsx, .xlsm, .xlsb, .xls, .ods). Cell values stream from
 calamine. What calamine does not expose is read from the small parts of an
 .xlsx/.xlsm package with ``zipfile`` and ``xml.etree``: Excel tables
@@ -29,9 +29,11 @@ from typing import Any
 from xml.etree import ElementTree as ET
 from xml.sax.saxutils import unescape
 
-from ...errors import SheetNotFoundError, WorkbookError
+from ...errors import WorkbookError
 from ...read.table import column_index
-from ..protocol import TOOL_SHEET_MARKER, TableRange
+from ..protocol import ERROR_ISSUE as ERROR_ISSUE  # re-exported from the protocol
+from ..protocol import NO_VALUE_ISSUE as NO_VALUE_ISSUE
+from ..protocol import TOOL_SHEET_MARKER, CellIssues, MergedRange, TableRange, resolve_sheet_name
 
 _REL_ID_SUFFIX = "}id"
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
@@ -51,9 +53,6 @@ _FORMULA = re.compile(rb"<(?:\w+:)?f(?:\s[^>]*)?(?:/>|>(.*?)</(?:\w+:)?f>)", re.
 _VALUE = re.compile(rb"<(?:\w+:)?v(?:\s[^>]*)?(?:/>|>(.*?)</(?:\w+:)?v>)", re.DOTALL)
 _ROW_END = re.compile(rb"</(?:\w+:)?row>")
 _REF = re.compile(r"^\$?([A-Za-z]+)\$?(\d+)(?::\$?([A-Za-z]+)\$?(\d+))?$")
-
-ERROR_ISSUE = "error"
-NO_VALUE_ISSUE = "no cached value"
 
 
 def _local(tag: str) -> str:
@@ -79,7 +78,7 @@ def _resolve(base_dir: str, target: str) -> str:
 def parse_ref(ref: str) -> tuple[int, int, int, int]:
     """Bounds of an A1 range ``"B3:D10"`` as (first_row, first_col, last_row, last_col).
 
-    Rows are 1-based and columns 0-based, as in ``backend.TableRange``.
+    Rows are 1-based and columns 0-based, as in ``protocol.TableRange``.
     """
     match = _REF.match(ref.strip())
     if not match:
@@ -128,6 +127,11 @@ class FileSource:
     def __exit__(self, *exc: object) -> None:
         self.close()
 
+    @property
+    def display_name(self) -> str:
+        """The file name without its folder, for messages."""
+        return self.display
+
     # -- WorkbookSource ----------------------------------------------------------
     def sheet_names(self) -> list[str]:
         """Visible and hidden worksheet names, in workbook order (chart sheets left out)."""
@@ -149,16 +153,7 @@ class FileSource:
         SheetNotFoundError
             If no worksheet has that name; the message lists the sheet names.
         """
-        names = self.sheet_names()
-        if sheet in names:
-            return sheet
-        folded = [n for n in names if n.casefold() == sheet.strip().casefold()]
-        if len(folded) == 1:
-            return folded[0]
-        listed = ", ".join(repr(n) for n in names)
-        raise SheetNotFoundError(
-            f"Sheet {sheet!r} is not in {self.display!r}. Its sheets are: {listed}."
-        )
+        return resolve_sheet_name(self.sheet_names(), sheet, self.display)
 
     def iter_rows(self, sheet: str) -> Iterator[list[Any]]:
         """Rows of raw cell values from row 1 and column A; blanks are ``''``."""
@@ -227,7 +222,7 @@ class FileSource:
             )
         return found
 
-    def merged_ranges(self, sheet: str) -> list[tuple[int, int, int, int]]:
+    def merged_ranges(self, sheet: str) -> list[MergedRange]:
         """Merged ranges as (first_row, first_col, last_row, last_col), 0-based, inclusive."""
         ranges = self._sheet(sheet).merged_cell_ranges
         if not ranges:
@@ -257,7 +252,6 @@ class FileSource:
             marked[order[int(local_id)]] = _string_constant(el.text or "")
         return marked
 
-    # -- extra, file-only -------------------------------------------------------
     def cell_issues(
         self,
         sheet: str,
@@ -265,7 +259,7 @@ class FileSource:
         first_row: int = 1,
         last_row: int | None = None,
         columns: Iterable[int] | None = None,
-    ) -> dict[tuple[int, int], tuple[str, str]]:
+    ) -> CellIssues:
         """Cells calamine reads as empty but that hold an error value or an uncalculated formula.
 
         Parameters
@@ -295,7 +289,7 @@ class FileSource:
         if part is None:
             return {}
         wanted = None if columns is None else set(columns)
-        found: dict[tuple[int, int], tuple[str, str]] = {}
+        found: CellIssues = {}
         try:
             with zipfile.ZipFile(self.path) as archive, archive.open(part) as stream:
                 tail = b""
