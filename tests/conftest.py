@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import os
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Callable, Iterator, Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
@@ -54,3 +54,45 @@ def tmp_workbook(tmp_path: Path) -> Callable[..., Path]:
         return path
 
     return make
+
+
+@pytest.fixture(scope="module", params=["file", "memory"])
+def pipeline_backend(request: pytest.FixtureRequest) -> Iterator[str]:
+    """Run a module's workbook jobs through the file back end, then through the in-memory one.
+
+    Both ways the back end sits behind ``strict_backend.strict``, so a job or the
+    reader that used a member the protocol does not declare fails. "file" opens
+    the file back end; "memory" copies the file into a ``MemoryWorkbook``, reads
+    from it and writes through it, mirroring each write into the file (and
+    checking memory and file agree) so the test's own file-based checks see the
+    same workbook either way.
+    """
+    from statmargin.io import backends
+    from statmargin.io.file.sink import FileSink
+    from statmargin.io.file.source import FileSource
+    from statmargin.io.memory import MemoryWorkbook
+    from statmargin.io.protocol import WorkbookSink, WorkbookSource
+    from strict_backend import MirroredSink, strict
+
+    def open_file(path: Any) -> Any:
+        return strict(FileSource(path), WorkbookSource)
+
+    def open_file_backend(path: Any) -> tuple[Any, Any]:
+        return open_file(path), strict(FileSink(path), WorkbookSink)
+
+    def open_memory(path: Any) -> Any:
+        return strict(MemoryWorkbook.from_file(path), WorkbookSource)
+
+    def open_memory_backend(path: Any) -> tuple[Any, Any]:
+        book = MemoryWorkbook.from_file(path)
+        return strict(book, WorkbookSource), strict(MirroredSink(book, path), WorkbookSink)
+
+    openers = {
+        "file": (open_file, open_file_backend),
+        "memory": (open_memory, open_memory_backend),
+    }
+    with pytest.MonkeyPatch.context() as patch:
+        open_source, open_backend = openers[request.param]
+        patch.setattr(backends, "open_source", open_source)
+        patch.setattr(backends, "open_backend", open_backend)
+        yield request.param

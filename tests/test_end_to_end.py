@@ -47,6 +47,8 @@ ALLOWED_TO_CHANGE = {
     "xl/styles.xml",
 }
 TOOL_KINDS = ("roles", "results", "shape", "notes", "log")
+# Every step runs through the file back end and again through the in-memory one (conftest).
+pytestmark = pytest.mark.usefixtures("pipeline_backend")
 ROLE_EDITS = {"Wait minutes": {"Role": "outcome"}, "Site": {"Role": "compare by"}}
 
 
@@ -64,7 +66,7 @@ def entries(path: Path) -> dict:
 
 
 @pytest.fixture(scope="module")
-def journey(tmp_path_factory) -> dict[str, Any]:
+def journey(tmp_path_factory, pipeline_backend) -> dict[str, Any]:
     """Original, planned, edited and run copies of the newcomer workbook, plus the run's JSON."""
     folder = tmp_path_factory.mktemp("journey")
     original = make_newcomer_workbook(folder / "original.xlsx")

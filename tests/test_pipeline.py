@@ -22,6 +22,8 @@ from statmargin.vocabulary import Role
 from workbook_edit import results_records, set_cells, set_roles, sheet_rows, table_records
 
 RTOL = 1e-9
+# Every job runs through the file back end and again through the in-memory one (conftest).
+pytestmark = pytest.mark.usefixtures("pipeline_backend")
 
 
 def _write(path: Path, headers: list[str], rows: list[list[object]], sheet: str = "Data") -> Path:

@@ -399,6 +399,7 @@ _COUNT_NEAR_WORD = re.compile(
 _THRESHOLD_BEFORE = re.compile(r"(fewer than|less than|under|below|at least|more than)\s*$")
 
 
+@pytest.mark.usefixtures("pipeline_backend")  # through the file back end, then the in-memory one
 def test_share_run_of_a_tiny_group_leaves_no_small_count_in_any_text(tmp_path: Path) -> None:
     """A --share run where one site has 3 records: no text cell on a tool sheet quotes a count under 11."""
     import openpyxl
