@@ -8,9 +8,10 @@ from any other back end (``from_source``, ``from_file``), and it writes the tool
 sheets by the same rules as the file back end (``io.placement``): the same names
 when a user sheet holds the tool's sheet name, the same marker rules, the same
 ``WriteReport``, and the same refusals (a model is checked by rendering it as the
-file writer would, then the text is dropped). Each written ``SheetModel`` is kept for tests to inspect, and the
-sheet it became reads back as a spreadsheet program would show the written file
-(numbers as floats, NaN as blank, dates in date-styled cells as dates ...).
+file writer would, then the text is dropped). Each written ``SheetModel`` is kept
+for tests to inspect, and the sheet it became reads back as a spreadsheet reader
+sees the written file (numbers as floats, NaN as blank, dates in date-styled
+cells as dates ...).
 
 It holds every cell in memory, so it is meant for tests and small books; it does
 no file I/O of its own (``from_file`` asks the file back end to read).
