@@ -154,7 +154,7 @@ class TestResultsMatchTheOneQuestionCommand:
         df = asked["df"]
         if isinstance(df, list):
             shown = [float(x) for x in re.split(r"[,;]\s*", str(row["df"]))]
-            # The sheet shows a pair of df as text with 6 significant digits (report._df_cell).
+            # The sheet shows a pair of df as text with 6 significant digits (sheets.results._df_cell).
             assert shown == pytest.approx(df, rel=1e-5)
         else:
             assert row["df"] == df

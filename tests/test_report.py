@@ -28,7 +28,7 @@ from statmargin.options import build_plan
 from statmargin.plan.model import Settings
 from statmargin.read.table import DataNote, NoteKind, Table, column_index
 from statmargin.results import Estimate, Result
-from statmargin.sheets import report
+from statmargin.sheets import report, shapes
 from statmargin.sheets.model import STYLES, SheetModel
 from statmargin.sheets.report import ReportContext
 from statmargin.vocabulary import EstimateKind, MeasureType
@@ -278,7 +278,7 @@ def test_histogram_uses_shared_bins_and_counts_every_value() -> None:
     chart = next(c for c in model.charts if c.kind == "column")
     samples = plant_growth()
     edges = report.bin_edges(np.concatenate(list(samples.values())))
-    assert report.MIN_BINS <= len(edges) - 1 <= report.MAX_BINS
+    assert shapes.MIN_BINS <= len(edges) - 1 <= shapes.MAX_BINS
     first, last = chart.categories.replace("$", "").split(":")
     assert "!" not in chart.categories
     labels = [cell_at(model, f"A{r}").value for r in range(int(first[1:]), int(last[1:]) + 1)]
@@ -304,10 +304,10 @@ def test_bin_edges_follow_numpy_auto_within_limits() -> None:
     weights = np.concatenate(list(plant_growth().values()))  # PlantGrowth (R datasets)
     edges = report.bin_edges(weights)
     auto = len(np.histogram_bin_edges(weights, bins="auto")) - 1
-    assert len(edges) - 1 == min(report.MAX_BINS, max(report.MIN_BINS, auto))
+    assert len(edges) - 1 == min(shapes.MAX_BINS, max(shapes.MIN_BINS, auto))
     assert edges[0] == weights.min() and edges[-1] == weights.max()
     many = np.random.default_rng(20261202).normal(size=5000)  # seeded, invented
-    assert len(report.bin_edges(many)) - 1 == report.MAX_BINS
+    assert len(report.bin_edges(many)) - 1 == shapes.MAX_BINS
     assert report.bin_edges([3.0, 3.0]).tolist() == [2.5, 3.5]
 
 
@@ -550,11 +550,11 @@ def test_engine_style_summaries_are_shown() -> None:
         r for (r, c), cell in model.cells.items() if c == 0 and cell.value == "1" and r > row
     )
     values, positions = {}, {}
-    for part, at in zip(report.GROUP_TABLE_PARTS, (row, second), strict=True):
+    for part, at in zip(shapes.GROUP_TABLE_PARTS, (row, second), strict=True):
         for c, header in enumerate(part, start=1):
             values[header] = model.cells[(at, c)].value
             positions[header] = (at, c)
-    assert set(values) == {h for h, _, _ in report.GROUP_COLUMNS}
+    assert set(values) == {h for h, _, _ in shapes.GROUP_COLUMNS}
     assert values["Normality check"] == "Shapiro-Wilk"
     assert values["Normality p"] == 0.4
     assert (
@@ -752,12 +752,12 @@ def test_shape_sheet_fits_a_portrait_page_and_charts_sit_clear_of_text() -> None
     results = [anova_result(), crosstab_result(), gof_result()]
     model = report.shape_sheet(results, context())
     assert model.fit_to_width and not model.landscape and model.page_numbers
-    assert max(c for _, c in model.cells) <= report.SHAPE_LAST_COL
+    assert max(c for _, c in model.cells) <= shapes.SHAPE_LAST_COL
     starts = sorted(int(model.anchors[f"analysis_{i}"][1:]) - 1 for i in range(len(results)))
     spans = []
     for chart in model.charts:
         row, col = (int(chart.anchor[1:]) - 1, column_index(chart.anchor[0]))
-        assert col + chart.width_cells - 1 <= report.SHAPE_LAST_COL
+        assert col + chart.width_cells - 1 <= shapes.SHAPE_LAST_COL
         rows = range(row, row + chart.height_rows)
         covered = [
             (r, c) for (r, c) in model.cells if r in rows and col <= c < col + chart.width_cells

@@ -1,0 +1,173 @@
+"""What the sheets say about a run besides its results, and helpers every sheet uses."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from datetime import datetime, timezone
+from typing import Any, TypeGuard
+
+from .._version import __version__
+from ..plan.model import Settings
+from ..read.table import Table, column_letter
+from ..results import Result
+from .model import SheetModel
+from .share import DEFAULT_MIN_COUNT
+
+# Preferred sheet names (the writer picks others if a user sheet has the name).
+SHEET_NAMES = {
+    "results": "statmargin results",
+    "shape": "statmargin shape checks",
+    "notes": "statmargin data notes",
+    "log": "statmargin run log",
+}
+
+# Histogram bins: NumPy's "auto" rule, held between these counts so charts stay readable.
+
+
+@dataclass
+class ReportContext:
+    """What the sheets say about the run besides the results (filled by the pipeline).
+
+    ``samples`` holds the values behind each continuous analysis for the histograms,
+    keyed by ``analysis_key(result)`` and then by group label (or variable name for
+    two measures); analyses without samples get no histogram. ``share_mode`` and
+    ``share_min_count`` describe sharing mode (see ``share``).
+    """
+
+    workbook: str = ""
+    data_sheet: str = ""
+    header_row: int = 1
+    rows_read: int = 0
+    rows_used: int = 0
+    run_time: datetime | None = None
+    version: str = __version__
+    settings: Settings = field(default_factory=Settings)
+    units: dict[str, str] = field(default_factory=dict)
+    share_mode: bool = False
+    share_min_count: int = DEFAULT_MIN_COUNT
+    link_sheet: str | None = None  # sheet for links to data cells; defaults to data_sheet
+    column_letters: dict[str, str] = field(default_factory=dict)
+    observational: bool = True
+    samples: dict[tuple[str, str, str], Mapping[str, Sequence[float]]] = field(default_factory=dict)
+    fingerprint: str = ""
+
+    @classmethod
+    def from_run(
+        cls,
+        *,
+        workbook: str,
+        table: Table | None = None,
+        results: Sequence[Result] = (),
+        samples: Sequence[Mapping[str, Sequence[float]]] = (),
+        settings: Settings | None = None,
+        version: str = __version__,
+        started: datetime | None = None,
+        seconds: float | None = None,
+        share_min_count: int | None = None,
+        units: Mapping[str, str] | None = None,
+    ) -> ReportContext:
+        """A context filled from a finished run (as the workbook pipeline has it).
+
+        Parameters
+        ----------
+        workbook : str
+            The workbook's file name.
+        table : Table, optional
+            The data as read: sheet, header row, rows read, fingerprint, column
+            letters and units come from it.
+        results : sequence of Result
+            The run's results; rows used is the largest ``n`` among them.
+        samples : sequence of mappings, optional
+            The values behind each result, by group label (``designs.base.Prepared.samples``),
+            in the order of ``results``; what the histograms draw.
+        settings : Settings, optional
+        version : str
+        started : datetime, optional
+            When the run started (UTC); now when not given.
+        seconds : float, optional
+            Not shown; accepted so callers can pass the run's duration.
+        share_min_count : int, optional
+            Sharing mode is on when this is given (counts below it are hidden).
+        units : mapping, optional
+            Units per column; by default each column's ``units`` from the table.
+        """
+        del seconds  # the run time shown is the start time
+        unit_map: dict[str, str] = dict(units or {})
+        letters: dict[str, str] = {}
+        if table is not None:
+            for name, column in table.columns.items():
+                letters[name] = column.letter
+                if column.units and name not in unit_map:
+                    unit_map[name] = column.units
+        drawn = {
+            analysis_key(result): values
+            for result, values in zip(results, samples, strict=False)
+            if values and not result.skipped
+        }
+        used = max((int(r.n) for r in results if not r.skipped), default=0)
+        return cls(
+            workbook=workbook,
+            data_sheet=table.sheet if table is not None else "",
+            header_row=table.header_row if table is not None else 1,
+            rows_read=int(table.n_rows_read) if table is not None else 0,
+            rows_used=used,
+            run_time=started,
+            version=version,
+            settings=settings or Settings(),
+            units=unit_map,
+            share_mode=share_min_count is not None,
+            share_min_count=share_min_count if share_min_count is not None else DEFAULT_MIN_COUNT,
+            link_sheet=table.sheet if table is not None else None,
+            column_letters=letters,
+            samples=drawn,
+            fingerprint=table.fingerprint if table is not None else "",
+        )
+
+
+def analysis_key(result: Result) -> tuple[str, str, str]:
+    """The key of a result in ``ReportContext.samples``: (outcome, exposure, pairing)."""
+    return (result.outcome or "", result.exposure or "", result.pairing or "")
+
+
+def quote_sheet(name: str) -> str:
+    """A sheet name quoted for a cell reference: ``'Site visits'`` (inner quotes doubled)."""
+    return "'" + name.replace("'", "''") + "'"
+
+
+def _finite(value: Any) -> TypeGuard[int | float]:
+    return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
+
+
+def _num(value: Any) -> Any:
+    """A finite number as float, else None (the cell stays empty)."""
+    if hasattr(value, "item") and not isinstance(value, (list, tuple, dict)):
+        value = value.item()
+    return float(value) if _finite(value) else None
+
+
+def _a1(row: int, col: int, absolute: bool = False) -> str:
+    if absolute:
+        return f"${column_letter(col)}${row + 1}"
+    return f"{column_letter(col)}{row + 1}"
+
+
+def _run_time_text(context: ReportContext) -> str:
+    when = context.run_time or datetime.now(timezone.utc)
+    if when.tzinfo is not None:
+        when = when.astimezone(timezone.utc)
+    return when.replace(microsecond=0, tzinfo=None).isoformat() + "Z"
+
+
+def _suppressed_fields(result: Result) -> set[str]:
+    marks = result.extra.get("suppressed") if isinstance(result.extra, Mapping) else None
+    return set(marks) if isinstance(marks, (list, tuple, set)) else set()
+
+
+def _value(model: SheetModel, row: int, col: int, value: Any, style: str, hidden: bool) -> None:
+    if hidden:
+        model.put(row, col, "suppressed", "suppressed")
+    else:
+        number = _num(value)
+        model.put(row, col, number, style if number is not None else "text")
