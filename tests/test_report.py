@@ -29,11 +29,12 @@ from statmargin.plan.model import Settings
 from statmargin.read.table import DataNote, NoteKind, Table, column_index
 from statmargin.results import Estimate, Result
 from statmargin.sheets import report, shapes
+from statmargin.sheets import results as results_layout
 from statmargin.sheets.model import STYLES, SheetModel
 from statmargin.sheets.report import ReportContext
 from statmargin.vocabulary import EstimateKind, MeasureType
 from statmargin.vocabulary.codes import Reason, Skip, coded
-from statmargin.words import cautions, explain
+from statmargin.words import cautions, explain, results_text
 
 DATA = Path(__file__).parent / "reference" / "data"
 RUN_TIME = datetime(2026, 12, 2, 3, 0, 0, tzinfo=timezone.utc)
@@ -133,22 +134,15 @@ def header_row(model: SheetModel) -> int:
 
 
 def test_results_header_block_lists_the_run() -> None:
-    """The header block names the workbook, data sheet, rows, time, version and settings."""
+    """The run line names the workbook, data sheet, rows read, time, version and settings; a status line follows."""
     model = report.results_sheet([anova_result()], context())
-    labels = {
-        cell.value: model.cells.get((r, c + 1)).value
-        for (r, c), cell in model.cells.items()
-        if cell.style == "label"
-    }
-    assert labels["Workbook"] == "plants.xlsx"
-    assert labels["Data sheet"] == "Plant data"
-    assert labels["Rows read"] == 30 and labels["Rows used"] == 30
-    assert labels["Run time (UTC)"] == "2026-12-02T03:00:00Z"
-    assert labels["Tool version"] == "0.1.0"
-    assert labels["Confidence"] == 0.95
-    assert labels["Adjustment"] == "Holm"
-    assert labels["Sidedness"] == "two-sided"
-    assert labels["Sharing mode"] == "off (all counts shown)"
+    run_line = model.cells[(1, 0)].value
+    for part in ("plants.xlsx", "sheet Plant data", "30 rows read", "2026-12-02T03:00:00Z",
+                 "statmargin 0.1.0", "95% intervals", "two-sided"):
+        assert part in run_line
+    assert model.cells[(2, 0)].value == "The question was answered."
+    assert "A2:C2" in model.merged and "A3:C3" in model.merged
+    assert "Sharing mode" not in " ".join(str(c.value) for c in model.cells.values())
     assert model.kind == "results"
 
 
@@ -156,7 +150,8 @@ def test_results_table_has_one_row_per_analysis_and_followup() -> None:
     """Each analysis gets a row with its numbers unrounded, followed by indented follow-up rows."""
     model = report.results_sheet([anova_result(), welch_result()], context())
     top = header_row(model)
-    assert model.freeze == (top + 1, 1)
+    # Only the header row is frozen, and only when the rows above it fit well on a screen.
+    assert model.freeze == ((top + 1, 1) if top + 1 <= results_layout.FREEZE_MAX_ROW else None)
     headers = [model.cells[(top, c)].value for c in range(len(report.RESULT_COLUMNS))]
     assert headers[:9] == [
         "Question",
@@ -188,13 +183,13 @@ def test_results_table_has_one_row_per_analysis_and_followup() -> None:
     assert model.cells[(followup_row, col["Question"])].value == "  trt2 vs trt1"
     assert model.cells[(followup_row, col["Test"])].value == "Tukey HSD"
     assert model.cells[(followup_row, col["Adjusted p"])].value == 0.01200642397945273
-    assert model.cells[(followup_row, col["CI"])].value == "0.17 to 1.56"
+    assert model.cells[(followup_row, col["CI low"])].value == pytest.approx(0.17378394858954183)
     # R 4.2.2 t.test(extra ~ group, sleep): difference -1.58, CI -3.365 to 0.205, df 17.776
     assert model.cells[(welch_row, col["Test"])].value == "Welch's t-test"
     assert model.cells[(welch_row, col["Estimate value"])].value == pytest.approx(-1.58)
     assert model.cells[(welch_row, col["CI low"])].value == -3.3654832307117104
-    assert model.cells[(welch_row, col["CI"])].value == "-3.37 to 0.21"
     assert model.cells[(welch_row, col["df"])].value == 17.7764735161785
+    assert model.cells[(welch_row, col["df"])].style == "decimal2"
     assert "compatible with no difference" in model.cells[(welch_row, col["Reading"])].value
     # The review line is stated once above the table, not on each row.
     assert explain.REVIEW_LINE not in model.cells[(welch_row, col["Cautions"])].value
@@ -658,11 +653,11 @@ def test_results_columns_put_plain_words_first() -> None:
         "df",
         "p",
         "Adjusted p",
+        "How p was found",
         "Estimate",
         "Estimate value",
         "CI low",
         "CI high",
-        "CI",
         "Effect size",
         "Effect value",
         "Effect CI low",
@@ -678,6 +673,7 @@ def test_results_sheet_prints_plain_columns_on_their_own_pages() -> None:
     assert model.landscape and not model.fit_to_width and model.page_numbers
     assert model.print_scale == report.RESULT_PRINT_SCALE
     assert model.column_breaks[0] == report.COL["Cautions"] + 1
+    assert model.column_breaks == list(report.RESULT_PAGE_BREAKS)
     assert model.column_breaks == sorted(model.column_breaks)
     # Each printed page holds at most 122 width units: at the print scale that fits a
     # Letter landscape page inside default margins even with a wider substitute font
@@ -690,13 +686,12 @@ def test_results_sheet_prints_plain_columns_on_their_own_pages() -> None:
 
 
 def test_run_wide_cautions_are_stated_once_above_the_table() -> None:
-    """The review, routine-records and several-comparisons lines sit once in the header, merged and in caution style."""
+    """The review, routine-records and several-comparisons lines sit once above the table, merged and in caution style."""
     results = [anova_result(), welch_result()]
     explain.apply(results, Settings(), context())
     model = report.results_sheet(results, context())
     top = header_row(model)
-    heading = find_row(model, 0, explain.RUN_WIDE_HEADING)
-    assert "applies to every result below" in explain.RUN_WIDE_HEADING
+    heading = find_row(model, 0, results_text.KEEP_IN_MIND)
     assert heading < top
     above = [model.cells[(r, 0)] for r in range(heading + 1, heading + 4)]
     assert [cell.value for cell in above] == [
@@ -734,17 +729,19 @@ def test_row_cautions_keep_what_is_specific_to_the_row() -> None:
     assert model.cells[(top + 1, report.COL["Cautions"])].style == "wrap"
 
 
-def test_header_values_sit_in_the_wide_reading_column() -> None:
-    """Each run fact's value is in the Reading column, wide enough to show it whole."""
-    ctx = context(workbook="inspections_demo.xlsx")
-    model = report.results_sheet([anova_result()], ctx)
-    row = find_row(model, 0, "Workbook")
-    assert model.cells[(row, report.COL["Reading"])].value == "inspections_demo.xlsx"
-    run_time = find_row(model, 0, "Run time (UTC)")
-    value = model.cells[(run_time, report.COL["Reading"])].value
-    assert len(value) < model.widths[report.COL["Reading"]]
-    # The subtitle spans the plain columns too.
-    assert "A2:C2" in model.merged
+def test_answer_block_opens_the_sheet() -> None:
+    """Before the table, one line per question says what the data show, the size and the evidence."""
+    skipped = skipped_wait_by_district(coded(Skip.FEWER_THAN_TWO_GROUPS, by="District", level="South"), n=3)
+    model = report.results_sheet([anova_result(), welch_result(), skipped], context())
+    block = find_row(model, 0, results_text.ANSWER_HEADERS[0])
+    assert block < header_row(model)
+    # R 4.2.2 PlantGrowth group means 5.032, 4.661, 5.526 (g)
+    assert model.cells[(block + 1, 1)].value == "Mean weight: ctrl 5.03, trt1 4.66, trt2 5.53 g."
+    assert "moderate evidence (p = 0.032 after allowing for the 2 questions" in model.cells[(block + 1, 2)].value.lower()
+    # R 4.2.2 t.test(extra ~ group, sleep): 2 - 1 = 1.58 hours, 95% CI -0.21 to 3.37
+    assert model.cells[(block + 2, 2)].value.startswith("1.58 (95% CI -0.21 to 3.37)")
+    assert model.cells[(block + 3, 1)].value.startswith("Not run: District has fewer than two groups")
+    assert model.cells[(2, 0)].value == "2 answered; 1 question could not be run (the reason is beside each)."
 
 
 def test_shape_sheet_fits_a_portrait_page_and_charts_sit_clear_of_text() -> None:

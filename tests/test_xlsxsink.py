@@ -399,7 +399,7 @@ def test_results_print_plain_columns_first_in_libreoffice(tmp_path: Path) -> Non
         ["pdftotext", "-layout", str(pdf), "-"], capture_output=True, text=True, check=True
     ).stdout.split("\f")
     first = next(i for i, page in enumerate(pages) if "Question" in page and "Reading" in page)
-    assert "Cautions" in pages[first] and "applies to every result below" in pages[first]
+    assert "Cautions" in pages[first] and "Keep in mind" in pages[first]
     assert "Why this test" not in pages[first] and "Effect size" not in pages[first]
     later = "".join(pages[first + 1 :])
     assert "Why this test" in later and "Effect size" in later

@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any, ClassVar
 
 import numpy as np
@@ -127,6 +127,7 @@ class DesignSpec:
             result = self._skipped(question, prepared, reason, choice.test, choice.design, choice.reasons)
             return result, prepared
         self._fill(result, question, prepared, choice)
+        clean_numbers(result)
         if result.skipped is None:
             self.finish(result, question, prepared, choice)
         return result, prepared
@@ -173,6 +174,43 @@ class DesignSpec:
                 result.skipped = coded(Skip.NO_P_VALUE)
                 result.p_value = None
         self.decorate(result, question, prepared)
+
+
+def noise_free(value: float, scale: float = 1.0) -> float:
+    """A computed number without floating noise: within 1e-9 of the data's scale of zero is 0.
+
+    Rounds to 12 significant digits, so an interval bound of whole numbers stored as
+    -6.03e-13 is stored as 0 and 3.0000000000004 as 3.
+
+    Examples
+    --------
+    >>> noise_free(-6.0335e-13, scale=10.0), noise_free(3.0000000000004)
+    (0.0, 3.0)
+    """
+    if abs(value) < 1e-9 * max(abs(scale), 1.0):
+        return 0.0
+    digits = 11 - int(math.floor(math.log10(abs(value))))
+    return float(round(value, digits))
+
+
+def _clean_interval(item: Any) -> Any:
+    """An estimate or effect with its value and bounds stored without floating noise."""
+    if item is None:
+        return None
+    values = [abs(v) for v in (item.value, item.ci_low, item.ci_high) if isinstance(v, float) and math.isfinite(v)]
+    scale = max(values, default=1.0)
+    cleaned = {
+        name: noise_free(v, scale) if isinstance(v, float) and math.isfinite(v) and v != 0 else v
+        for name, v in (("value", item.value), ("ci_low", item.ci_low), ("ci_high", item.ci_high))
+    }
+    return replace(item, **cleaned)
+
+
+def clean_numbers(result: Result) -> None:
+    """Estimates and effects (and follow-up estimates) of a result without floating noise."""
+    result.estimate = _clean_interval(result.estimate)
+    result.effect = _clean_interval(result.effect)
+    result.followups = [replace(f, estimate=_clean_interval(f.estimate)) for f in result.followups]
 
 
 def method_options(settings: Settings) -> dict[str, Any]:

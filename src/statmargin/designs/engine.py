@@ -20,7 +20,7 @@ from ..read.table import Table
 from ..results import Result
 from ..stats.adjust import adjust_results
 from ..words import refusals
-from .base import DesignSpec, Prepared
+from .base import DesignSpec, Prepared, clean_numbers
 from .question import ColumnTypes, build_question
 from .registry import spec_for
 
@@ -100,6 +100,7 @@ def _follow_up(answer: Answer, settings: Settings) -> None:
     if followups:
         result.followups = followups
         result.reasons.extend(reasons)
+        clean_numbers(result)
 
 
 # ---------------------------------------------------------------- public API

@@ -8,6 +8,8 @@ from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from typing import Any, TypeGuard
 
+import numpy as np
+
 from .._version import __version__
 from ..plan.model import Settings
 from ..read.table import Table, column_letter
@@ -23,7 +25,8 @@ SHEET_NAMES = {
     "log": "statmargin run log",
 }
 
-# Histogram bins: NumPy's "auto" rule, held between these counts so charts stay readable.
+MAX_DECIMALS = 4  # the most decimals a column's own values are shown with
+_PRECISION_SAMPLE = 5000  # values looked at to find a column's precision
 
 
 @dataclass
@@ -52,6 +55,8 @@ class ReportContext:
     observational: bool = True
     samples: dict[tuple[str, str, str], Mapping[str, Sequence[float]]] = field(default_factory=dict)
     fingerprint: str = ""
+    decimals: dict[str, int] = field(default_factory=dict)  # each numeric column's own precision
+    rows_note: str = ""  # words on which rows were used (hidden and filtered rows), for the run line
 
     @classmethod
     def from_run(
@@ -96,9 +101,11 @@ class ReportContext:
         del seconds  # the run time shown is the start time
         unit_map: dict[str, str] = dict(units or {})
         letters: dict[str, str] = {}
+        decimals: dict[str, int] = {}
         if table is not None:
             for name, column in table.columns.items():
                 letters[name] = column.letter
+                decimals[name] = column_decimals(column.numbers)
                 if column.units and name not in unit_map:
                     unit_map[name] = column.units
         drawn = {
@@ -123,7 +130,27 @@ class ReportContext:
             column_letters=letters,
             samples=drawn,
             fingerprint=table.fingerprint if table is not None else "",
+            decimals=decimals,
         )
+
+
+def column_decimals(numbers: np.ndarray) -> int:
+    """How many decimals a column's values carry (0 for whole numbers), at most ``MAX_DECIMALS``.
+
+    Found on the first finite values (up to 5,000): the smallest number of decimals
+    that writes each of them exactly to within 1e-6 of a unit in the last place.
+
+    Examples
+    --------
+    >>> column_decimals(np.array([12.0, 15.5, np.nan, 9.25]))
+    2
+    """
+    finite = numbers[np.isfinite(numbers)][:_PRECISION_SAMPLE]
+    for places in range(MAX_DECIMALS + 1):
+        scaled = finite * 10.0**places
+        if np.all(np.abs(scaled - np.round(scaled)) < 1e-6):
+            return places
+    return MAX_DECIMALS
 
 
 def analysis_key(result: Result) -> tuple[str, str, str]:

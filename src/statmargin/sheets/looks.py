@@ -31,11 +31,14 @@ CAUTION_RUST = "FF8A3B12"
 P_VALUE_FORMAT = '[<0.001]"<0.001";0.000'
 CUSTOM_FORMATS = {
     "number": "0.000",
+    "fixed1": "0.0",
+    "fixed3": "0.000",
+    "fixed4": "0.0000",
     "p_value": P_VALUE_FORMAT,
     "percent": "0.0%",
     "date": "yyyy-mm-dd hh:mm",
 }
-BUILTIN_FORMATS = {"integer": 1, "decimal2": 2}
+BUILTIN_FORMATS = {"integer": 1, "decimal2": 2, "fixed0": 1, "fixed2": 2}
 
 
 @dataclass(frozen=True)
@@ -65,6 +68,7 @@ LOOKS: dict[str, Look] = {
     "header": Look(font=Font(bold=True), fill=WARM_GREY_FILL, border="rule_below", wrap=True),
     "label": Look(font=Font(color=SLATE_SOFT)),
     "number": Look(number_format="number"),
+    **{f"fixed{d}": Look(number_format=f"fixed{d}") for d in range(5)},
     "integer": Look(number_format="integer"),
     "decimal2": Look(number_format="decimal2"),
     "p_value": Look(number_format="p_value"),

@@ -19,6 +19,11 @@ STYLES = (
     "header",  # column header row
     "label",  # left-hand label in a key/value block
     "number",  # general number, 3 significant decimals shown
+    "fixed0",  # a number shown with a fixed number of decimals (0 to 4), by the outcome's precision
+    "fixed1",
+    "fixed2",
+    "fixed3",
+    "fixed4",
     "integer",  # counts
     "decimal2",  # two decimals
     "p_value",  # shows <0.001 below 0.001, full value kept in the cell

@@ -1,4 +1,21 @@
-"""The results sheet: the answers first, then one row per analysis and its follow-ups."""
+"""The results sheet: the answers first, then one row per analysis and its follow-ups.
+
+Layout, top to bottom:
+
+1. the title and one run line (workbook, sheet, rows read, when, how the run
+   was set) and a status line (how many questions were answered, how many could
+   not be run);
+2. the answer block: one line per question with what the data show, the size
+   with its interval and the strength of evidence, or why it could not run;
+3. the cautions that apply to every result (the review line first);
+4. the full table: the question, the two- or three-line reading and that
+   result's own cautions, then every technical column.
+
+Only the table's header row is frozen, and only when the rows above it fit a
+laptop screen; printing puts the plain columns on the first page of each row
+band and the technical ones on the following pages, with the header row and
+the question repeated.
+"""
 
 from __future__ import annotations
 
@@ -7,62 +24,67 @@ from typing import Any
 
 from ..read.table import column_letter
 from ..results import Result
-from ..words import explain
+from ..vocabulary import EstimateKind
+from ..words import explain, results_text
 from ..words.sentences import say, say_all
 from .context import (
     SHEET_NAMES,
     ReportContext,
-    _a1,
     _finite,
     _num,
     _run_time_text,
     _suppressed_fields,
-    _value,
 )
 from .model import Cell, SheetModel
 from .shapes import shape_sheet
 
-# ---------------------------------------------------------------- results sheet
-
 # Plain columns first (question, reading, cautions), then the technical ones.
-# Printed landscape at RESULT_PRINT_SCALE, each page's columns (split by
-# RESULT_PAGE_BREAKS) fit a Letter or A4 page inside the default margins, also
-# where a wider substitute font replaces Calibri (measured with LibreOffice).
+# Printed landscape at RESULT_PRINT_SCALE; each printed page's columns (split by
+# RESULT_PAGE_BREAKS) fit a Letter or A4 page inside the default margins.
 RESULT_COLUMNS: tuple[tuple[str, float], ...] = (
-    ("Question", 24),
-    ("Reading", 56),
+    ("Question", 28),
+    ("Reading", 58),
     ("Cautions", 40),
     ("Outcome", 16),
     ("Compared by / against", 20),
-    ("n used", 8),
+    ("n used", 9),
     ("n excluded", 10),
     ("Test", 22),
-    ("Why this test", 40),
-    ("Statistic", 10),
+    ("Why this test", 48),
+    ("Statistic", 11),
     ("Statistic value", 11),
     ("df", 9),
     ("p", 9),
     ("Adjusted p", 10),
-    ("Estimate", 22),
+    ("How p was found", 18),
+    ("Estimate", 26),
     ("Estimate value", 11),
     ("CI low", 10),
     ("CI high", 10),
-    ("CI", 14),
-    ("Effect size", 18),
+    ("Effect size", 20),
     ("Effect value", 10),
     ("Effect CI low", 10),
     ("Effect CI high", 10),
-    ("Details", 12),
+    ("Details", 13),
 )
 COL = {name: i for i, (name, _) in enumerate(RESULT_COLUMNS)}
-# First column of each printed page after the first: the plain columns print
-# together, then who/what was tested, then statistics and estimates, then effects.
-RESULT_PAGE_BREAKS = (COL["Outcome"], COL["Statistic"], COL["Effect size"])
-RESULT_PRINT_SCALE = 80
+RESULT_PAGE_BREAKS = (COL["Outcome"], COL["Statistic"], COL["Estimate"])
+RESULT_PRINT_SCALE = 75
+# Freeze the table's header row only when the rows above it leave most of a laptop screen free
+# (about 35 rows show at 100%; common practice, our own measure).
+FREEZE_MAX_ROW = 20
 PLAIN_SPAN = f"A{{row}}:{column_letter(COL['Cautions'])}{{row}}"
+SHARE_KINDS = (
+    EstimateKind.SHARE,
+    EstimateKind.SHARE_FURTHEST,
+    EstimateKind.SHARE_DIFFERENCE,
+    EstimateKind.PAIRED_SHARE_DIFFERENCE,
+)
 
-SHARE_OFF = "off (all counts shown)"
-SHARE_ON = "on: counts from 1 to {top} are hidden, with anything that would reveal them"
+
+def _merge_plain(model: SheetModel, row: int) -> None:
+    """Merge a top-block line across the plain columns so it shows and prints whole."""
+    model.merged.append(PLAIN_SPAN.format(row=row + 1))
 
 
 def _against_or_by(result: Result) -> str:
@@ -73,98 +95,129 @@ def _against_or_by(result: Result) -> str:
     if result.against is None:
         return ""
     if isinstance(result.against, Mapping):
-        return ", ".join(
-            f"{k} = {v:g}" if _finite(v) else f"{k} = {v}" for k, v in result.against.items()
-        )
+        return ", ".join(f"{k} = {v:g}" if _finite(v) else f"{k} = {v}" for k, v in result.against.items())
     return f"against {result.against:g}" if _finite(result.against) else f"against {result.against}"
 
 
 def _df_cell(df: Any) -> Cell:
+    """Degrees of freedom: whole numbers as integers, others to two decimals; a pair as text."""
     if isinstance(df, (list, tuple)):
         return Cell(", ".join(f"{float(d):g}" for d in df if _finite(d)), "text")
     value = _num(df)
-    return Cell(value, "number") if value is not None else Cell(None)
+    if value is None:
+        return Cell(None)
+    return Cell(value, "integer" if float(value).is_integer() else "decimal2")
 
 
-def _ci_text(low: Any, high: Any) -> str:
-    if not (_finite(low) and _finite(high)):
-        return ""
-    decimals = explain.decimals_for(low, high)
-    return explain.fmt_ci(low, high, decimals)
+def _fixed(decimals: int) -> str:
+    return f"fixed{max(0, min(4, decimals))}"
 
 
-def _merge_plain(model: SheetModel, row: int) -> None:
-    """Merge a header-block line across the plain columns so it shows and prints whole."""
-    model.merged.append(PLAIN_SPAN.format(row=row + 1))
+def _estimate_style(result: Result, context: ReportContext) -> str:
+    """The display style of an estimate: a percentage for shares, else the outcome's precision plus one."""
+    est = result.estimate
+    if est is not None and est.kind in SHARE_KINDS:
+        return "percent"
+    own = context.decimals.get(result.outcome or "")
+    return "number" if own is None else _fixed(own + 1)
 
 
-def _header_block(
-    model: SheetModel,
-    context: ReportContext,
-    results: Sequence[Result],
-    run_wide: Sequence[str],
-) -> int:
-    """Title, run-wide cautions and run facts; returns the next free row.
+def _number(model: SheetModel, row: int, col: int, value: Any, style: str, *, hidden: bool = False) -> None:
+    """A number cell (full precision, shown by ``style``), or the sharing-mode mark."""
+    if hidden:
+        model.put(row, col, "suppressed", "suppressed")
+        return
+    number = _num(value)
+    model.put(row, col, number, style if number is not None else "text")
 
-    Every line spans the plain columns (merged), and each fact's value sits in
-    the wide Reading column, so nothing is cut off on screen or on paper.
-    """
-    model.put(0, 0, "statmargin results", "title")
-    model.put(
-        1,
-        0,
-        "One row per analysis: the question, a plain reading and that result's own cautions "
-        "first; test details to the right and on the shape-check sheet.",
-        "muted",
+
+def _top_block(model: SheetModel, context: ReportContext, results: Sequence[Result], family: int) -> int:
+    """Title, run line and status line; returns the next free row."""
+    settings = context.settings
+    model.put(0, 0, results_text.TITLE, "title")
+    run_line = results_text.run_line(
+        workbook=context.workbook, sheet=context.data_sheet, rows_read=context.rows_read,
+        when=_run_time_text(context), version=context.version, confidence=settings.confidence,
+        adjust=explain.ADJUST_NAMES.get(str(settings.adjust), str(settings.adjust)), family=family,
+        sides=str(settings.alternative), hidden_rows=context.rows_note,
     )
+    model.put(1, 0, run_line, "muted")
     _merge_plain(model, 1)
+    not_run = sum(1 for r in results if r.skipped)
+    model.put(2, 0, results_text.status_line(len(results) - not_run, not_run), "subtitle")
+    _merge_plain(model, 2)
     row = 3
-    model.put(row, 0, explain.RUN_WIDE_HEADING, "subtitle")
+    model.anchors["share_note"] = f"A{row + 1}"
+    if context.share_mode:
+        model.put(row, 0, explain.SHARE_NOTE.format(floor=context.share_min_count), "caution")
+        _merge_plain(model, row)
+        row += 1
+    return row + 1
+
+
+def _answer_block(model: SheetModel, row: int, results: Sequence[Result], context: ReportContext,
+                  family: int) -> int:
+    """One line per question: what the data show, size and evidence; or why it was not run."""
+    if not results:
+        return row
+    model.put(row, 0, results_text.ANSWERS, "subtitle")
+    row += 1
+    model.put_row(row, list(results_text.ANSWER_HEADERS), "header")
+    row += 1
+    for result in results:
+        line = explain.headline(result, settings=context.settings, context=context, n_comparisons=family)
+        model.put(row, 0, line.question, "wrap")
+        if line.not_run:
+            model.put(row, 1, results_text.NOT_RUN.format(reason=line.not_run), "caution")
+        else:
+            model.put(row, 1, line.answer, "wrap")
+            model.put(row, 2, results_text.size_and_evidence(line.size, line.evidence), "wrap")
+        row += 1
+    return row + 1
+
+
+def _cautions_block(model: SheetModel, row: int, run_wide: Sequence[str]) -> int:
+    model.put(row, 0, results_text.KEEP_IN_MIND, "subtitle")
     _merge_plain(model, row)
     row += 1
     for line in run_wide:
         model.put(row, 0, line, "caution")
         _merge_plain(model, row)
         row += 1
-    model.anchors["share_note"] = _a1(row, 0)
-    if context.share_mode:
-        model.put(row, 0, explain.SHARE_NOTE.format(floor=context.share_min_count), "caution")
-    _merge_plain(model, row)  # the sharing sentence goes here (share.suppress_model)
-    row += 2
-    settings = context.settings
-    share = SHARE_ON.format(top=context.share_min_count - 1) if context.share_mode else SHARE_OFF
-    facts: list[tuple[str, Any, str, bool]] = [
-        ("Workbook", context.workbook, "text", False),
-        ("Data sheet", context.data_sheet, "text", False),
-        ("Header row", context.header_row, "integer", False),
-        ("Rows read", context.rows_read, "integer", True),
-        ("Rows used", context.rows_used, "integer", True),
-        ("Analyses", len(results), "integer", False),
-        ("Run time (UTC)", _run_time_text(context), "text", False),
-        ("Tool version", context.version, "text", False),
-        ("Confidence", settings.confidence, "percent", False),
-        (
-            "Adjustment",
-            explain.ADJUST_NAMES.get(getattr(settings.adjust, "value", ""), str(settings.adjust)),
-            "text",
-            False,
-        ),
-        (
-            "Sidedness",
-            getattr(settings.alternative, "value", str(settings.alternative)),
-            "text",
-            False,
-        ),
-        ("Sharing mode", share, "text", False),
-    ]
-    value_col = COL["Reading"]
-    for label, value, style, is_count in facts:
-        model.put(row, 0, label, "label")
-        # Left-aligned text in the wide column: numbers read as text would align
-        # right, far from their label, so counts keep their number style.
-        model.put(row, value_col, value, style, is_count=is_count)
-        row += 1
     return row + 1
+
+
+def _technical(model: SheetModel, row: int, result: Result, context: ReportContext) -> None:
+    """The technical columns of one analysis row."""
+    put = model.put
+    hidden = _suppressed_fields(result)
+    put(row, COL["Outcome"], result.outcome)
+    put(row, COL["Compared by / against"], _against_or_by(result))
+    put(row, COL["n used"], int(result.n), "integer", is_count=True)
+    put(row, COL["n excluded"], int(result.n_excluded), "integer", is_count=True)
+    put(row, COL["Test"], explain.TEST_NAMES.get(result.test or "", result.test or "none"))
+    why = "; ".join(say_all(result.reasons))
+    if result.skipped:
+        why = (why + "; " if why else "") + f"not run: {say(result.skipped)}"
+    put(row, COL["Why this test"], why, "wrap")
+    put(row, COL["Statistic"], result.statistic_name or "")
+    _number(model, row, COL["Statistic value"], result.statistic, "number", hidden="statistic" in hidden)
+    model.cells[(row, COL["df"])] = _df_cell(result.df)
+    _number(model, row, COL["p"], result.p_value, "p_value", hidden="p_value" in hidden)
+    _number(model, row, COL["Adjusted p"], result.p_adjusted, "p_value", hidden="p_adjusted" in hidden)
+    put(row, COL["How p was found"], str(result.p_method).replace("_", " ") if result.p_method else "")
+    est, eff = result.estimate, result.effect
+    if est is not None:
+        style = _estimate_style(result, context)
+        est_hidden = "estimate" in hidden
+        put(row, COL["Estimate"], est.name, "wrap")
+        for name, value in (("Estimate value", est.value), ("CI low", est.ci_low), ("CI high", est.ci_high)):
+            _number(model, row, COL[name], value, style, hidden=est_hidden)
+    if eff is not None:
+        eff_hidden = "effect" in hidden
+        put(row, COL["Effect size"], eff.name, "wrap")
+        for name, value in (("Effect value", eff.value), ("Effect CI low", eff.ci_low), ("Effect CI high", eff.ci_high)):
+            _number(model, row, COL[name], value, "number", hidden=eff_hidden)
 
 
 def results_sheet(
@@ -172,7 +225,7 @@ def results_sheet(
     context: ReportContext,
     shape_anchors: Mapping[str, str] | None = None,
 ) -> SheetModel:
-    """The results sheet: run facts, then one row per analysis and its follow-ups.
+    """The results sheet: run line, answers, run-wide cautions, then one row per analysis.
 
     Parameters
     ----------
@@ -187,7 +240,7 @@ def results_sheet(
     Returns
     -------
     SheetModel
-        Kind "results"; the header row is frozen with the question column.
+        Kind "results". ``anchors["table"]`` is the table's header cell.
 
     Notes
     -----
@@ -198,13 +251,18 @@ def results_sheet(
     model = SheetModel(name=SHEET_NAMES["results"], kind="results")
     if shape_anchors is None:
         shape_anchors = shape_sheet(results, context).anchors
-    n_comparisons = explain.count_comparisons(results)
-    run_wide = explain.run_wide_cautions(
-        results, settings=context.settings, context=context, n_comparisons=n_comparisons
-    )
-    header = _header_block(model, context, results, run_wide)
+    family = explain.count_comparisons(results)
+    run_wide = explain.run_wide_cautions(results, settings=context.settings, context=context, n_comparisons=family)
+    row = _top_block(model, context, results, family)
+    row = _answer_block(model, row, results, context, family)
+    row = _cautions_block(model, row, run_wide)
+    model.put(row, 0, results_text.ALL_RESULTS, "subtitle")
+    _merge_plain(model, row)
+    header = row + 1
+    model.anchors["table"] = f"A{header + 1}"
     model.put_row(header, [name for name, _ in RESULT_COLUMNS], "header")
-    model.freeze = (header + 1, 1)
+    if header + 1 <= FREEZE_MAX_ROW:
+        model.freeze = (header + 1, 1)
     model.widths = {i: width for i, (_, width) in enumerate(RESULT_COLUMNS)}
     model.landscape = True
     model.print_scale = RESULT_PRINT_SCALE
@@ -217,72 +275,37 @@ def results_sheet(
         reading_text, caution_list = result.reading, result.cautions
         if not reading_text:
             reading_text, caution_list = explain.explain(
-                result, settings=context.settings, context=context, n_comparisons=n_comparisons
+                result, settings=context.settings, context=context, n_comparisons=family
             )
-        hidden = _suppressed_fields(result)
-        put = model.put
-        put(row, COL["Question"], explain.question(result), "wrap")
-        put(row, COL["Outcome"], result.outcome)
-        put(row, COL["Compared by / against"], _against_or_by(result))
-        put(row, COL["n used"], int(result.n), "integer", is_count=True)
-        put(row, COL["n excluded"], int(result.n_excluded), "integer", is_count=True)
-        put(row, COL["Test"], explain.TEST_NAMES.get(result.test or "", result.test or "none"))
-        why = "; ".join(say_all(result.reasons))
-        if result.skipped:
-            why = (why + "; " if why else "") + f"not run: {say(result.skipped)}"
-        put(row, COL["Why this test"], why, "wrap")
-        put(row, COL["Statistic"], result.statistic_name or "")
-        _value(
-            model, row, COL["Statistic value"], result.statistic, "number", "statistic" in hidden
-        )
-        model.cells[(row, COL["df"])] = _df_cell(result.df)
-        _value(model, row, COL["p"], result.p_value, "p_value", "p_value" in hidden)
-        _value(model, row, COL["Adjusted p"], result.p_adjusted, "p_value", "p_adjusted" in hidden)
-        est, eff = result.estimate, result.effect
-        if est is not None:
-            est_hidden = "estimate" in hidden
-            put(row, COL["Estimate"], est.name, "wrap")
-            _value(model, row, COL["Estimate value"], est.value, "number", est_hidden)
-            _value(model, row, COL["CI low"], est.ci_low, "number", est_hidden)
-            _value(model, row, COL["CI high"], est.ci_high, "number", est_hidden)
-            ci = "suppressed" if est_hidden else _ci_text(est.ci_low, est.ci_high)
-            put(row, COL["CI"], ci, "suppressed" if est_hidden else "text")
-        if eff is not None:
-            eff_hidden = "effect" in hidden
-            put(row, COL["Effect size"], eff.name, "wrap")
-            _value(model, row, COL["Effect value"], eff.value, "number", eff_hidden)
-            _value(model, row, COL["Effect CI low"], eff.ci_low, "number", eff_hidden)
-            _value(model, row, COL["Effect CI high"], eff.ci_high, "number", eff_hidden)
-        put(row, COL["Reading"], reading_text or "", "wrap")
+        model.put(row, COL["Question"], explain.question(result), "wrap")
+        model.put(row, COL["Reading"], reading_text or "", "wrap")
         own = explain.row_cautions(caution_list or [], run_wide)
         if own:
-            put(row, COL["Cautions"], "\n".join(own), "wrap")
+            model.put(row, COL["Cautions"], "\n".join(own), "wrap")
         else:
-            put(row, COL["Cautions"], explain.NO_ROW_CAUTIONS, "muted")
+            model.put(row, COL["Cautions"], results_text.NO_ROW_CAUTIONS, "muted")
+        _technical(model, row, result, context)
         anchor = shape_anchors.get(f"analysis_{index}")
         if anchor:
-            put(row, COL["Details"], "shape checks", "link", link=f"{{shape}}!{anchor}")
+            model.put(row, COL["Details"], "shape checks", "link", link=f"{{shape}}!{anchor}")
         row += 1
         for followup in result.followups:
-            put(row, COL["Question"], f"  {explain.followup_label(followup)}", "wrap")
-            put(row, COL["Test"], explain.TEST_NAMES.get(followup.test, followup.test), "muted")
-            _value(model, row, COL["Statistic value"], followup.statistic, "number", False)
-            _value(model, row, COL["p"], followup.p_value, "p_value", False)
-            _value(model, row, COL["Adjusted p"], followup.p_adjusted, "p_value", False)
+            model.put(row, COL["Question"], results_text.FOLLOWUP_PREFIX + explain.followup_label(followup), "wrap")
+            model.put(row, COL["Test"], explain.TEST_NAMES.get(followup.test, followup.test), "muted")
+            _number(model, row, COL["Statistic value"], followup.statistic, "number")
+            _number(model, row, COL["p"], followup.p_value, "p_value")
+            _number(model, row, COL["Adjusted p"], followup.p_adjusted, "p_value")
             if followup.estimate is not None:
                 fe = followup.estimate
-                put(row, COL["Estimate"], fe.name, "wrap")
-                _value(model, row, COL["Estimate value"], fe.value, "number", False)
-                _value(model, row, COL["CI low"], fe.ci_low, "number", False)
-                _value(model, row, COL["CI high"], fe.ci_high, "number", False)
-                put(row, COL["CI"], _ci_text(fe.ci_low, fe.ci_high))
+                style = _fixed(context.decimals[result.outcome] + 1) if result.outcome in context.decimals else "number"
+                model.put(row, COL["Estimate"], fe.name, "wrap")
+                for name, value in (("Estimate value", fe.value), ("CI low", fe.ci_low), ("CI high", fe.ci_high)):
+                    _number(model, row, COL[name], value, style)
             text = followup.reading or explain.followup_reading(
                 followup, result, settings=context.settings, context=context
             )
-            put(row, COL["Reading"], text, "wrap")
+            model.put(row, COL["Reading"], text, "wrap")
             row += 1
     if not results:
-        model.put(row, 0, "No analyses were run: no column has the role 'outcome'.", "muted")
+        model.put(row, 0, results_text.NO_ANALYSES, "muted")
     return model
-
-

@@ -1,0 +1,44 @@
+"""Text of the results sheet's top block: what was run, on what, and what the answers are."""
+
+from __future__ import annotations
+
+from .numbers import fmt_percent
+
+TITLE = "statmargin results"
+ANSWERS = "Answers"
+KEEP_IN_MIND = "Keep in mind"
+ALL_RESULTS = "All results, with the test details to the right"
+ANSWER_HEADERS = ("Question asked", "What the data show", "Size and evidence")
+NOT_RUN = "Not run: {reason}"
+NO_ANALYSES = "No analyses were run: no column has the role 'outcome'."
+NO_ROW_CAUTIONS = "None beyond those above."
+FOLLOWUP_PREFIX = "  "
+
+
+def run_line(*, workbook: str, sheet: str, rows_read: int, when: str, version: str, confidence: float,
+             adjust: str, family: int, sides: str, hidden_rows: str) -> str:
+    """One line saying what was read and how the run was set."""
+    adjusted = (
+        f"p-values adjusted across the {family} questions of this run ({adjust})"
+        if family > 1 and adjust != "no adjustment"
+        else "p-values not adjusted" if family > 1 else "one question"
+    )
+    return (
+        f"{workbook}, sheet {sheet}: {rows_read:,} rows read{hidden_rows}. Run {when} with statmargin "
+        f"{version}; {fmt_percent(confidence, 0)} intervals, {sides}, {adjusted}."
+    )
+
+
+def status_line(answered: int, not_run: int) -> str:
+    """How many questions were answered, and how many could not be run."""
+    if not answered and not not_run:
+        return NO_ANALYSES
+    if not_run:
+        plural = "question" if not_run == 1 else "questions"
+        return f"{answered} answered; {not_run} {plural} could not be run (the reason is beside each)."
+    return f"All {answered} questions were answered." if answered != 1 else "The question was answered."
+
+
+def size_and_evidence(size: str, evidence: str) -> str:
+    """The headline's last cell: the size with its interval over the strength of evidence."""
+    return "\n".join(part for part in (size, evidence[:1].upper() + evidence[1:] if evidence else "") if part)
