@@ -300,7 +300,7 @@ def headline(flags: Mapping[str, SinceLastRun]) -> list[tuple[SinceLastRun, list
     one line); a first run has no flags at all and also gives an empty list, so
     callers tell the two apart by whether there was a previous run.
     """
-    out = []
+    out: list[tuple[SinceLastRun, list[str]]] = []
     for flag in PRECEDENCE:
         if flag is SinceLastRun.UNCHANGED:
             continue

@@ -12,7 +12,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from ..vocabulary import ChartKind, ControlRule, Grain, SinceLastRun
-from ..vocabulary.codes import Note, Reason, Skip
+from ..vocabulary.codes import Caution, Note, Reason, Skip
 from . import sentences
 from .sentences import Facts, capitalized
 
@@ -209,7 +209,7 @@ def _overdispersed(f: Facts) -> str:
     )
 
 
-TEMPLATES: dict[Skip | Note | Reason, Any] = {
+TEMPLATES: dict[Skip | Note | Reason | Caution, Any] = {
     Skip.TOO_FEW_PERIODS: (
         "Only {n} period(s) have rows; a trend across periods needs at least {minimum}."
     ),
@@ -238,3 +238,45 @@ TEMPLATES: dict[Skip | Note | Reason, Any] = {
     ),
 }
 sentences.register(TEMPLATES)
+
+
+def summary_title(folder: str, refreshed: int, failed: int) -> str:
+    """The folder summary's title line."""
+    failures = f"; {failed} could not be refreshed" if failed else ""
+    return f"Folder summary of {folder}: {refreshed} workbook(s) refreshed{failures}."
+
+
+STATUS_REFRESHED = "refreshed"
+STATUS_FAILED = "failed"
+
+
+def bad_jobs() -> str:
+    """One line: --jobs below 1."""
+    return "--jobs must be 1 or more."
+
+
+# --------------------------------------------------------------------------- folder mode on the command line
+
+FOLDER_HELP: dict[str, str] = {
+    "pattern": "Folder mode: which workbooks in the folder to refresh.",
+    "jobs": "Folder mode: workbooks refreshed at once (default: one per CPU).",
+    "summary": "Folder mode: write statmargin-summary.xlsx in the folder (default) or not.",
+}
+FOLDER_PROGRESS = "workbooks refreshed"
+
+
+def folder_report(done: Any) -> list[str]:
+    """Lines on standard output after a folder run: each refreshed workbook, then the summary file."""
+    lines = [f"{o.name}: {len(o.results)} analyses refreshed." for o in done.outcomes if o.ok]
+    if done.summary_path:
+        lines.append(f"Summary: {done.summary_path}")
+    return lines
+
+
+def folder_failures(done: Any) -> list[str]:
+    """One line per workbook that failed, then the count; empty when all were refreshed."""
+    if not done.failed:
+        return []
+    lines = [f"{o.name}: {o.message}" for o in done.failed]
+    lines.append(folder_failed(len(done.failed), len(done.outcomes)))
+    return lines
