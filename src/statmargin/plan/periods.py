@@ -422,7 +422,7 @@ def read_periods(
 
     n_filled = int(valid.sum() + bad.sum())
     if n_filled == 0 or valid.sum() < READABLE_SHARE * n_filled:
-        finest_grain = next((g for g in _FINEST_FIRST if g in supported), None)
+        finest_grain = None if grain in supported else next((g for g in _FINEST_FIRST if g in supported), None)
         examples = _examples(column, np.flatnonzero(bad), rows)
         raise RoleError(not_a_period_column(column.name, grain, finest_grain, examples))
     notes: list[Coded] = []
