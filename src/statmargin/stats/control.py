@@ -127,16 +127,16 @@ def run_rules(
     plotted = np.flatnonzero(~np.isnan(z))
     values = z[plotted]
     fired: list[tuple[int, int, ControlRule]] = []  # (position, rule order, rule)
+    ends = np.arange(1, values.size + 1)
     for order, (rule, window, needed, zone) in enumerate(rules):
-        if values.size < window:
-            continue
         hit = np.zeros(values.size, dtype=bool)
         for sign in (1.0, -1.0):
             beyond = (sign * values > zone).astype(np.int64)
-            # beyond-zone count in the window ending at each point (cumulative-sum difference)
+            # Beyond-zone count in the window ending at each point (cumulative-sum difference);
+            # the first points have shorter windows, which can still hold `needed` points.
             total = np.cumsum(np.concatenate(([0], beyond)))
-            in_window = total[window:] - total[:-window]
-            hit[window - 1 :] |= (in_window >= needed) & (beyond[window - 1 :] == 1)
+            in_window = total[ends] - total[np.maximum(ends - window, 0)]
+            hit |= (in_window >= needed) & (beyond == 1)
         fired.extend((int(plotted[t]), order, rule) for t in np.flatnonzero(hit))
     return [(position, rule) for position, _, rule in sorted(fired, key=lambda f: (f[0], f[1]))]
 
