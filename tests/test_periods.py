@@ -200,15 +200,22 @@ def test_gaps_are_periods_with_no_rows() -> None:
 
 
 def test_partial_latest_period_from_dates() -> None:
-    """Dates up to 14 March make March partial: February is the latest, March is named partial."""
+    """Dates up to 14 March, run on 15 March: March is partial, February is the latest."""
     days = [dt.date(2026, 1, 1) + dt.timedelta(days=i) for i in range(0, 73)]  # to 2026-03-14
-    axis = period_axis(read_periods(date_column(days), Grain.MONTH))
+    axis = period_axis(read_periods(date_column(days), Grain.MONTH), as_of=dt.date(2026, 3, 15))
     assert period_label(axis.grain, axis.latest) == "2026-02"
     assert period_label(axis.grain, axis.partial) == "2026-03"
     assert axis.through_latest().tolist() == [True, True, False]
     note = next(n for n in axis.notes if n.code is Note.PERIOD_PARTIAL)
     assert note.facts["last_date"] == dt.date(2026, 3, 14)
     assert "2026-03 is partial (rows up to 2026-03-14, the period ends 2026-03-31)" in say(note)
+
+
+def test_month_over_is_complete_even_if_rows_stop_early() -> None:
+    """Rows up to Friday 27 March, run on 2 April: March has ended, so it is complete and the latest."""
+    days = [dt.date(2026, 1, 1) + dt.timedelta(days=i) for i in range(0, 86)]  # to 2026-03-27
+    axis = period_axis(read_periods(date_column(days), Grain.MONTH), as_of=dt.date(2026, 4, 2))
+    assert period_label(axis.grain, axis.latest) == "2026-03" and axis.partial is None
 
 
 def test_complete_latest_period_from_dates() -> None:

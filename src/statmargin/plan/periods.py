@@ -48,8 +48,10 @@ Rules (documented in README "The period role"):
   dropped, so trends are measured in real periods.
 * **The latest period** is the last complete one. When the last period's rows
   carry days (dates), it is partial if its last date falls before the period's
-  last day; a partial last period is named (``Note.PERIOD_PARTIAL``) and the
-  period before it becomes the latest. When the cells carry only labels
+  last day and the period had not yet ended on the day of the run (``as_of``):
+  rows stopping on Friday the 29th make a month partial while the month is
+  still running, not once it is over. A partial last period is named
+  (``Note.PERIOD_PARTIAL``) and the period before it becomes the latest. When the cells carry only labels
   (``2026-03``), the last period is complete unless the user says it is partial.
   The user may also name the latest period outright.
 * **Too few rows**: a period with at least one but fewer than
@@ -503,6 +505,7 @@ def period_axis(
     last_is_partial: bool | None = None,
     minimum: int = MIN_ROWS_PER_PERIOD,
     mask: np.ndarray | None = None,
+    as_of: dt.date | None = None,
 ) -> PeriodAxis:
     """Lay out the series: every period from first to last, the latest complete one, gaps and small periods.
 
@@ -515,12 +518,15 @@ def period_axis(
         default: the last complete period.
     last_is_partial : bool, optional
         The user's word on whether the last period with rows is partial; default
-        (None): partial when its rows carry dates and the last of them falls
-        before the period's last day; complete when they carry only labels.
+        (None): partial when its rows carry dates, the last of them falls
+        before the period's last day and the period had not ended by ``as_of``;
+        complete when they carry only labels.
     minimum : int
         Rows below which a period is named as small (``MIN_ROWS_PER_PERIOD``).
     mask : numpy.ndarray of bool, optional
         Rows to count (e.g. rows with a usable outcome); default all readable rows.
+    as_of : datetime.date, optional
+        The day of the run (default today), for the partial-period check.
 
     Returns
     -------
@@ -539,7 +545,7 @@ def period_axis(
     >>> days = [dt.date(2026, 1, 5), dt.date(2026, 2, 20), dt.date(2026, 3, 14)]
     >>> serial = np.array([d.toordinal() - dt.date(1899, 12, 30).toordinal() for d in days], float)
     >>> col = Column("Visit date", "A", serial, np.full(3, None, dtype=object), n_dates=3)
-    >>> axis = period_axis(read_periods(col, "month"))
+    >>> axis = period_axis(read_periods(col, "month"), as_of=dt.date(2026, 3, 15))
     >>> axis.labels, period_label(axis.grain, axis.latest), period_label(axis.grain, axis.partial)
     (['2026-01', '2026-02', '2026-03'], '2026-02', '2026-03')
     """
@@ -570,7 +576,9 @@ def period_axis(
         if is_partial is None:
             in_last = use & (periods.keys == last) & (periods.day > 0)
             last_day = int(periods.day[in_last].max()) if in_last.any() else 0
-            is_partial = bool(last_day) and last_day < period_bounds(grain, last)[1].toordinal()
+            end = period_bounds(grain, last)[1].toordinal()
+            today = (as_of or dt.date.today()).toordinal()
+            is_partial = bool(last_day) and last_day < end and today < end
         latest_key = last
         if is_partial:
             earlier = np.flatnonzero(counts[:-1] > 0)
