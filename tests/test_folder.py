@@ -7,31 +7,20 @@ demo_workbooks/period_demo_data.py) with a roles sheet; one is corrupt on purpos
 from __future__ import annotations
 
 import hashlib
-import importlib.util
 import json
 import shutil
 from pathlib import Path
-from typing import Any
 
 import openpyxl
 import pytest
 from click.testing import CliRunner
 
+from script_loader import load_script
 from statmargin.cli import main
 from statmargin.errors import OptionError
 from statmargin.jobs.folder import SUMMARY_NAME, list_workbooks, run_folder
 from statmargin.jobs.workbook import plan_workbook
 from statmargin.sheets.folder_summary import COL, HEADER_ROW
-
-SCRIPT = Path(__file__).resolve().parent.parent / "demo_workbooks" / "period_demo_data.py"
-
-
-def _demo() -> Any:
-    spec = importlib.util.spec_from_file_location("period_demo_data", SCRIPT)
-    assert spec is not None and spec.loader is not None
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
-    return module
 
 
 def _digest(path: Path) -> str:
@@ -42,7 +31,7 @@ def _digest(path: Path) -> str:
 def planned_workbook(tmp_path_factory: pytest.TempPathFactory) -> Path:
     """One district workbook with a roles sheet: same-day vaccination and wait, by team."""
     folder = tmp_path_factory.mktemp("template")
-    path = _demo().write_workbook(folder / "district.xlsx", months=6)
+    path = load_script("demo_workbooks/period_demo_data.py").write_workbook(folder / "district.xlsx", months=6)
     plan_workbook(path, outcome=["Vaccinated same day", "Wait (minutes)"], by=["Team"])
     return path
 

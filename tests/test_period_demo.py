@@ -9,13 +9,13 @@ so the story the demo tells is what the tool computes. Pooled shares are counts 
 from __future__ import annotations
 
 import datetime as dt
-import importlib.util
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 import pytest
 
+from script_loader import load_script
 from statmargin.jobs.history import (
     TREND_PART,
     analysis_key,
@@ -34,19 +34,10 @@ from statmargin.stats.control import baseline_mask, p_chart
 from statmargin.stats.trend import cochran_armitage, share_series
 from statmargin.vocabulary import ControlRule, Design, Grain, SinceLastRun
 
-SCRIPT = Path(__file__).resolve().parent.parent / "demo_workbooks" / "period_demo_data.py"
 RUN_DAY = dt.date(2026, 8, 3)  # the refresh happens after July has ended
 
 
-def _load() -> Any:
-    spec = importlib.util.spec_from_file_location("period_demo_data", SCRIPT)
-    assert spec is not None and spec.loader is not None
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
-    return module
-
-
-demo = _load()
+demo = load_script("demo_workbooks/period_demo_data.py")
 
 
 def _columns(rows: list[dict[str, Any]]) -> tuple[Column, np.ndarray]:
