@@ -10,7 +10,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from ..results import Result
-from ..words import explain
+from ..words import cautions, technical
 from ..words.period_words import RULE_NAMES, SINCE_LAST_RUN_WORDS, summary_title
 from .model import SheetModel
 
@@ -64,7 +64,7 @@ def _row(result: Result) -> dict[str, Any]:
         "Since last run": SINCE_LAST_RUN_WORDS[result.since_last_run] if result.since_last_run else "",
         "Outcome": result.outcome,
         "Compared by": _compared_by(result),
-        "Test": explain.TEST_NAMES.get(result.test or "", str(result.test or "")),
+        "Test": technical.TEST_NAMES.get(result.test or "", str(result.test or "")),
         "n": result.n,
         "p-value": None if skipped else result.p_value,
         "Adjusted p": None if skipped else result.p_adjusted,
@@ -72,7 +72,7 @@ def _row(result: Result) -> dict[str, Any]:
         "Value": estimate.value if estimate else None,
         "CI low": estimate.ci_low if estimate else None,
         "CI high": estimate.ci_high if estimate else None,
-        "Trend test": explain.TEST_NAMES.get(trend.test, str(trend.test)) if trend else "",
+        "Trend test": technical.TEST_NAMES.get(trend.test, str(trend.test)) if trend else "",
         "Trend p": trend.p_value if trend else None,
         "Change per period": trend.estimate.value if trend and trend.estimate else None,
         "Unusual periods": _unusual_text(result),
@@ -93,8 +93,8 @@ def summary_sheet(folder: str, outcomes: Sequence[Any]) -> SheetModel:
     model = SheetModel(name=SHEET_NAME, kind=KIND)
     failed = sum(1 for o in outcomes if not o.ok)
     model.put(0, 0, summary_title(folder, len(outcomes) - failed, failed), "title")
-    model.put(1, 0, explain.REVIEW_LINE, "caution")
-    model.put(2, 0, explain.OBSERVATIONAL_LINE, "caution")
+    model.put(1, 0, cautions.REVIEW_LINE, "caution")
+    model.put(2, 0, cautions.OBSERVATIONAL_LINE, "caution")
     model.put_row(HEADER_ROW, [name for name, _, _ in COLUMNS], "header")
     model.widths = {i: width for i, (_, width, _) in enumerate(COLUMNS)}
     model.freeze = (HEADER_ROW + 1, 1)
