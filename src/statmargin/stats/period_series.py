@@ -126,11 +126,13 @@ def share_periods(
     n_periods = len(axis.keys)
     series = share_series(position, success, n_periods, confidence=confidence)
     upto = _upto(axis)
+    counts = series.count
+    assert counts is not None  # share_series always counts
     skips: list[Coded] = []
     trend = chart = None
     try:
         trend = cochran_armitage(
-            series.count[upto], series.n[upto], level=level, grain=axis.grain,
+            counts[upto], series.n[upto], level=level, grain=axis.grain,
             alternative=alternative, confidence=confidence,
         )
     except NotEnoughDataError as err:
@@ -138,8 +140,7 @@ def share_periods(
             skips.append(err.reason)
     try:
         base = baseline_mask(series.n, axis.latest - axis.first)
-        assert series.count is not None
-        chart = p_chart(series.count, series.n, base, plotted=upto & (series.n > 0))
+        chart = p_chart(counts, series.n, base, plotted=upto & (series.n > 0))
     except NotEnoughDataError as err:
         if err.reason is not None:
             skips.append(err.reason)
