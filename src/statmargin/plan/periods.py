@@ -370,8 +370,6 @@ def read_periods(
     >>> read.notes[0].facts["n"]
     1
     """
-    import pandas as pd
-
     from ..words.period_words import not_a_period_column
 
     grain = Grain(str(grain).strip().lower()) if not isinstance(grain, Grain) else grain
@@ -397,10 +395,11 @@ def read_periods(
         else:
             bad[where] = True
 
-    has_label = np.fromiter((v is not None for v in column.labels), dtype=bool, count=n)
-    has_label &= ~is_number
-    if has_label.any():
-        where = np.flatnonzero(has_label)
+    others = np.flatnonzero(~is_number)
+    where = others[np.not_equal(column.labels[others], None)]  # elementwise: the cells holding text
+    if where.size:
+        import pandas as pd
+
         codes, uniques = pd.factorize(column.labels[where])
         reads = [read_period_text(str(u)) for u in uniques]
         for precision in Precision:

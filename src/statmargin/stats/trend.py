@@ -147,8 +147,8 @@ def centre_series(
 
     Notes
     -----
-    One sort of all rows by (period, value) serves every period, so the cost is
-    O(N log N) for N rows whatever the number of periods.
+    Rows are grouped by period with one stable integer sort, then each period's
+    values are sorted in place: O(N log N) time and O(N) memory for N rows.
 
     Examples
     --------
@@ -178,12 +178,14 @@ def centre_series(
         half = q * sd[two] / np.sqrt(n[two])
         low[two], high[two] = value[two] - half, value[two] + half
         return Series(n=n, value=value, ci_low=low, ci_high=high, sd=sd)
-    order = np.lexsort((vals, pos))
-    ordered = vals[order]
+    # Group rows by period (a stable integer sort), then sort each period's values in place.
+    ordered = vals[np.argsort(pos, kind="stable")]
     starts = np.concatenate(([0], np.cumsum(n)[:-1]))
     for i in np.flatnonzero(n):
         block = ordered[starts[i] : starts[i] + n[i]]
-        value[i] = float(np.median(block))
+        block.sort()
+        m = int(n[i])
+        value[i] = 0.5 * (float(block[(m - 1) // 2]) + float(block[m // 2]))  # the block is sorted
         ranks = median_interval_ranks(int(n[i]), confidence)
         if ranks is not None:
             low[i], high[i] = block[ranks[0] - 1], block[ranks[1] - 1]
