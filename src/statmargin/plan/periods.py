@@ -396,7 +396,7 @@ def read_periods(
             bad[where] = True
 
     others = np.flatnonzero(~is_number)
-    where = others[np.not_equal(column.labels[others], None)]  # elementwise: the cells holding text
+    where = others[column.labels[others] != np.array(None)]  # elementwise: the cells holding text
     if where.size:
         import pandas as pd
 
