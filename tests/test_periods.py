@@ -16,6 +16,7 @@ import pytest
 from statmargin.errors import RoleError
 from statmargin.plan.periods import (
     MIN_ROWS_PER_PERIOD,
+    parse_grain,
     parse_period,
     period_axis,
     period_bounds,
@@ -310,3 +311,10 @@ def test_a_million_rows_read_in_linear_memory() -> None:
     assert np.array_equal(by_date.keys, by_label.keys)
     axis = period_axis(by_date)
     assert axis.counts.sum() == n and len(axis.keys) == 24
+
+
+def test_grain_setting_is_read_or_refused() -> None:
+    """The grain setting reads in any case and spacing; a word that is not a grain is refused in one line."""
+    assert parse_grain("  Week ") is Grain.WEEK and parse_grain("") is Grain.MONTH
+    with pytest.raises(RoleError, match="Period grain 'fortnight' is not one of: week, month, quarter, year."):
+        parse_grain("fortnight")

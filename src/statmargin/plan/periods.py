@@ -170,6 +170,32 @@ def year_earlier(grain: Grain, key: int) -> int | None:
     return week_key(monday.toordinal())
 
 
+def parse_grain(text: str | Grain | None) -> Grain:
+    """The grain a user typed on the roles sheet ('Month', ' week '); empty means month.
+
+    Raises
+    ------
+    RoleError
+        For a word that is not a grain, in one line that lists the choices.
+
+    Examples
+    --------
+    >>> parse_grain(" Quarter "), parse_grain(None)
+    ('quarter', 'month')
+    """
+    from ..words.period_words import unknown_grain
+
+    if isinstance(text, Grain):
+        return text
+    word = " ".join(str(text or "").split()).lower()
+    if not word:
+        return Grain.MONTH
+    try:
+        return Grain(word)
+    except ValueError:
+        raise RoleError(unknown_grain(str(text))) from None
+
+
 # --------------------------------------------------------------------------- text cells
 
 _MONTHS = {

@@ -280,3 +280,29 @@ def folder_failures(done: Any) -> list[str]:
     lines = [f"{o.name}: {o.message}" for o in done.failed]
     lines.append(folder_failed(len(done.failed), len(done.outcomes)))
     return lines
+
+
+# --------------------------------------------------------------------------- since last run, at the top of the sheet
+
+
+def since_last_run_lines(
+    changes: Sequence[tuple[SinceLastRun, Sequence[str]]], previous_run: str | None
+) -> list[str]:
+    """The lines at the top of the results sheet: what changed since the last run, most important first.
+
+    Parameters
+    ----------
+    changes : sequence of (SinceLastRun, questions)
+        From ``jobs.history.headline``, with each analysis key replaced by the
+        question as the results sheet words it.
+    previous_run : str or None
+        When the last run was (None on a first run).
+    """
+    if previous_run is None:
+        return ["First run: the next refresh will say what changed since this one."]
+    if not changes:
+        return [f"Nothing changed since the last run ({previous_run})."]
+    lines = [f"Since the last run ({previous_run}):"]
+    for flag, questions in changes:
+        lines.append(f"{capitalized(SINCE_LAST_RUN_WORDS[flag])}: {'; '.join(questions)}.")
+    return lines
