@@ -20,7 +20,9 @@ A trend or chart that the data cannot support is left out with its skip code in
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
+from typing import TypeVar
 
 import numpy as np
 
@@ -30,6 +32,8 @@ from ..results import PeriodPoint, Trend, Unusual
 from ..vocabulary.codes import Coded
 from .control import ControlChart, baseline_mask, individuals_chart, p_chart
 from .trend import Series, centre_series, cochran_armitage, mann_kendall, share_series
+
+T = TypeVar("T")
 
 
 @dataclass
@@ -80,6 +84,16 @@ def _assemble(
     return PeriodAnalysis(points, trend, unusual, series, chart, skips, notes)
 
 
+def _attempt(skips: list[Coded], step: Callable[[], T]) -> T | None:
+    """Run a trend or chart step; data that cannot support it leave its skip code instead."""
+    try:
+        return step()
+    except NotEnoughDataError as err:
+        if err.reason is not None:
+            skips.append(err.reason)
+        return None
+
+
 def _upto(axis: PeriodAxis) -> np.ndarray:
     return axis.through_latest()
 
@@ -123,27 +137,19 @@ def share_periods(
     >>> out.trend.test, out.trend.estimate.value < 0
     ('cochran_armitage', True)
     """
-    n_periods = len(axis.keys)
-    series = share_series(position, success, n_periods, confidence=confidence)
-    upto = _upto(axis)
+    series = share_series(position, success, len(axis.keys), confidence=confidence)
     counts = series.count
     assert counts is not None  # share_series always counts
+    upto = _upto(axis)
     skips: list[Coded] = []
-    trend = chart = None
-    try:
-        trend = cochran_armitage(
-            counts[upto], series.n[upto], level=level, grain=axis.grain,
-            alternative=alternative, confidence=confidence,
-        )
-    except NotEnoughDataError as err:
-        if err.reason is not None:
-            skips.append(err.reason)
-    try:
-        base = baseline_mask(series.n, axis.latest - axis.first)
-        chart = p_chart(counts, series.n, base, plotted=upto & (series.n > 0))
-    except NotEnoughDataError as err:
-        if err.reason is not None:
-            skips.append(err.reason)
+    trend = _attempt(
+        skips, lambda: cochran_armitage(counts[upto], series.n[upto], level=level, grain=axis.grain,
+                                        alternative=alternative, confidence=confidence)
+    )
+    chart = _attempt(
+        skips, lambda: p_chart(counts, series.n, baseline_mask(series.n, axis.latest - axis.first),
+                               plotted=upto & (series.n > 0))
+    )
     return _assemble(axis, series, trend, chart, skips)
 
 
@@ -172,23 +178,15 @@ def centre_periods(
     alternative, confidence
         Direction of the trend question and level of the intervals.
     """
-    n_periods = len(axis.keys)
-    series = centre_series(position, values, n_periods, centre=centre, confidence=confidence)
+    series = centre_series(position, values, len(axis.keys), centre=centre, confidence=confidence)
     upto = _upto(axis)
     skips: list[Coded] = []
-    trend = chart = None
-    try:
-        trend = mann_kendall(
-            series.value[upto], grain=axis.grain,
-            alternative=alternative, confidence=confidence,
-        )
-    except NotEnoughDataError as err:
-        if err.reason is not None:
-            skips.append(err.reason)
-    try:
-        base = baseline_mask(series.n, axis.latest - axis.first)
-        chart = individuals_chart(series.value, base, plotted=upto & (series.n > 0))
-    except NotEnoughDataError as err:
-        if err.reason is not None:
-            skips.append(err.reason)
+    trend = _attempt(
+        skips, lambda: mann_kendall(series.value[upto], grain=axis.grain, alternative=alternative,
+                                    confidence=confidence)
+    )
+    chart = _attempt(
+        skips, lambda: individuals_chart(series.value, baseline_mask(series.n, axis.latest - axis.first),
+                                         plotted=upto & (series.n > 0))
+    )
     return _assemble(axis, series, trend, chart, skips)
