@@ -17,7 +17,7 @@ from ...sheets.model import SheetModel
 from ..protocol import WriteReport
 from .package import CONTENT_TYPES_PART, build_package, tool_sheets
 from .sink import FileSink, _sheet_names_after
-from .zipio import new_entry, read_zip, write_zip
+from .zipio import ZipEntry, new_entry, read_zip, write_zip
 
 _CONTENT_TYPES = (
     '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
@@ -47,7 +47,7 @@ _WORKBOOK_RELS = (
 )
 
 
-def blank_package() -> list:
+def blank_package() -> list[ZipEntry]:
     """Zip entries of a workbook with no sheets (not valid on its own; sheets are added next)."""
     return [
         new_entry(CONTENT_TYPES_PART, _CONTENT_TYPES.encode()),
