@@ -25,6 +25,7 @@ import click
 from . import errors
 from ._version import __version__
 from .words import console
+from .words.period_words import FOLDER_HELP
 
 # ---------------------------------------------------------------- shared plumbing
 
@@ -291,18 +292,24 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 
 
 @main.command("run")
-@click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
+@click.argument("workbook", type=click.Path(path_type=Path))
 @out_option
 @click.option("--share", is_flag=True, help=console.HELP["share"])
 @click.option("--min-count", type=click.IntRange(min=2), default=None, metavar="N",
               help=console.HELP["min_count"])
+@click.option("--pattern", default="*.xlsx", show_default=True, metavar="GLOB", help=FOLDER_HELP["pattern"])
+@click.option("--jobs", type=click.IntRange(min=1), default=None, metavar="N", help=FOLDER_HELP["jobs"])
+@click.option("--summary/--no-summary", "write_summary", default=True, help=FOLDER_HELP["summary"])
 @json_option
 @quiet_option
 @debug_option
 @handle_errors
-def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | None, json_path: str | None,
-                quiet: bool) -> None:
+def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | None, pattern: str,
+                jobs: int | None, write_summary: bool, json_path: str | None, quiet: bool) -> None:
     """Run every analysis the roles sheet asks for and write the results sheets.
+
+    WORKBOOK may be a folder: every workbook in it is refreshed, in parallel,
+    into one summary workbook.
 
     Example: statmargin run clinics.xlsx --out clinics-results.xlsx
     """
@@ -310,6 +317,10 @@ def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | 
 
     if min_count is not None and not share:
         raise errors.OptionError(console.min_count_without_share())
+    if workbook.is_dir():
+        _run_folder(workbook, out=out, share=share, min_count=min_count, pattern=pattern, jobs=jobs,
+                    summary=write_summary, json_path=json_path, quiet=quiet)
+        return
     check_json_target(json_path, workbook, out)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # caveats are in each result's notes
@@ -319,6 +330,29 @@ def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | 
         click.echo(console.run_summary(summary))
     if json_path:
         write_json(summary.to_record(), json_path, protect=workbook)
+
+
+def _run_folder(folder: Path, *, out: Path | None, share: bool, min_count: int | None, pattern: str,
+                jobs: int | None, summary: bool, json_path: str | None, quiet: bool) -> None:
+    """Folder mode of ``run``: one bar over the workbooks, failures listed at the end, exit status."""
+    from .jobs.folder import run_folder
+    from .words import period_words
+
+    check_json_target(json_path)
+    bar = _progress(quiet or json_path == "-")
+    done_folder = run_folder(
+        folder, pattern, jobs=jobs, summary=summary, summary_path=out, share=share, min_count=min_count,
+        progress=lambda done, total, outcome: bar(period_words.FOLDER_PROGRESS, done=done, total=total),
+    )
+    if json_path != "-":
+        for line in period_words.folder_report(done_folder):
+            click.echo(line)
+        for line in period_words.folder_failures(done_folder):
+            click.echo(console.error_line(line), err=True)
+    if json_path:
+        write_json(done_folder.to_record(), json_path)
+    if done_folder.exit_code:
+        click.get_current_context().exit(done_folder.exit_code)
 
 
 @main.command("demo")

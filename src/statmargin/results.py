@@ -12,7 +12,16 @@ from dataclasses import dataclass, field, fields
 from enum import Enum
 from typing import Any
 
-from .vocabulary import FOLLOWUP_TESTS, Design, EffectKind, EstimateKind, PMethod, Test
+from .vocabulary import (
+    FOLLOWUP_TESTS,
+    ControlRule,
+    Design,
+    EffectKind,
+    EstimateKind,
+    PMethod,
+    SinceLastRun,
+    Test,
+)
 from .vocabulary.codes import Coded
 
 # Identifier tuples kept for callers that list them; the enums are the vocabulary.
@@ -122,6 +131,73 @@ class Followup:
         return _clean(rec)
 
 
+@dataclass(frozen=True)
+class PeriodPoint:
+    """One period of a series: its size, its share or mean or median with an interval, and its limits.
+
+    ``value`` is the share of the counted level (two-level outcomes) or the mean
+    or median (continuous outcomes); ``centre``, ``lower_limit`` and
+    ``upper_limit`` are the control chart's lines at this period (None where no
+    chart was drawn). ``partial`` marks a last period that is not complete yet,
+    ``few`` one with fewer rows than the documented minimum.
+    """
+
+    period: str
+    n: int
+    value: float | None
+    ci_low: float | None = None
+    ci_high: float | None = None
+    partial: bool = False
+    few: bool = False
+    centre: float | None = None
+    lower_limit: float | None = None
+    upper_limit: float | None = None
+
+    def to_record(self) -> dict[str, Any]:
+        return _clean({f.name: getattr(self, f.name) for f in fields(self)})
+
+
+@dataclass(frozen=True)
+class Trend:
+    """A trend test across periods with its estimate in units per period."""
+
+    test: Test
+    statistic: float | None
+    p_value: float | None
+    estimate: Estimate | None
+    periods: int  # periods with rows that entered the test
+    statistic_name: str | None = None
+    p_method: PMethod | None = None
+    notes: tuple[Coded, ...] = ()
+    extra: dict[str, Any] = field(default_factory=dict)
+
+    def to_record(self) -> dict[str, Any]:
+        """``{test, statistic, p_value, estimate: {name, value, ci_low, ci_high}, periods}``."""
+        estimate = self.estimate.to_record() if self.estimate else None
+        if estimate is not None:
+            estimate.pop("kind", None)
+        return _clean(
+            {
+                "test": self.test,
+                "statistic": self.statistic,
+                "p_value": self.p_value,
+                "estimate": estimate,
+                "periods": self.periods,
+            }
+        )
+
+
+@dataclass(frozen=True)
+class Unusual:
+    """A period flagged by a control-chart rule; the flag names the rule it met."""
+
+    period: str
+    rule: ControlRule
+
+    def to_record(self) -> dict[str, Any]:
+        return {"period": self.period, "rule": self.rule.value}
+
+
 @dataclass
 class Result:
     """One analysis: the numbers people act on, how they were chosen, and the checks behind them.
@@ -159,6 +235,12 @@ class Result:
     cautions: list[str] = field(default_factory=list)
     # Extra numbers a method reports beside the main ones (e.g. expected counts).
     extra: dict[str, Any] = field(default_factory=dict)
+    # The period design (None elsewhere): the series, the trend, flagged periods, and
+    # how the result changed since the workbook's previous run (None on a first run).
+    periods: list[PeriodPoint] | None = None
+    trend: Trend | None = None
+    unusual: list[Unusual] | None = None
+    since_last_run: SinceLastRun | None = None
 
     def to_record(self) -> dict[str, Any]:
         """A JSON-ready dict with the documented keys (see README "JSON output")."""
@@ -171,6 +253,10 @@ class Result:
                 value = value.to_record()
             elif f.name == "followups":
                 value = [fu.to_record() for fu in value]
+            elif f.name in ("periods", "unusual") and value is not None:
+                value = [item.to_record() for item in value]
+            elif f.name == "trend" and value is not None:
+                value = value.to_record()
             elif f.name in ("reasons", "notes"):
                 value = [say(item) for item in value]
             elif f.name == "skipped" and value is not None:

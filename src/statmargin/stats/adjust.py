@@ -14,7 +14,7 @@ import numpy as np
 
 from statmargin.errors import OptionError
 from statmargin.results import Result
-from statmargin.vocabulary import AdjustMethod
+from statmargin.vocabulary import AdjustFamily, AdjustMethod
 
 
 def _as_method(method: AdjustMethod | str) -> AdjustMethod:
@@ -178,4 +178,73 @@ def adjust_results(results: list[Result], method: AdjustMethod | str) -> list[Re
     adjusted = adjust_p(raw, method)
     for result, value in zip(results, adjusted, strict=True):
         result.p_adjusted = value
+    return results
+
+
+def _as_family(family: AdjustFamily | str) -> AdjustFamily:
+    """The AdjustFamily for a setting as typed on the roles sheet or passed by the engine."""
+    if isinstance(family, AdjustFamily):
+        return family
+    try:
+        return AdjustFamily(" ".join(str(family).split()).lower())
+    except ValueError:
+        from statmargin.words.period_words import unknown_family
+
+        raise OptionError(unknown_family(str(family))) from None
+
+
+def adjust_by_family(
+    results: list[Result], method: AdjustMethod | str, family: AdjustFamily | str = AdjustFamily.RUN
+) -> list[Result]:
+    """Set ``p_adjusted`` with the family the user fixed: the whole run, each outcome, or none.
+
+    Parameters
+    ----------
+    results : list of Result
+        All results of one run.
+    method : AdjustMethod or str
+        ``"holm"``, ``"benjamini-hochberg"`` or ``"none"``.
+    family : AdjustFamily or str
+        ``"this run"``: every result is one family (``adjust_results``);
+        ``"each outcome"``: the results about one outcome column form a family,
+        so adding a question about another outcome leaves these adjusted
+        p-values where they were; ``"none"``: no adjustment (``p_adjusted``
+        equals the p-value).
+
+    Returns
+    -------
+    list of Result
+        The same objects, changed in place, in the same order.
+
+    Notes
+    -----
+    The family controls what the error rate is promised over: Holm by outcome
+    keeps the family-wise error rate at the level for each outcome's questions,
+    not for the run as a whole (the header states the run's choice).
+
+    Examples
+    --------
+    Two outcomes, Holm by outcome: wait's p-values 0.01 and 0.04 become 0.02
+    and 0.04 (2 x 0.01, then max(0.02, 1 x 0.04)); score's single 0.03 stays.
+
+    >>> from statmargin.results import Result
+    >>> run = [Result("wait", "site", "two_group_continuous", "welch_t", p_value=0.01),
+    ...        Result("score", "site", "two_group_continuous", "welch_t", p_value=0.03),
+    ...        Result("wait", "type", "two_group_continuous", "welch_t", p_value=0.04)]
+    >>> [r.p_adjusted for r in adjust_by_family(run, "holm", "each outcome")]
+    [0.02, 0.03, 0.04]
+    >>> [r.p_adjusted for r in adjust_by_family(run, "holm", "this run")]
+    [0.03, 0.06, 0.06]
+    """
+    chosen = _as_family(family)
+    if chosen is AdjustFamily.RUN:
+        return adjust_results(results, method)
+    if chosen is AdjustFamily.NONE:
+        return adjust_results(results, AdjustMethod.NONE)
+    _as_method(method)  # refuse an unknown method even when every family has one result
+    by_outcome: dict[str, list[Result]] = {}
+    for result in results:
+        by_outcome.setdefault(result.outcome, []).append(result)
+    for members in by_outcome.values():
+        adjust_results(members, method)
     return results

@@ -8,18 +8,25 @@ and the identifiers written to JSON; display text is made from them in
 from .columns import MeasureType, Role, ShapeHandling
 from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
 from .effects import EffectKind, EstimateKind
-from .run import AdjustMethod, Alternative
+from .periods import ChartKind, ControlRule, Grain, Precision, SinceLastRun
+from .run import AdjustFamily, AdjustMethod, Alternative
 
 __all__ = [
     "FOLLOWUP_TESTS",
+    "AdjustFamily",
     "AdjustMethod",
     "Alternative",
+    "ChartKind",
+    "ControlRule",
     "Design",
     "EffectKind",
     "EstimateKind",
+    "Grain",
     "MeasureType",
     "PMethod",
+    "Precision",
     "Role",
     "ShapeHandling",
+    "SinceLastRun",
     "Test",
 ]

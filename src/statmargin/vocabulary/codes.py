@@ -69,6 +69,8 @@ class Skip(Word):
     DUPLICATE_KEYS = "duplicate_keys"  # key, by, keys
     PAIRED_NOT_TWO_LEVELS = "paired_not_two_levels"  # outcome, n
     NO_P_VALUE = "no_p_value"
+    TOO_FEW_PERIODS = "too_few_periods"  # n, minimum (periods with data)
+    NO_BASELINE = "no_baseline"  # n, minimum (baseline periods for control limits)
 
 
 class Note(Word):
@@ -90,6 +92,15 @@ class Note(Word):
     ASSUMED_NORMAL_DESPITE_SHAPE = "assumed_normal_despite_shape"  # shape (a Coded of Reason.SHAPE_*)
     INCOMPLETE_PAIRS = "incomplete_pairs"  # n, key, outcome, first, second
     SHARE_HIDDEN = "share_hidden"  # floor
+    SHORT_SERIES = "short_series"  # n, minimum: fewer periods than a trend test reads well
+    AUTOCORRELATED = "autocorrelated"  # r, n, limit: lag-1 autocorrelation of the detrended series
+    TREND_NOT_LINEAR = "trend_not_linear"  # statistic, df, p: periods vary beyond a straight-line trend
+    OVERDISPERSED = "overdispersed"  # ratio, statistic, df, p: p chart widened (Laney)
+    PERIOD_UNREADABLE = "period_unreadable"  # column, n, examples: [(row, text), ...]
+    PERIOD_GAPS = "period_gaps"  # column, periods: labels of periods with no rows
+    PERIOD_PARTIAL = "period_partial"  # period, last_date, period_end
+    PERIOD_FEW_ROWS = "period_few_rows"  # periods: [(label, n), ...], minimum
+    PERIOD_USER_LATEST = "period_user_latest"  # period: the latest period as the user set it
 
 
 class Reason(Word):
@@ -113,6 +124,8 @@ class Reason(Word):
     CATEGORY_BY_NUMBER = "category_by_number"  # outcome, by
     FOLLOWUP_PAIRS = "followup_pairs"  # alpha, test
     FOLLOWUP_RESIDUALS = "followup_residuals"  # threshold
+    TREND_SHARES = "trend_shares"  # outcome, level: Cochran-Armitage on the share of level
+    TREND_SERIES = "trend_series"  # outcome, centre ("mean"/"median"): Mann-Kendall on the series
 
 
 class Caution(Word):

@@ -45,6 +45,9 @@ class Test(Word):
     SPEARMAN_RHO = "spearman_rho"
     PAIRED_T = "paired_t"
     MCNEMAR = "mcnemar"
+    # trend across periods
+    COCHRAN_ARMITAGE = "cochran_armitage"
+    MANN_KENDALL = "mann_kendall"
     # follow-ups
     TUKEY_HSD = "tukey_hsd"
     GAMES_HOWELL = "games_howell"

@@ -28,6 +28,8 @@ class EstimateKind(Word):
     PEARSON_R = "pearson_r"
     SPEARMAN_RHO = "spearman_rho"
     OBSERVED_MINUS_EXPECTED = "observed_minus_expected"  # a table cell's residual count
+    SHARE_CHANGE_PER_PERIOD = "share_change_per_period"  # level, levels (grain,); share slope per period (0.01 = 1 point)
+    THEIL_SEN_SLOPE = "theil_sen_slope"  # levels (grain,); median pairwise slope, units per period
 
 
 class EffectKind(Word):

@@ -17,3 +17,11 @@ class Alternative(Word):
     TWO_SIDED = "two-sided"
     GREATER = "greater"
     LESS = "less"
+
+
+class AdjustFamily(Word):
+    """Which results share one multiple-comparison adjustment (a roles-sheet setting)."""
+
+    RUN = "this run"  # every result of the run (adding a question moves every adjusted p)
+    OUTCOME = "each outcome"  # the results about one outcome column form a family
+    NONE = "none"  # no adjustment: each p stands alone

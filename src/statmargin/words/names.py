@@ -46,6 +46,10 @@ def _pair(levels: tuple[str, ...]) -> str:
     return f"{levels[0]} - {levels[1]}" if len(levels) >= 2 else "first - second"
 
 
+def _grain(levels: tuple[str, ...]) -> str:
+    return levels[0] if levels else "period"
+
+
 def estimate_name(estimate: Estimate) -> str:
     """The display name of an estimate, e.g. 'difference in means (North - South)'."""
     kind = estimate.kind
@@ -71,6 +75,10 @@ def estimate_name(estimate: Estimate) -> str:
         return "Pearson r"
     if kind is EstimateKind.SPEARMAN_RHO:
         return "Spearman rho"
+    if kind is EstimateKind.SHARE_CHANGE_PER_PERIOD:
+        return f"change in share of '{estimate.level}' per {_grain(estimate.levels)}"
+    if kind is EstimateKind.THEIL_SEN_SLOPE:
+        return f"Theil-Sen slope per {_grain(estimate.levels)}"
     return "observed minus expected count"
 
 

@@ -38,6 +38,8 @@ TEST_NAMES: dict[str, str] = {
     Test.SPEARMAN_RHO: "Spearman rank correlation",
     Test.PAIRED_T: "Paired t-test",
     Test.MCNEMAR: "McNemar's test",
+    Test.COCHRAN_ARMITAGE: "Cochran-Armitage test for trend",
+    Test.MANN_KENDALL: "Mann-Kendall trend test",
     Test.TUKEY_HSD: "Tukey HSD",
     Test.GAMES_HOWELL: "Games-Howell",
     Test.DUNN: "Dunn's test",

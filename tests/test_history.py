@@ -1,0 +1,169 @@
+"""Run history: key results as sheet rows, bounded to the last runs, and the since-last-run flags.
+
+The flags and their precedence are this project's own definitions (jobs/history.py); the
+expected values below are worked out by hand from those definitions.
+"""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from statmargin.jobs.history import (
+    HEADER,
+    KEEP_RUNS,
+    TREND_PART,
+    KeyResult,
+    analysis_key,
+    apply_since_last_run,
+    compare_runs,
+    direction,
+    headline,
+    history_rows,
+    key_results,
+    last_run,
+    parse_history_rows,
+    since_last_run,
+)
+from statmargin.results import Estimate, Result, Trend
+from statmargin.vocabulary import Design, EstimateKind, SinceLastRun, Test
+from statmargin.vocabulary.codes import Skip, coded
+
+
+def record(p: float | None, estimate: float | None = 1.0, low: float | None = 0.5, high: float | None = 1.5,
+           sign: int | None = 1, run: str = "r", key: str = "a", alpha: float = 0.05,
+           kind: str = "mean_difference") -> KeyResult:
+    """A key result with the numbers that matter for a flag."""
+    return KeyResult(run, key, "welch_t", p, p, kind, estimate, low, high, sign, alpha)
+
+
+@pytest.mark.parametrize(
+    ("previous", "current", "flag"),
+    [
+        (None, record(0.2), SinceLastRun.NEW),
+        (record(None), record(0.2), SinceLastRun.NEW),  # skipped last time
+        (None, record(None), SinceLastRun.NEW),  # new and skipped
+        (record(0.2), None, SinceLastRun.NO_LONGER_RUN),
+        (record(0.2), record(None), SinceLastRun.NO_LONGER_RUN),  # skipped now
+        (record(0.2), record(0.3, 1.2), SinceLastRun.UNCHANGED),
+        (record(0.2), record(0.01, 1.2), SinceLastRun.NOW_BELOW_LEVEL),
+        (record(0.01), record(0.2, 1.2), SinceLastRun.NO_LONGER_BELOW_LEVEL),
+        (record(0.2), record(0.3, 2.0), SinceLastRun.MOVED_OUTSIDE_INTERVAL),
+        (record(0.2), record(0.3, 0.4), SinceLastRun.MOVED_OUTSIDE_INTERVAL),
+        # A sign flip between two results above the level is noise: not "reversed".
+        (record(0.4), record(0.6, -0.2, sign=-1), SinceLastRun.MOVED_OUTSIDE_INTERVAL),
+        (record(0.4, 0.1, -0.5, 0.7), record(0.6, -0.2, sign=-1), SinceLastRun.UNCHANGED),
+        # Reversal with either run below the level comes before crossing.
+        (record(0.01), record(0.3, -0.4, sign=-1), SinceLastRun.DIRECTION_REVERSED),
+        (record(0.3), record(0.01, -0.8, sign=-1), SinceLastRun.DIRECTION_REVERSED),
+        # Crossing comes before the interval check.
+        (record(0.2), record(0.01, 3.0), SinceLastRun.NOW_BELOW_LEVEL),
+        # Each run is judged by its own level.
+        (record(0.03, alpha=0.01), record(0.03, alpha=0.05), SinceLastRun.NOW_BELOW_LEVEL),
+        # Estimates of another kind are not compared with the old interval.
+        (record(0.2), record(0.3, 9.0, kind="location_shift"), SinceLastRun.UNCHANGED),
+        # Estimates without a direction are never "reversed".
+        (record(0.01, sign=None), record(0.01, -5.0, sign=None), SinceLastRun.MOVED_OUTSIDE_INTERVAL),
+    ],
+)
+def test_flags_and_precedence(previous: KeyResult | None, current: KeyResult | None, flag: SinceLastRun) -> None:
+    """Each case gets the first flag that applies in the documented precedence."""
+    assert since_last_run(previous, current) is flag
+
+
+def test_adjusted_p_is_compared_when_the_run_adjusted() -> None:
+    """The flag follows the adjusted p-value (what the results sheet flags), not the raw one."""
+    before = KeyResult("r1", "a", "welch_t", 0.01, 0.12, "mean_difference", 1.0, 0.5, 1.5, 1, 0.05)
+    after = KeyResult("r2", "a", "welch_t", 0.01, 0.03, "mean_difference", 1.0, 0.5, 1.5, 1, 0.05)
+    assert since_last_run(before, after) is SinceLastRun.NOW_BELOW_LEVEL
+
+
+def _result(outcome: str, by: str | None, p: float | None, value: float, kind=EstimateKind.MEAN_DIFFERENCE,
+            skipped: bool = False, against=None, trend: Trend | None = None) -> Result:
+    return Result(
+        outcome=outcome, exposure=by, design=Design.TWO_GROUP_CONTINUOUS, test=Test.WELCH_T,
+        p_value=p, p_adjusted=p, estimate=Estimate(kind, value, value - 1, value + 1),
+        skipped=coded(Skip.NO_P_VALUE) if skipped else None, against=against, trend=trend,
+    )
+
+
+def test_directions_by_estimate_kind() -> None:
+    """Differences and slopes carry their sign; a share or pseudo-median is compared with its fixed value."""
+    assert direction(_result("a", "b", 0.1, -2.0)) == -1
+    assert direction(_result("a", None, 0.1, 0.62, kind=EstimateKind.SHARE, against=0.7)) == -1
+    assert direction(_result("a", None, 0.1, 0.62, kind=EstimateKind.SHARE)) is None
+    assert direction(_result("a", "b", 0.1, 3.0, kind=EstimateKind.LARGEST_MEAN_GAP)) is None
+
+
+def test_key_results_round_trip_through_sheet_rows() -> None:
+    """Records written as plain rows read back equal, including a trend record and a skipped one."""
+    trend = Trend(Test.COCHRAN_ARMITAGE, -2.4, 0.016,
+                  Estimate(EstimateKind.SHARE_CHANGE_PER_PERIOD, -0.021, -0.038, -0.004, level="Yes"), 7)
+    results = [_result("Same day", None, 0.04, -0.05, trend=trend), _result("Wait", "Site", None, 1.0, skipped=True)]
+    records = key_results(results, "2026-08-01T09:00:00+00:00", 0.05)
+    assert [r.analysis for r in records] == [
+        "Same day | two_group_continuous",
+        f"Same day | two_group_continuous | {TREND_PART}",
+        "Wait | by Site | two_group_continuous",
+    ]
+    assert records[1].direction == -1 and records[1].p_value == 0.016
+    assert records[2].p_value is None and records[2].estimate is None
+    rows = history_rows([], records)
+    assert rows[0] == list(HEADER)
+    # As a spreadsheet reader gives them back: blanks as '' and numbers as floats.
+    as_read = [[("" if v is None else float(v) if isinstance(v, int) else v) for v in row] for row in rows]
+    assert parse_history_rows(as_read) == records
+
+
+def test_history_is_bounded_to_the_last_runs() -> None:
+    """Only the last KEEP_RUNS runs stay in the sheet, oldest first."""
+    records = [record(0.1, run=f"2026-{i:03d}") for i in range(KEEP_RUNS + 5)]
+    rows = history_rows(records[:-1], records[-1:])
+    runs = [row[0] for row in rows[1:]]
+    assert len(runs) == KEEP_RUNS
+    assert runs[0] == "2026-005" and runs[-1] == f"2026-{KEEP_RUNS + 4:03d}"
+
+
+def test_unreadable_history_rows_are_skipped() -> None:
+    """Rows above the header, blank rows and rows edited into nonsense are dropped, not fatal."""
+    rows = [["title"], list(HEADER), ["r1", "a", "welch_t", 0.2, 0.2, "mean_difference", 1.0, 0.5, 1.5, 1.0, 0.05],
+            [None] * 11, ["r1", "b", "x", "junk", None, None, None, None, None, None, "not a level"]]
+    parsed = parse_history_rows(rows)
+    assert [r.analysis for r in parsed] == ["a"]
+
+
+def test_compare_runs_names_what_is_gone_and_what_changed() -> None:
+    """Analyses gone since the last run are 'no longer run'; the headline lists changes most important first."""
+    earlier = [record(0.2, key="a", run="r1"), record(0.01, key="b", run="r1"), record(0.3, key="c", run="r1"),
+               record(0.3, key="a", run="r2"), record(0.01, key="b", run="r2"), record(0.3, key="c", run="r2")]
+    now = [record(0.01, key="a", run="r3"), record(0.01, key="b", run="r3"), record(0.2, key="d", run="r3")]
+    flags = compare_runs(last_run(earlier), now)
+    assert flags == {"a": SinceLastRun.NOW_BELOW_LEVEL, "b": SinceLastRun.UNCHANGED,
+                     "c": SinceLastRun.NO_LONGER_RUN, "d": SinceLastRun.NEW}
+    assert headline(flags) == [(SinceLastRun.NO_LONGER_RUN, ["c"]), (SinceLastRun.NEW, ["d"]),
+                               (SinceLastRun.NOW_BELOW_LEVEL, ["a"])]
+    assert compare_runs({}, now) == {}  # first run: no flags at all
+    assert headline({"b": SinceLastRun.UNCHANGED}) == []  # nothing changed
+
+
+def test_apply_takes_the_more_important_of_result_and_trend() -> None:
+    """A result's flag is its own or its trend's, whichever comes first in the precedence."""
+    trend = Trend(Test.MANN_KENDALL, 20.0, 0.01, Estimate(EstimateKind.THEIL_SEN_SLOPE, 0.3, 0.1, 0.5), 9)
+    result = _result("Wait", None, 0.5, 1.0, trend=trend)
+    flags = {analysis_key(result): SinceLastRun.UNCHANGED,
+             analysis_key(result, TREND_PART): SinceLastRun.NOW_BELOW_LEVEL}
+    apply_since_last_run([result], flags)
+    assert result.since_last_run is SinceLastRun.NOW_BELOW_LEVEL
+    assert result.to_record()["since_last_run"] == "now_below_level"
+    first = _result("Wait", None, 0.5, 1.0)
+    apply_since_last_run([first], {})
+    assert first.since_last_run is None and first.to_record()["since_last_run"] is None
+
+
+def test_infinite_one_sided_bounds_are_stored_blank() -> None:
+    """A one-sided interval's open end is stored as a blank, not as infinity."""
+    result = Result("Wait", "Site", Design.TWO_GROUP_CONTINUOUS, Test.WELCH_T, p_value=0.2,
+                    estimate=Estimate(EstimateKind.MEAN_DIFFERENCE, 1.0, 0.1, math.inf))
+    (rec,) = key_results([result], "r", 0.05)
+    assert rec.ci_low == 0.1 and rec.ci_high is None
