@@ -69,6 +69,14 @@ class Skip(Word):
     DUPLICATE_KEYS = "duplicate_keys"  # key, by, keys
     PAIRED_NOT_TWO_LEVELS = "paired_not_two_levels"  # outcome, n
     NO_P_VALUE = "no_p_value"
+    # aggregated rows (events out of totals, events per person-time, count weights)
+    NOT_WHOLE_COUNT = "not_whole_count"  # what, row, value
+    NEGATIVE_VALUE = "negative_value"  # what, row, value
+    EVENTS_ABOVE_TOTAL = "events_above_total"  # row, events, total
+    EVENTS_WITHOUT_TIME = "events_without_time"  # row, events
+    NO_PERSON_TIME = "no_person_time"  # label (optional)
+    NO_EVENTS = "no_events"
+    NO_RECORDS = "no_records"  # label (optional): totals or count weights add up to 0
 
 
 class Note(Word):
@@ -90,6 +98,11 @@ class Note(Word):
     ASSUMED_NORMAL_DESPITE_SHAPE = "assumed_normal_despite_shape"  # shape (a Coded of Reason.SHAPE_*)
     INCOMPLETE_PAIRS = "incomplete_pairs"  # n, key, outcome, first, second
     SHARE_HIDDEN = "share_hidden"  # floor
+    RATES_OVERDISPERSED = "rates_overdispersed"  # dispersion, rows, p, adjusted: bool
+    SHARES_OVERDISPERSED = "shares_overdispersed"  # dispersion, rows, p, adjusted: bool
+    DISPERSION_MONTE_CARLO = "dispersion_monte_carlo"  # resamples
+    RATE_NO_EVENTS_GROUP = "rate_no_events_group"  # label
+    WEIGHTED_BOOTSTRAP = "weighted_bootstrap"  # resamples
 
 
 class Reason(Word):
@@ -113,12 +126,23 @@ class Reason(Word):
     CATEGORY_BY_NUMBER = "category_by_number"  # outcome, by
     FOLLOWUP_PAIRS = "followup_pairs"  # alpha, test
     FOLLOWUP_RESIDUALS = "followup_residuals"  # threshold
+    ONE_RATE_EXACT = "one_rate_exact"  # outcome
+    RATE_EXACT_SMALL = "rate_exact_small"  # smallest
+    RATE_SCORE = "rate_score"  # smallest
+    RATE_HOMOGENEITY = "rate_homogeneity"  # n
+    QUASI_POISSON = "quasi_poisson"  # dispersion
+    QUASI_BINOMIAL = "quasi_binomial"  # dispersion
+    # layout suggestions of the plan step (never applied without the user)
+    SUGGEST_EVENTS_OUT_OF = "suggest_events_out_of"  # events, total, rows
+    SUGGEST_EVENTS_PER = "suggest_events_per"  # events, per, rows, whole: bool
+    SUGGEST_COUNT = "suggest_count"  # count, categories
 
 
 class Caution(Word):
     """A caution about reading one result."""
 
     SHARE_HIDDEN = "share_hidden"  # floor
+    AGGREGATE_INDEPENDENCE = "aggregate_independence"  # events, total (column names)
 
 
 @dataclass(frozen=True)
