@@ -194,19 +194,6 @@ def rate_method_refused(method: Any) -> str:
     return f"The method {method!r} is not known for two rates; use 'auto', 'exact' or 'score'."
 
 
-def count_weights_refused(row: int, value: float) -> str:
-    """A count weight that is not a whole number 0 or more."""
-    return (
-        f"Row {row} of the count column holds {number(value)}; a count must be a whole number "
-        "0 or more (the number of records the row stands for)."
-    )
-
-
-def weights_length_mismatch(values: int, weights: int) -> str:
-    """Values and count weights of different lengths."""
-    return f"{values} values were given with {weights} counts; give one count per value."
-
-
 def share_test_refused(test: Any) -> str:
     """A test that cannot compare pooled shares."""
     return (
