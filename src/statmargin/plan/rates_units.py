@@ -19,7 +19,7 @@ from ..words import rates_words
 _NUMBER = r"(?:\d{1,3}(?:[,\u00a0\u202f ]\d{3})+|\d+)(?:\.\d+)?(?:[eE][+-]?\d+)?|\.\d+"
 _SCALE_WORDS = {"hundred": 100.0, "thousand": 1e3, "k": 1e3, "million": 1e6, "m": 1e6}
 _UNIT = re.compile(
-    rf"^\s*(?:per\b\s*)?(?P<number>{_NUMBER})?\s*(?P<scale>hundred|thousand|million|k|m)?(?![A-Za-z])"
+    rf"^\s*(?:per\b\s*)?(?P<number>{_NUMBER})?\s*(?:(?P<scale>hundred|thousand|million|k|m)(?![A-Za-z]))?"
     r"\s*(?P<noun>[A-Za-z][A-Za-z .'-]*?)?\s*$",
     re.IGNORECASE,
 )
