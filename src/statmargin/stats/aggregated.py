@@ -11,7 +11,7 @@ knows about sheets.
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -19,8 +19,9 @@ import numpy as np
 from scipy import stats
 
 from statmargin.errors import NotEnoughDataError
+from statmargin.stats._common import caveat
 from statmargin.vocabulary import PMethod
-from statmargin.vocabulary.codes import Count, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Reason, Skip, coded
 
 # The dispersion test says rows vary more than sampling allows when its p-value is
 # below this level (a conventional 5% level; see ``pearson_dispersion``).
@@ -69,6 +70,7 @@ class Dispersion:
     overdispersed: bool
     rows: int
     resamples: int | None = None
+    binomial: bool = False
 
     def to_record(self) -> dict[str, Any]:
         """The numbers for ``Result.extra["dispersion"]``."""
@@ -312,7 +314,7 @@ def pearson_dispersion(
     rows = int(sum(p[0].size for p in parts))
     df = rows - len(parts)
     if df <= 0:
-        return Dispersion(0.0, 0, None, None, None, False, rows)
+        return Dispersion(0.0, 0, None, None, None, False, rows, binomial=pooled.binomial)
     x2 = math.fsum(_group_x2(e, t, pooled.binomial) for e, t in parts)
     dispersion = x2 / df
     if rows <= monte_carlo_rows:
@@ -322,7 +324,7 @@ def pearson_dispersion(
         p_value = _moment_matched_p(parts, x2, df, pooled.binomial)
         method, used = PMethod.ASYMPTOTIC, None
     overdispersed = p_value < DISPERSION_LEVEL and dispersion > 1.0
-    return Dispersion(x2, df, dispersion, p_value, method, overdispersed, rows, used)
+    return Dispersion(x2, df, dispersion, p_value, method, overdispersed, rows, used, pooled.binomial)
 
 
 def _informative(e: np.ndarray, t: np.ndarray, binomial: bool) -> tuple[np.ndarray, np.ndarray] | None:
@@ -390,6 +392,53 @@ def _moment_matched_p(
     return float(stats.chi2.sf(observed / scale, nu))
 
 
-def counts_of(pooled: Pooled) -> list[Count]:
-    """Pooled events per group as record counts (for facts that sharing mode may hide)."""
-    return [Count(int(v)) for v in pooled.events]
+def scale_for(dispersion: Dispersion, notes: list[Coded], reasons: list[Coded]) -> float | None:
+    """The dispersion to scale tests and intervals by when rows vary too much, else None.
+
+    Adds the overdispersion note (also raised as a warning) and the reason for the
+    quasi-likelihood test: Poisson or binomial codes by the kind of rows.
+    """
+    if not dispersion.overdispersed or dispersion.dispersion is None:
+        return None
+    phi = dispersion.dispersion
+    note = Note.SHARES_OVERDISPERSED if dispersion.binomial else Note.RATES_OVERDISPERSED
+    caveat(notes, coded(note, dispersion=phi, rows=Count(dispersion.rows), p=dispersion.p_value, adjusted=True))
+    reasons.append(coded(Reason.QUASI_BINOMIAL if dispersion.binomial else Reason.QUASI_POISSON, dispersion=phi))
+    return phi
+
+
+Interval = Callable[[float, float, float], tuple[float, float]]  # (events, total, confidence) -> limits
+
+
+def summaries(
+    pooled: Pooled, interval: Interval, *, per: float = 1.0, confidence: float = 0.95, scale: float | None = None
+) -> list[dict[str, Any]]:
+    """Per-group events, total, rate (events per ``per`` of the total) and its interval, for ``Result.groups``.
+
+    ``interval`` gives the limits per one unit of the total (Garwood for person-time,
+    Wilson for people); with ``scale`` (rows vary more than sampling allows) it is
+    computed from the effective counts, events and total divided by the scale.
+    """
+    divide = 1.0 if scale is None else scale
+    out = []
+    for label, x, total, rows in zip(pooled.labels, pooled.events, pooled.totals, pooled.rows, strict=True):
+        low, high = interval(x / divide, total / divide, confidence)
+        out.append(
+            {
+                "label": label,
+                "events": int(x),
+                "total": int(total) if pooled.binomial else float(total),
+                "rate": float(x * per / total),
+                "ci_low": low * per,
+                "ci_high": high * per,
+                "per": per,
+                "rows": int(rows),
+            }
+        )
+    return out
+
+
+def extras(pooled: Pooled, dispersion: Dispersion, per: float) -> dict[str, Any]:
+    """The numbers every aggregated result keeps in ``extra``: unit, dispersion, rows used and left out."""
+    return {"per": per, "dispersion": dispersion.to_record(), "rows_used": int(pooled.rows.sum()),
+            "rows_excluded": pooled.n_excluded}

@@ -20,7 +20,15 @@ from scipy import stats
 from statmargin.errors import NotEnoughDataError, OptionError
 from statmargin.results import Estimate, Result
 from statmargin.stats import _common as common
-from statmargin.stats.aggregated import Dispersion, Pooled, pearson_dispersion, pool
+from statmargin.stats.aggregated import (
+    Dispersion,
+    Pooled,
+    extras,
+    pearson_dispersion,
+    pool,
+    scale_for,
+    summaries,
+)
 from statmargin.stats.categorical import (
     DEFAULT_RESAMPLES,
     DEFAULT_SEED,
@@ -32,7 +40,7 @@ from statmargin.stats.categorical import (
     wilson_interval,
 )
 from statmargin.vocabulary import EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Reason, Skip, coded
+from statmargin.vocabulary.codes import Coded, Skip, coded
 from statmargin.words import rates_words
 
 
@@ -65,37 +73,11 @@ def share_summaries(
     >>> [(g["events"], g["total"], g["rate"]) for g in share_summaries(pooled, per=100)]
     [(7, 100, 7.0)]
     """
-    scale = 1.0 if dispersion is None else dispersion
-    out = []
-    for label, x, total, rows in zip(pooled.labels, pooled.events, pooled.totals, pooled.rows, strict=True):
-        low, high = wilson_interval(x / scale, total / scale, confidence=confidence)
-        out.append(
-            {
-                "label": label,
-                "events": int(x),
-                "total": int(total),
-                "rate": float(x * per / total),
-                "ci_low": low * per,
-                "ci_high": high * per,
-                "per": per,
-                "rows": int(rows),
-            }
-        )
-    return out
+    return summaries(pooled, _wilson, per=per, confidence=confidence, scale=dispersion)
 
 
-def _phi(dispersion: Dispersion, notes: list[Coded], reasons: list[Coded]) -> float | None:
-    """The dispersion to scale by when rows vary more than binomial sampling allows, else None."""
-    if not dispersion.overdispersed or dispersion.dispersion is None:
-        return None
-    phi = dispersion.dispersion
-    common.caveat(
-        notes,
-        coded(Note.SHARES_OVERDISPERSED, dispersion=phi, rows=Count(dispersion.rows),
-              p=dispersion.p_value, adjusted=True),
-    )
-    reasons.append(coded(Reason.QUASI_BINOMIAL, dispersion=phi))
-    return phi
+def _wilson(events: float, total: float, confidence: float) -> tuple[float, float]:
+    return wilson_interval(events, total, confidence=confidence)
 
 
 def _share_target(value: float) -> float:
@@ -184,7 +166,7 @@ def one_share(
     x, n = int(pooled.events[0]), int(pooled.totals[0])
     notes: list[Coded] = []
     reasons: list[Coded] = []
-    phi = _phi(dispersion, notes, reasons)
+    phi = scale_for(dispersion, notes, reasons)
     result = binomial_exact(x, n, share=target, label=label, other_label=other_label,
                             alternative=alternative, confidence=confidence)
     if phi is not None:
@@ -200,8 +182,7 @@ def one_share(
     result.reasons.extend(reasons)
     result.notes.extend(notes)
     result.n_excluded = pooled.n_excluded
-    result.extra.update(dispersion=dispersion.to_record(), per=per, rows_used=int(pooled.rows.sum()),
-                        rows_excluded=pooled.n_excluded)
+    result.extra.update(extras(pooled, dispersion, per))
     return result
 
 
@@ -298,7 +279,7 @@ def compare_shares(
     dispersion = pearson_dispersion(pooled, seed=seed)
     notes: list[Coded] = []
     reasons: list[Coded] = []
-    phi = _phi(dispersion, notes, reasons)
+    phi = scale_for(dispersion, notes, reasons)
     table, smallest = pooled_table(pooled)
     columns = [str(label), str(other_label)]
     chosen = test
@@ -319,8 +300,7 @@ def compare_shares(
     result.reasons.extend(reasons)
     result.notes.extend(notes)
     result.n_excluded = pooled.n_excluded
-    result.extra.update(dispersion=dispersion.to_record(), per=per, min_expected=smallest,
-                        rows_used=int(pooled.rows.sum()), rows_excluded=pooled.n_excluded)
+    result.extra.update(extras(pooled, dispersion, per), min_expected=smallest)
     return result
 
 

@@ -22,7 +22,15 @@ from statmargin.errors import NotEnoughDataError, OptionError
 from statmargin.results import Effect, Estimate, Followup, Result
 from statmargin.stats import _common as common
 from statmargin.stats.adjust import adjust_p
-from statmargin.stats.aggregated import Dispersion, Pooled, pearson_dispersion, pool
+from statmargin.stats.aggregated import (
+    Dispersion,
+    Pooled,
+    extras,
+    pearson_dispersion,
+    pool,
+    scale_for,
+    summaries,
+)
 from statmargin.stats.categorical import (
     DEFAULT_RESAMPLES,
     DEFAULT_SEED,
@@ -31,7 +39,7 @@ from statmargin.stats.categorical import (
     wilson_interval,
 )
 from statmargin.vocabulary import AdjustMethod, Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Reason, Skip, coded
+from statmargin.vocabulary.codes import Coded, Note, Reason, Skip, coded
 from statmargin.words import rates_words
 
 # Two rates: the exact conditional test when an expected count under the null is
@@ -293,7 +301,7 @@ def one_rate(
     expected = target * total
     notes: list[Coded] = []
     reasons: list[Coded] = []
-    phi = _phi(dispersion, notes, reasons, pooled)
+    phi = scale_for(dispersion, notes, reasons)
     if phi is None:
         test, statistic_name, statistic, df = Test.POISSON_EXACT, "events", float(x), None
         p_value, p_method = poisson_exact_p(x, expected, alternative), PMethod.EXACT
@@ -323,29 +331,14 @@ def one_rate(
         reasons=reasons,
         notes=notes,
         against=target * per,
-        extra={"per": per, "expected_events": expected, "dispersion": dispersion.to_record(),
-               "rows_used": int(pooled.rows.sum()), "rows_excluded": pooled.n_excluded},
+        extra={**extras(pooled, dispersion, per), "expected_events": expected},
     )
-
-
-def _phi(dispersion: Dispersion, notes: list[Coded], reasons: list[Coded], pooled: Pooled) -> float | None:
-    """The dispersion to scale by when rows vary more than Poisson sampling allows, else None."""
-    if not dispersion.overdispersed or dispersion.dispersion is None:
-        return None
-    phi = dispersion.dispersion
-    common.caveat(
-        notes,
-        coded(Note.RATES_OVERDISPERSED, dispersion=phi, rows=Count(dispersion.rows),
-              p=dispersion.p_value, adjusted=True),
-    )
-    reasons.append(coded(Reason.QUASI_POISSON, dispersion=phi))
-    return phi
 
 
 def rate_summaries(
     pooled: Pooled, *, per: float = 1.0, confidence: float = 0.95, dispersion: float | None = None
 ) -> list[dict[str, Any]]:
-    """Per-group events, person-time, rate per ``per`` and its interval, for ``Result.groups``.
+    """Per-group events, person-time, rate per ``per`` and its Garwood interval, for ``Result.groups``.
 
     Parameters
     ----------
@@ -371,23 +364,11 @@ def rate_summaries(
     >>> [(g["label"], g["events"], g["total"], g["rate"]) for g in rate_summaries(pooled, per=1000)]
     [('A', 7, 2500.0, 2.8), ('B', 9, 2000.0, 4.5)]
     """
-    scale = 1.0 if dispersion is None else dispersion
-    out = []
-    for label, x, total, rows in zip(pooled.labels, pooled.events, pooled.totals, pooled.rows, strict=True):
-        low, high = garwood_interval(x / scale, total / scale, confidence=confidence)
-        out.append(
-            {
-                "label": label,
-                "events": int(x),
-                "total": float(total),
-                "rate": float(x * per / total),
-                "ci_low": low * per,
-                "ci_high": high * per,
-                "per": per,
-                "rows": int(rows),
-            }
-        )
-    return out
+    return summaries(pooled, _garwood, per=per, confidence=confidence, scale=dispersion)
+
+
+def _garwood(events: float, time: float, confidence: float) -> tuple[float, float]:
+    return garwood_interval(events, time, confidence=confidence)
 
 
 # --------------------------------------------------------------------------- two rates
@@ -653,7 +634,7 @@ def two_rates(
     dispersion = pearson_dispersion(pooled, seed=seed)
     notes: list[Coded] = []
     reasons: list[Coded] = []
-    phi = _phi(dispersion, notes, reasons, pooled)
+    phi = scale_for(dispersion, notes, reasons)
     (x1, x2), (t1, t2) = pooled.events.tolist(), pooled.totals.tolist()
     compared = compare_rates(x1, t1, x2, t2, alternative=alternative, confidence=confidence,
                              method=method, dispersion=phi, df=float(dispersion.df))
@@ -685,9 +666,7 @@ def two_rates(
         groups=rate_summaries(pooled, per=per, confidence=confidence, dispersion=phi),
         reasons=reasons,
         notes=notes,
-        extra={"per": per, "smallest_expected": compared.smallest_expected,
-               "dispersion": dispersion.to_record(), "rows_used": int(pooled.rows.sum()),
-               "rows_excluded": pooled.n_excluded},
+        extra={**extras(pooled, dispersion, per), "smallest_expected": compared.smallest_expected},
     )
 
 
@@ -770,7 +749,7 @@ def rate_homogeneity(
     reasons: list[Coded] = []
     if alternative != "two-sided":
         notes.append(coded(Note.MULTIGROUP_TWO_SIDED, alternative=alternative))
-    phi = _phi(dispersion, notes, reasons, pooled)
+    phi = scale_for(dispersion, notes, reasons)
     shares = pooled.totals / math.fsum(pooled.totals)
     fit = chi_square_goodness_of_fit(
         {label: int(x) for label, x in zip(pooled.labels, pooled.events, strict=True)},
@@ -782,10 +761,8 @@ def rate_homogeneity(
     )
     assert fit.statistic is not None
     k = len(pooled.labels)
-    extra: dict[str, Any] = {"per": per, "expected_events": fit.extra["expected"],
-                             "min_expected": fit.extra["min_expected"],
-                             "dispersion": dispersion.to_record(),
-                             "rows_used": int(pooled.rows.sum()), "rows_excluded": pooled.n_excluded}
+    extra: dict[str, Any] = {**extras(pooled, dispersion, per), "expected_events": fit.extra["expected"],
+                             "min_expected": fit.extra["min_expected"]}
     for key in ("monte_carlo_resamples", "monte_carlo_se", "seed"):
         if key in fit.extra:
             extra[key] = fit.extra[key]

@@ -19,7 +19,7 @@ from collections.abc import Mapping, Sequence
 from typing import Any
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import stats
 
 from statmargin.errors import NotEnoughDataError
 from statmargin.results import Effect, Estimate, Result
@@ -178,20 +178,6 @@ def midranks(values: np.ndarray, weights: np.ndarray) -> tuple[np.ndarray, np.nd
 # --------------------------------------------------------------------------- one sample and pairs
 
 
-def _t_on_summary(
-    summary: dict[str, Any], mu: float, kind: EffectKind, alternative: str, confidence: float
-) -> onesample.MeanT:
-    """``onesample.mean_t`` from a weighted summary."""
-    n = summary["n"]
-    se = summary["sd"] / math.sqrt(n)
-    difference = summary["mean"] - mu
-    t = difference / se
-    df = n - 1
-    low, high = common.t_interval(difference, se, df, alternative, confidence)
-    effect = effects.standardized_effect(kind, t, df, 1.0 / math.sqrt(n), alternative, confidence)
-    return onesample.MeanT(summary, difference, t, df, low, high, effect)
-
-
 def _require(x: np.ndarray, w: np.ndarray, minimum: int, what: str, *, spread: bool = True) -> None:
     if _total(w) < minimum:
         raise NotEnoughDataError(coded(Skip.TOO_FEW_VALUES, what=what, n=Count(_total(w)), minimum=minimum))
@@ -220,7 +206,7 @@ def one_sample_t(
         return _with_rows(onesample.one_sample_t(v, mu=mu, alternative=alternative, confidence=confidence),
                           dropped, no_count)
     _require(v, c, 2, "the outcome")
-    tested = _t_on_summary(weighted_describe("all", v, c), mu, EffectKind.HEDGES_G, alternative, confidence)
+    tested = onesample.mean_t_of_summary(weighted_describe("all", v, c), mu, EffectKind.HEDGES_G, alternative, confidence)
     return _with_rows(Result(
         outcome="", exposure=None, design=Design.ONE_SAMPLE_CONTINUOUS, test=Test.ONE_SAMPLE_T,
         statistic_name="t", statistic=tested.t, df=float(tested.df),
@@ -273,7 +259,7 @@ def paired_t(
     if np.all(d == 0):
         raise NotEnoughDataError(coded(Skip.ALL_DIFFERENCES_ZERO, first=first, second=second))
     _require(d, c, 2, f"the differences {first} - {second}")
-    tested = _t_on_summary(weighted_describe(f"{first} - {second}", d, c), 0.0, EffectKind.HEDGES_G_Z,
+    tested = onesample.mean_t_of_summary(weighted_describe(f"{first} - {second}", d, c), 0.0, EffectKind.HEDGES_G_Z,
                            alternative, confidence)
     mean = tested.summary["mean"]
     return _with_rows(Result(
@@ -291,13 +277,8 @@ def paired_t(
 
 def _signed_rank_z(d: np.ndarray, w: np.ndarray, alternative: str, correct: bool) -> float:
     """``onesample._signed_rank_z`` of the repeated non-zero differences."""
-    n = float(w.sum())
     ranks, ties = midranks(np.abs(d), w)
-    centred = math.fsum((w * ranks)[d > 0]) - n * (n + 1) / 4.0
-    sigma = math.sqrt(n * (n + 1) * (2 * n + 1) / 24.0 - float(np.sum(ties**3 - ties)) / 48.0)
-    if sigma == 0.0:
-        return 0.0
-    return (centred - common.continuity_correction(centred, alternative, correct)) / sigma
+    return onesample.signed_rank_z(math.fsum((w * ranks)[d > 0]), float(w.sum()), ties, alternative, correct)
 
 
 def signed_rank_result(
@@ -346,24 +327,14 @@ def _signed_rank_interval(
     values: np.ndarray, w: np.ndarray, alternative: str, confidence: float, correct: bool, notes: list[Coded]
 ) -> tuple[float, float]:
     """``onesample._signed_rank_approx_interval`` of the repeated records."""
-    low_end, high_end = float(values.min()), float(values.max())
 
     def statistic(centre: float) -> float:
         shifted = values - centre
         keep = shifted != 0
         return _signed_rank_z(shifted[keep], w[keep], alternative, correct)
 
-    at_low, at_high = statistic(low_end), statistic(high_end)
-    q_lower, q_upper = common.z_quantiles(alternative, confidence)
-    reachable = (q_lower is None or at_low >= q_lower) and (q_upper is None or at_high <= q_upper)
-    if not reachable:
-        common.caveat(notes, coded(Note.CI_NOT_REACHABLE, confidence=confidence))
-        return low_end, high_end
-
-    def root(q: float) -> float:
-        return float(optimize.brentq(lambda c: statistic(c) - q, low_end, high_end, xtol=1e-12))
-
-    return (-math.inf if q_lower is None else root(q_lower)), (math.inf if q_upper is None else root(q_upper))
+    return onesample.invert_centre_statistic(statistic, float(values.min()), float(values.max()), alternative,
+                                             confidence, notes)
 
 
 def wilcoxon_signed_rank(
@@ -449,46 +420,17 @@ def _t_test(x: Weighted, y: Weighted, labels: tuple[str, str], alternative: str,
         plain = twogroup.student_t if equal_variances else twogroup.welch_t
         return _with_rows(plain(a, b, labels=labels, alternative=alternative, confidence=confidence), dropped, no_count)
     _check_two(a, ca, b, cb, first, second)
-    ga, gb = weighted_describe(first, a, ca), weighted_describe(second, b, cb)
-    n1, n2 = ga["n"], gb["n"]
-    va, vb = ga["sd"] ** 2, gb["sd"] ** 2
-    difference = ga["mean"] - gb["mean"]
-    pooled_var = ((n1 - 1) * va + (n2 - 1) * vb) / (n1 + n2 - 2)
-    if pooled_var == 0.0:
-        raise NotEnoughDataError(coded(Skip.SINGLE_VALUE_GROUPS, first=first, first_value=ga["mean"], second=second,
-                                       second_value=gb["mean"]))
-    pooled_t = difference / math.sqrt(pooled_var * (1.0 / n1 + 1.0 / n2))
-    if equal_variances:
-        se, df = math.sqrt(pooled_var * (1.0 / n1 + 1.0 / n2)), float(n1 + n2 - 2)
-    else:
-        sa, sb = va / n1, vb / n2
-        se = math.sqrt(sa + sb)
-        df = (sa + sb) ** 2 / (sa**2 / (n1 - 1) + sb**2 / (n2 - 1))
-    t = difference / se
-    low, high = common.t_interval(difference, se, df, alternative, confidence)
-    effect = effects.standardized_effect(EffectKind.HEDGES_G, pooled_t, n1 + n2 - 2,
-                                         math.sqrt(1.0 / n1 + 1.0 / n2), alternative, confidence)
-    return _with_rows(Result(
-        outcome="", exposure=None, design=Design.TWO_GROUP_CONTINUOUS,
-        test=Test.STUDENT_T if equal_variances else Test.WELCH_T, statistic_name="t", statistic=t, df=df,
-        p_value=common.p_from_t(t, df, alternative), p_method=PMethod.ASYMPTOTIC, alternative=alternative,
-        confidence=confidence, n=int(n1 + n2),
-        estimate=Estimate(EstimateKind.MEAN_DIFFERENCE, difference, low, high, levels=(first, second)),
-        effect=effect, groups=[ga, gb],
-    ), dropped, no_count)
+    result = twogroup.t_test_of_summaries(weighted_describe(first, a, ca), weighted_describe(second, b, cb),
+                                          alternative, confidence, equal_variances=equal_variances)
+    return _with_rows(result, dropped, no_count)
 
 
 def _rank_sum_z(a: np.ndarray, ca: np.ndarray, b: np.ndarray, cb: np.ndarray, alternative: str,
                 correct: bool) -> float:
     """``twogroup._rank_sum_z`` of the repeated records."""
-    n1, n2 = float(ca.sum()), float(cb.sum())
     ranks, ties = midranks(np.concatenate([a, b]), np.concatenate([ca, cb]))
-    centred = math.fsum(ca * ranks[: a.size]) - n1 * (n1 + 1) / 2.0 - n1 * n2 / 2.0
-    n = n1 + n2
-    sigma = math.sqrt((n1 * n2 / 12.0) * ((n + 1) - float(np.sum(ties**3 - ties)) / (n * (n - 1))))
-    if sigma == 0.0:
-        return 0.0
-    return float((centred - common.continuity_correction(centred, alternative, correct)) / sigma)
+    return twogroup.rank_sum_z(math.fsum(ca * ranks[: a.size]), float(ca.sum()), float(cb.sum()), ties,
+                               alternative, correct)
 
 
 def mann_whitney_u(
@@ -540,22 +482,10 @@ def mann_whitney_u(
 def _rank_sum_interval(a: np.ndarray, ca: np.ndarray, b: np.ndarray, cb: np.ndarray, alternative: str,
                        confidence: float, correct: bool) -> tuple[float, float]:
     """``twogroup._rank_sum_approx_interval`` of the repeated records."""
-    low_end, high_end = float(a.min() - b.max()), float(a.max() - b.min())
-
-    def statistic(d: float) -> float:
-        return _rank_sum_z(a - d, ca, b, cb, alternative, correct)
-
-    at_low, at_high = statistic(low_end), statistic(high_end)
-
-    def root(q: float) -> float:
-        if at_low - q <= 0:
-            return low_end
-        if at_high - q >= 0:
-            return high_end
-        return float(optimize.brentq(lambda d: statistic(d) - q, low_end, high_end, xtol=1e-12))
-
-    q_lower, q_upper = common.z_quantiles(alternative, confidence)
-    return (-math.inf if q_lower is None else root(q_lower)), (math.inf if q_upper is None else root(q_upper))
+    return twogroup.invert_shift_statistic(
+        lambda d: _rank_sum_z(a - d, ca, b, cb, alternative, correct),
+        float(a.min() - b.max()), float(a.max() - b.min()), alternative, confidence,
+    )
 
 
 # --------------------------------------------------------------------------- three or more groups
@@ -644,16 +574,9 @@ def welch_anova(groups: Mapping[str, Weighted], *, alternative: str = "two-sided
         if summary["sd"] == 0.0:
             raise NotEnoughDataError(coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"]))
     k = len(summaries)
-    n = np.array([s["n"] for s in summaries], dtype=float)
-    means = np.array([s["mean"] for s in summaries])
-    weights = n / np.array([s["sd"] ** 2 for s in summaries])
-    total_weight = math.fsum(weights)
-    weighted_centre = math.fsum(weights * means) / total_weight
-    tmp = math.fsum((1.0 - weights / total_weight) ** 2 / (n - 1.0)) / (k * k - 1.0)
-    f = math.fsum(weights * (means - weighted_centre) ** 2) / ((k - 1.0) * (1.0 + 2.0 * (k - 2.0) * tmp))
-    df1, df2 = float(k - 1), 1.0 / (3.0 * tmp)
+    f, df1, df2 = multigroup.welch_statistic(summaries)
     between, within, _ = sums_of_squares(cleaned)
-    n_total = int(n.sum())
+    n_total = int(sum(summary["n"] for summary in summaries))
     effect, omega = multigroup._share_of_variance(between, within, k, n_total, confidence)
     notes.append(coded(Note.WELCH_EFFECT_CLASSIC))
     return _with_rows(Result(

@@ -6,8 +6,8 @@ pairwise differences (or Walsh averages) of the repeated records. These helpers
 select them from the distinct values and their weights, without repeating
 anything: the implicit table has one cell per pair of distinct values and the
 cell counts w_i v_j times (Walsh: w_i w_j, or w_i (w_i + 1) / 2 on the diagonal).
-The selection is that of ``statmargin.stats._common`` with counts in place of
-cell numbers, so it returns exactly the entry the repeated data would give.
+The selection is that of ``statmargin.stats._common`` given the cells' counts,
+so it returns exactly the entry the repeated data would give.
 """
 
 from __future__ import annotations
@@ -17,7 +17,7 @@ from typing import Any
 import numpy as np
 
 from statmargin.errors import NotEnoughDataError
-from statmargin.stats._common import _first_position, _work_limit
+from statmargin.stats._common import _kth_in_sorted_rows, _work_limit
 from statmargin.vocabulary.codes import Skip, coded
 
 
@@ -34,48 +34,6 @@ def collapse(values: np.ndarray, weights: np.ndarray) -> tuple[np.ndarray, np.nd
     u, inverse = np.unique(np.asarray(values, dtype=float)[keep], return_inverse=True)
     w = np.bincount(inverse, weights=np.asarray(weights)[keep], minlength=u.size)
     return u, np.rint(w).astype(np.int64)
-
-
-def _kth_weighted(value_at: Any, mass: Any, lo: np.ndarray, hi: np.ndarray, k: int, work_limit: int) -> float:
-    """The k-th smallest (0-based, counting multiplicities) entry of a table with sorted rows.
-
-    ``mass(rows, lo, hi)`` is the number of records in row r's columns [lo, hi);
-    each row is non-decreasing in the column. The pivot is the cell-weighted
-    median of the row medians, so every round removes at least a quarter of the
-    remaining cells whatever their counts.
-    """
-    rows = np.arange(lo.size)
-    lo, hi = lo.astype(np.int64), hi.astype(np.int64)
-    below = 0
-    while True:
-        widths = hi - lo
-        remaining = int(widths.sum())
-        if remaining <= work_limit:
-            keep = widths > 0
-            row_of = np.repeat(rows[keep], widths[keep])
-            starts = np.repeat(lo[keep] - np.concatenate(([0], np.cumsum(widths[keep])[:-1])), widths[keep])
-            cols = starts + np.arange(remaining)
-            candidates = value_at(row_of, cols)
-            counts = mass(row_of, cols, cols + 1)
-            order = np.argsort(candidates, kind="stable")
-            position = int(np.searchsorted(np.cumsum(counts[order]), k - below, side="right"))
-            return float(candidates[order][position])
-        live = np.flatnonzero(widths > 0)
-        medians = value_at(live, (lo[live] + hi[live] - 1) // 2)
-        order = np.argsort(medians, kind="stable")
-        cumulative = np.cumsum(widths[live][order])
-        pivot = float(medians[order][np.searchsorted(cumulative, cumulative[-1] / 2.0)])
-        under = _first_position(value_at, rows, lo, hi, pivot, inclusive=False)
-        upto = _first_position(value_at, rows, lo, hi, pivot, inclusive=True)
-        n_under = below + int(mass(rows, lo, under).sum())
-        n_upto = below + int(mass(rows, lo, upto).sum())
-        if n_under <= k < n_upto:
-            return pivot
-        if k < n_under:
-            hi = under
-        else:
-            below = n_upto
-            lo = upto
 
 
 def kth_pairwise_difference_weighted(
@@ -119,7 +77,7 @@ def kth_pairwise_difference_weighted(
 
     lo = np.zeros(a.size, dtype=np.int64)
     hi = np.full(a.size, b_descending.size, dtype=np.int64)
-    return _kth_weighted(value_at, mass, lo, hi, int(k), _work_limit(work_limit, a.size + b_descending.size))
+    return _kth_in_sorted_rows(value_at, lo, hi, int(k), _work_limit(work_limit, a.size + b_descending.size), mass)
 
 
 def kth_walsh_average_weighted(x: np.ndarray, w: np.ndarray, k: int, *, work_limit: int | None = None) -> float:
@@ -163,7 +121,7 @@ def kth_walsh_average_weighted(x: np.ndarray, w: np.ndarray, k: int, *, work_lim
 
     lo = np.arange(x.size, dtype=np.int64)
     hi = np.full(x.size, x.size, dtype=np.int64)
-    return _kth_weighted(value_at, mass, lo, hi, int(k), _work_limit(work_limit, x.size))
+    return _kth_in_sorted_rows(value_at, lo, hi, int(k), _work_limit(work_limit, x.size), mass)
 
 
 def _median_of(kth: Any, total: int) -> float:
