@@ -16,8 +16,17 @@ import pytest
 
 from statmargin.errors import NotEnoughDataError
 from statmargin.results import Result
-from statmargin.stats import categorical, correlation, multigroup, onesample, paired, twogroup
+from statmargin.stats import (
+    categorical,
+    correlation,
+    followup,
+    multigroup,
+    onesample,
+    paired,
+    twogroup,
+)
 from statmargin.stats import weighted as w
+from statmargin.stats import weighted_followup as wf
 from statmargin.stats._common import median_pairwise_difference, median_walsh_average
 from statmargin.stats.weighted_select import (
     median_pairwise_difference_weighted,
@@ -227,3 +236,27 @@ def test_bad_counts_are_refused_with_their_row(bad: float, code: Skip) -> None:
     assert info.value.reason is not None and info.value.reason.code == code
     assert info.value.reason.facts["row"] == 2
     assert "\n" not in str(info.value)
+
+
+def _same_followups(mine, theirs) -> None:
+    """Pairs, estimates, intervals, statistics and p-values of two follow-up lists agree."""
+    assert [f.levels for f in mine] == [f.levels for f in theirs]
+    for f, g in zip(mine, theirs, strict=True):
+        assert f.test == g.test and f.flagged == g.flagged
+        assert _close(f.statistic, g.statistic, REL)
+        assert _close(f.p_value, g.p_value, 1e-10) and _close(f.p_adjusted, g.p_adjusted, 1e-10)
+        assert _close(f.estimate.value, g.estimate.value, REL)
+        assert _close(f.estimate.ci_low, g.estimate.ci_low, REL_INTERVAL)
+        assert _close(f.estimate.ci_high, g.estimate.ci_high, REL_INTERVAL)
+
+
+@pytest.mark.parametrize("seed", SEEDS)
+def test_followups_equal_repeated_rows(seed: int) -> None:
+    """Tukey, Games-Howell, Dunn and pairwise Mann-Whitney with counts equal the repeated rows."""
+    rng = np.random.default_rng(seed)
+    groups = {label: _rows(rng, 20, shift=s, missing=False) for label, s in (("A", 0.0), ("B", 0.5), ("C", 1.5))}
+    plain = {label: _repeat(v, c) for label, (v, c) in groups.items()}
+    _same_followups(wf.tukey_hsd(groups), followup.tukey_hsd(plain))
+    _same_followups(wf.games_howell(groups), followup.games_howell(plain))
+    _same_followups(wf.dunn(groups), followup.dunn(plain))
+    _same_followups(wf.pairwise_mann_whitney(groups), followup.pairwise_mann_whitney(plain))

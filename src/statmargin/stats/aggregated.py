@@ -21,7 +21,7 @@ from scipy import stats
 from statmargin.errors import NotEnoughDataError
 from statmargin.stats._common import caveat
 from statmargin.vocabulary import PMethod
-from statmargin.vocabulary.codes import Coded, Count, Note, Reason, Skip, coded
+from statmargin.vocabulary.codes import Coded, Note, Reason, Skip, coded
 
 # The dispersion test says rows vary more than sampling allows when its p-value is
 # below this level (a conventional 5% level; see ``pearson_dispersion``).
@@ -402,7 +402,7 @@ def scale_for(dispersion: Dispersion, notes: list[Coded], reasons: list[Coded]) 
         return None
     phi = dispersion.dispersion
     note = Note.SHARES_OVERDISPERSED if dispersion.binomial else Note.RATES_OVERDISPERSED
-    caveat(notes, coded(note, dispersion=phi, rows=Count(dispersion.rows), p=dispersion.p_value, adjusted=True))
+    caveat(notes, coded(note, dispersion=phi, rows=dispersion.rows, p=dispersion.p_value))
     reasons.append(coded(Reason.QUASI_BINOMIAL if dispersion.binomial else Reason.QUASI_POISSON, dispersion=phi))
     return phi
 

@@ -98,9 +98,8 @@ class Note(Word):
     ASSUMED_NORMAL_DESPITE_SHAPE = "assumed_normal_despite_shape"  # shape (a Coded of Reason.SHAPE_*)
     INCOMPLETE_PAIRS = "incomplete_pairs"  # n, key, outcome, first, second
     SHARE_HIDDEN = "share_hidden"  # floor
-    RATES_OVERDISPERSED = "rates_overdispersed"  # dispersion, rows, p, adjusted: bool
-    SHARES_OVERDISPERSED = "shares_overdispersed"  # dispersion, rows, p, adjusted: bool
-    DISPERSION_MONTE_CARLO = "dispersion_monte_carlo"  # resamples
+    RATES_OVERDISPERSED = "rates_overdispersed"  # dispersion, rows (not records), p
+    SHARES_OVERDISPERSED = "shares_overdispersed"  # dispersion, rows (not records), p
     RATE_NO_EVENTS_GROUP = "rate_no_events_group"  # label
     WEIGHTED_BOOTSTRAP = "weighted_bootstrap"  # resamples
 

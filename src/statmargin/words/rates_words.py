@@ -34,15 +34,10 @@ def _p_text(p: Any) -> str:
 
 
 def _overdispersed(kind: str, f: Facts) -> str:
-    tail = (
-        f"so the p-value and intervals use the quasi-{kind} adjustment (variances multiplied by "
-        f"{f['dispersion']:.2f})."
-        if f.get("adjusted")
-        else f"so the p-value and intervals, which assume {kind} sampling, are likely too narrow."
-    )
     return (
         f"The rows within groups vary more than {kind} sampling allows (dispersion "
-        f"{f['dispersion']:.2f} over {f['rows']} rows, {_p_text(f.get('p'))}), {tail}"
+        f"{f['dispersion']:.2f} over {f['rows']} rows, {_p_text(f.get('p'))}), so the p-value and "
+        f"intervals use the quasi-{kind} adjustment (variances multiplied by {f['dispersion']:.2f})."
     )
 
 
@@ -86,10 +81,6 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, Any] = {
     ),
     Note.RATES_OVERDISPERSED: lambda f: _overdispersed("Poisson", f),
     Note.SHARES_OVERDISPERSED: lambda f: _overdispersed("binomial", f),
-    Note.DISPERSION_MONTE_CARLO: (
-        "Whether rows vary more than sampling allows was tested with {resamples} Monte Carlo "
-        "resamples."
-    ),
     Note.RATE_NO_EVENTS_GROUP: (
         "Group '{label}' has no events, so its rate is 0 and the rate ratio is 0 or has no finite "
         "value; the interval is still valid."
