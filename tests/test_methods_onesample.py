@@ -151,7 +151,9 @@ def test_bad_alternative_is_refused() -> None:
         one_sample_t(np.array([1.0, 2.0, 3.0]), mu=0.0, alternative="bigger")
 
 
-values = st.lists(st.integers(-500, 500).map(lambda v: v / 10), min_size=3, max_size=25)
+# Quarters, so that x - mu and its cube are exact in floating point: with tenths, |x - mu|
+# ties (-5.6 and 7.6 about 1) can be split by rounding of the cubes, which is not the property.
+values = st.lists(st.integers(-500, 500).map(lambda v: v / 4), min_size=3, max_size=25)
 
 
 @settings(max_examples=40, deadline=None)

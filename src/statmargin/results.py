@@ -52,8 +52,10 @@ class Estimate:
     """A quantity in the outcome's own units (or a share, r, rho) with its confidence interval.
 
     ``levels`` are the labels compared (first minus second), ``level`` the counted
-    label of a share, ``reference`` a stated value or expected share; the display
-    name is made from these by ``statmargin.words.names``.
+    label of a share, ``reference`` a stated value or expected share, ``per`` the
+    number of person-time units (or people) a rate is expressed per (a rate of
+    2.5 with ``per=1000`` is 2.5 per 1,000); the display name is made from these
+    by ``statmargin.words.names``.
     """
 
     kind: EstimateKind
@@ -63,6 +65,7 @@ class Estimate:
     levels: tuple[str, ...] = ()
     level: str | None = None
     reference: float | None = None
+    per: float | None = None
 
     @property
     def name(self) -> str:

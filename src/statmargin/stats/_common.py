@@ -274,12 +274,18 @@ def _first_position(
     return lo
 
 
-def _kth_in_sorted_rows(value_at: Any, lo: np.ndarray, hi: np.ndarray, k: int, work_limit: int) -> float:
+def _kth_in_sorted_rows(
+    value_at: Any, lo: np.ndarray, hi: np.ndarray, k: int, work_limit: int, mass: Any = None
+) -> float:
     """The k-th smallest (0-based) entry of a table whose rows are sorted.
 
     Row i holds ``value_at(i, j)`` for columns ``lo[i] <= j < hi[i]``, non-decreasing in j.
     The result is one of the table's entries, computed by ``value_at`` exactly as when
     the whole table is listed, so it equals the listed table's order statistic bit for bit.
+    With ``mass(rows, lo, hi)`` (the number of records in row r's columns [lo, hi)) each
+    cell stands for that many equal entries (frequency weights) and k counts them; the
+    pivot is still the cell-weighted median of the row medians, so each round removes a
+    quarter of the remaining cells whatever their counts.
     """
     rows = np.arange(lo.size)
     lo, hi = lo.astype(np.int64), hi.astype(np.int64)
@@ -291,8 +297,13 @@ def _kth_in_sorted_rows(value_at: Any, lo: np.ndarray, hi: np.ndarray, k: int, w
             keep = widths > 0
             row_of = np.repeat(rows[keep], widths[keep])
             starts = np.repeat(lo[keep] - np.concatenate(([0], np.cumsum(widths[keep])[:-1])), widths[keep])
-            candidates = value_at(row_of, starts + np.arange(remaining))
-            return float(np.partition(candidates, k - below)[k - below])
+            cols = starts + np.arange(remaining)
+            candidates = value_at(row_of, cols)
+            if mass is None:
+                return float(np.partition(candidates, k - below)[k - below])
+            order = np.argsort(candidates, kind="stable")
+            position = int(np.searchsorted(np.cumsum(mass(row_of, cols, cols + 1)[order]), k - below, side="right"))
+            return float(candidates[order][position])
         live = np.flatnonzero(widths > 0)
         medians = value_at(live, (lo[live] + hi[live] - 1) // 2)
         order = np.argsort(medians, kind="stable")
@@ -300,8 +311,9 @@ def _kth_in_sorted_rows(value_at: Any, lo: np.ndarray, hi: np.ndarray, k: int, w
         pivot = float(medians[order][np.searchsorted(weight, weight[-1] / 2.0)])
         under = _first_position(value_at, rows, lo, hi, pivot, inclusive=False)
         upto = _first_position(value_at, rows, lo, hi, pivot, inclusive=True)
-        n_under = below + int((under - lo).sum())
-        n_upto = below + int((upto - lo).sum())
+        counted = (lambda a, b: int((b - a).sum())) if mass is None else (lambda a, b: int(mass(rows, a, b).sum()))
+        n_under = below + counted(lo, under)
+        n_upto = below + counted(lo, upto)
         if n_under <= k < n_upto:
             return pivot
         if k < n_under:  # the answer is below the pivot: drop entries at or above it

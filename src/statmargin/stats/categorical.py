@@ -86,14 +86,15 @@ def _monte_carlo_p(simulated: np.ndarray, observed: float, resamples: int) -> tu
 
 
 def wilson_interval(
-    successes: int, n: int, *, confidence: float = 0.95, alternative: str = "two-sided"
+    successes: float, n: float, *, confidence: float = 0.95, alternative: str = "two-sided"
 ) -> tuple[float, float]:
     """Wilson score interval for one share.
 
     Parameters
     ----------
-    successes, n : int
-        Count of the level of interest and the total (n >= 1).
+    successes, n : int or float
+        Count of the level of interest and the total (n > 0); effective
+        (non-whole) counts are allowed.
     confidence : float
         Confidence level.
     alternative : str
@@ -142,10 +143,10 @@ def wilson_interval(
 
 
 def newcombe_difference_interval(
-    x1: int,
-    n1: int,
-    x2: int,
-    n2: int,
+    x1: float,
+    n1: float,
+    x2: float,
+    n2: float,
     *,
     confidence: float = 0.95,
     alternative: str = "two-sided",
@@ -205,7 +206,7 @@ def newcombe_difference_interval(
     return max(-1.0, low), min(1.0, high)
 
 
-def _wilson_both(x: int, n: int, confidence: float) -> tuple[float, float]:
+def _wilson_both(x: float, n: float, confidence: float) -> tuple[float, float]:
     """Both Wilson limits computed with the one-sided quantile."""
     low, _ = wilson_interval(x, n, confidence=confidence, alternative="greater")
     _, high = wilson_interval(x, n, confidence=confidence, alternative="less")

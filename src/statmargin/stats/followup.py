@@ -9,8 +9,8 @@ list of ``statmargin.results.Followup``.
 from __future__ import annotations
 
 import math
-from collections.abc import Iterator, Mapping, Sequence
-from typing import Any
+from collections.abc import Callable, Iterator, Mapping, Sequence
+from typing import Any, TypeVar
 
 import numpy as np
 from scipy import stats
@@ -31,6 +31,7 @@ from statmargin.stats.categorical import _count_table
 from statmargin.vocabulary import AdjustMethod, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Count, Skip, coded
 
+T = TypeVar("T")
 DEFAULT_ALPHA = 0.05  # level for flags (common practice), as Settings.alpha
 RESIDUAL_FLAG = 2.0  # |adjusted residual| above this is flagged (Agresti, common practice)
 
@@ -50,9 +51,7 @@ def _clean_groups(groups: Mapping[str, Any], minimum: int = 2) -> list[tuple[str
     return cleaned
 
 
-def _pairs(
-    items: list[tuple[str, np.ndarray]],
-) -> Iterator[tuple[tuple[str, np.ndarray], tuple[str, np.ndarray]]]:
+def _pairs(items: Sequence[T]) -> Iterator[tuple[T, T]]:
     """(later, earlier) pairs in R's order."""
     for i in range(len(items)):
         for j in range(i + 1, len(items)):
@@ -182,19 +181,34 @@ def tukey_hsd(
     True
     """
     confidence = check_confidence(confidence)
-    items = _clean_groups(groups)
-    k = len(items)
-    n_total = sum(v.size for _, v in items)
-    df = n_total - k
-    means = {label: accurate_mean(v) for label, v in items}
-    mse = sum(sum_of_squares(v, means[label]) for label, v in items) / df
+    return tukey_hsd_of_summaries(_summaries(_clean_groups(groups)), confidence=confidence, alpha=alpha)
+
+
+Summary = tuple[str, float, float, float]  # label, mean, sum of squared deviations, n
+
+
+def _summaries(items: list[tuple[str, np.ndarray]]) -> list[Summary]:
+    """Label, mean, sum of squares and size of each group's values."""
+    out = []
+    for label, values in items:
+        mean = accurate_mean(values)
+        out.append((label, mean, sum_of_squares(values, mean), float(values.size)))
+    return out
+
+
+def tukey_hsd_of_summaries(summaries: list[Summary], *, confidence: float = 0.95,
+                           alpha: float = DEFAULT_ALPHA) -> list[Followup]:
+    """:func:`tukey_hsd` from each group's (label, mean, sum of squares, n)."""
+    k = len(summaries)
+    df = sum(n for *_, n in summaries) - k
+    mse = sum(ss for _, _, ss, _ in summaries) / df
     if mse <= 0.0:
         raise NotEnoughDataError(coded(Skip.NO_WITHIN_SPREAD))
     q_crit = float(stats.studentized_range.ppf(confidence, k, df))
     out = []
-    for (a, xa), (b, xb) in _pairs(items):
-        diff = means[a] - means[b]
-        se = math.sqrt(mse / 2.0 * (1.0 / xa.size + 1.0 / xb.size))
+    for (a, mean_a, _, n_a), (b, mean_b, _, n_b) in _pairs(summaries):
+        diff = mean_a - mean_b
+        se = math.sqrt(mse / 2.0 * (1.0 / n_a + 1.0 / n_b))
         q = abs(diff) / se
         p_adj = float(np.clip(stats.studentized_range.sf(q, k, df), 0.0, 1.0))
         out.append(_interval_followup(Test.TUKEY_HSD, a, b, diff, q_crit * se, p_adj, q, alpha))
@@ -260,16 +274,16 @@ def games_howell(
     True
     """
     confidence = check_confidence(confidence)
-    items = _clean_groups(groups)
-    k = len(items)
-    summary = {}
-    for label, values in items:
-        mean = accurate_mean(values)
-        summary[label] = (mean, sum_of_squares(values, mean) / (values.size - 1), values.size)
+    return games_howell_of_summaries(_summaries(_clean_groups(groups)), confidence=confidence, alpha=alpha)
+
+
+def games_howell_of_summaries(summaries: list[Summary], *, confidence: float = 0.95,
+                              alpha: float = DEFAULT_ALPHA) -> list[Followup]:
+    """:func:`games_howell` from each group's (label, mean, sum of squares, n)."""
+    k = len(summaries)
     out = []
-    for (a, _), (b, _) in _pairs(items):
-        mean_a, var_a, n_a = summary[a]
-        mean_b, var_b, n_b = summary[b]
+    for (a, mean_a, ss_a, n_a), (b, mean_b, ss_b, n_b) in _pairs(summaries):
+        var_a, var_b = ss_a / (n_a - 1), ss_b / (n_b - 1)
         wa, wb = var_a / n_a, var_b / n_b
         se = math.sqrt(wa + wb)
         if se == 0.0:
@@ -369,23 +383,39 @@ def dunn(
     items = _clean_groups(groups)
     pooled = np.concatenate([v for _, v in items])
     ranks = stats.rankdata(pooled)
-    n_total = pooled.size
-    ties = tie_counts(pooled)
-    tie_term = float(np.sum(ties**3 - ties)) / (12.0 * (n_total - 1))
+    mean_ranks, start = [], 0
+    for label, values in items:
+        mean_ranks.append((label, float(ranks[start : start + values.size].mean()), float(values.size)))
+        start += values.size
+    values_of = dict(items)
+    return dunn_of_mean_ranks(
+        mean_ranks, tie_counts(pooled),
+        lambda a, b: median_pairwise_difference(values_of[a], values_of[b]),
+        lambda a, b: twogroup._rank_sum_approx_interval(values_of[a], values_of[b], "two-sided", confidence, True),
+        adjust=adjust, alpha=alpha,
+    )
+
+
+def dunn_of_mean_ranks(
+    mean_ranks: list[tuple[str, float, float]],
+    tie_sizes: np.ndarray,
+    shift: Callable[[str, str], float],
+    interval: Callable[[str, str], tuple[float, float]],
+    *,
+    adjust: AdjustMethod | str = "holm",
+    alpha: float = DEFAULT_ALPHA,
+) -> list[Followup]:
+    """:func:`dunn` from each group's (label, mean rank, n), the pooled tie sizes and per-pair shift and interval."""
+    n_total = sum(n for *_, n in mean_ranks)
+    tie_term = float(np.sum(tie_sizes**3 - tie_sizes)) / (12.0 * (n_total - 1))
     variance = n_total * (n_total + 1) / 12.0 - tie_term
     if variance <= 0.0:
         raise NotEnoughDataError(coded(Skip.ALL_RANKS_EQUAL))
-    mean_rank, size, start = {}, {}, 0
-    for label, values in items:
-        mean_rank[label] = float(ranks[start : start + values.size].mean())
-        size[label] = values.size
-        start += values.size
     rows, intervals = [], []
-    for (a, xa), (b, xb) in _pairs(items):
-        z = (mean_rank[a] - mean_rank[b]) / math.sqrt(variance * (1.0 / size[a] + 1.0 / size[b]))
-        shift = median_pairwise_difference(xa, xb)
-        rows.append((a, b, shift, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
-        intervals.append(twogroup._rank_sum_approx_interval(xa, xb, "two-sided", confidence, True))
+    for (a, rank_a, n_a), (b, rank_b, n_b) in _pairs(mean_ranks):
+        z = (rank_a - rank_b) / math.sqrt(variance * (1.0 / n_a + 1.0 / n_b))
+        rows.append((a, b, shift(a, b), z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
+        intervals.append(interval(a, b))
     return _adjusted_followups(Test.DUNN, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha, intervals)
 
 

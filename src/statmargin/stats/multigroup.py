@@ -279,16 +279,9 @@ def welch_anova(
                 coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"])
             )
     k = len(summaries)
-    n = np.array([s["n"] for s in summaries], dtype=float)
-    means = np.array([s["mean"] for s in summaries])
-    weights = n / np.array([s["sd"] ** 2 for s in summaries])
-    total_weight = math.fsum(weights)
-    weighted_mean = math.fsum(weights * means) / total_weight
-    tmp = math.fsum((1.0 - weights / total_weight) ** 2 / (n - 1.0)) / (k * k - 1.0)
-    f = math.fsum(weights * (means - weighted_mean) ** 2) / ((k - 1.0) * (1.0 + 2.0 * (k - 2.0) * tmp))
-    df1, df2 = float(k - 1), 1.0 / (3.0 * tmp)
+    f, df1, df2 = welch_statistic(summaries)
     between, within, _ = sums_of_squares(cleaned)
-    n_total = int(n.sum())
+    n_total = int(sum(summary["n"] for summary in summaries))
     effect, omega = _share_of_variance(between, within, k, n_total, confidence)
     notes.append(coded(Note.WELCH_EFFECT_CLASSIC))
     return Result(
@@ -311,6 +304,26 @@ def welch_anova(
         notes=notes,
         extra=omega,
     )
+
+
+def welch_statistic(summaries: list[dict[str, Any]]) -> tuple[float, float, float]:
+    """Welch's F and its two df from group summaries (``n``, ``mean``, ``sd`` each; every sd above 0).
+
+    Notes
+    -----
+    Weights w_i = n_i / s_i^2; F = sum w_i (m_i - m_w)^2 / ((k - 1) (1 + 2 (k - 2) tmp))
+    with tmp = sum (1 - w_i / W)^2 / (n_i - 1) / (k^2 - 1) and df (k - 1, 1 / (3 tmp))
+    (Welch 1951), as R's ``oneway.test``.
+    """
+    k = len(summaries)
+    n = np.array([s["n"] for s in summaries], dtype=float)
+    means = np.array([s["mean"] for s in summaries])
+    weights = n / np.array([s["sd"] ** 2 for s in summaries])
+    total_weight = math.fsum(weights)
+    weighted_mean = math.fsum(weights * means) / total_weight
+    tmp = math.fsum((1.0 - weights / total_weight) ** 2 / (n - 1.0)) / (k * k - 1.0)
+    f = math.fsum(weights * (means - weighted_mean) ** 2) / ((k - 1.0) * (1.0 + 2.0 * (k - 2.0) * tmp))
+    return f, float(k - 1), 1.0 / (3.0 * tmp)
 
 
 def kruskal_wallis_h(groups: list[np.ndarray]) -> float:

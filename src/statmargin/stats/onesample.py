@@ -7,6 +7,7 @@ here and is reused by ``paired`` on the pairwise differences.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from typing import Any, NamedTuple
 
 import numpy as np
@@ -71,8 +72,14 @@ def mean_t(
     >>> math.isclose(tested.t, stats.ttest_1samp(extra, 0.0).statistic)
     True
     """
-    summary = common.describe(label, values)
-    n = values.size
+    return mean_t_of_summary(common.describe(label, values), mu, effect_kind, alternative, confidence)
+
+
+def mean_t_of_summary(
+    summary: dict[str, Any], mu: float, effect_kind: EffectKind, alternative: str, confidence: float
+) -> MeanT:
+    """:func:`mean_t` from a summary (``n``, ``mean``, ``sd``), for callers that summarise counted rows."""
+    n = summary["n"]
     se = summary["sd"] / math.sqrt(n)
     difference = summary["mean"] - mu
     t = difference / se
@@ -539,11 +546,15 @@ def order_statistic_interval(
 
 def _signed_rank_z(shifted_nonzero: np.ndarray, alternative: str, correct: bool) -> float:
     """Standardized V with tie-corrected variance and optional continuity correction."""
-    n = shifted_nonzero.size
     ranks = stats.rankdata(np.abs(shifted_nonzero))
-    centred = ranks[shifted_nonzero > 0].sum() - n * (n + 1) / 4.0
-    ties = common.tie_counts(ranks)
-    sigma = math.sqrt(n * (n + 1) * (2 * n + 1) / 24.0 - float(np.sum(ties**3 - ties)) / 48.0)
+    return signed_rank_z(float(ranks[shifted_nonzero > 0].sum()), shifted_nonzero.size, common.tie_counts(ranks),
+                         alternative, correct)
+
+
+def signed_rank_z(v_plus: float, n: float, tie_sizes: np.ndarray, alternative: str, correct: bool) -> float:
+    """Standardized V from its value, the number of non-zero differences and the tied-set sizes."""
+    centred = v_plus - n * (n + 1) / 4.0
+    sigma = math.sqrt(n * (n + 1) * (2 * n + 1) / 24.0 - float(np.sum(tie_sizes**3 - tie_sizes)) / 48.0)
     if sigma == 0.0:
         return 0.0
     return (centred - common.continuity_correction(centred, alternative, correct)) / sigma
@@ -557,16 +568,29 @@ def _signed_rank_approx_interval(
     Notes
     -----
     The standardized statistic of ``values - d`` is a decreasing step function of d;
-    each bound is where it crosses the normal quantile, found by bracketing root
-    search to 1e-10 (R's ``wilcox.test`` does the same with ``uniroot`` at tolerance
-    1e-4, so bounds agree to about 1e-4).
+    see :func:`invert_centre_statistic`.
     """
-    low_end, high_end = float(values.min()), float(values.max())
 
     def statistic(d: float) -> float:
         shifted = values - d
         return _signed_rank_z(shifted[shifted != 0], alternative, correct)
 
+    return invert_centre_statistic(statistic, float(values.min()), float(values.max()), alternative, confidence,
+                                   notes)
+
+
+def invert_centre_statistic(
+    statistic: Callable[[float], float], low_end: float, high_end: float, alternative: str, confidence: float,
+    notes: list[Coded],
+) -> tuple[float, float]:
+    """Bounds where a decreasing standardized statistic of the centre crosses the normal quantiles.
+
+    Notes
+    -----
+    Each bound is found by bracketing root search to 1e-12 (R's ``wilcox.test`` uses
+    ``uniroot`` at tolerance 1e-4, so bounds agree to about 1e-4). When a bound cannot
+    be reached inside the data's range, the range is returned with a note.
+    """
     at_low, at_high = statistic(low_end), statistic(high_end)
     q_lower, q_upper = common.z_quantiles(alternative, confidence)
     reachable = (q_lower is None or at_low >= q_lower) and (q_upper is None or at_high <= q_upper)

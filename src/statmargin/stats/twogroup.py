@@ -6,6 +6,8 @@ Differences are always first group minus second group, in the order of ``labels`
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
+from typing import Any
 
 import numpy as np
 from scipy import optimize, stats
@@ -149,8 +151,18 @@ def _t_test(
     """Shared body of the two t-tests."""
     common.check_options(alternative, confidence)
     a, b, dropped, first, second = _two_groups(x, y, labels)
-    ga, gb = common.describe(first, a), common.describe(second, b)
-    n1, n2 = a.size, b.size
+    result = t_test_of_summaries(common.describe(first, a), common.describe(second, b), alternative, confidence,
+                                 equal_variances=equal_variances)
+    result.n_excluded = dropped
+    return result
+
+
+def t_test_of_summaries(
+    ga: dict[str, Any], gb: dict[str, Any], alternative: str, confidence: float, *, equal_variances: bool
+) -> Result:
+    """Welch's or Student's t-test from two group summaries (``label``, ``n``, ``mean``, ``sd``)."""
+    first, second = ga["label"], gb["label"]
+    n1, n2 = ga["n"], gb["n"]
     va, vb = ga["sd"] ** 2, gb["sd"] ** 2
     difference = ga["mean"] - gb["mean"]
     pooled_var = ((n1 - 1) * va + (n2 - 1) * vb) / (n1 + n2 - 2)
@@ -185,7 +197,6 @@ def _t_test(
         alternative=alternative,
         confidence=confidence,
         n=int(n1 + n2),
-        n_excluded=dropped,
         estimate=Estimate(EstimateKind.MEAN_DIFFERENCE, difference, low, high, levels=(first, second)),
         effect=effect,
         groups=[ga, gb],
@@ -387,12 +398,17 @@ def _rank_sum_exact_interval(
 
 def _rank_sum_z(a: np.ndarray, b: np.ndarray, alternative: str, correct: bool) -> float:
     """Standardized U of the first group with tie-corrected variance."""
-    n1, n2 = a.size, b.size
     ranks = stats.rankdata(np.concatenate([a, b]))
-    centred = ranks[:n1].sum() - n1 * (n1 + 1) / 2.0 - n1 * n2 / 2.0
-    ties = common.tie_counts(ranks)
+    return rank_sum_z(float(ranks[: a.size].sum()), a.size, b.size, common.tie_counts(ranks), alternative, correct)
+
+
+def rank_sum_z(
+    rank_sum: float, n1: float, n2: float, tie_sizes: np.ndarray, alternative: str, correct: bool
+) -> float:
+    """Standardized U of the first group from its rank sum, the group sizes and the tied-set sizes."""
+    centred = rank_sum - n1 * (n1 + 1) / 2.0 - n1 * n2 / 2.0
     n = n1 + n2
-    sigma = math.sqrt((n1 * n2 / 12.0) * ((n + 1) - float(np.sum(ties**3 - ties)) / (n * (n - 1))))
+    sigma = math.sqrt((n1 * n2 / 12.0) * ((n + 1) - float(np.sum(tie_sizes**3 - tie_sizes)) / (n * (n - 1))))
     if sigma == 0.0:
         return 0.0
     return float((centred - common.continuity_correction(centred, alternative, correct)) / sigma)
@@ -405,15 +421,25 @@ def _rank_sum_approx_interval(
 
     Notes
     -----
-    Same construction as R's ``wilcox.test(conf.int = TRUE, exact = FALSE)``; bounds
-    found by bracketing root search to 1e-12 (R uses 1e-4), and a bound that cannot
-    be reached is set to the end of the search range, as R does.
+    Same construction as R's ``wilcox.test(conf.int = TRUE, exact = FALSE)``; see
+    :func:`invert_shift_statistic`.
     """
-    low_end, high_end = float(a.min() - b.max()), float(a.max() - b.min())
+    return invert_shift_statistic(
+        lambda d: _rank_sum_z(a - d, b, alternative, correct),
+        float(a.min() - b.max()), float(a.max() - b.min()), alternative, confidence,
+    )
 
-    def statistic(d: float) -> float:
-        return _rank_sum_z(a - d, b, alternative, correct)
 
+def invert_shift_statistic(
+    statistic: Callable[[float], float], low_end: float, high_end: float, alternative: str, confidence: float
+) -> tuple[float, float]:
+    """Bounds where a decreasing standardized statistic of the shift crosses the normal quantiles.
+
+    Notes
+    -----
+    Bounds are found by bracketing root search to 1e-12 (R uses 1e-4), and a bound
+    that cannot be reached is set to the end of the search range, as R does.
+    """
     at_low, at_high = statistic(low_end), statistic(high_end)
 
     def root(q: float) -> float:

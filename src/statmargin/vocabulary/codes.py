@@ -71,6 +71,14 @@ class Skip(Word):
     NO_P_VALUE = "no_p_value"
     TOO_FEW_PERIODS = "too_few_periods"  # n, minimum (periods with data)
     NO_BASELINE = "no_baseline"  # n, minimum (baseline periods for control limits)
+    # aggregated rows (events out of totals, events per person-time, count weights)
+    NOT_WHOLE_COUNT = "not_whole_count"  # what, row, value
+    NEGATIVE_VALUE = "negative_value"  # what, row, value
+    EVENTS_ABOVE_TOTAL = "events_above_total"  # row, events, total
+    EVENTS_WITHOUT_TIME = "events_without_time"  # row, events
+    NO_PERSON_TIME = "no_person_time"  # label (optional)
+    NO_EVENTS = "no_events"
+    NO_RECORDS = "no_records"  # label (optional): totals or count weights add up to 0
 
 
 class Note(Word):
@@ -101,6 +109,10 @@ class Note(Word):
     PERIOD_PARTIAL = "period_partial"  # period, last_date, period_end
     PERIOD_FEW_ROWS = "period_few_rows"  # periods: [(label, n), ...], minimum
     PERIOD_USER_LATEST = "period_user_latest"  # period: the latest period as the user set it
+    RATES_OVERDISPERSED = "rates_overdispersed"  # dispersion, rows (not records), p
+    SHARES_OVERDISPERSED = "shares_overdispersed"  # dispersion, rows (not records), p
+    RATE_NO_EVENTS_GROUP = "rate_no_events_group"  # label
+    WEIGHTED_BOOTSTRAP = "weighted_bootstrap"  # resamples
 
 
 class Reason(Word):
@@ -126,12 +138,23 @@ class Reason(Word):
     FOLLOWUP_RESIDUALS = "followup_residuals"  # threshold
     TREND_SHARES = "trend_shares"  # outcome, level: Cochran-Armitage on the share of level
     TREND_SERIES = "trend_series"  # outcome, centre ("mean"/"median"): Mann-Kendall on the series
+    ONE_RATE_EXACT = "one_rate_exact"  # outcome
+    RATE_EXACT_SMALL = "rate_exact_small"  # smallest
+    RATE_SCORE = "rate_score"  # smallest
+    RATE_HOMOGENEITY = "rate_homogeneity"  # n
+    QUASI_POISSON = "quasi_poisson"  # dispersion
+    QUASI_BINOMIAL = "quasi_binomial"  # dispersion
+    # layout suggestions of the plan step (never applied without the user)
+    SUGGEST_EVENTS_OUT_OF = "suggest_events_out_of"  # events, total, rows
+    SUGGEST_EVENTS_PER = "suggest_events_per"  # events, per, rows, whole: bool
+    SUGGEST_COUNT = "suggest_count"  # count, categories
 
 
 class Caution(Word):
     """A caution about reading one result."""
 
     SHARE_HIDDEN = "share_hidden"  # floor
+    AGGREGATE_INDEPENDENCE = "aggregate_independence"  # events, total (column names)
 
 
 @dataclass(frozen=True)

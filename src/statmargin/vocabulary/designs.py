@@ -22,6 +22,8 @@ class Design(Word):
     TWO_CONTINUOUS = "two_continuous"
     PAIRED_CONTINUOUS = "paired_continuous"
     PAIRED_CATEGORICAL = "paired_categorical"
+    ONE_SAMPLE_RATE = "one_sample_rate"  # events per person-time (or population) against a target rate
+    GROUP_RATES = "group_rates"  # events per person-time compared across two or more groups
 
 
 class Test(Word):
@@ -48,16 +50,30 @@ class Test(Word):
     # trend across periods
     COCHRAN_ARMITAGE = "cochran_armitage"
     MANN_KENDALL = "mann_kendall"
+    POISSON_EXACT = "poisson_exact"  # one rate against a target, exact (conditional on person-time)
+    RATE_RATIO_EXACT = "rate_ratio_exact"  # two rates: exact conditional binomial test
+    RATE_RATIO_SCORE = "rate_ratio_score"  # two rates: score test
+    RATE_HOMOGENEITY = "rate_homogeneity"  # 3+ rates: chi-square test of homogeneity
+    QUASI_POISSON = "quasi_poisson"  # rates when rows vary more than Poisson sampling allows
+    QUASI_BINOMIAL = "quasi_binomial"  # shares when rows vary more than binomial sampling allows
     # follow-ups
     TUKEY_HSD = "tukey_hsd"
     GAMES_HOWELL = "games_howell"
     DUNN = "dunn"
     PAIRWISE_MANN_WHITNEY = "pairwise_mann_whitney"
     ADJUSTED_RESIDUAL = "adjusted_residual"
+    PAIRWISE_RATE_RATIO = "pairwise_rate_ratio"
 
 
 FOLLOWUP_TESTS = frozenset(
-    {Test.TUKEY_HSD, Test.GAMES_HOWELL, Test.DUNN, Test.PAIRWISE_MANN_WHITNEY, Test.ADJUSTED_RESIDUAL}
+    {
+        Test.TUKEY_HSD,
+        Test.GAMES_HOWELL,
+        Test.DUNN,
+        Test.PAIRWISE_MANN_WHITNEY,
+        Test.ADJUSTED_RESIDUAL,
+        Test.PAIRWISE_RATE_RATIO,
+    }
 )
 
 

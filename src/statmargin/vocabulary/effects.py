@@ -30,6 +30,10 @@ class EstimateKind(Word):
     OBSERVED_MINUS_EXPECTED = "observed_minus_expected"  # a table cell's residual count
     SHARE_CHANGE_PER_PERIOD = "share_change_per_period"  # level, levels (grain,); share slope per period (0.01 = 1 point)
     THEIL_SEN_SLOPE = "theil_sen_slope"  # levels (grain,); median pairwise slope, units per period
+    RATE = "rate"  # events per ``per`` units of person-time; level: the group; reference: a target
+    RATE_DIFFERENCE = "rate_difference"  # per ``per`` units, levels (first, second)
+    RATE_RATIO = "rate_ratio"  # levels (first, second): first / second (pairwise follow-ups)
+    LARGEST_RATE_GAP = "largest_rate_gap"  # levels (highest, lowest), per ``per`` units, no interval
 
 
 class EffectKind(Word):
@@ -50,3 +54,4 @@ class EffectKind(Word):
     CRAMERS_V = "cramers_v"
     ODDS_RATIO = "odds_ratio"  # conditional MLE, level and levels (row 1, row 2)
     DISCORDANT_ODDS_RATIO = "discordant_odds_ratio"  # b/c of McNemar's table
+    RATE_RATIO = "rate_ratio"  # levels (first, second): first rate / second rate

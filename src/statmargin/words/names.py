@@ -39,6 +39,7 @@ _PLAIN_EFFECTS: dict[EffectKind, str] = {
     EffectKind.CRAMERS_V: "Cramer's V",
     EffectKind.ODDS_RATIO: "odds ratio",
     EffectKind.DISCORDANT_ODDS_RATIO: "odds ratio of discordant pairs (b/c)",
+    EffectKind.RATE_RATIO: "rate ratio",
 }
 
 
@@ -71,6 +72,8 @@ def estimate_name(estimate: Estimate) -> str:
         return f"difference in share of '{estimate.level}' ('{first}' - '{second}')"
     if kind is EstimateKind.PAIRED_SHARE_DIFFERENCE:
         return f"difference in share of '{estimate.level}' (first - second measurement)"
+    if kind in _RATE_NAMES:
+        return _rate_name(estimate)
     if kind is EstimateKind.PEARSON_R:
         return "Pearson r"
     if kind is EstimateKind.SPEARMAN_RHO:
@@ -82,8 +85,34 @@ def estimate_name(estimate: Estimate) -> str:
     return "observed minus expected count"
 
 
+_RATE_NAMES: dict[EstimateKind, str] = {
+    EstimateKind.RATE: "rate",
+    EstimateKind.RATE_DIFFERENCE: "difference in rates",
+    EstimateKind.RATE_RATIO: "rate ratio",
+    EstimateKind.LARGEST_RATE_GAP: "largest difference between group rates",
+}
+
+
+def _rate_name(estimate: Estimate) -> str:
+    """'rate per 1,000 (North)', 'difference in rates per 1,000 (A - B)', 'rate ratio (A / B)'."""
+    from .rates_words import per_text
+
+    kind = estimate.kind
+    unit = f" {per_text(estimate.per)}" if estimate.per is not None else ""
+    if kind is EstimateKind.RATE_RATIO:
+        first, second = (list(estimate.levels) + ["first", "second"])[:2]
+        return f"rate ratio ({first} / {second})"
+    if kind is EstimateKind.RATE:
+        target = "" if estimate.reference is None else f"; target {estimate.reference:.6g}"
+        label = f" ({estimate.level}{target})" if estimate.level else (f" ({target[2:]})" if target else "")
+        return f"rate{unit}{label}"
+    return f"{_RATE_NAMES[kind]}{unit} ({_pair(estimate.levels)})"
+
+
 def effect_name(effect: Effect) -> str:
     """The display name of an effect size, e.g. "Hedges' g" or "Cramer's V"."""
+    if effect.kind is EffectKind.RATE_RATIO and len(effect.levels) >= 2:
+        return f"rate ratio ({effect.levels[0]} / {effect.levels[1]})"
     if effect.kind is EffectKind.ODDS_RATIO and effect.level is not None and len(effect.levels) >= 2:
         return (
             f"odds ratio of '{effect.level}' ('{effect.levels[0]}' vs '{effect.levels[1]}'), "

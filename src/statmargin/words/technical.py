@@ -44,6 +44,13 @@ TEST_NAMES: dict[str, str] = {
     Test.GAMES_HOWELL: "Games-Howell",
     Test.DUNN: "Dunn's test",
     Test.ADJUSTED_RESIDUAL: "Adjusted standardized residual",
+    Test.POISSON_EXACT: "Exact Poisson test",
+    Test.RATE_RATIO_EXACT: "Exact conditional test of a rate ratio",
+    Test.RATE_RATIO_SCORE: "Score test of a rate ratio",
+    Test.RATE_HOMOGENEITY: "Chi-square test of homogeneity of rates",
+    Test.QUASI_POISSON: "Quasi-Poisson test",
+    Test.QUASI_BINOMIAL: "Quasi-binomial test",
+    Test.PAIRWISE_RATE_RATIO: "Pairwise rate ratios",
 }
 
 # Names of the shape checks (shape.GroupSummary.check) for the shape-check sheet.
