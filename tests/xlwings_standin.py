@@ -369,11 +369,19 @@ class Sheet(_Strict):
             self._formulas[(r, c)] = formula
 
     def _bounds(self) -> tuple[int, int, int, int] | None:
-        rows = [i + 1 for i, row in enumerate(self._grid) if row and any(v is not None for v in row)]
-        if not rows:
-            return None
-        cols = [j + 1 for i in rows for j, v in enumerate(self._grid[i - 1] or []) if v is not None]
-        return min(rows), min(cols), max(rows), max(cols)
+        grid = self._grid
+        top = left = right = bottom = 0
+        for i, row in enumerate(grid, start=1):
+            if not row:
+                continue
+            filled = [j for j, v in enumerate(row, start=1) if v is not None]
+            if not filled:
+                continue
+            top = top or i
+            bottom = i
+            left = min(left or filled[0], filled[0])
+            right = max(right, filled[-1])
+        return (top, left, bottom, right) if top else None
 
     # members -------------------------------------------------------------------
     @property
@@ -606,8 +614,13 @@ class Range(_Strict):
 
     @property
     def merge_cells(self) -> bool | None:
-        flags = {self._area_of(r, c) is not None for r, c in self._cells()}
-        return flags.pop() if len(flags) == 1 else None
+        r1, c1, r2, c2 = self._box
+        covered = 0
+        for a1, b1, a2, b2 in self._sheet._merged:  # merged areas never overlap
+            covered += max(0, min(r2, a2) - max(r1, a1) + 1) * max(0, min(c2, b2) - max(c1, b1) + 1)
+        if covered == 0:
+            return False
+        return True if covered == (r2 - r1 + 1) * (c2 - c1 + 1) else None
 
     @property
     def merge_area(self) -> Range:
@@ -985,10 +998,10 @@ def new_book(name: str = "Book1.xlsx", sheets: dict[str, list[list[Any]]] | None
     book = Book(name, freeze_supported=freeze_supported)
     for sheet_name, rows in (sheets or {"Sheet1": []}).items():
         sheet = book._new_sheet(sheet_name)
-        for r, row in enumerate(rows, start=1):
-            for c, value in enumerate(row, start=1):
-                if value is not None:
-                    sheet._put(r, c, float(value) if isinstance(value, int) and not isinstance(value, bool) else value)
+        sheet._grid = [
+            [float(v) if isinstance(v, int) and not isinstance(v, bool) else v for v in row] or None
+            for row in rows
+        ]
     book._active = book._sheet_list[0]
     return book
 
@@ -1031,6 +1044,21 @@ def load(path: str | Path, *, name: str | None = None, freeze_supported: bool = 
     book._active = next((s for s in book._sheet_list if active is not None and s._name == active.title),
                         book._sheet_list[0])
     return book
+
+
+def add_merge(sheet_: Sheet, box: tuple[int, int, int, int]) -> None:
+    """Merge cells as a user did before (1-based first row, first col, last row, last col)."""
+    sheet_._merged.append(box)
+
+
+def add_table(sheet_: Sheet, name: str, box: tuple[int, int, int, int], *, headers: bool = True,
+              totals: bool = False) -> None:
+    """An Excel table the user made over ``box`` (1-based, header and totals rows included)."""
+    sheet_._tables.append(Table(sheet_, name, box, headers, totals))
+
+
+def hide(sheet_: Sheet, very: bool = False) -> None:
+    sheet_._visible = 2 if very else 0
 
 
 def sheet(book: Book, name: str) -> Sheet:

@@ -21,6 +21,13 @@ def no_xlwings() -> str:
     )
 
 
+def no_excel_here(platform: str) -> str:
+    return (
+        f"Desktop Excel runs on Windows and macOS, not on this system ({platform}); use the "
+        "command line here (statmargin plan / statmargin run) on the saved workbook."
+    )
+
+
 def no_calling_workbook(detail: str) -> str:
     return (
         f"No calling Excel workbook was found ({detail}); call this from a button or macro in "

@@ -25,6 +25,7 @@ from .book import ExcelBook
 
 Job = Callable[[ExcelBook], str]
 ALERT_MODE = "critical"  # xlwings' word for the warning icon
+DESKTOP_PLATFORMS = ("win", "darwin")  # where desktop Excel (and xlwings' desktop engines) run
 
 
 @dataclass(frozen=True)
@@ -47,9 +48,11 @@ def caller_book() -> Any:
     Raises
     ------
     ExcelBridgeError
-        xlwings is not installed, or no workbook called (no Excel, or called
-        from a plain Python session).
+        Not on Windows or macOS (desktop Excel runs nowhere else), xlwings is
+        not installed, or no workbook called (called from a plain Python session).
     """
+    if not sys.platform.startswith(DESKTOP_PLATFORMS):
+        raise ExcelBridgeError(excel_messages.no_excel_here(sys.platform))
     try:
         import xlwings
     except ImportError:
