@@ -337,6 +337,7 @@ class Sheet(_Strict):
         self._tables: list[Table] = []
         self._charts: list[Chart] = []
         self._frozen: str | None = None
+        self._cache: dict[str, Any] = {"errors": False}  # used-range bounds; whether any error value is held
 
     # values ------------------------------------------------------------------
     def _get(self, r: int, c: int) -> Any:
@@ -347,6 +348,10 @@ class Sheet(_Strict):
         return None
 
     def _put(self, r: int, c: int, value: Any) -> None:
+        cache = self._cache
+        cache.pop("bounds", None)
+        if isinstance(value, ExcelError):
+            cache["errors"] = True
         while len(self._grid) < r:
             self._grid.append(None)
         row = self._grid[r - 1]
@@ -369,6 +374,11 @@ class Sheet(_Strict):
             self._formulas[(r, c)] = formula
 
     def _bounds(self) -> tuple[int, int, int, int] | None:
+        if "bounds" not in self._cache:
+            self._cache["bounds"] = self._scan_bounds()
+        return self._cache["bounds"]
+
+    def _scan_bounds(self) -> tuple[int, int, int, int] | None:
         grid = self._grid
         top = left = right = bottom = 0
         for i, row in enumerate(grid, start=1):
@@ -488,6 +498,7 @@ class Range(_Strict):
         r1, c1, r2, c2 = self._box
         err_to_str = bool(self._options.get("err_to_str"))
         grid = self._sheet._grid
+        errors = self._sheet._cache["errors"]
         rows = []
         for r in range(r1, r2 + 1):
             src = grid[r - 1] if r - 1 < len(grid) else None
@@ -497,7 +508,7 @@ class Range(_Strict):
             row = src[c1 - 1 : c2]
             if len(row) < c2 - c1 + 1:
                 row = row + [None] * (c2 - c1 + 1 - len(row))
-            if any(isinstance(v, ExcelError) for v in row):
+            if errors and any(isinstance(v, ExcelError) for v in row):
                 row = [(v.text if err_to_str else None) if isinstance(v, ExcelError) else v for v in row]
             rows.append(row)
         if self._options.get("ndim") == 2:
@@ -1002,6 +1013,7 @@ def new_book(name: str = "Book1.xlsx", sheets: dict[str, list[list[Any]]] | None
             [float(v) if isinstance(v, int) and not isinstance(v, bool) else v for v in row] or None
             for row in rows
         ]
+        sheet._cache["errors"] = any(isinstance(v, ExcelError) for row in rows for v in row)
     book._active = book._sheet_list[0]
     return book
 
