@@ -73,8 +73,8 @@ def read_half(n: int) -> None:
 
 
 def write_half() -> None:
-    import xlwings_standin as xs
     import statmargin.excel
+    import xlwings_standin as xs
 
     print("Writing the demo workbooks' sheets (xlwings calls per run)")
     folder = Path(tempfile.mkdtemp())
