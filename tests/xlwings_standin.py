@@ -194,6 +194,28 @@ def excel_typed(value: Any) -> tuple[Any, str | None]:
     return value, None
 
 
+def _field(name: str, check: Any = None) -> property:
+    """A plain stored attribute of an xlwings object (get and set), optionally validated."""
+    key = "_" + name
+
+    def get(self: Any) -> Any:
+        return object.__getattribute__(self, key)
+
+    def set_(self: Any, value: Any) -> None:
+        object.__setattr__(self, key, check(value) if check else value)
+
+    return property(get, set_)
+
+
+def _one_of(*allowed: str) -> Any:
+    def check(value: Any) -> Any:
+        if value not in allowed:
+            raise ValueError(value)
+        return value
+
+    return check
+
+
 # --------------------------------------------------------------------------- objects
 
 
@@ -207,31 +229,9 @@ class App(_Strict):
         self._status_bar: Any = False
         self._alerts: list[tuple[str, str | None, str | None]] = []
 
-    @property
-    def screen_updating(self) -> bool:
-        return self._screen_updating
-
-    @screen_updating.setter
-    def screen_updating(self, value: bool) -> None:
-        self._screen_updating = bool(value)
-
-    @property
-    def calculation(self) -> str:
-        return self._calculation
-
-    @calculation.setter
-    def calculation(self, value: str) -> None:
-        if value not in ("automatic", "manual", "semiautomatic"):
-            raise ValueError(value)
-        self._calculation = value
-
-    @property
-    def status_bar(self) -> Any:
-        return self._status_bar
-
-    @status_bar.setter
-    def status_bar(self, value: Any) -> None:
-        self._status_bar = value
+    screen_updating = _field("screen_updating", bool)
+    calculation = _field("calculation", _one_of("automatic", "manual", "semiautomatic"))
+    status_bar = _field("status_bar")
 
     def alert(self, prompt: str, title: str | None = None, buttons: str = "ok", mode: str | None = None,
               callback: str | None = None) -> str:
@@ -883,13 +883,7 @@ class Chart(_Strict):
         self._axes = {"category": ChartAxis(sheet), "value": ChartAxis(sheet)}
         self._legend = ChartLegend(sheet)
 
-    @property
-    def title(self) -> str | None:
-        return self._title
-
-    @title.setter
-    def title(self, value: str | None) -> None:
-        self._title = value
+    title = _field("title")
 
     @property
     def series(self) -> ChartSeriesCollection:
@@ -931,21 +925,8 @@ class ChartSeries(_Strict):
         self._name: str | None = None
         self._fill: str | None = None
 
-    @property
-    def name(self) -> str | None:
-        return self._name
-
-    @name.setter
-    def name(self, value: str) -> None:
-        self._name = value
-
-    @property
-    def fill_color(self) -> str | None:
-        return self._fill
-
-    @fill_color.setter
-    def fill_color(self, value: str) -> None:
-        self._fill = value
+    name = _field("name")
+    fill_color = _field("fill")
 
 
 class ChartAxis(_Strict):
@@ -956,21 +937,8 @@ class ChartAxis(_Strict):
         self._title: str | None = None
         self._format = "General"
 
-    @property
-    def title(self) -> str | None:
-        return self._title
-
-    @title.setter
-    def title(self, value: str | None) -> None:
-        self._title = value
-
-    @property
-    def number_format(self) -> str:
-        return self._format
-
-    @number_format.setter
-    def number_format(self, value: str) -> None:
-        self._format = value
+    title = _field("title")
+    number_format = _field("format")
 
 
 class ChartLegend(_Strict):
@@ -981,23 +949,8 @@ class ChartLegend(_Strict):
         self._visible = True
         self._position = "right"
 
-    @property
-    def visible(self) -> bool:
-        return self._visible
-
-    @visible.setter
-    def visible(self, value: bool) -> None:
-        self._visible = bool(value)
-
-    @property
-    def position(self) -> str:
-        return self._position
-
-    @position.setter
-    def position(self, value: str) -> None:
-        if value not in get_args(xw_words.ChartLegendPosition):
-            raise ValueError(value)
-        self._position = value
+    visible = _field("visible", bool)
+    position = _field("position", _one_of(*get_args(xw_words.ChartLegendPosition)))
 
 
 # --------------------------------------------------------------------------- for tests
