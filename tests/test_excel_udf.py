@@ -52,7 +52,7 @@ def test_compare_equals_the_command_line(newcomer) -> None:
     col = newcomer["column"]
     got = _as_dict(statmargin.excel.SM_COMPARE(col["Wait minutes"], col["Site"]))
     want = newcomer["compare"]
-    from statmargin.words.explain import TEST_NAMES
+    from statmargin.words.technical import TEST_NAMES
 
     assert got["Test"] == TEST_NAMES[want["test"]]
     assert got["Statistic"] == want["statistic_name"]

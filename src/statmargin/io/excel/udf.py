@@ -7,9 +7,10 @@ two-column block (label, value) that Excel spills below the formula.
 
 The cells go through the same reader as a workbook file (missing markers,
 numbers stored as text, ``<5``, ``#N/A`` ... are handled as the data-notes sheet
-describes) and the comparison through ``statmargin.analyze``, the function
-behind ``statmargin test``, so a worksheet function and the command line give
-the same numbers for the same cells.
+describes) and the comparison through ``jobs.question.test_workbook``, the job
+behind ``statmargin test``, with the cells as its workbook source, so a
+worksheet function and the command line give the same numbers for the same
+cells.
 
 A problem with the cells comes back as a one-line text in the cell, never as
 a Python traceback.
@@ -23,7 +24,7 @@ from typing import Any
 
 from ...errors import OptionError, StatmarginError
 from ...words import excel_messages
-from ...words.explain import TEST_NAMES
+from ...words.technical import TEST_NAMES
 from ..protocol import TableRange
 
 
@@ -79,12 +80,10 @@ def _split(values: list[Any], headers: bool, default: str, which: str) -> tuple[
     return (name or default), values[1:]
 
 
-def _read(columns: list[tuple[str, list[Any]]]) -> Any:
+def _read(name: str, values: list[Any]) -> Any:
     from ...read.reader import read_table
 
-    names = [name for name, _ in columns]
-    rows: list[list[Any]] = [names]
-    rows.extend(list(row) for row in zip(*(values for _, values in columns), strict=True))
+    rows = [[name]] + [[v] for v in values]
     return read_table(None, source=CellsSource(rows), sheet=excel_messages.CELLS_SHEET, header_row=1)
 
 
@@ -122,12 +121,12 @@ def compare_cells(outcome: Any, groups: Any, headers: bool = True, confidence: f
 
     Notes
     -----
-    The same function as ``statmargin test --outcome COL --by COL`` (shape
-    checks choose between the normal-shaped and the rank-based test).
+    The same job as ``statmargin test --outcome COL --by COL`` (shape checks
+    choose between the normal-shaped and the rank-based test).
     Decisions about people's health or services belong to qualified analysts
     and local policy; the number informs them.
     """
-    from ...designs.engine import analyze
+    from ...jobs.question import test_workbook
 
     try:
         if isinstance(confidence, bool) or not isinstance(confidence, (int, float)) or not 0 < confidence < 1:
@@ -139,14 +138,25 @@ def compare_cells(outcome: Any, groups: Any, headers: bool = True, confidence: f
         group_name, group_values = _split(group_values, bool(headers), excel_messages.DEFAULT_GROUP, "group")
         if group_name.casefold() == out_name.casefold():
             group_name = excel_messages.DEFAULT_GROUP if out_name != excel_messages.DEFAULT_GROUP else group_name + " 2"
-        table = _read([(out_name, out_values), (group_name, group_values)])
-        [result] = analyze(table, outcome=out_name, by=group_name, confidence=float(confidence))
+        rows: list[list[Any]] = [[out_name, group_name]]
+        rows.extend([o, g] for o, g in zip(out_values, group_values, strict=True))
+        summary = test_workbook(
+            excel_messages.CELLS_SHEET,
+            outcome=out_name,
+            by=group_name,
+            confidence=float(confidence),
+            sheet=excel_messages.CELLS_SHEET,
+            source=CellsSource(rows),
+        )
+        [result] = summary.results
     except StatmarginError as exc:
         return [[" ".join(str(exc).split())]]
     labels = excel_messages.compare_labels(float(confidence))
     test = TEST_NAMES.get(result.test or "", result.test or "")
     if result.skipped:
-        return [[labels[0], excel_messages.not_run(result.skipped)]]
+        from ...words.sentences import say
+
+        return [[labels[0], excel_messages.not_run(say(result.skipped))]]
     estimate = result.estimate
     values = [
         test,
@@ -184,7 +194,7 @@ def shape_cells(values: Any, headers: bool = True) -> list[list[Any]]:
 
     try:
         name, cells = _split(column_values(values), bool(headers), excel_messages.DEFAULT_VALUES, "values")
-        table = _read([(name, cells)])
+        table = _read(name, cells)
         numbers = table.columns[name].numbers
         summary = summarize(numbers[~_isnan(numbers)], name)
     except StatmarginError as exc:
