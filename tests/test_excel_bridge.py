@@ -280,3 +280,15 @@ def test_a_bug_ends_in_one_line_with_code_70(monkeypatch, capsys) -> None:
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "Traceback" not in err
     assert err.startswith("statmargin: statmargin stopped on an internal problem (ZeroDivisionError: division by zero)")
+
+
+def test_sheet_names_resolve_like_the_file_back_end() -> None:
+    """A sheet asked for in other case is found; an unknown one is refused in one line listing the sheets."""
+    from statmargin.errors import SheetNotFoundError
+
+    book = xs.new_book("r.xlsx", {"Log": _clinic_rows(), "Notes": [["x"]]})
+    source = ExcelBook(book)
+    assert source.resolve_sheet(" log ") == "Log"
+    assert len(read_table(None, source=source, sheet="LOG").rows) == 24
+    with pytest.raises(SheetNotFoundError, match=r"Sheet 'Visits' is not in 'r.xlsx'. Its sheets are: 'Log', 'Notes'."):
+        source.resolve_sheet("Visits")

@@ -25,10 +25,10 @@ is visible in Excel's Name Manager (files written by the command line hide it).
 from __future__ import annotations
 
 import decimal
-from collections.abc import Iterator
+from collections.abc import Iterable, Iterator
 from typing import Any
 
-from ...errors import OptionError, StatmarginError, WorkbookError, WriteError
+from ...errors import OptionError, SheetNotFoundError, StatmarginError, WorkbookError, WriteError
 from ...sheets.layout import print_titles
 from ...sheets.model import SheetModel
 from ...words import excel_messages
@@ -68,25 +68,50 @@ class ExcelBook:
 
     # -- source -----------------------------------------------------------------
     @property
-    def display(self) -> str:
-        """The workbook's name as messages show it."""
+    def display_name(self) -> str:
+        """The workbook's name as Excel shows it (never a path), for messages."""
         return str(self.book.name)
+
+    display = display_name  # the reader's current name for it
 
     def _sheet_objects(self) -> dict[str, Any]:
         if self._sheets is None:
             try:
                 self._sheets = {str(s.name): s for s in self.book.sheets}
             except Exception as exc:  # noqa: BLE001 - COM and AppleScript errors vary
-                raise WorkbookError(excel_messages.cannot_read_book(self.display, _brief(exc))) from None
+                raise WorkbookError(excel_messages.cannot_read_book(self.display_name, _brief(exc))) from None
         return self._sheets
 
     def _sheet(self, name: str) -> Any:
-        sheets = self._sheet_objects()
-        if name not in sheets:
-            from ...errors import SheetNotFoundError
+        return self._sheet_objects()[self.resolve_sheet(name)]
 
-            raise SheetNotFoundError(excel_messages.no_such_sheet(name, self.display, list(sheets)))
-        return sheets[name]
+    def resolve_sheet(self, sheet: str) -> str:
+        """The workbook's own spelling of ``sheet``: exact, else the one match ignoring case and spaces.
+
+        Raises
+        ------
+        SheetNotFoundError
+            No worksheet (or several) fits; the message lists the sheets.
+        """
+        names = list(self._sheet_objects())
+        if sheet in names:
+            return sheet
+        folded = [n for n in names if n.casefold() == sheet.strip().casefold()]
+        if len(folded) == 1:
+            return folded[0]
+        raise SheetNotFoundError(excel_messages.no_such_sheet(sheet, self.display_name, names))
+
+    def cell_issues(
+        self,
+        sheet: str,
+        *,
+        first_row: int = 1,
+        last_row: int | None = None,
+        columns: Iterable[int] | None = None,
+    ) -> dict[tuple[int, int], tuple[str, str]]:
+        """Nothing to add: Excel gives error values as their text and every formula's current value."""
+        self.resolve_sheet(sheet)
+        return {}
 
     def sheet_names(self) -> list[str]:
         """Worksheet names in workbook order (Excel's ``Worksheets``: chart sheets are not listed)."""
@@ -125,7 +150,7 @@ class ExcelBook:
             if n_rows == 1 and n_cols == 1 and used.value is None:
                 return 0, iter(())
         except Exception as exc:  # noqa: BLE001
-            raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display, _brief(exc))) from None
+            raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display_name, _brief(exc))) from None
         return left - 1, self._blocks(xsheet, sheet, top, left, n_rows, n_cols)
 
     def _blocks(
@@ -143,7 +168,7 @@ class ExcelBook:
                     .value
                 )
             except Exception as exc:  # noqa: BLE001
-                raise WorkbookError(excel_messages.cannot_read_sheet(name, self.display, _brief(exc))) from None
+                raise WorkbookError(excel_messages.cannot_read_sheet(name, self.display_name, _brief(exc))) from None
             if decimal.Decimal in {type(v) for row in block for v in row}:
                 # Currency cells arrive as Decimal through COM; the reader wants numbers.
                 block = [[float(v) if isinstance(v, decimal.Decimal) else v for v in row] for row in block]
@@ -164,7 +189,7 @@ class ExcelBook:
         except StatmarginError:
             raise
         except Exception as exc:  # noqa: BLE001
-            raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display, _brief(exc))) from None
+            raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display_name, _brief(exc))) from None
         return found
 
     def merged_ranges(self, sheet: str) -> list[tuple[int, int, int, int]]:
@@ -187,7 +212,7 @@ class ExcelBook:
             found: list[tuple[int, int, int, int]] = []
             self._find_merges(xsheet, (top, left, top + n_rows - 1, left + n_cols - 1), found)
         except Exception as exc:  # noqa: BLE001
-            raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display, _brief(exc))) from None
+            raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display_name, _brief(exc))) from None
         return sorted(found)
 
     def _find_merges(self, xsheet: Any, box: tuple[int, int, int, int], found: list[tuple[int, int, int, int]]) -> None:
@@ -224,7 +249,7 @@ class ExcelBook:
                         if str(defined.name).rsplit("!", 1)[-1] == TOOL_SHEET_MARKER:
                             marks[name] = string_constant(defined.refers_to)
             except Exception as exc:  # noqa: BLE001
-                raise WorkbookError(excel_messages.cannot_read_book(self.display, _brief(exc))) from None
+                raise WorkbookError(excel_messages.cannot_read_book(self.display_name, _brief(exc))) from None
             self._marks = marks
         return dict(self._marks)
 
@@ -257,7 +282,7 @@ class ExcelBook:
         """
         self.check(out)
         if not models:
-            return WriteReport(path=self.display, sheets={}, renamed=[], replaced=[])
+            return WriteReport(path=self.display_name, sheets={}, renamed=[], replaced=[])
         sheets = self._sheet_objects()
         names = list(sheets)
         marks = self.tool_sheets()
@@ -305,7 +330,7 @@ class ExcelBook:
             self._marks = None
             _resume(app, settings)
         return WriteReport(
-            path=self.display,
+            path=self.display_name,
             sheets=dict(placement.final),
             renamed=list(placement.renamed),
             replaced=[names[i] for i in placement.removed],

@@ -67,7 +67,7 @@ def plan_job(book: ExcelBook) -> str:
     """Add or refresh the roles sheet of the open workbook; returns the status-bar summary."""
     from ...jobs.workbook import plan_workbook
 
-    summary = plan_workbook(book.display, source=book, sink=book)
+    summary = plan_workbook(book.display_name, source=book, sink=book)
     return excel_messages.planned(summary.write.sheets.get("roles", ""), len(summary.columns))
 
 
@@ -77,7 +77,7 @@ def run_job(book: ExcelBook, *, share: bool = False) -> str:
 
     if read_roles(book) is None:
         raise RoleError(excel_messages.no_roles_sheet())
-    summary = run_workbook(book.display, source=book, sink=book, share=share)
+    summary = run_workbook(book.display_name, source=book, sink=book, share=share)
     return excel_messages.ran(len(summary.results), summary.write.sheets.get("results", ""))
 
 
