@@ -9,6 +9,7 @@ All data are invented for the tests.
 
 from __future__ import annotations
 
+import datetime as dt
 import decimal
 import math
 import subprocess
@@ -17,12 +18,15 @@ from pathlib import Path
 
 import pytest
 import xlwings
+from hypothesis import given
+from hypothesis import strategies as st
 
 import statmargin.excel
 import xlwings_standin as xs
 from statmargin.errors import OptionError, WriteError
 from statmargin.io.excel import entry
 from statmargin.io.excel.book import ExcelBook
+from statmargin.io.excel.cells import excel_value, rectangles
 from statmargin.io.excel.render import CELLS_PER_CALL
 from statmargin.io.protocol import TableRange
 from statmargin.read.reader import read_table
@@ -292,3 +296,42 @@ def test_sheet_names_resolve_like_the_file_back_end() -> None:
     assert len(read_table(None, source=source, sheet="LOG").rows) == 24
     with pytest.raises(SheetNotFoundError, match=r"Sheet 'Visits' is not in 'r.xlsx'. Its sheets are: 'Log', 'Notes'."):
         source.resolve_sheet("Visits")
+
+
+@pytest.mark.parametrize(
+    ("value", "held"),
+    [
+        ("=SUM(A1:A3)", "=SUM(A1:A3)"),
+        ("+44 20 7946 0000", "+44 20 7946 0000"),
+        ("-", "-"),
+        ("@home", "@home"),
+        ("007", "007"),
+        ("2026-03-01", "2026-03-01"),
+        ("TRUE", "TRUE"),
+        ("12%", "12%"),
+        ("a\x07b", "ab"),  # a control character a workbook file cannot hold either
+        (3, 3.0),
+        (2**60, str(2**60)),  # beyond double precision: every digit kept as text
+        (float("nan"), None),
+        (float("-inf"), "-inf"),
+        (True, True),
+        (dt.datetime(2026, 3, 1, 9, 30, tzinfo=dt.timezone.utc), dt.datetime(2026, 3, 1, 9, 30)),
+        (dt.date(2026, 3, 1), dt.datetime(2026, 3, 1)),
+    ],
+)
+def test_values_are_held_by_excel_as_written(value, held) -> None:
+    """Each model value, sent as the bridge sends it, is what Excel holds afterwards (typing rules applied)."""
+    book = xs.new_book("v.xlsx", {"Data": [[None]]})
+    sheet = next(iter(book.sheets))
+    sheet.range((1, 1)).value = [[excel_value(value)]]
+    assert xs.values(xs.sheet(book, "Data")).get((0, 0)) == held
+    assert xs.formulas(xs.sheet(book, "Data")) == {}
+
+
+@given(st.sets(st.tuples(st.integers(0, 12), st.integers(0, 6)), min_size=1, max_size=60))
+def test_rectangles_cover_each_cell_once(cells) -> None:
+    """The rectangles of any set of cells are disjoint and cover exactly those cells."""
+    covered: list[tuple[int, int]] = []
+    for r1, c1, r2, c2 in rectangles(cells):
+        covered.extend((r, c) for r in range(r1, r2 + 1) for c in range(c1, c2 + 1))
+    assert sorted(covered) == sorted(cells)

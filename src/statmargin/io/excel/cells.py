@@ -50,7 +50,7 @@ def excel_value(value: Any) -> Any:
 
     Returns
     -------
-    None, bool, int, float, datetime.datetime or str
+    None, bool, float, datetime.datetime or str
         None for an empty cell (also for NaN, as the file writer leaves it empty),
         a number, a naive datetime (Excel has no time zones), or prefixed text.
 
@@ -63,15 +63,17 @@ def excel_value(value: Any) -> Any:
     Examples
     --------
     >>> excel_value(float("nan")) is None, excel_value(float("inf")), excel_value(3)
-    (True, "'inf", 3)
+    (True, "'inf", 3.0)
     """
     if value is None:
         return None
     if isinstance(value, bool) or type(value).__name__ == "bool_":
         return bool(value)
     if isinstance(value, numbers.Integral):
+        # Excel holds every number as a double; a Python int beyond 32 bits would reach
+        # COM as a 64-bit integer, which a cell cannot take.
         number = int(value)
-        return text_value(str(number)) if abs(number) > MAX_EXACT_INTEGER else number
+        return text_value(str(number)) if abs(number) > MAX_EXACT_INTEGER else float(number)
     if isinstance(value, numbers.Real):
         real = float(value)
         if math.isnan(real):
