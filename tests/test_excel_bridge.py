@@ -335,3 +335,12 @@ def test_rectangles_cover_each_cell_once(cells) -> None:
     for r1, c1, r2, c2 in rectangles(cells):
         covered.extend((r, c) for r in range(r1, r2 + 1) for c in range(c1, c2 + 1))
     assert sorted(covered) == sorted(cells)
+
+
+def test_renamed_sheet_is_mentioned_on_the_status_bar() -> None:
+    """When a user sheet holds the tool's name, the status bar says which name the tool used instead."""
+    book = xs.new_book("u.xlsx", {"Log": _clinic_rows(), "statmargin roles": [["my notes"]]})
+    assert statmargin.excel.plan(book) == 0
+    assert xs.app_state(book)["status_bar"].endswith(
+        "A sheet of yours is already called 'statmargin roles', so statmargin's roles sheet is called "
+        "'statmargin roles (2)'.")

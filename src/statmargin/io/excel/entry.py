@@ -64,11 +64,16 @@ def caller_book() -> Any:
 
 
 def plan_job(book: ExcelBook) -> str:
-    """Add or refresh the roles sheet of the open workbook; returns the status-bar summary."""
+    """Add or refresh the roles sheet of the open workbook; returns the status-bar summary.
+
+    The summary ends with any sentence about sheet names changed to spare the
+    user's sheets and anything the bridge could not draw.
+    """
     from ...jobs.workbook import plan_workbook
 
     summary = plan_workbook(book.display_name, source=book, sink=book)
-    return excel_messages.planned(summary.write.sheets.get("roles", ""), len(summary.columns))
+    said = excel_messages.planned(summary.write.sheets.get("roles", ""), len(summary.columns))
+    return " ".join([said, *summary.write.renamed, *book.notes])
 
 
 def run_job(book: ExcelBook, *, share: bool = False) -> str:
@@ -78,7 +83,8 @@ def run_job(book: ExcelBook, *, share: bool = False) -> str:
     if read_roles(book) is None:
         raise RoleError(excel_messages.no_roles_sheet())
     summary = run_workbook(book.display_name, source=book, sink=book, share=share)
-    return excel_messages.ran(len(summary.results), summary.write.sheets.get("results", ""))
+    said = excel_messages.ran(len(summary.results), summary.write.sheets.get("results", ""))
+    return " ".join([said, *summary.write.renamed, *book.notes])
 
 
 def act(job: Job, book: Any = None) -> Outcome:
