@@ -1103,3 +1103,53 @@ def app_state(book: Book) -> dict[str, Any]:
 
 def set_caller(book: Book | None) -> None:
     Book._caller = book
+
+
+class MirroredBridge:
+    """A sink that writes through the Excel bridge into a stand-in book, then the same models into the file.
+
+    The bridge and the file back end must agree on the write report and, afterwards,
+    on the sheets: names and order, markers, hidden sheets, tables, merged ranges
+    and every cell of every tool sheet. The job gets the file's report, so the
+    test's own file-based checks see what they always saw. A write with ``out``
+    (a copy) goes to the file only: from inside Excel there is no copy to write.
+    """
+
+    def __init__(self, bridge: Any, path: str | Path) -> None:
+        from statmargin.io.file.sink import FileSink
+        from statmargin.io.protocol import WorkbookSink
+        from strict_backend import strict
+
+        self.bridge = bridge
+        self.strict_bridge = strict(bridge, WorkbookSink)
+        self.file = FileSink(path)
+
+    def check(self, out: str | None = None) -> str | None:
+        if out is None:
+            self.strict_bridge.check(out)
+        return self.file.check(out)
+
+    def write_sheets(self, models: list[Any], out: str | None = None) -> Any:
+        from statmargin.io.excel.book import ExcelBook
+        from statmargin.io.file.source import FileSource
+        from strict_backend import normal_rows, report_fields
+
+        if out is not None:
+            return self.file.write_sheets(models, out=out)
+        from_bridge = self.strict_bridge.write_sheets(models, out=None)
+        from_file = self.file.write_sheets(models, out=None)
+        assert report_fields(from_bridge) == report_fields(from_file)
+        assert recorder(self.bridge.book).violations == []
+        written, reread = ExcelBook(self.bridge.book), FileSource(from_file.path)
+        try:
+            assert written.sheet_names() == reread.sheet_names()
+            assert written.tool_sheets() == reread.tool_sheets()
+            assert written.hidden_sheet_names() == reread.hidden_sheet_names()
+            for name in written.sheet_names():
+                assert written.tables(name) == reread.tables(name), name
+                assert sorted(written.merged_ranges(name)) == sorted(reread.merged_ranges(name)), name
+            for name in written.tool_sheets():
+                assert normal_rows(written.iter_rows(name)) == normal_rows(reread.iter_rows(name)), name
+        finally:
+            reread.close()
+        return from_file

@@ -6,8 +6,6 @@ working in Excel (buttons and menus, not command lines).
 
 from __future__ import annotations
 
-from collections.abc import Sequence
-
 TITLE = "statmargin"
 STATUS_PREFIX = "statmargin: "
 
@@ -58,11 +56,6 @@ def cannot_read_sheet(sheet: str, book: str, detail: str) -> str:
         f"Excel did not give the cells of sheet {sheet!r} in {book!r} ({detail}); "
         "finish any cell you are editing (press Enter) and try again."
     )
-
-
-def no_such_sheet(sheet: str, book: str, names: Sequence[str]) -> str:
-    listed = ", ".join(repr(n) for n in names)
-    return f"Sheet {sheet!r} is not in {book!r}. Its sheets are: {listed}."
 
 
 def write_refused(detail: str) -> str:

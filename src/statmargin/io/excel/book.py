@@ -26,14 +26,23 @@ from __future__ import annotations
 
 import decimal
 from collections.abc import Iterable, Iterator
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-from ...errors import OptionError, SheetNotFoundError, StatmarginError, WorkbookError, WriteError
+from ...errors import OptionError, StatmarginError, WorkbookError, WriteError
 from ...sheets.layout import print_titles
 from ...sheets.model import SheetModel
 from ...words import excel_messages
 from ..placement import place
-from ..protocol import TOOL_SHEET_MARKER, TableRange, WriteReport, string_constant
+from ..protocol import (
+    TOOL_SHEET_MARKER,
+    CellIssues,
+    MergedRange,
+    TableRange,
+    WorkbookBackend,
+    WriteReport,
+    resolve_sheet_name,
+    string_constant,
+)
 from . import render
 from .render import CELLS_PER_CALL
 
@@ -72,7 +81,6 @@ class ExcelBook:
         """The workbook's name as Excel shows it (never a path), for messages."""
         return str(self.book.name)
 
-    display = display_name  # the reader's current name for it
 
     def _sheet_objects(self) -> dict[str, Any]:
         if self._sheets is None:
@@ -86,20 +94,14 @@ class ExcelBook:
         return self._sheet_objects()[self.resolve_sheet(name)]
 
     def resolve_sheet(self, sheet: str) -> str:
-        """The workbook's own spelling of ``sheet``: exact, else the one match ignoring case and spaces.
+        """The workbook's own spelling of ``sheet`` (``protocol.resolve_sheet_name``).
 
         Raises
         ------
         SheetNotFoundError
             No worksheet (or several) fits; the message lists the sheets.
         """
-        names = list(self._sheet_objects())
-        if sheet in names:
-            return sheet
-        folded = [n for n in names if n.casefold() == sheet.strip().casefold()]
-        if len(folded) == 1:
-            return folded[0]
-        raise SheetNotFoundError(excel_messages.no_such_sheet(sheet, self.display_name, names))
+        return resolve_sheet_name(list(self._sheet_objects()), sheet, self.display_name)
 
     def cell_issues(
         self,
@@ -108,7 +110,7 @@ class ExcelBook:
         first_row: int = 1,
         last_row: int | None = None,
         columns: Iterable[int] | None = None,
-    ) -> dict[tuple[int, int], tuple[str, str]]:
+    ) -> CellIssues:
         """Nothing to add: Excel gives error values as their text and every formula's current value."""
         self.resolve_sheet(sheet)
         return {}
@@ -192,7 +194,7 @@ class ExcelBook:
             raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display_name, _brief(exc))) from None
         return found
 
-    def merged_ranges(self, sheet: str) -> list[tuple[int, int, int, int]]:
+    def merged_ranges(self, sheet: str) -> list[MergedRange]:
         """Merged ranges as (first_row, first_col, last_row, last_col), 0-based, inclusive.
 
         Notes
@@ -209,13 +211,13 @@ class ExcelBook:
             used = xsheet.used_range
             top, left = int(used.row), int(used.column)
             n_rows, n_cols = (int(n) for n in used.shape)
-            found: list[tuple[int, int, int, int]] = []
+            found: list[MergedRange] = []
             self._find_merges(xsheet, (top, left, top + n_rows - 1, left + n_cols - 1), found)
         except Exception as exc:  # noqa: BLE001
             raise WorkbookError(excel_messages.cannot_read_sheet(sheet, self.display_name, _brief(exc))) from None
         return sorted(found)
 
-    def _find_merges(self, xsheet: Any, box: tuple[int, int, int, int], found: list[tuple[int, int, int, int]]) -> None:
+    def _find_merges(self, xsheet: Any, box: tuple[int, int, int, int], found: list[MergedRange]) -> None:
         r1, c1, r2, c2 = box
         for a1, b1, a2, b2 in found:  # inside an area found already: nothing new here
             if a1 <= r1 - 1 and r2 - 1 <= a2 and b1 <= c1 - 1 and c2 - 1 <= b2:
@@ -381,3 +383,9 @@ def _resume(app: Any, settings: tuple[Any, Any]) -> None:
             app.screen_updating = screen
     except Exception:  # noqa: BLE001
         pass
+
+
+if TYPE_CHECKING:  # mypy checks here that the bridge meets both protocols
+
+    def _is_a_backend(book: ExcelBook) -> WorkbookBackend:
+        return book

@@ -19,37 +19,19 @@ a Python traceback.
 from __future__ import annotations
 
 import math
-from collections.abc import Iterator, Sequence
+from collections.abc import Sequence
 from typing import Any
 
 from ...errors import OptionError, StatmarginError
 from ...words import excel_messages
 from ...words.technical import TEST_NAMES
-from ..protocol import TableRange
 
 
-class CellsSource:
-    """A one-sheet workbook source over rows of cell values (what a worksheet function receives)."""
+def cells_book(rows: list[list[Any]]) -> Any:
+    """A one-sheet in-memory workbook holding the cells a worksheet function received."""
+    from ..memory import MemoryWorkbook
 
-    def __init__(self, rows: list[list[Any]], *, sheet: str = excel_messages.CELLS_SHEET) -> None:
-        self.rows = rows
-        self.sheet = sheet
-        self.display = sheet
-
-    def sheet_names(self) -> list[str]:
-        return [self.sheet]
-
-    def iter_rows(self, sheet: str) -> Iterator[list[Any]]:
-        return iter([list(r) for r in self.rows])
-
-    def tables(self, sheet: str) -> list[TableRange]:
-        return []
-
-    def merged_ranges(self, sheet: str) -> list[tuple[int, int, int, int]]:
-        return []
-
-    def tool_sheets(self) -> dict[str, str]:
-        return {}
+    return MemoryWorkbook.from_sheets({excel_messages.CELLS_SHEET: rows}, name=excel_messages.CELLS_SHEET)
 
 
 def column_values(cells: Any) -> list[Any]:
@@ -84,7 +66,7 @@ def _read(name: str, values: list[Any]) -> Any:
     from ...read.reader import read_table
 
     rows = [[name]] + [[v] for v in values]
-    return read_table(None, source=CellsSource(rows), sheet=excel_messages.CELLS_SHEET, header_row=1)
+    return read_table(None, source=cells_book(rows), sheet=excel_messages.CELLS_SHEET, header_row=1)
 
 
 def _number(value: Any) -> Any:
@@ -146,7 +128,7 @@ def compare_cells(outcome: Any, groups: Any, headers: bool = True, confidence: f
             by=group_name,
             confidence=float(confidence),
             sheet=excel_messages.CELLS_SHEET,
-            source=CellsSource(rows),
+            source=cells_book(rows),
         )
         [result] = summary.results
     except StatmarginError as exc:

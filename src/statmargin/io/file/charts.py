@@ -10,9 +10,10 @@ from __future__ import annotations
 import re
 
 from ...errors import WriteError
+from ...sheets.layout import parse_cell_ref, quote_sheet
 from ...sheets.looks import SERIES_COLOURS
 from ...sheets.model import Chart, SheetModel
-from .sheetxml import escape, parse_cell_ref, quote_sheet
+from .sheetxml import escape
 
 C_NS = "http://schemas.openxmlformats.org/drawingml/2006/chart"
 A_NS = "http://schemas.openxmlformats.org/drawingml/2006/main"

@@ -15,13 +15,11 @@ from collections.abc import Callable
 from typing import TypeGuard
 
 from ...errors import WriteError
-from ...sheets.layout import (  # noqa: F401 - the A1 helpers stay importable from here
-    cell_ref,
-    parse_cell_ref,
-    quote_sheet,
-    resolve_link,
-    wrapped_row_heights,
-)
+from ...sheets.layout import cell_ref as cell_ref  # the A1 helpers stay importable from here
+from ...sheets.layout import parse_cell_ref as parse_cell_ref
+from ...sheets.layout import quote_sheet as quote_sheet
+from ...sheets.layout import resolve_link as resolve_link
+from ...sheets.layout import wrapped_row_heights as wrapped_row_heights
 from ...sheets.model import UNWRITABLE_TEXT, SheetModel, Validation
 
 MAIN_NS = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
