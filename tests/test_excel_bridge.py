@@ -23,7 +23,7 @@ from hypothesis import strategies as st
 
 import statmargin.excel
 import xlwings_standin as xs
-from statmargin.errors import OptionError, WriteError
+from statmargin.errors import OptionError, SheetNotFoundError, WriteError
 from statmargin.io.excel import entry
 from statmargin.io.excel.book import ExcelBook
 from statmargin.io.excel.cells import excel_value, rectangles
@@ -288,8 +288,6 @@ def test_a_bug_ends_in_one_line_with_code_70(monkeypatch, capsys) -> None:
 
 def test_sheet_names_resolve_like_the_file_back_end() -> None:
     """A sheet asked for in other case is found; an unknown one is refused in one line listing the sheets."""
-    from statmargin.errors import SheetNotFoundError
-
     book = xs.new_book("r.xlsx", {"Log": _clinic_rows(), "Notes": [["x"]]})
     source = ExcelBook(book)
     assert source.resolve_sheet(" log ") == "Log"
@@ -344,3 +342,56 @@ def test_renamed_sheet_is_mentioned_on_the_status_bar() -> None:
     assert xs.app_state(book)["status_bar"].endswith(
         "A sheet of yours is already called 'statmargin roles', so statmargin's roles sheet is called "
         "'statmargin roles (2)'.")
+
+
+def _as_excel_gives(rows: list[list]) -> list[list]:
+    """Dates and times as Excel hands them to xlwings: every date value is a datetime (COM's date type)."""
+    def one(value):
+        if isinstance(value, dt.time):
+            return dt.datetime.combine(dt.date(1899, 12, 30), value)
+        if isinstance(value, dt.date) and not isinstance(value, dt.datetime):
+            return dt.datetime(value.year, value.month, value.day)
+        return value
+
+    return [[one(v) for v in row] for row in rows]
+
+
+@pytest.mark.parametrize("builder", ["newcomer", "rich", "clinic"])
+def test_bridge_reads_what_the_file_back_end_reads(tmp_path, builder) -> None:
+    """Opened in Excel (the stand-in), each test workbook shows the file back end's sheets, tables, merges and cells.
+
+    The differences are by design: an error cell arrives from Excel as its code
+    (``#N/A``) in the row instead of as a blank plus a cell issue, a formula
+    without a saved value would be calculated by Excel (here it reads as blank),
+    and dates come as datetimes (both are values the reader takes alike).
+    """
+    from statmargin.io.file.source import FileSource
+    from statmargin.io.protocol import ERROR_ISSUE, WorkbookSource
+    from strict_backend import normal_rows, strict
+    from test_backends import write_clinic
+    from workbook_edit import make_newcomer_workbook
+    from workbook_fixtures import make_rich_workbook
+
+    make = {"newcomer": make_newcomer_workbook, "rich": make_rich_workbook, "clinic": write_clinic}[builder]
+    path = make(tmp_path / f"{builder}.xlsx")
+    bridge = strict(ExcelBook(xs.load(path)), WorkbookSource)
+    with FileSource(path) as source:
+        assert bridge.display_name == source.display_name
+        assert bridge.sheet_names() == source.sheet_names()
+        assert bridge.hidden_sheet_names() == source.hidden_sheet_names()
+        assert bridge.tool_sheets() == source.tool_sheets()
+        for name in source.sheet_names():
+            assert bridge.resolve_sheet(name.upper()) == source.resolve_sheet(name.upper())
+            assert bridge.tables(name) == source.tables(name), name
+            assert sorted(bridge.merged_ranges(name)) == sorted(source.merged_ranges(name)), name
+            expected = [list(row) for row in source.iter_rows(name)]
+            for (row, col), (kind, text) in source.cell_issues(name).items():
+                if kind == ERROR_ISSUE:
+                    expected[row - 1][col] = text
+            assert normal_rows(bridge.iter_rows(name)) == normal_rows(_as_excel_gives(expected)), name
+            assert bridge.iter_rows_at(name)[0] == source.iter_rows_at(name)[0], name
+        with pytest.raises(SheetNotFoundError) as from_bridge:
+            bridge.resolve_sheet("no such sheet")
+        with pytest.raises(SheetNotFoundError) as from_file:
+            source.resolve_sheet("no such sheet")
+        assert str(from_bridge.value) == str(from_file.value)
