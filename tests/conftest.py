@@ -56,16 +56,17 @@ def tmp_workbook(tmp_path: Path) -> Callable[..., Path]:
     return make
 
 
-@pytest.fixture(scope="module", params=["file", "memory"])
+@pytest.fixture(scope="module", params=["file", "memory", "excel"])
 def pipeline_backend(request: pytest.FixtureRequest) -> Iterator[str]:
-    """Run a module's workbook jobs through the file back end, then through the in-memory one.
+    """Run a module's workbook jobs through the file back end, the in-memory one and the Excel bridge.
 
     Both ways the back end sits behind ``strict_backend.strict``, so a job or the
     reader that used a member the protocol does not declare fails. "file" opens
     the file back end; "memory" copies the file into a ``MemoryWorkbook``, reads
     from it and writes through it, mirroring each write into the file (and
     checking memory and file agree) so the test's own file-based checks see the
-    same workbook either way.
+    same workbook either way. "excel" does the same through the Excel bridge on
+    an in-memory stand-in of xlwings (``xlwings_standin``) loaded from the file.
     """
     from statmargin.io import backends
     from statmargin.io.file.sink import FileSink
@@ -87,9 +88,23 @@ def pipeline_backend(request: pytest.FixtureRequest) -> Iterator[str]:
         book = MemoryWorkbook.from_file(path)
         return strict(book, WorkbookSource), strict(MirroredSink(book, path), WorkbookSink)
 
+    def open_excel(path: Any) -> Any:
+        import xlwings_standin
+        from statmargin.io.excel.book import ExcelBook
+
+        return strict(ExcelBook(xlwings_standin.load(path)), WorkbookSource)
+
+    def open_excel_backend(path: Any) -> tuple[Any, Any]:
+        import xlwings_standin
+        from statmargin.io.excel.book import ExcelBook
+
+        bridge = ExcelBook(xlwings_standin.load(path))
+        return strict(bridge, WorkbookSource), strict(xlwings_standin.MirroredBridge(bridge, path), WorkbookSink)
+
     openers = {
         "file": (open_file, open_file_backend),
         "memory": (open_memory, open_memory_backend),
+        "excel": (open_excel, open_excel_backend),
     }
     with pytest.MonkeyPatch.context() as patch:
         open_source, open_backend = openers[request.param]

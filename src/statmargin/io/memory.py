@@ -23,12 +23,12 @@ import datetime as dt
 import math
 import numbers
 import os
-import re
 from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING, Any
 
-from ..sheets.model import STYLES, Cell, SheetModel
+from ..sheets.layout import parse_cell_ref
+from ..sheets.model import STYLES, UNWRITABLE_TEXT, Cell, SheetModel
 from .file import charts, sheetxml
 from .placement import place
 from .protocol import (
@@ -49,8 +49,6 @@ _MS_PER_DAY = 86_400_000
 _LAST_SERIAL = 2_958_466  # 10000-01-01: the first day past what a date cell can show
 _EPOCH = dt.datetime(1899, 12, 30)
 _EPOCH_BEFORE_MARCH_1900 = dt.datetime(1899, 12, 31)  # serials below 61 (the 1900 leap-day bug)
-# Characters XML 1.0 cannot carry (section 2.2), plus lone surrogates: a written cell loses them.
-_UNWRITABLE = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff\ud800-\udfff]")
 _EVERY_STYLE = {key: 0 for key in STYLES}
 
 
@@ -372,7 +370,7 @@ def _written_sheet(model: SheetModel, name: str, kind_to_name: dict[str, str]) -
     merged = []
     for ref in model.merged:
         first, _, last = ref.partition(":")
-        (r1, c1), (r2, c2) = sheetxml.parse_cell_ref(first), sheetxml.parse_cell_ref(last or first)
+        (r1, c1), (r2, c2) = parse_cell_ref(first), parse_cell_ref(last or first)
         merged.append((r1, c1, r2, c2))
     return MemorySheet(name=name, rows=rows, merged=merged, tool_kind=model.kind, model=model)
 
@@ -408,7 +406,7 @@ def read_back(cell: Cell) -> Any:
         moment = value if isinstance(value, dt.datetime) else dt.datetime.combine(value, dt.time())
         serial = (moment.replace(tzinfo=None) - _EPOCH).total_seconds() / 86400.0
     else:
-        return _UNWRITABLE.sub("", str(value))
+        return UNWRITABLE_TEXT.sub("", str(value))
     return _serial_as_date(serial) if cell.style in DATE_STYLES else serial
 
 

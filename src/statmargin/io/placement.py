@@ -15,13 +15,11 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from ..errors import WriteError
-from ..sheets.model import SheetModel
+from ..sheets.model import UNWRITABLE_TEXT, SheetModel
 from ..words import sheet_messages
 
 FORBIDDEN_NAME_CHARS = re.compile(r"[\[\]:*?/\\]")
 MAX_SHEET_NAME = 31
-# Characters XML 1.0 cannot carry (section 2.2) have no place in a sheet name either.
-_ILLEGAL_TEXT = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff\ud800-\udfff]")
 
 
 def clean_sheet_name(name: str, fallback: str) -> str:
@@ -46,7 +44,7 @@ def clean_sheet_name(name: str, fallback: str) -> str:
     >>> clean_sheet_name("History", "log")
     'log'
     """
-    cleaned = FORBIDDEN_NAME_CHARS.sub(" ", _ILLEGAL_TEXT.sub("", name))
+    cleaned = FORBIDDEN_NAME_CHARS.sub(" ", UNWRITABLE_TEXT.sub("", name))
     cleaned = re.sub(r"\s+", " ", cleaned).strip().strip("'").strip()
     if not cleaned or cleaned.casefold() == "history":  # "History" is reserved by Excel
         cleaned = fallback

@@ -71,6 +71,20 @@ CellIssues = dict[tuple[int, int], tuple[str, str]]
 MergedRange = tuple[int, int, int, int]
 
 
+def string_constant(text: str) -> str:
+    """The kind inside a marker's value, written as ``"results"`` or ``="results"``.
+
+    Examples
+    --------
+    >>> string_constant('="results"'), string_constant('"log"')
+    ('results', 'log')
+    """
+    text = str(text).strip().lstrip("=").strip()
+    if len(text) >= 2 and text[0] == text[-1] == '"':
+        text = text[1:-1].replace('""', '"')
+    return text
+
+
 class WorkbookSource(Protocol):
     """Read access to a workbook: its sheets, their cell values and structure."""
 

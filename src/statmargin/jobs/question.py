@@ -14,6 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from .._version import __version__
+from ..io.protocol import WorkbookSource
 from ..results import Result
 
 
@@ -47,6 +48,7 @@ def test_workbook(
     adjust: str = "holm",
     event: str | Mapping[str, str] | Iterable[str] | None = None,
     sheet: str | None = None,
+    source: WorkbookSource | None = None,
 ) -> TestSummary:
     """Run the fitting tests on a workbook's data sheet; the workbook is only read.
 
@@ -59,6 +61,9 @@ def test_workbook(
         take ``[COL=]VALUE`` items, as the command line does).
     sheet
         The data sheet (default: the first sheet with data).
+    source
+        An open workbook source to read instead of the file at ``path`` (the
+        Excel bridge's worksheet functions pass the cells they were given).
 
     Returns
     -------
@@ -87,7 +92,7 @@ def test_workbook(
     with warnings.catch_warnings():
         # Caveats are already in each result's notes; no Python warning lines.
         warnings.simplefilter("ignore")
-        table = read_table(path, sheet=sheet)
+        table = read_table(path, sheet=sheet, source=source)
         results = run_plan(table, plan)
         explain_results(results, settings)
     return TestSummary(str(path), table.sheet, results)

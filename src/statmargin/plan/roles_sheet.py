@@ -49,7 +49,8 @@ _COL = {name: i for i, name in enumerate(HEADERS)}
 TREAT_CHOICES = ("", *(t.value for t in (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)))
 
 INSTRUCTIONS = (
-    "Pick a role for each column in the shaded cells, save, then run: statmargin run <this file>.",
+    "Pick a role for each column in the shaded cells, then press Run in Excel, "
+    "or save and run: statmargin run <this file>.",
     "Each outcome is compared by every 'compare by' column, against its 'Compare with' value "
     "(85, Fail=0.10), or with its 'Paired with' column.",
 )

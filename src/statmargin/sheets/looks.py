@@ -27,6 +27,10 @@ INPUT_BORDER = "FFB8AE9C"
 LINK_BLUE = "FF2B5C8A"
 CAUTION_RUST = "FF8A3B12"
 
+# Quiet chart series colours of our own (slate, sand, sage, dusk, clay, stone), RGB hex;
+# bars are told apart by order and legend too, not by hue alone.
+SERIES_COLOURS = ("4F6272", "C2A878", "7E9C86", "8C7AA0", "B07156", "9A9A8E")
+
 # Number formats. Built-in ids: 0 General, 1 "0", 2 "0.00".
 P_VALUE_FORMAT = '[<0.001]"<0.001";0.000'
 CUSTOM_FORMATS = {

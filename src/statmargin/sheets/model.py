@@ -7,8 +7,13 @@ are floats, and formatting is named by a style key the writer maps to a format.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from typing import Any
+
+# Characters a workbook cell cannot hold: those XML 1.0 forbids (section 2.2) and lone
+# surrogates. Every writer drops them, so all back ends show the same text.
+UNWRITABLE_TEXT = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff\ud800-\udfff]")
 
 # Style keys a writer must support. Number formats are applied at write time only.
 STYLES = (

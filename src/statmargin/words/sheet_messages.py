@@ -25,3 +25,14 @@ def name_taken(wanted: str, kind: str, name: str) -> str:
 
 def kind_renamed(kind: str, name: str) -> str:
     return f"The {kind} sheet is called '{name}'."
+
+
+def not_a_cell(ref: str) -> str:
+    return f"'{ref}' is not a cell reference such as H3; the file was left as it was."
+
+
+def link_to_missing_sheet(kind: str) -> str:
+    return (
+        f"A link points to the '{kind}' sheet, which is not being written and not in the "
+        "workbook; the file was left as it was."
+    )

@@ -10,8 +10,10 @@ from __future__ import annotations
 import re
 
 from ...errors import WriteError
+from ...sheets.layout import parse_cell_ref, quote_sheet
+from ...sheets.looks import SERIES_COLOURS
 from ...sheets.model import Chart, SheetModel
-from .sheetxml import escape, parse_cell_ref, quote_sheet
+from .sheetxml import escape
 
 C_NS = "http://schemas.openxmlformats.org/drawingml/2006/chart"
 A_NS = "http://schemas.openxmlformats.org/drawingml/2006/main"
@@ -19,9 +21,6 @@ R_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
 XDR_NS = "http://schemas.openxmlformats.org/drawingml/2006/spreadsheetDrawing"
 
 CHART_KINDS = ("column", "percent_bar")
-# Quiet series colours of our own (slate, sand, sage, dusk, clay, stone); bars
-# are told apart by order and legend too, not by hue alone.
-SERIES_COLOURS = ("4F6272", "C2A878", "7E9C86", "8C7AA0", "B07156", "9A9A8E")
 
 _RANGE = re.compile(r"^\$?([A-Za-z]{1,3})\$?(\d+):\$?([A-Za-z]{1,3})\$?(\d+)$")
 

@@ -22,6 +22,7 @@ from collections.abc import Set as AbstractSet
 from dataclasses import dataclass, field
 
 from ...errors import WorkbookError, WriteError
+from ...sheets.layout import print_titles
 from ...sheets.model import SheetModel
 from ..placement import place
 from ..protocol import TOOL_SHEET_MARKER
@@ -499,19 +500,6 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
         added=set(added),
         notes=notes,
     )
-
-
-def print_titles(model: SheetModel, sheet_name: str) -> str | None:
-    """The print-titles reference of a sheet model (e.g. ``'results'!$A:$A,'results'!$14:$14``), or None."""
-    quoted = sheetxml.quote_sheet(sheet_name)
-    parts = []
-    if model.print_title_cols:
-        last = sheetxml.column_letter(model.print_title_cols - 1)
-        parts.append(f"{quoted}!$A:${last}")
-    if model.print_title_rows:
-        first, last_row = model.print_title_rows
-        parts.append(f"{quoted}!${first + 1}:${last_row + 1}")
-    return ",".join(parts) or None
 
 
 def _edit_workbook(

@@ -15,29 +15,23 @@ from collections.abc import Callable
 from typing import TypeGuard
 
 from ...errors import WriteError
-from ...sheets.looks import LOOKS
-from ...sheets.model import SheetModel, Validation
+from ...sheets.layout import cell_ref as cell_ref  # the A1 helpers stay importable from here
+from ...sheets.layout import parse_cell_ref as parse_cell_ref
+from ...sheets.layout import quote_sheet as quote_sheet
+from ...sheets.layout import resolve_link as resolve_link
+from ...sheets.layout import wrapped_row_heights as wrapped_row_heights
+from ...sheets.model import UNWRITABLE_TEXT, SheetModel, Validation
 
 MAIN_NS = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
 REL_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
 
-# Characters XML 1.0 forbids (section 2.2), plus lone surrogates.
-_ILLEGAL_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff\ud800-\udfff]")
+_ILLEGAL_XML = UNWRITABLE_TEXT
 # Spreadsheet programs decode "_xHHHH_" in cell text as a character escape
 # (ECMA-376 Part 1, 22.9.2.19 ST_Xstring), so a literal one is protected by
 # escaping its leading underscore as _x005F_.
 _XSTRING_ESCAPE = re.compile(r"_(x[0-9A-Fa-f]{4}_)")
-_PLACEHOLDER = re.compile(r"\{([A-Za-z0-9_]+)\}")
-_CELL_REF = re.compile(r"^\$?([A-Za-z]{1,3})\$?(\d+)$")
 _EXCEL_EPOCH = dt.datetime(1899, 12, 30)
 _EXCEL_EPOCH_1904 = dt.datetime(1904, 1, 1)
-DEFAULT_COLUMN_WIDTH = 8.43
-LINE_HEIGHT = 15.0
-# Characters of ordinary text per unit of column width (one unit is the width of
-# a digit); kept a little low so estimated rows err on the tall side.
-CHARS_PER_WIDTH = 1.2
-BOLD_CHARS_PER_WIDTH = 1.05
-MAX_ROW_HEIGHT = 409.0
 # Excel's limit on a list validation written inline (ECMA-376 leaves it open;
 # Excel refuses longer lists: common practice, Microsoft support article
 # "Apply data validation to cells").
@@ -79,67 +73,6 @@ def column_letter(index: int) -> str:
         index, rem = divmod(index - 1, 26)
         letters = chr(65 + rem) + letters
     return letters
-
-
-def cell_ref(row: int, col: int) -> str:
-    """A1-style reference for 0-based row and column."""
-    return f"{column_letter(col)}{row + 1}"
-
-
-def parse_cell_ref(ref: str) -> tuple[int, int]:
-    """0-based (row, col) of an A1-style reference such as ``"$H$3"``.
-
-    Raises
-    ------
-    WriteError
-        If the text is not a single cell reference.
-    """
-    match = _CELL_REF.match(ref.strip())
-    if not match:
-        raise WriteError(
-            f"'{ref}' is not a cell reference such as H3; the file was left as it was."
-        )
-    col = 0
-    for ch in match.group(1).upper():
-        col = col * 26 + ord(ch) - 64
-    return int(match.group(2)) - 1, col - 1
-
-
-def quote_sheet(name: str) -> str:
-    """A sheet name as it appears in a reference: always quoted, quotes doubled."""
-    return "'" + name.replace("'", "''") + "'"
-
-
-def resolve_link(link: str, kind_to_name: dict[str, str]) -> str:
-    """Replace ``{kind}`` placeholders with the final quoted tool sheet name.
-
-    Parameters
-    ----------
-    link : str
-        A target such as ``"'Data'!C17"`` or ``"{shape}!A40"``.
-    kind_to_name : dict
-        Sheet kind -> final sheet name, for every tool sheet in the workbook.
-
-    Returns
-    -------
-    str
-        The target with placeholders resolved.
-
-    Raises
-    ------
-    WriteError
-        If a placeholder names a kind with no sheet.
-    """
-
-    def replace(match: re.Match[str]) -> str:
-        kind = match.group(1)
-        if kind not in kind_to_name:
-            raise WriteError(
-                f"A link points to the '{kind}' sheet, which is not being written and not in the workbook; the file was left as it was."
-            )
-        return quote_sheet(kind_to_name[kind])
-
-    return _PLACEHOLDER.sub(replace, link)
 
 
 def _number_text(value: float) -> str:
@@ -323,78 +256,6 @@ def print_settings_xml(model: SheetModel) -> list[str]:
         parts.extend(f'<brk id="{c}" max="1048575" man="1"/>' for c in breaks)
         parts.append("</colBreaks>")
     return parts
-
-
-def _wrapped_lines(text: str, chars_per_line: int) -> int:
-    """Lines a text takes when wrapped greedily at word boundaries."""
-    total = 0
-    for paragraph in text.split("\n"):
-        lines, used = 1, 0
-        for word in paragraph.split():
-            length = len(word)
-            if used and used + 1 + length > chars_per_line:
-                lines += 1
-                used = 0
-            # A word longer than a line is broken across lines.
-            while length > chars_per_line:
-                lines += 1
-                length -= chars_per_line
-            used = length if used == 0 else used + 1 + length
-        total += lines
-    return total
-
-
-def wrapped_row_heights(model: SheetModel) -> dict[int, float]:
-    """Row heights (points) for rows whose wrapped text needs more than one line.
-
-    Parameters
-    ----------
-    model : SheetModel
-        The sheet.
-
-    Returns
-    -------
-    dict
-        0-based row -> height in points, only for rows that need more than one line.
-
-    Notes
-    -----
-    Not every spreadsheet program fits row heights to wrapped text when it opens
-    a file, so the writer sets them. The estimate errs on the tall side: a
-    column (or merged range) of width w (in digit widths) is taken to hold about
-    1.2 w characters of ordinary text (1.05 w in bold), and a line is 15 points
-    for the 11-point default font. Rendered with LibreOffice, a 40-wide column
-    held 45 to 50 characters of plain sentences a line (our measurement).
-    The default column width 8.43 is Excel's for an 11-point Calibri workbook
-    (common practice; value recalled from Excel's column width documentation,
-    from memory). Row height is capped at 409 points, Excel's maximum
-    (Microsoft, Excel specifications and limits).
-    """
-    spans: dict[tuple[int, int], list[int]] = {}
-    for ref in model.merged:
-        if ":" not in ref:
-            continue
-        (r1, c1), (r2, c2) = (parse_cell_ref(part) for part in ref.split(":", 1))
-        spans[(r1, c1)] = [] if r1 != r2 else list(range(c1, c2 + 1))
-        for r in range(r1, r2 + 1):
-            for c in range(c1, c2 + 1):
-                if (r, c) != (r1, c1):
-                    spans[(r, c)] = []
-    heights: dict[int, float] = {}
-    for (row, col), cell in model.cells.items():
-        look = LOOKS.get(cell.style, LOOKS["text"])
-        if not look.wrap or not isinstance(cell.value, str):
-            continue
-        columns = spans.get((row, col), [col])
-        if not columns:  # inside a merge over several rows: leave it alone
-            continue
-        width = sum(float(model.widths.get(c, DEFAULT_COLUMN_WIDTH)) for c in columns)
-        # Bold letters are wider, so a bold line holds fewer of them.
-        per_width = BOLD_CHARS_PER_WIDTH if look.font.bold else CHARS_PER_WIDTH
-        lines = _wrapped_lines(cell.value, max(1, int(width * per_width)))
-        if lines > 1:
-            heights[row] = min(MAX_ROW_HEIGHT, max(heights.get(row, 0.0), lines * LINE_HEIGHT))
-    return heights
 
 
 def _sheet_views(model: SheetModel) -> str:

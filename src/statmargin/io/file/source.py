@@ -33,7 +33,14 @@ from ...errors import WorkbookError
 from ...read.table import column_index
 from ..protocol import ERROR_ISSUE as ERROR_ISSUE  # re-exported from the protocol
 from ..protocol import NO_VALUE_ISSUE as NO_VALUE_ISSUE
-from ..protocol import TOOL_SHEET_MARKER, CellIssues, MergedRange, TableRange, resolve_sheet_name
+from ..protocol import (
+    TOOL_SHEET_MARKER,
+    CellIssues,
+    MergedRange,
+    TableRange,
+    resolve_sheet_name,
+    string_constant,
+)
 
 _REL_ID_SUFFIX = "}id"
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
@@ -249,7 +256,7 @@ class FileSource:
             local_id = el.get("localSheetId")
             if local_id is None or not local_id.isdigit() or int(local_id) >= len(order):
                 continue
-            marked[order[int(local_id)]] = _string_constant(el.text or "")
+            marked[order[int(local_id)]] = string_constant(el.text or "")
         return marked
 
     def cell_issues(
@@ -426,14 +433,6 @@ def _guarded(rows: Iterator[list[Any]], display: str) -> Iterator[list[Any]]:
 def _one_line(exc: BaseException) -> str:
     text = " ".join(str(exc).split()) or type(exc).__name__
     return text[:200]
-
-
-def _string_constant(text: str) -> str:
-    """The string inside a defined name's value such as ``"results"`` or ``="results"``."""
-    text = text.strip().lstrip("=").strip()
-    if len(text) >= 2 and text[0] == text[-1] == '"':
-        text = text[1:-1].replace('""', '"')
-    return text
 
 
 def _last_row_end(block: bytes) -> int:
