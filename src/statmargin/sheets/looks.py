@@ -88,7 +88,9 @@ assert set(LOOKS) == set(STYLES), "every sheets.model style key needs a look"
 
 # The format code each number-format key stands for; built-in ids 1 and 2 are "0" and "0.00"
 # (ECMA-376 Part 1, 18.8.30).
-FORMAT_CODES = {**CUSTOM_FORMATS, "integer": "0", "decimal2": "0.00"}
+# The built-in formats' codes, for back ends that set formats by code (the Excel bridge).
+BUILTIN_CODES = {1: "0", 2: "0.00"}
+FORMAT_CODES = {**CUSTOM_FORMATS, **{key: BUILTIN_CODES[i] for key, i in BUILTIN_FORMATS.items()}}
 
 
 def number_format_code(style: str) -> str:
