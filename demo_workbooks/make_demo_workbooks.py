@@ -599,8 +599,7 @@ def add_preset_roles(paths: dict[str, Path]) -> bool:
                 "Systolic before (mmHg)": "Systolic after (mmHg)",
                 "Smoker before": "Smoker after",
             },
-            treat={"Satisfaction": "ordinal"},
-            order={"Satisfaction": list(SATISFACTION_LEVELS)},
+            treat={"Satisfaction": "ordinal:" + ",".join(SATISFACTION_LEVELS)},
         )
     except Exception as error:  # the lead reruns the script; the raw files are already written
         print(f"Roles sheets not added: plan_workbook failed ({type(error).__name__}: {error}). "

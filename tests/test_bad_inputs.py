@@ -24,7 +24,8 @@ from statmargin.cli import main
 from statmargin.errors import EXIT_BUG
 from statmargin.io.file import sink as xlsxsink
 from statmargin.io.file.zipio import new_entry, read_zip, write_zip
-from statmargin.plan.roles_sheet import TABLE_HEADER_ROW
+from statmargin.plan.roles_sheet import HEADERS, TABLE_HEADER_ROW
+from statmargin.read.table import column_letter
 from workbook_edit import make_newcomer_workbook, set_roles
 
 INPUT, LOCKED, WRITE = 2, 3, 4
@@ -129,7 +130,7 @@ class TestRoles:
         set_roles(path, {"Wait minutes": {"Role": "outcom"}})
         line = refuse(path, "run", str(path), code=INPUT)
         # 'Wait minutes' is the third data column: two rows below the first row of the column table.
-        cell = f"G{TABLE_HEADER_ROW + 2 + 2}"
+        cell = f"{column_letter(HEADERS.index('Role'))}{TABLE_HEADER_ROW + 2 + 2}"
         assert cell in line and "'outcom'" in line and "compare by" in line
 
     def test_unknown_column_in_plan(self, books, tmp_path) -> None:

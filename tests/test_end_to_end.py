@@ -24,6 +24,8 @@ from libreoffice import convert, find_soffice, require_soffice
 from statmargin.cli import main
 from statmargin.io.file.source import FileSource
 from statmargin.io.file.zipio import read_zip
+from statmargin.plan.roles_sheet import HEADERS
+from statmargin.read.table import column_letter
 from workbook_edit import (
     BLANK_WAIT_CELL,
     DIRTY_WAIT_CELLS,
@@ -112,8 +114,8 @@ class TestPlanAndEdit:
         assert wait["Unreadable cells"] == 2
 
     def test_edit_lands_in_the_role_column(self, journey) -> None:
-        """The simulated edit wrote the two role words into column G, read back by an independent reader."""
-        assert roles_cell(journey["edited"], "Wait minutes")[0] == "G"
+        """The simulated edit wrote the two role words into the Role column, read back by an independent reader."""
+        assert roles_cell(journey["edited"], "Wait minutes")[0] == column_letter(HEADERS.index("Role"))
         rows = table_records(sheet_rows(journey["edited"], "statmargin roles"), "Column")
         roles = {r["Column"]: r["Role"] for r in rows}
         assert roles == {"Site": "compare by", "Visit date": "ignore", "Wait minutes": "outcome", "Follow-up": "ignore"}

@@ -11,6 +11,7 @@ from statmargin.plan.roles_sheet import (
     build_roles_sheet,
     parse_roles_sheet,
 )
+from statmargin.read.table import column_letter
 from statmargin.vocabulary import AdjustMethod, Alternative, MeasureType, Role, ShapeHandling
 
 FACTS = [
@@ -56,7 +57,8 @@ def test_dropdowns_cover_the_editable_cells():
     """Role, treat-as and shape cells carry dropdown lists with the enum words."""
     model = build_roles_sheet(FACTS, Plan(), data_sheet="Visits", header_row=1)
     lists = {tuple(v.choices) for v in model.validations}
-    assert ("outcome", "compare by", "pairing key", "ignore") in lists
+    assert tuple(r.value for r in Role) in lists
+    assert ("outcome", "compare by", "pairing key", "period", "count", "events", "ignore") in lists
     assert ("auto", "assume normal", "rank-based") in lists
     assert ("holm", "benjamini-hochberg", "none") in lists
 
@@ -99,8 +101,8 @@ def test_unknown_role_word_names_the_cell():
     with pytest.raises(RoleError) as err:
         parse_roles_sheet(rows)
     assert str(err.value) == (
-        f"The cell G{header + 2} of sheet 'statmargin roles' says 'outcom'; "
-        "choose one of: outcome, compare by, pairing key, ignore."
+        f"The cell {column_letter(HEADERS.index('Role'))}{header + 2} of sheet 'statmargin roles' says 'outcom'; "
+        "choose one of: outcome, compare by, pairing key, period, count, events, ignore."
     )
 
 

@@ -115,6 +115,20 @@ against_option = click.option(
 event_option = click.option(
     "--event", metavar="[COL=]LEVEL", multiple=True, help=console.HELP["event"],
 )
+events_option = click.option("--events", metavar="COL", multiple=True, help=console.HELP["events"])
+out_of_option = click.option("--out-of", metavar="[COL=]TOTALS", multiple=True, help=console.HELP["out_of"])
+per_option = click.option("--per", metavar="[COL=]TIME", multiple=True, help=console.HELP["per"])
+per_unit_option = click.option("--per-unit", metavar="UNIT", default=None, help=console.HELP["per_unit"])
+count_option = click.option("--count", metavar="COL", default=None, help=console.HELP["count"])
+period_option = click.option("--period", metavar="COL", default=None, help=console.HELP["period"])
+period_length_option = click.option(
+    "--period-length", type=click.Choice(["week", "month", "quarter", "year"]), default=None,
+    help=console.HELP["period_length"],
+)
+adjust_across_option = click.option(
+    "--adjust-across", type=click.Choice(["this run", "each outcome", "none"]), default=None,
+    help=console.HELP["adjust_across"],
+)
 pairing_key_option = click.option(
     "--pairing-key", metavar="COL", default=None,
     help=console.HELP["pairing_key"],
@@ -216,18 +230,28 @@ def main() -> None:
 @paired_by_alias
 @paired_with_option
 @event_option
+@events_option
+@out_of_option
+@per_option
+@per_unit_option
+@count_option
+@period_option
+@period_length_option
 @treat_option
 @shape_option
 @alternative_option
 @confidence_option
 @adjust_option
+@adjust_across_option
 @json_option
 @debug_option
 @handle_errors
 def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by: tuple[str, ...],
                  against: tuple[str, ...], pairing_key: str | None, paired_with: tuple[str, ...],
-                 event: tuple[str, ...], treat: tuple[str, ...], shape: str, alternative: str,
-                 confidence: float, adjust: str, json_path: str | None) -> None:
+                 event: tuple[str, ...], events: tuple[str, ...], out_of: tuple[str, ...],
+                 per: tuple[str, ...], per_unit: str | None, count: str | None, period: str | None,
+                 period_length: str | None, treat: tuple[str, ...], shape: str, alternative: str,
+                 confidence: float, adjust: str, adjust_across: str | None, json_path: str | None) -> None:
     """Run the fitting test on a workbook and print the results.
 
     The workbook is only read, never changed.
@@ -241,6 +265,8 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
     summary = test_workbook(
         workbook, sheet=sheet, outcome=outcome, by=by, against=against,
         pairing_key=pairing_key or meta.get("old_pairing_key"), paired_with=paired_with, event=event,
+        events=events, out_of=out_of, per=per, per_unit=per_unit, count=count, period=period,
+        period_length=period_length, adjust_across=adjust_across,
         treat=treat, shape=shape, alternative=alternative, confidence=confidence, adjust=adjust,
     )
     if json_path != "-":
@@ -263,6 +289,11 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @paired_with_option
 @pair_alias
 @event_option
+@events_option
+@out_of_option
+@per_option
+@count_option
+@period_option
 @treat_option
 @out_option
 @json_option
@@ -270,8 +301,9 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @handle_errors
 def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outcome: tuple[str, ...],
                  by: tuple[str, ...], pairing_key: str | None, against: tuple[str, ...],
-                 paired_with: tuple[str, ...], event: tuple[str, ...], treat: tuple[str, ...],
-                 out: Path | None, json_path: str | None) -> None:
+                 paired_with: tuple[str, ...], event: tuple[str, ...], events: tuple[str, ...],
+                 out_of: tuple[str, ...], per: tuple[str, ...], count: str | None, period: str | None,
+                 treat: tuple[str, ...], out: Path | None, json_path: str | None) -> None:
     """Add or refresh the roles sheet, keeping every choice already made; options preset roles.
 
     Example: statmargin plan clinics.xlsx --outcome wait_minutes --by site
@@ -283,7 +315,7 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
     summary = plan_workbook(
         workbook, sheet=sheet, header_row=header_row, outcome=outcome, by=by, pairing_key=pairing_key,
         treat=treat, against=against, paired_with=paired_with + tuple(meta.get("old_paired_with", ())),
-        event=event, out=out,
+        event=event, events=events, out_of=out_of, per=per, count=count, period=period, out=out,
     )
     if json_path != "-":
         click.echo(console.plan_summary(summary, workbook.name))

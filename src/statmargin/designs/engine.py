@@ -109,7 +109,7 @@ def _follow_up(answer: Answer, settings: Settings) -> None:
 def analyze(
     data: Any,
     *,
-    outcome: str | Sequence[str],
+    outcome: str | Sequence[str] = (),
     by: str | Sequence[str] | None = None,
     against: str | float | Mapping[str, str] | None = None,
     pairing_key: str | None = None,
@@ -120,6 +120,14 @@ def analyze(
     confidence: float = 0.95,
     adjust: str = "holm",
     event: str | Mapping[str, str] | None = None,
+    events: str | Sequence[str] = (),
+    out_of: str | Mapping[str, str] | None = None,
+    per: str | Mapping[str, str] | None = None,
+    per_unit: str | float | None = None,
+    count: str | None = None,
+    period: str | None = None,
+    period_length: str | None = None,
+    adjust_across: str | None = None,
     paired_by: str | None = None,
 ) -> list[Result]:
     """Run the tests that fit the data and return one Result per question.
@@ -160,6 +168,17 @@ def analyze(
         The event level of a two-level outcome (``"Yes"``, ``"COL=Fail"``): the
         share readings report; inferred from common words ("Yes", "Pass",
         "Positive", "1", ...) when not given.
+    events, out_of, per, per_unit : optional
+        Aggregated rows: columns of event counts, each out of a column of totals
+        (``out_of``) or per a column of person-time or population (``per``), with
+        rates given ``per_unit`` (``"per 1,000"``).
+    count : str, optional
+        A frequency weight: each row stands for that many records.
+    period, period_length : str, optional
+        The date or period column, and the length of a period (week, month,
+        quarter, year; month by default).
+    adjust_across : {"this run", "each outcome", "none"}, optional
+        Which results share one p-value adjustment (default: all of them).
 
     Returns
     -------
@@ -231,6 +250,7 @@ def analyze(
     table = data if isinstance(data, Table) else _table_from(data)
     outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
     bys = [] if by is None else [by] if isinstance(by, str) else list(by)
+    event_columns = [events] if isinstance(events, str) else list(events)
     against_text = against if isinstance(against, (Mapping, type(None))) else str(against)
     plan = build_plan(
         outcomes,
@@ -240,8 +260,14 @@ def analyze(
         paired_with=parse_col_values(paired_with, "--paired-with", outcomes),
         treat=parse_treat(treat),
         shape=shape,
-        settings=make_settings(alternative=alternative, confidence=confidence, adjust=adjust),
+        settings=make_settings(alternative=alternative, confidence=confidence, adjust=adjust,
+                               family=adjust_across, grain=period_length, per_unit=per_unit),
         event=parse_col_values(event, "--event", outcomes),
+        events=event_columns,
+        out_of=parse_col_values(out_of, "--out-of", event_columns),
+        per=parse_col_values(per, "--per", event_columns),
+        count=count,
+        period=period,
     )
     results = run_plan(table, plan)
     explain_results(results, plan.settings)  # readings and cautions, as the command line shows them

@@ -36,7 +36,7 @@ class TestSummary:
 def test_workbook(
     path: str | Path,
     *,
-    outcome: str | Sequence[str],
+    outcome: str | Sequence[str] = (),
     by: str | Sequence[str] = (),
     against: str | Mapping[str, str] | Iterable[str] | None = None,
     pairing_key: str | None = None,
@@ -47,6 +47,14 @@ def test_workbook(
     confidence: float = 0.95,
     adjust: str = "holm",
     event: str | Mapping[str, str] | Iterable[str] | None = None,
+    events: str | Sequence[str] = (),
+    out_of: str | Mapping[str, str] | Iterable[str] | None = None,
+    per: str | Mapping[str, str] | Iterable[str] | None = None,
+    per_unit: str | float | None = None,
+    count: str | None = None,
+    period: str | None = None,
+    period_length: str | None = None,
+    adjust_across: str | None = None,
     sheet: str | None = None,
     source: WorkbookSource | None = None,
 ) -> TestSummary:
@@ -57,8 +65,9 @@ def test_workbook(
     path
         The workbook.
     outcome, by, against, pairing_key, paired_with, treat, shape, alternative, confidence, adjust, event
-        As for :func:`statmargin.analyze` (``against``, ``paired_with`` and ``event``
-        take ``[COL=]VALUE`` items, as the command line does).
+    events, out_of, per, per_unit, count, period, period_length, adjust_across
+        As for :func:`statmargin.analyze` (``against``, ``paired_with``, ``event``,
+        ``out_of`` and ``per`` take ``[COL=]VALUE`` items, as the command line does).
     sheet
         The data sheet (default: the first sheet with data).
     source
@@ -77,7 +86,9 @@ def test_workbook(
 
     outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
     bys = [by] if isinstance(by, str) else list(by)
-    settings = make_settings(alternative=alternative, confidence=confidence, adjust=adjust)
+    event_columns = [events] if isinstance(events, str) else list(events)
+    settings = make_settings(alternative=alternative, confidence=confidence, adjust=adjust,
+                             family=adjust_across, grain=period_length, per_unit=per_unit)
     plan = build_plan(
         outcomes,
         bys,
@@ -88,6 +99,11 @@ def test_workbook(
         shape=shape,
         settings=settings,
         event=parse_col_values(event, "--event", outcomes),
+        events=event_columns,
+        out_of=parse_col_values(out_of, "--out-of", event_columns),
+        per=parse_col_values(per, "--per", event_columns),
+        count=count,
+        period=period,
     )
     with warnings.catch_warnings():
         # Caveats are already in each result's notes; no Python warning lines.

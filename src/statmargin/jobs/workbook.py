@@ -17,6 +17,7 @@ from .._version import __version__
 from ..errors import RoleError
 from ..io.protocol import WorkbookSink, WorkbookSource, WriteReport
 from ..options import parse_col_values, parse_treat
+from ..plan.clean import level_facts
 from ..plan.model import ColumnChoice, Plan
 from ..plan.roles_sheet import KIND as ROLES_KIND
 from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
@@ -120,6 +121,11 @@ def plan_workbook(
     paired_with: Mapping[str, str] | Iterable[str] | None = None,
     shape: Mapping[str, str] | None = None,
     event: Mapping[str, str] | Iterable[str] | None = None,
+    events: Iterable[str] = (),
+    out_of: Mapping[str, str] | Iterable[str] | None = None,
+    per: Mapping[str, str] | Iterable[str] | None = None,
+    count: str | None = None,
+    period: str | None = None,
     out: str | Path | None = None,
     source: WorkbookSource | None = None,
     sink: WorkbookSink | None = None,
@@ -138,7 +144,9 @@ def plan_workbook(
         takes ``COL=TYPE`` items (an ordinal type may list its labels,
         ``pain=ordinal:none,mild,severe``); ``against`` ``COL=VALUE`` and
         ``paired_with`` ``COL=COL2`` items, or mappings; ``event`` ``COL=LEVEL`` items
-        name the event level of two-level outcomes.
+        name the event level of two-level outcomes; ``events`` mark columns of event
+        counts, each ``out_of`` (``COL=TOTALS``) or ``per`` (``COL=PERSON_TIME``) another
+        column; ``count`` marks a frequency weight and ``period`` the date or period column.
     out
         Write to this new file instead of ``path`` (which is then left untouched).
     """
@@ -159,7 +167,9 @@ def plan_workbook(
     _apply_presets(
         choices, table, outcome=outcome, by=by, pairing_key=pairing_key, treat=parse_treat(treat),
         against=parse_col_values(against, "--against"), paired_with=parse_col_values(paired_with, "--paired-with"),
-        shape=shape, event=parse_col_values(event, "--event"),
+        shape=shape, event=parse_col_values(event, "--event"), events=list(events),
+        out_of=parse_col_values(out_of, "--out-of"), per=parse_col_values(per, "--per"),
+        count=count, period=period,
     )
     facts = []
     for name, column in table.columns.items():
@@ -174,6 +184,7 @@ def plan_workbook(
                 # Cells that cannot be read as the inferred type: error values, suppressed
                 # counts and formulas without a value, plus e.g. text in a numeric column.
                 n_unreadable=column.n_unreadable + sum(usable_values(column, info).excluded.values()),
+                **level_facts(column, info),
             )
         )
     new = [n for n in table.columns if previous is not None and n not in choices]
@@ -210,6 +221,11 @@ def _apply_presets(
     paired_with: Mapping[str, str],
     shape: Mapping[str, str] | None,
     event: Mapping[str, str],
+    events: Iterable[str] = (),
+    out_of: Mapping[str, str] | None = None,
+    per: Mapping[str, str] | None = None,
+    count: str | None = None,
+    period: str | None = None,
 ) -> None:
     """Set roles given as options; every named column must exist (closest names suggested)."""
     from ..options.columns import parse_shape
@@ -238,6 +254,18 @@ def _apply_presets(
         choice(name).paired_with = other
     for name, level in event.items():
         choice(name).event = level
+    for name in events:
+        choice(name).role = Role.EVENTS
+    for name, total in (out_of or {}).items():
+        table.column(total)
+        choice(name).out_of = total
+    for name, exposure in (per or {}).items():
+        table.column(exposure)
+        choice(name).per = exposure
+    if count:
+        choice(count).role = Role.COUNT
+    if period:
+        choice(period).role = Role.PERIOD
 
 
 def run_workbook(

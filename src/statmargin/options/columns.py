@@ -120,30 +120,45 @@ def build_plan(
     shape: str = "auto",
     settings: Settings | None = None,
     event: Mapping[str, str] | None = None,
+    events: Sequence[str] = (),
+    out_of: Mapping[str, str] | None = None,
+    per: Mapping[str, str] | None = None,
+    count: str | None = None,
+    period: str | None = None,
 ) -> Plan:
     """The plan of a one-off question from options (shared by ``analyze`` and ``statmargin test``).
 
     Refuses what cannot be asked at once: nothing to compare with, a comparison
     value together with a compare-by or paired column, a paired column together
-    with a compare-by column, a pairing key without a compare-by column.
+    with a compare-by column, a pairing key without a compare-by column, events
+    without a total or person-time (or with both).
     """
-    if not outcomes:
+    if not outcomes and not events:
         raise OptionError(refusals.no_outcome_named())
     against = dict(against or {})
     paired_with = dict(paired_with or {})
+    out_of, per = dict(out_of or {}), dict(per or {})
     if pairing_key and not bys:
         raise OptionError(refusals.pairing_key_needs_by())
-    if not (bys or against or paired_with):
+    if not (bys or against or paired_with or period):
         raise OptionError(refusals.nothing_compared())
     if against and (bys or paired_with):
         raise OptionError(refusals.against_with_others())
     if paired_with and bys:
         raise OptionError(refusals.paired_with_and_by())
     event = dict(event or {})
+    analysed = [*outcomes, *events]
     for option, values in (("--against", against), ("--paired-with", paired_with), ("--event", event)):
         for name in values:
-            if name not in outcomes:
+            if name not in analysed:
                 raise OptionError(refusals.value_for_unnamed(option, name))
+    for option, values in (("--out-of", out_of), ("--per", per)):
+        for name in values:
+            if name not in events:
+                raise OptionError(refusals.total_for_non_events(option, name))
+    for name in events:
+        if (name in out_of) == (name in per):
+            raise OptionError(refusals.events_need_one_total(name))
     handling = parse_shape(shape)
     treat = dict(treat or {})
     choices: dict[str, ColumnChoice] = {}
@@ -158,17 +173,23 @@ def build_plan(
         choices[name] = c
         return c
 
-    for name in outcomes:
-        c = choice(name, Role.OUTCOME)
+    for name, role in [*((n, Role.OUTCOME) for n in outcomes), *((n, Role.EVENTS) for n in events)]:
+        c = choice(name, role)
         c.shape = handling
         c.against = against.get(name)
         c.paired_with = paired_with.get(name)
         c.event = event.get(name)
+        c.out_of = out_of.get(name)
+        c.per = per.get(name)
     for name in bys:
         choice(name, Role.COMPARE_BY)
     if pairing_key:
         choice(pairing_key, Role.PAIRING_KEY)
-    for partner in paired_with.values():
+    if count:
+        choice(count, Role.COUNT)
+    if period:
+        choice(period, Role.PERIOD)
+    for partner in [*paired_with.values(), *out_of.values(), *per.values()]:
         if partner not in choices:
             kind, order = treat.get(partner, (None, None))
             choices[partner] = ColumnChoice(partner, role=Role.IGNORE, treat_as=kind, order=order)

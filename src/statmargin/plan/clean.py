@@ -9,16 +9,17 @@ from __future__ import annotations
 
 from collections import Counter
 from collections.abc import Iterable
+from typing import Any
 
 import numpy as np
 
 from ..read.reader import NOTE_CAP
-from ..read.table import DataNote, NoteKind, Table
+from ..read.table import Column, DataNote, NoteKind, Table
 from ..vocabulary import MeasureType, Role
-from ..words import notes_words
-from .levels import look_alikes
+from ..words import notes_words, roles_words
+from .levels import infer_event, look_alikes
 from .model import Plan
-from .types import TypeInfo, infer_type, usable_values
+from .types import TypeInfo, category_labels, infer_type, usable_values
 
 
 def merge_look_alikes(table: Table, names: Iterable[str]) -> list[DataNote]:
@@ -90,3 +91,13 @@ def prepare_table(table: Table, plan: Plan) -> list[DataNote]:
             notes.extend(left_out_notes(table, name, info))
     table.notes.extend(notes)
     return notes
+
+
+def level_facts(column: Column, info: TypeInfo) -> dict[str, Any]:
+    """For the roles sheet: a category column's number of levels, its look-alike labels, its event level."""
+    if info.type not in (MeasureType.CATEGORICAL, MeasureType.ORDINAL):
+        return {}
+    counts = Counter(label for label in category_labels(column) if label is not None)
+    similar = "; ".join(roles_words.look_alike_text(group.labels) for group in look_alikes(counts))
+    levels = list(info.levels)
+    return {"n_levels": len(levels), "look_alikes": similar, "event": infer_event(levels)}

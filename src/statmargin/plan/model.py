@@ -4,7 +4,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from ..vocabulary import AdjustMethod, Alternative, MeasureType, Role, ShapeHandling
+from ..vocabulary import (
+    AdjustFamily,
+    AdjustMethod,
+    Alternative,
+    Grain,
+    MeasureType,
+    Role,
+    RowsToUse,
+    ShapeHandling,
+)
 
 
 @dataclass(frozen=True)
@@ -18,6 +27,11 @@ class Settings:
     seed: int = 20261202  # Monte Carlo p-values are reproducible run to run
     monte_carlo_resamples: int = 20000
     merge_look_alikes: bool = True  # labels differing only in case, spacing or trailing punctuation
+    family: AdjustFamily = AdjustFamily.RUN  # which results share one adjustment
+    rows: RowsToUse = RowsToUse.ALL  # hidden and filtered rows used (and said so) or left out
+    grain: Grain = Grain.MONTH  # the length of a period for the period role
+    latest_period: str | None = None  # the latest period to report, as typed (None: last complete)
+    per_unit: str | None = None  # the unit rates are given in, as typed ("per 1,000 person-years")
 
 
 @dataclass
@@ -32,6 +46,8 @@ class ColumnChoice:
     paired_with: str | None = None  # wide-form pair: the other measurement column
     order: list[str] | None = None  # label order: ordinal lowest first; groups first to last
     event: str | None = None  # the event level of a two-level outcome (None: inferred)
+    out_of: str | None = None  # events: the column of totals they are out of (people, inspections)
+    per: str | None = None  # events: the column of person-time or population they are per
 
 
 @dataclass

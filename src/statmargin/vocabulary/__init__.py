@@ -9,7 +9,7 @@ from .columns import MeasureType, Role, ShapeHandling
 from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
 from .effects import EffectKind, EstimateKind
 from .periods import ChartKind, ControlRule, Grain, Precision, SinceLastRun
-from .run import AdjustFamily, AdjustMethod, Alternative
+from .run import AdjustFamily, AdjustMethod, Alternative, RowsToUse, YesNo
 
 __all__ = [
     "FOLLOWUP_TESTS",
@@ -26,7 +26,9 @@ __all__ = [
     "PMethod",
     "Precision",
     "Role",
+    "RowsToUse",
     "ShapeHandling",
     "SinceLastRun",
     "Test",
+    "YesNo",
 ]

@@ -15,6 +15,9 @@ class Role(Word):
     OUTCOME = "outcome"
     COMPARE_BY = "compare by"
     PAIRING_KEY = "pairing key"
+    PERIOD = "period"  # the date or period of each row: series, trend, unusual periods
+    COUNT = "count"  # a frequency weight: the row stands for that many records
+    EVENTS = "events"  # a count of events, out of a total (Out of) or per person-time (Per)
     IGNORE = "ignore"
 
 

@@ -19,6 +19,20 @@ class Alternative(Word):
     LESS = "less"
 
 
+class RowsToUse(Word):
+    """Which data rows a run reads (a roles-sheet setting)."""
+
+    ALL = "all rows"  # hidden and filtered rows included, and said so
+    VISIBLE = "visible rows only"  # rows a filter or the user hid are left out
+
+
+class YesNo(Word):
+    """A yes/no setting."""
+
+    YES = "yes"
+    NO = "no"
+
+
 class AdjustFamily(Word):
     """Which results share one multiple-comparison adjustment (a roles-sheet setting)."""
 

@@ -187,5 +187,13 @@ HELP: dict[str, str] = {
         "The event level of a two-level outcome, e.g. Vaccinated=Yes: the share readings report "
         "(default: inferred from words such as Yes, Pass, Positive, 1). Repeatable."
     ),
+    'events': "A column of event counts on aggregated rows (positives, failures, new cases); give --out-of or --per for it. Repeatable.",
+    'out_of': "The column of totals an events column is out of (people screened, inspections), e.g. Positive=Screened. Repeatable.",
+    'per': "The column of person-time or population an events column is per, e.g. Cases=Person-years. Repeatable.",
+    'per_unit': "The unit rates are given in, e.g. 'per 1,000' or 'per 100,000 person-years' (default: per one unit).",
+    'count': "A frequency weight: each row stands for that many records.",
+    'period': "The date or period column (dates, 2026-03, Mar 2026, 2026 Q1): series, trend and unusual periods.",
+    'period_length': "The length of a period for --period (default: month).",
+    'adjust_across': "Which results share one p-value adjustment: this run (default), each outcome, or none.",
     'min_count': 'Sharing mode: hide counts below N (default 11, a common public-health practice).',
 }

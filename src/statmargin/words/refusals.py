@@ -74,6 +74,17 @@ def order_for_continuous(name: str) -> str:
     return f"A level order was given for {name!r}, but only categories and ordinal columns have levels."
 
 
+def total_for_non_events(option: str, name: str) -> str:
+    return f"{option} names {name!r}, which is not one of the --events columns; name an events column."
+
+
+def events_need_one_total(name: str) -> str:
+    return (
+        f"Events column {name!r} needs either --out-of COL (a total of people or inspections) or --per "
+        "COL (person-time or population), not both."
+    )
+
+
 def no_outcome_named() -> str:
     return "Name at least one outcome column."
 
