@@ -16,7 +16,7 @@ the outcome's own precision when the run knows it.
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -531,9 +531,22 @@ def _one_sided_line(result: Result) -> str:
 # ---------------------------------------------------------------- the reading
 
 
-def _parts(result: Result, settings: Settings, context: Any, n_family: int | None) -> tuple[str, str, str, str]:
+Parts = tuple[str, str, str, str]  # figures, answer, size, evidence
+PartsMaker = Callable[[Result, Settings, Any, "int | None"], Parts]
+# Designs whose words live in another module register their maker here (``register_parts``).
+PARTS_BY_DESIGN: dict[Design, PartsMaker] = {}
+
+
+def register_parts(design: Design, maker: PartsMaker) -> None:
+    """Let a design's own words module make its reading parts (figures, answer, size, evidence)."""
+    PARTS_BY_DESIGN[design] = maker
+
+
+def _parts(result: Result, settings: Settings, context: Any, n_family: int | None) -> Parts:
     """(figures, answer, size, evidence) for a result that was run."""
     design = result.design
+    if design in PARTS_BY_DESIGN:
+        return PARTS_BY_DESIGN[design](result, settings, context, n_family)
     if design in (Design.TWO_GROUP_CONTINUOUS, Design.PAIRED_CONTINUOUS):
         figures, decimals = _groups_line(result, context)
         answer, size, evidence = _two_group_answer(result, settings, context, n_family, decimals)
