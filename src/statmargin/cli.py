@@ -151,6 +151,10 @@ out_option = click.option(
     help=console.HELP["out"],
 )
 quiet_option = click.option("--quiet", is_flag=True, help=console.HELP["quiet"])
+share_option = click.option("--share", is_flag=True, help=console.HELP["share"])
+min_count_option = click.option(
+    "--min-count", type=click.IntRange(min=2), default=None, metavar="N", help=console.HELP["min_count"]
+)
 
 
 def check_json_target(path: str | None, *protect: Path | None) -> None:
@@ -243,6 +247,8 @@ def main() -> None:
 @confidence_option
 @adjust_option
 @adjust_across_option
+@share_option
+@min_count_option
 @json_option
 @debug_option
 @handle_errors
@@ -251,7 +257,8 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
                  event: tuple[str, ...], events: tuple[str, ...], out_of: tuple[str, ...],
                  per: tuple[str, ...], per_unit: str | None, count: str | None, period: str | None,
                  period_length: str | None, treat: tuple[str, ...], shape: str, alternative: str,
-                 confidence: float, adjust: str, adjust_across: str | None, json_path: str | None) -> None:
+                 confidence: float, adjust: str, adjust_across: str | None, share: bool,
+                 min_count: int | None, json_path: str | None) -> None:
     """Run the fitting test on a workbook and print the results.
 
     The workbook is only read, never changed.
@@ -261,6 +268,8 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
     from .jobs.question import test_workbook
 
     meta = click.get_current_context().meta
+    if min_count is not None and not share:
+        raise errors.OptionError(console.min_count_without_share())
     check_json_target(json_path, workbook)
     summary = test_workbook(
         workbook, sheet=sheet, outcome=outcome, by=by, against=against,
@@ -268,6 +277,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
         events=events, out_of=out_of, per=per, per_unit=per_unit, count=count, period=period,
         period_length=period_length, adjust_across=adjust_across,
         treat=treat, shape=shape, alternative=alternative, confidence=confidence, adjust=adjust,
+        share=share, min_count=min_count,
     )
     if json_path != "-":
         click.echo(console.test_summary(summary.results, sheet=summary.sheet))
@@ -326,9 +336,8 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 @main.command("run")
 @click.argument("workbook", type=click.Path(path_type=Path))
 @out_option
-@click.option("--share", is_flag=True, help=console.HELP["share"])
-@click.option("--min-count", type=click.IntRange(min=2), default=None, metavar="N",
-              help=console.HELP["min_count"])
+@share_option
+@min_count_option
 @click.option("--pattern", default="*.xlsx", show_default=True, metavar="GLOB", help=FOLDER_HELP["pattern"])
 @click.option("--jobs", type=click.IntRange(min=1), default=None, metavar="N", help=FOLDER_HELP["jobs"])
 @click.option("--summary/--no-summary", "write_summary", default=True, help=FOLDER_HELP["summary"])

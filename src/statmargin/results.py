@@ -22,7 +22,7 @@ from .vocabulary import (
     SinceLastRun,
     Test,
 )
-from .vocabulary.codes import Coded
+from .vocabulary.codes import Coded, Hidden
 
 # Identifier tuples kept for callers that list them; the enums are the vocabulary.
 DESIGNS = tuple(d.value for d in Design)
@@ -36,6 +36,8 @@ def _clean(value: Any) -> Any:
         return None
     if isinstance(value, Enum):
         return value.value
+    if isinstance(value, Hidden):
+        return None  # a count hidden by sharing mode
     if hasattr(value, "item") and not isinstance(value, (list, tuple, dict)):
         value = value.item()
     if isinstance(value, float) and not math.isfinite(value):

@@ -11,7 +11,7 @@ from ..results import Result
 from ..stats import categorical
 from ..stats.shape import count_check
 from ..vocabulary import Design, MeasureType, Test
-from ..vocabulary.codes import Reason, Skip, coded
+from ..vocabulary.codes import Derived, Reason, Skip, coded
 from .base import Choice, DesignSpec, Prepared, Skipped
 from .question import Question
 
@@ -25,7 +25,7 @@ def decide(*, outcome: str, n_levels: int, single_share: bool, min_expected: flo
         return Choice(design, Test.BINOMIAL_EXACT, False, [coded(Reason.ONE_SHARE_BINOMIAL, outcome=outcome)])
     if n_levels == 2 and min_expected < COCHRAN_MIN_EXPECTED:
         return Choice(design, Test.BINOMIAL_EXACT, False,
-                      [coded(Reason.SMALL_EXPECTED_BINOMIAL, smallest=min_expected)])
+                      [coded(Reason.SMALL_EXPECTED_BINOMIAL, smallest=Derived(min_expected))])
     # Small expected counts with 3+ categories: the method says how its p-value was
     # obtained (and switches to Monte Carlo), so no second caveat is added here.
     return Choice(design, Test.CHI_SQUARE_GOODNESS_OF_FIT, False, [coded(Reason.GOODNESS_OF_FIT, outcome=outcome)])

@@ -14,7 +14,7 @@ from ..results import Followup, Result
 from ..stats import categorical, followup
 from ..stats.shape import count_check, expected_counts
 from ..vocabulary import Design, MeasureType, Test
-from ..vocabulary.codes import Coded, Reason, Skip, coded
+from ..vocabulary.codes import Coded, Derived, Reason, Skip, coded
 from .base import Choice, DesignSpec, Prepared, Skipped, method_options
 from .groups import levels_present
 from .question import Question
@@ -28,7 +28,7 @@ def decide(*, outcome: str, by: str, table_shape: tuple[int, ...], min_expected:
     """Fisher's exact test for a 2x2 table with an expected count below 5 (Cochran's rule), else chi-square."""
     design = Design.TWO_CATEGORICAL
     if tuple(table_shape) == (2, 2) and min_expected < COCHRAN_MIN_EXPECTED:
-        return Choice(design, Test.FISHER_EXACT, False, [coded(Reason.SMALL_EXPECTED_FISHER, smallest=min_expected)])
+        return Choice(design, Test.FISHER_EXACT, False, [coded(Reason.SMALL_EXPECTED_FISHER, smallest=Derived(min_expected))])
     # Larger tables with small expected counts: the method reports its own caveat and p method.
     return Choice(design, Test.CHI_SQUARE_INDEPENDENCE, False,
                   [coded(Reason.CHI_SQUARE_INDEPENDENCE, outcome=outcome, by=by)])

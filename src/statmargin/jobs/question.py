@@ -56,6 +56,8 @@ def test_workbook(
     period_length: str | None = None,
     adjust_across: str | None = None,
     sheet: str | None = None,
+    share: bool = False,
+    min_count: int | None = None,
     source: WorkbookSource | None = None,
 ) -> TestSummary:
     """Run the fitting tests on a workbook's data sheet; the workbook is only read.
@@ -70,6 +72,9 @@ def test_workbook(
         ``out_of`` and ``per`` take ``[COL=]VALUE`` items, as the command line does).
     sheet
         The data sheet (default: the first sheet with data).
+    share, min_count
+        Sharing mode: counts below ``min_count`` (default 11), and what would reveal
+        them, are hidden in the results before they are worded or returned.
     source
         An open workbook source to read instead of the file at ``path`` (the
         Excel bridge's worksheet functions pass the cells they were given).
@@ -82,6 +87,8 @@ def test_workbook(
     from ..designs.engine import run_plan
     from ..options import build_plan, make_settings, parse_col_values, parse_treat
     from ..read.reader import read_table
+    from ..sheets.share import DEFAULT_MIN_COUNT, suppress
+    from ..words.cautions import count_comparisons
     from ..words.explain import apply as explain_results
 
     outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
@@ -110,7 +117,11 @@ def test_workbook(
         warnings.simplefilter("ignore")
         table = read_table(path, sheet=sheet, source=source)
         results = run_plan(table, plan)
-        explain_results(results, settings)
+        family = count_comparisons(results)
+        if share:
+            results = suppress(results, min_count or DEFAULT_MIN_COUNT)
+        context = {"share_mode": share, "share_min_count": min_count or DEFAULT_MIN_COUNT}
+        explain_results(results, settings, context, n_comparisons=family)
     return TestSummary(str(path), table.sheet, results)
 
 

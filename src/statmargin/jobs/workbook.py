@@ -22,8 +22,10 @@ from ..plan.model import ColumnChoice, Plan
 from ..plan.roles_sheet import KIND as ROLES_KIND
 from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
 from ..read.table import Table
+from ..sheets.share import DEFAULT_MIN_COUNT, suppress
 from ..vocabulary import MeasureType, Role
 from ..words import console, refusals
+from ..words.cautions import count_comparisons
 
 # Called as each step starts; during the analyses also with (done, total) so a
 # front end can draw a progress bar.
@@ -313,6 +315,11 @@ def run_workbook(
         table, plan, progress=lambda done, total: say(console.RUNNING, done=done, total=total)
     )
     results = [answer.result for answer in answers]
+    family = count_comparisons(results)
+    if share:
+        # Hidden on values before any sentence is made, so the sheets, the JSON and the
+        # terminal summary all carry the same suppressed numbers.
+        results = suppress(results, min_count or DEFAULT_MIN_COUNT)
     context = report.ReportContext.from_run(
         workbook=source.display_name,
         table=table,
@@ -322,17 +329,15 @@ def run_workbook(
         version=__version__,
         started=datetime.now(timezone.utc),
         seconds=time.perf_counter() - started,
-        share_min_count=(min_count or _default_min_count()) if share else None,
+        share_min_count=(min_count or DEFAULT_MIN_COUNT) if share else None,
     )
-    explain_results(results, plan.settings, context)
+    explain_results(results, plan.settings, context, n_comparisons=family)
     say(console.WRITING)
     previous_log = _previous_log_rows(source)
     if opened is not None:
         opened.close()  # everything is read; the write does not need the source
     models = report.build_sheets(results, table, context, previous_log=previous_log)
     if share:
-        from ..sheets.share import suppress
-
         models = suppress(models, context.share_min_count)
     write = sink.write_sheets(models, out=str(out) if out else None)
     return RunSummary(
@@ -344,12 +349,6 @@ def run_workbook(
         write=write,
         messages=list(write.renamed),
     )
-
-
-def _default_min_count() -> int:
-    from ..sheets.share import DEFAULT_MIN_COUNT
-
-    return DEFAULT_MIN_COUNT
 
 
 def _check_roles(plan: Plan, roles: RolesSheet) -> None:

@@ -14,6 +14,7 @@ from .._version import __version__
 from ..plan.model import Settings
 from ..read.table import Table, column_letter
 from ..results import Result
+from ..vocabulary.codes import Hidden
 from .model import SheetModel
 from .share import DEFAULT_MIN_COUNT
 
@@ -113,7 +114,7 @@ class ReportContext:
             for result, values in zip(results, samples, strict=False)
             if values and not result.skipped
         }
-        used = max((int(r.n) for r in results if not r.skipped), default=0)
+        used = max((int(r.n) for r in results if not r.skipped and isinstance(r.n, int)), default=0)
         return cls(
             workbook=workbook,
             data_sheet=table.sheet if table is not None else "",
@@ -168,7 +169,9 @@ def _finite(value: Any) -> TypeGuard[int | float]:
 
 
 def _num(value: Any) -> Any:
-    """A finite number as float, else None (the cell stays empty)."""
+    """A finite number as float, a count hidden by sharing mode as it is, else None (an empty cell)."""
+    if isinstance(value, Hidden):
+        return value
     if hasattr(value, "item") and not isinstance(value, (list, tuple, dict)):
         value = value.item()
     return float(value) if _finite(value) else None

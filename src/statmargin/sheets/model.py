@@ -11,6 +11,8 @@ import re
 from dataclasses import dataclass, field
 from typing import Any
 
+from ..vocabulary.codes import Hidden
+
 # Characters a workbook cell cannot hold: those XML 1.0 forbids (section 2.2) and lone
 # surrogates. Every writer drops them, so all back ends show the same text.
 UNWRITABLE_TEXT = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff\ud800-\udfff]")
@@ -132,7 +134,10 @@ class SheetModel:
         link: str | None = None,
         is_count: bool = False,
     ) -> None:
-        """Set one cell (0-based row and column)."""
+        """Set one cell (0-based row and column); a count hidden by sharing mode shows as "<N"."""
+        if isinstance(value, Hidden):
+            self.cells[(row, col)] = Cell(f"<{value.floor}", "suppressed", None, True)
+            return
         self.cells[(row, col)] = Cell(value, style, link, is_count)
 
     def put_row(self, row: int, values: list[Any], style: str = "text", start_col: int = 0) -> None:

@@ -5,6 +5,8 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..read.table import DataNote, column_letter
+from ..words import notes_words
+from ..words.context import count_text
 from .context import SHEET_NAMES, ReportContext, quote_sheet
 from .model import SheetModel
 
@@ -47,7 +49,7 @@ def notes_sheet(
     model.put(
         1,
         0,
-        f"{len(table_notes)} cells were skipped or converted while reading; each cell address links to the cell.",
+        notes_words.cells_noted(count_text(len(table_notes), context)),
         "wrap",
     )
     model.merged.append(f"A2:{last}2")

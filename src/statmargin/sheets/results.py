@@ -193,8 +193,8 @@ def _technical(model: SheetModel, row: int, result: Result, context: ReportConte
     hidden = _suppressed_fields(result)
     put(row, COL["Outcome"], result.outcome)
     put(row, COL["Compared by / against"], _against_or_by(result))
-    put(row, COL["n used"], int(result.n), "integer", is_count=True)
-    put(row, COL["n excluded"], int(result.n_excluded), "integer", is_count=True)
+    put(row, COL["n used"], result.n, "integer", is_count=True)
+    put(row, COL["n excluded"], result.n_excluded, "integer", is_count=True)
     put(row, COL["Test"], explain.TEST_NAMES.get(result.test or "", result.test or "none"))
     why = "; ".join(say_all(result.reasons))
     if result.skipped:

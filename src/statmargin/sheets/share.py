@@ -9,7 +9,9 @@ threshold is a setting. It is common practice, not a guarantee of anonymity.
 What is hidden (decisions):
 
 * every cell marked as a count (``Cell.is_count``) holding 1 .. N-1; zeros stay
-  (they are shown by most such policies and reveal no person);
+  (they are shown by most such policies and reveal no person), except in a set
+  of counts with a hidden member, where a zero beside it tells that the hidden
+  count is the whole of its row (every inspection of a small district passed);
 * complementary cells: in every set of counts linked by a shown total
   (``SheetModel.count_sets``: a row or column with its total, histogram bins
   with the group's n), a single hidden member could be recovered by
@@ -30,6 +32,14 @@ What is hidden (decisions):
   p-values of larger tables and of continuous comparisons are kept: they are
   functions of the whole data that do not single out a cell or a group mean.
 
+Everything is hidden on values, before any sentence exists: counts in the
+results (groups, tables, ``n``) and in the facts of reason and caution codes
+become ``vocabulary.codes.Hidden`` (worded "fewer than N", shown "<N", written
+to JSON as null), and numbers derived from counts that could give one back
+(``Derived``, such as the smallest expected count) are dropped. No text is
+rewritten afterwards, so the JSON, the terminal summary and the sheets carry
+the same suppressed values.
+
 The data sheet itself is not touched and still holds record-level data; the
 results header says so.
 """
@@ -38,7 +48,6 @@ from __future__ import annotations
 
 import copy
 import math
-import re
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import replace
 from typing import Any, overload
@@ -46,7 +55,7 @@ from typing import Any, overload
 from ..read.table import column_index
 from ..results import Result
 from ..vocabulary import Design, Test
-from ..vocabulary.codes import Note, coded
+from ..vocabulary.codes import Coded, Count, Derived, Hidden, Note, coded
 from ..words import explain
 from .model import Cell, SheetModel
 
@@ -74,103 +83,6 @@ def _check_min_count(min_count: int) -> None:
             f"The sharing threshold must be a whole number of at least 2 (got {min_count!r}); "
             f"the default is {DEFAULT_MIN_COUNT}."
         )
-
-
-# ---------------------------------------------------------------- free text
-
-# Words that make a number next to them a count of records (or of things that
-# stand for records: cells of a table, incomplete pairs). Counts of groups,
-# levels or comparisons are not counts of people and are left alone.
-_COUNT_WORDS = (
-    r"records?|rows?|values?|pairs?|incomplete pairs|cells?|participants?|people|persons?|"
-    r"observations?|cases?|visits?|answers?|responses?|entries|entry"
-)
-# A threshold ("fewer than 10 records", "at least 5 values") states a rule, not a count.
-_THRESHOLD = r"(?<!fewer than )(?<!less than )(?<!more than )(?<!at least )(?<!below )(?<!under )"
-_NUMBER_BEFORE_WORD = re.compile(
-    _THRESHOLD + r"(?<![\d.,])(\d[\d,]*)(?![\d.])(?=\s+(?:" + _COUNT_WORDS + r")\b)",
-    re.IGNORECASE,
-)
-_N_EQUALS = re.compile(r"\b([nN])\s*=\s*(\d[\d,]*)(?![\d.])")
-_SOME_OF = re.compile(
-    r"(?<![\d.,])(\d[\d,]*) of (?:the )?(\d[\d,]*) (expected counts|" + _COUNT_WORDS + r")\b",
-    re.IGNORECASE,
-)
-
-
-# The smallest expected count is a product of two margins over the total, so
-# with the shown total and one margin it gives the other margin back.
-_SMALLEST_EXPECTED = re.compile(
-    r"\s*\(smallest (?:expected count )?[\d.,eE+-]+\)|"
-    r"(?<=[Ss]mallest expected count) (?:is |of )?[\d.,eE+-]*\d",
-)
-# A threshold below the minimum ("fewer than 5 values") would narrow a hidden count.
-_LOW_THRESHOLD = re.compile(
-    r"\b(?:fewer than|less than|under|below) (\d[\d,]*)(?![\d.])\s+(" + _COUNT_WORDS + r")\b",
-    re.IGNORECASE,
-)
-
-
-def _small(text: str, min_count: int) -> bool:
-    return is_small_count(int(text.replace(",", "")), min_count)
-
-
-def scrub_text(text: str, min_count: int = DEFAULT_MIN_COUNT) -> str:
-    """Free text with every small count of records rewritten so it cannot be read.
-
-    Parameters
-    ----------
-    text : str
-        A sentence from the tool (a reading, a reason, a method's note, a caution).
-    min_count : int
-        Counts from 1 to ``min_count - 1`` are rewritten.
-
-    Returns
-    -------
-    str
-        "3 of 6 expected counts" becomes "some of the expected counts", "n = 4"
-        becomes "n < 11", "4 records" becomes "fewer than 11 records", and a
-        threshold below the minimum ("fewer than 5 values", which would narrow
-        a hidden count) becomes "very few values"; the value of the smallest
-        expected count (with the total and one margin it gives the other
-        margin) is dropped. Other text is unchanged.
-
-    Notes
-    -----
-    The readings are written from suppressed results and use "fewer than N"
-    themselves; this is the safety net for sentences written elsewhere (the
-    engine's reasons and the methods' notes), which quote counts freely.
-    Thresholds at or above the minimum state a rule and are kept.
-    """
-    _check_min_count(min_count)
-
-    def some_of(match: re.Match[str]) -> str:
-        if _small(match.group(1), min_count) or _small(match.group(2), min_count):
-            return f"some of the {match.group(3)}"
-        return match.group(0)
-
-    def n_equals(match: re.Match[str]) -> str:
-        if _small(match.group(2), min_count):
-            return f"{match.group(1)} < {min_count}"
-        return match.group(0)
-
-    def before_word(match: re.Match[str]) -> str:
-        if _small(match.group(1), min_count):
-            return f"fewer than {min_count}"
-        return match.group(0)
-
-    def low_threshold(match: re.Match[str]) -> str:
-        if _small(match.group(1), min_count):
-            return f"very few {match.group(2)}"
-        return match.group(0)
-
-    text = _SMALLEST_EXPECTED.sub(
-        lambda m: "" if m.group(0).lstrip().startswith("(") else " hidden", text
-    )
-    text = _LOW_THRESHOLD.sub(low_threshold, text)
-    text = _SOME_OF.sub(some_of, text)
-    text = _N_EQUALS.sub(n_equals, text)
-    return _NUMBER_BEFORE_WORD.sub(before_word, text)
 
 
 # ---------------------------------------------------------------- sheet models
@@ -206,8 +118,7 @@ def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> She
         Hidden cells hold ``"<N>"``-style text (a small count itself) or
         "suppressed" (a complementary cell or a dependent), style "suppressed".
         On a results sheet the sharing sentence is written at ``anchors["share_note"]``.
-        Every text cell goes through ``scrub_text``, so no sentence quotes a small
-        count of records.
+        Text is not touched: it was written from suppressed results.
     """
     _check_min_count(min_count)
     out = copy.deepcopy(model)
@@ -223,6 +134,11 @@ def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> She
         changed = False
         for members in out.count_sets:
             present = [pos for pos in members if pos in cells]
+            if any(pos in hidden for pos in present):
+                for pos in present:  # a zero beside a hidden count says the hidden one is all of it
+                    if pos not in hidden and _numeric(cells[pos]) == 0.0:
+                        hidden.add(pos)
+                        changed = True
             if sum(pos in hidden for pos in present) != 1:
                 continue
             candidates = [
@@ -238,9 +154,6 @@ def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> She
                 if dependent not in hidden and dependent in cells:
                     hidden.add(dependent)
                     changed = True
-    for cell in cells.values():  # free text may quote a small count
-        if isinstance(cell.value, str) and cell.style != "suppressed":
-            cell.value = scrub_text(cell.value, min_count)
     for pos in hidden:
         old = cells[pos]
         if old.style == "suppressed":  # hidden earlier (keeps a second pass idempotent)
@@ -334,6 +247,7 @@ def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Resul
         out.p_value = None
     if "p_adjusted" in hidden:
         out.p_adjusted = None
+    _hide_counts(out, min_count)
     if hidden or small_group:
         previous = out.extra.get("suppressed", []) if isinstance(out.extra, Mapping) else []
         out.extra = dict(out.extra or {})
@@ -344,6 +258,49 @@ def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Resul
         if caution not in out.notes:  # keeps a second pass idempotent
             out.notes = list(out.notes) + [caution]
     return out
+
+
+# Keys whose values are counts of records, wherever they sit in a result's groups, tables and series.
+COUNT_KEYS = frozenset({"n", "count", "events", "total", "n_pairs", "observed", "counts"})
+
+
+def _hidden_count(value: Any, min_count: int) -> Any:
+    return Hidden(min_count) if is_small_count(value, min_count) else value
+
+
+def _hide_in(value: Any, min_count: int, *, counting: bool) -> Any:
+    """A copy of a nested structure with every small count (under a count key) hidden."""
+    if isinstance(value, Mapping):
+        return {k: _hide_in(v, min_count, counting=counting or k in COUNT_KEYS) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_hide_in(v, min_count, counting=counting) for v in value]
+    return _hidden_count(value, min_count) if counting else value
+
+
+def _hide_facts(item: Coded, min_count: int) -> Coded:
+    """A code with small counts hidden and facts derived from counts dropped."""
+    facts: dict[str, Any] = {}
+    for key, value in item.facts.items():
+        if isinstance(value, Derived):
+            facts[key] = None
+        elif isinstance(value, Count):
+            facts[key] = _hidden_count(int(value), min_count)
+        else:
+            facts[key] = value
+    return Coded(item.code, facts)
+
+
+def _hide_counts(result: Result, min_count: int) -> None:
+    """Hide every small count of a result: n, groups, tables, series and the facts of its codes."""
+    result.n = _hidden_count(result.n, min_count)
+    result.n_excluded = _hidden_count(result.n_excluded, min_count)
+    result.groups = [_hide_in(g, min_count, counting=False) for g in result.groups]
+    result.shape = _hide_in(result.shape, min_count, counting=False)
+    result.extra = _hide_in(result.extra, min_count, counting=False)
+    result.reasons = [_hide_facts(r, min_count) for r in result.reasons]
+    result.notes = [_hide_facts(n, min_count) for n in result.notes]
+    if result.skipped is not None:
+        result.skipped = _hide_facts(result.skipped, min_count)
 
 
 # ---------------------------------------------------------------- entry point
@@ -403,7 +360,6 @@ __all__ = [
     "DEFAULT_MIN_COUNT",
     "SUPPRESSED_TEXT",
     "is_small_count",
-    "scrub_text",
     "suppress",
     "suppress_model",
     "suppress_result",

@@ -21,7 +21,7 @@ from statmargin.plan.model import Settings
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats._common import caveat, check_confidence
 from statmargin.vocabulary import Alternative, Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Derived, Note, Skip, coded
 
 _DEFAULTS = Settings()
 DEFAULT_SEED = _DEFAULTS.seed
@@ -556,7 +556,7 @@ def chi_square_goodness_of_fit(
         extra.update(monte_carlo_resamples=monte_carlo_resamples, monte_carlo_se=se, seed=seed)
         caveat(
             notes,
-            coded(Note.MONTE_CARLO_P, n_small=n_small, n_cells=len(labels), small=n_small > 0,
+            coded(Note.MONTE_CARLO_P, n_small=Count(n_small), n_cells=len(labels), small=n_small > 0,
                   resamples=monte_carlo_resamples, se=se, margins=False),
         )
     else:
@@ -875,7 +875,7 @@ def chi_square_independence(
         extra.update(monte_carlo_resamples=resamples, monte_carlo_se=se, seed=seed)
         caveat(
             notes,
-            coded(Note.MONTE_CARLO_P, n_small=n_small, n_cells=n_cells, small=small,
+            coded(Note.MONTE_CARLO_P, n_small=Count(n_small), n_cells=n_cells, small=small,
                   resamples=resamples, se=se, margins=True),
         )
     else:
@@ -886,8 +886,8 @@ def chi_square_independence(
         if small:
             caveat(
                 notes,
-                coded(Note.EXPECTED_BELOW_5, n_small=n_small, n_cells=n_cells,
-                      smallest=float(expected.min()), two_by_two=is_2x2),
+                coded(Note.EXPECTED_BELOW_5, n_small=Count(n_small), n_cells=n_cells,
+                      smallest=Derived(expected.min()), two_by_two=is_2x2),
             )
 
     min_dim = min(nrow, ncol) - 1

@@ -17,9 +17,11 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
 BOOTSTRAP_RESAMPLES = 2000
+# Kruskal-Wallis's chi-square p is a rough guide below this many values in a group (common practice).
+KRUSKAL_SMALL_GROUP = 5
 BOOTSTRAP_SEED = 20240917  # fixed so the same data always give the same interval
 
 
@@ -445,7 +447,7 @@ def kruskal_wallis(
     h = kruskal_wallis_h(arrays)
     df = len(arrays) - 1
     if min(values.size for values in arrays) < 5:
-        common.caveat(notes, coded(Note.KRUSKAL_SMALL_GROUPS))
+        common.caveat(notes, coded(Note.KRUSKAL_SMALL_GROUPS, limit=Count(KRUSKAL_SMALL_GROUP)))
     low, high = _epsilon_bootstrap(arrays, n_total, confidence)
     summaries = [common.describe(label, values) for label, values in cleaned.items()]
     return Result(

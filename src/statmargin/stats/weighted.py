@@ -25,6 +25,7 @@ from statmargin.errors import NotEnoughDataError
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import correlation, effects, multigroup, onesample, paired, twogroup
+from statmargin.stats.multigroup import KRUSKAL_SMALL_GROUP
 from statmargin.stats.weighted_select import (
     collapse,
     median_pairwise_difference_weighted,
@@ -634,7 +635,7 @@ def kruskal_wallis(groups: Mapping[str, Weighted], *, alternative: str = "two-si
     h = kruskal_wallis_h(parts)
     df = len(parts) - 1
     if min(sizes) < 5:
-        common.caveat(notes, coded(Note.KRUSKAL_SMALL_GROUPS))
+        common.caveat(notes, coded(Note.KRUSKAL_SMALL_GROUPS, limit=Count(KRUSKAL_SMALL_GROUP)))
     if n_total <= BOOTSTRAP_REPEAT_LIMIT:
         low, high = multigroup._epsilon_bootstrap([np.repeat(v, c) for v, c in parts], n_total, confidence)
     else:

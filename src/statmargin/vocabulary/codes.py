@@ -30,6 +30,42 @@ class Count(int):
     __slots__ = ()
 
 
+class Derived(float):
+    """A number computed from counts that could give a small count back (an expected count).
+
+    Sharing mode drops it from the facts; a sentence then leaves it out.
+    """
+
+    __slots__ = ()
+
+
+class Hidden:
+    """A small count hidden by sharing mode, wherever a count stood (a fact, a group, a cell).
+
+    Words write it as "fewer than N", sheets as "<N"; JSON writes null.
+    """
+
+    __slots__ = ("floor",)
+
+    def __init__(self, floor: int) -> None:
+        self.floor = floor
+
+    def __format__(self, spec: str) -> str:
+        return f"fewer than {self.floor}"
+
+    def __str__(self) -> str:
+        return f"fewer than {self.floor}"
+
+    def __repr__(self) -> str:
+        return f"Hidden({self.floor})"
+
+    def __eq__(self, other: object) -> bool:
+        return isinstance(other, Hidden) and other.floor == self.floor
+
+    def __hash__(self) -> int:
+        return hash(("hidden", self.floor))
+
+
 class Skip(Word):
     """Why no test could be run."""
 

@@ -149,7 +149,7 @@ def cautions(
     """
     out: list[str] = []
     if result.skipped:
-        if result.n_excluded > 0:
+        if ctx.positive(result.n_excluded):
             out.append(_excluded_line(result.n_excluded, context))
         out.append(REVIEW_LINE)
         return out
@@ -171,7 +171,7 @@ def cautions(
     elif (
         not grouped
         and result.design not in (Design.TWO_CATEGORICAL, Design.ONE_SAMPLE_CATEGORICAL)
-        and 0 < result.n < SMALL_SAMPLE_LIMIT
+        and ctx.below(result.n, SMALL_SAMPLE_LIMIT)
     ):
         out.append(SMALL_SAMPLE_LINE.format(limit=SMALL_SAMPLE_LIMIT))
     smallest = min_expected(result)
@@ -190,7 +190,7 @@ def cautions(
         shown = "" if ctx.share_floor(context) is not None else f" (smallest {fmt_number(smallest, decimals_for(smallest))})"
         line = EXPECTED_LINE.format(smallest=shown, p_how=p_how)
         out.append(line)
-    if result.n_excluded > 0:
+    if ctx.positive(result.n_excluded):
         out.append(_excluded_line(result.n_excluded, context))
     p, _ = p_used(result)
     mag = effect_magnitude(result)

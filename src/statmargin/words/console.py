@@ -182,7 +182,7 @@ HELP: dict[str, str] = {
     'out': 'Write to this new file and leave WORKBOOK untouched.',
     'quiet': 'No progress lines.',
     'header_row': 'Row of the headers (default: first non-empty row).',
-    'share': "Sharing mode: hide small counts in the tool's sheets.",
+    'share': "Sharing mode: hide small counts, and what would reveal them, in everything written (sheets, JSON, this summary).",
     'event': (
         "The event level of a two-level outcome, e.g. Vaccinated=Yes: the share readings report "
         "(default: inferred from words such as Yes, Pass, Positive, 1). Repeatable."

@@ -11,6 +11,8 @@ import re
 from collections.abc import Mapping
 from typing import Any
 
+from ..vocabulary.codes import Hidden
+
 DEFAULT_SHARE_FLOOR = 11  # the sharing-mode default (sheets.share.DEFAULT_MIN_COUNT)
 
 
@@ -63,6 +65,18 @@ def share_floor(context: Any) -> int | None:
         return None
     floor = get(context, "share_min_count", None)
     return int(floor) if isinstance(floor, int) and floor > 1 else DEFAULT_SHARE_FLOOR
+
+
+def positive(count: Any) -> bool:
+    """A count above zero; a count hidden by sharing mode is one (it hides 1 to N-1)."""
+    return isinstance(count, Hidden) or (isinstance(count, int) and count > 0)
+
+
+def below(count: Any, limit: int) -> bool:
+    """A count above zero and under ``limit``; a hidden count is, whenever the limit reaches its floor."""
+    if isinstance(count, Hidden):
+        return limit >= count.floor
+    return isinstance(count, int) and 0 < count < limit
 
 
 def count_text(count: Any, context: Any = None) -> str:

@@ -3,6 +3,10 @@
 from __future__ import annotations
 
 
+def cells_noted(count: str) -> str:
+    return f"{count} cells were skipped, converted or merged while reading; each cell address links to the cell."
+
+
 def merged_into(kept: str) -> str:
     return f"merged into {kept!r}"
 

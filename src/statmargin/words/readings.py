@@ -268,8 +268,7 @@ def _multi_group_answer(result: Result, settings: Settings, context: Any, n_fami
         size = f"{_n(est.value, decimals)}{units}"
         gap = f"; the widest gap is {high} over {low}, {_n(est.value, decimals)}{units}"
     if ev.significant:
-        flagged = [f for f in result.followups if f.flagged]
-        pairs = f"; {len(flagged)} of the pairs below stand out" if flagged else ""
+        pairs = "; the pairs of groups that stand out are marked below" if any(f.flagged for f in result.followups) else ""
         text = f"{ev.words.capitalize()} that {outcome} differs by {by} ({ev.p_text}){gap}{pairs}."
     else:
         text = f"With {ev.words} ({ev.p_text}) the data are compatible with no difference by {by}{gap}."

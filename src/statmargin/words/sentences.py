@@ -15,31 +15,10 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from typing import Any
 
-from ..vocabulary.codes import Caution, Coded, Note, Reason, Skip
+from ..vocabulary.codes import Caution, Coded, Hidden, Note, Reason, Skip
 from .numbers import fmt_p
 
 Facts = Mapping[str, Any]
-
-
-class Hidden:
-    """A small count hidden by sharing mode; it formats as 'fewer than N'."""
-
-    __slots__ = ("floor",)
-
-    def __init__(self, floor: int) -> None:
-        self.floor = floor
-
-    def __format__(self, spec: str) -> str:
-        return f"fewer than {self.floor}"
-
-    def __str__(self) -> str:
-        return f"fewer than {self.floor}"
-
-    def __eq__(self, other: object) -> bool:
-        return isinstance(other, Hidden) and other.floor == self.floor
-
-    def __hash__(self) -> int:
-        return hash(("hidden", self.floor))
 
 
 def number(value: Any) -> str:
@@ -64,9 +43,19 @@ def _too_few_values(f: Facts) -> str:
     )
 
 
+def _few(noun: str, limit: Any) -> str:
+    """'fewer than 5 values', or 'very few values' when sharing mode hid the threshold (it would narrow a count)."""
+    return f"very few {noun}" if isinstance(limit, Hidden) else f"fewer than {limit} {noun}"
+
+
+def _how_many_of(part: Any, whole: Any) -> str:
+    """'3 of 9', or 'some of the' when sharing mode hid the part."""
+    return "some of the" if isinstance(part, Hidden) else f"{part} of {whole}"
+
+
 def _monte_carlo(f: Facts) -> str:
     reason = (
-        f"{f['n_small']} of {f['n_cells']} expected counts are below 5, so the chi-square "
+        f"{_how_many_of(f['n_small'], f['n_cells'])} expected counts are below 5, so the chi-square "
         "approximation may be poor; "
         if f.get("small", True)
         else ""
@@ -86,8 +75,8 @@ def _expected_below_5(f: Facts) -> str:
     )
     smallest = f.get("smallest")
     shown = "" if smallest is None else f" (smallest {smallest:.2g})"
-    return (
-        f"{f['n_small']} of {f['n_cells']} expected counts are below 5{shown}, so the "
+    return capitalized(
+        f"{_how_many_of(f['n_small'], f['n_cells'])} expected counts are below 5{shown}, so the "
         f"chi-square approximation may be poor; {advice}"
     )
 
@@ -252,9 +241,9 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
         "The effect size and its interval come from the classic sums of squares; they describe the "
         "share of variation between groups and do not use Welch's weighting."
     ),
-    Note.KRUSKAL_SMALL_GROUPS: (
-        "At least one group has fewer than 5 values, so the chi-square p-value of Kruskal-Wallis is "
-        "only a rough guide."
+    Note.KRUSKAL_SMALL_GROUPS: lambda f: (
+        f"At least one group has {_few('values', f.get('limit', 5))}, so the chi-square p-value of "
+        "Kruskal-Wallis is only a rough guide."
     ),
     Note.CI_NOT_REACHABLE: lambda f: (
         f"With so few values the {f['confidence']:.0%} interval for the pseudo-median cannot be "
@@ -332,6 +321,12 @@ def shape_phrase(f: Facts) -> str:
     return f"{outcome} is {first['verdict']}"
 
 
+def _smallest(f: Facts) -> str:
+    """' (smallest 3.2)', or nothing when sharing mode dropped it."""
+    smallest = f.get("smallest")
+    return "" if smallest is None else f" (smallest {smallest:.3g})"
+
+
 def _followup_pairs(f: Facts) -> str:
     from .explain import TEST_NAMES
 
@@ -346,14 +341,14 @@ def _followup_pairs(f: Facts) -> str:
 
 REASON_TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = {
     Reason.ONE_SHARE_BINOMIAL: "One share was given for {outcome}, so the exact binomial test was used.",
-    Reason.SMALL_EXPECTED_BINOMIAL: (
-        "An expected count is below 5 (smallest {smallest:.3g}), so the exact binomial test was used "
-        "instead of chi-square (Cochran's rule)."
+    Reason.SMALL_EXPECTED_BINOMIAL: lambda f: (
+        f"An expected count is below 5{_smallest(f)}, so the exact binomial test was used instead of "
+        "chi-square (Cochran's rule)."
     ),
     Reason.GOODNESS_OF_FIT: "{outcome} is compared with the given shares by a chi-square goodness-of-fit test.",
-    Reason.SMALL_EXPECTED_FISHER: (
-        "An expected count is below 5 (smallest {smallest:.3g}) in a 2x2 table, so Fisher's exact test "
-        "was used (Cochran's rule)."
+    Reason.SMALL_EXPECTED_FISHER: lambda f: (
+        f"An expected count is below 5{_smallest(f)} in a 2x2 table, so Fisher's exact test was used "
+        "(Cochran's rule)."
     ),
     Reason.CHI_SQUARE_INDEPENDENCE: (
         "{outcome} and {by} are both categories, so a chi-square test of independence was used."
