@@ -15,6 +15,7 @@ import random
 import numpy as np
 import pytest
 
+from statmargin.io.memory import MemoryWorkbook
 from statmargin.read import reader
 from statmargin.read.reader import classify_cell, read_table
 
@@ -23,30 +24,6 @@ ODD_CELLS = [
     "", None, "   ", "North", " South ", "NA", "n/a", "#N/A", "<5", "1,250", "12.5%", "2 400",
     True, False, 1, 0, dt.date(2024, 1, 2), dt.datetime(2024, 1, 2, 12, 30), math.nan, "see notes",
 ]
-
-
-class RowsSource:
-    """A minimal workbook source over a list of rows (first row: headers)."""
-
-    display = "invented rows"
-
-    def __init__(self, rows: list[list]) -> None:
-        self.rows = rows
-
-    def sheet_names(self) -> list[str]:
-        return ["Data"]
-
-    def tool_sheets(self) -> dict[str, str]:
-        return {}
-
-    def tables(self, sheet: str) -> list:
-        return []
-
-    def merged_ranges(self, sheet: str) -> list:
-        return []
-
-    def iter_rows(self, sheet: str):
-        return iter(self.rows)
 
 
 def _cell(rng: random.Random, numeric_share: float):
@@ -92,7 +69,7 @@ def test_batches_match_cell_by_cell_rules(seed, monkeypatch):
     """Numbers, labels and counts equal the one-cell-at-a-time classification, across mode switches."""
     monkeypatch.setattr(reader, "BATCH_ROWS", 7)
     rows = _rows(seed, 300)
-    table = read_table(None, source=RowsSource(rows))
+    table = read_table(None, source=MemoryWorkbook.from_sheets({"Data": rows}))
     assert table.n_rows_read == len(rows) - 1
     for j, name in enumerate(["A", "B", "C"]):
         numbers, labels, blank, unreadable, dates, noted = _expected([r[j] for r in rows[1:]])
@@ -107,6 +84,6 @@ def test_true_and_one_keep_their_own_meaning(monkeypatch):
     """TRUE stays the label "TRUE" and the number 1 stays a number, even in one batch."""
     monkeypatch.setattr(reader, "BATCH_ROWS", 4)
     rows = [["A"], [1.0], [True], [1], ["x"], [True], [1.0], [1], [False], [0]]
-    column = read_table(None, source=RowsSource(rows)).columns["A"]
+    column = read_table(None, source=MemoryWorkbook.from_sheets({"Data": rows})).columns["A"]
     assert column.labels.tolist() == [None, "TRUE", None, "x", "TRUE", None, None, "FALSE", None]
     np.testing.assert_array_equal(column.numbers, [1, np.nan, 1, np.nan, np.nan, 1, 1, np.nan, 0])

@@ -911,9 +911,7 @@ def _read(
             row0 += count
             if progress is not None:
                 progress(at + count, max(expected, at + count))
-    release = getattr(source, "release", None)
-    if release is not None:
-        release()  # the loaded sheet's cells are no longer needed: free them before the analyses
+    source.release()  # the loaded sheet's cells are no longer needed: free them before the analyses
 
     n_seen = row0 - first_data_row
     content_all = content_all[:n_seen]
@@ -986,14 +984,11 @@ def _read(
     return result
 
 
-def _expected_rows(source: Any, sheet: str, layout: _Layout) -> int:
+def _expected_rows(source: WorkbookSource, sheet: str, layout: _Layout) -> int:
     """Data rows to make room for: the table's, else the source's last row (grown if short)."""
     if layout.last_row is not None:
         return max(0, layout.last_row - layout.header_row)
-    last = getattr(source, "last_row", None)
-    if last is None:
-        return BATCH_ROWS
-    return max(0, int(last(sheet)) - layout.header_row)
+    return max(0, int(source.last_row(sheet)) - layout.header_row)
 
 
 def _transpose(batch: list[list[Any]], need: int) -> list[tuple[Any, ...]]:
@@ -1015,7 +1010,7 @@ class _IssueScan:
     costs little extra wall time on a machine with two or more cores.
     """
 
-    def __init__(self, source: Any, sheet: str) -> None:
+    def __init__(self, source: WorkbookSource, sheet: str) -> None:
         self.found: dict[tuple[int, int], tuple[str, str]] = {}
         self.error: BaseException | None = None
         self.thread: threading.Thread | None = None
