@@ -363,11 +363,11 @@ def _run_folder(folder: Path, *, out: Path | None, share: bool, min_count: int |
     from .words import period_words
 
     check_json_target(json_path)
-    bar = _progress(quiet or json_path == "-")
-    done_folder = run_folder(
-        folder, pattern, jobs=jobs, summary=summary, summary_path=out, share=share, min_count=min_count,
-        progress=lambda done, total, outcome: bar(period_words.FOLDER_PROGRESS, done=done, total=total),
-    )
+    with _progress(quiet or json_path == "-") as bar:
+        done_folder = run_folder(
+            folder, pattern, jobs=jobs, summary=summary, summary_path=out, share=share, min_count=min_count,
+            progress=lambda done, total, outcome: bar(period_words.FOLDER_PROGRESS, done=done, total=total),
+        )
     if json_path != "-":
         for line in period_words.folder_report(done_folder):
             click.echo(line)
