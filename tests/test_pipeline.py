@@ -180,14 +180,14 @@ class TestRunOnReferenceData:
         path = plant_growth(tmp_path / "plants.xlsx")
         plan_workbook(path, outcome=["weight"], by=["group"])
         steps: list[str] = []
-        counts: list[tuple[int, int]] = []
+        counts: list[tuple[str, int, int]] = []
 
         def hear(message: str, done: int | None = None, total: int | None = None) -> None:
             if done is None:
                 steps.append(message.split()[0])
             else:
-                counts.append((done, total))
+                counts.append((message, done, total))
 
         run_workbook(path, progress=hear)
-        assert steps == ["reading", "running", "writing"]
-        assert counts == [(1, 1)]
+        assert steps == ["reading", "running", "adjusting", "building", "writing"]
+        assert counts == [("reading rows", 30, 30), ("running analyses", 1, 1)]

@@ -12,6 +12,7 @@ shows the full traceback instead.
 
 from __future__ import annotations
 
+import contextlib
 import functools
 import json
 import sys
@@ -188,24 +189,15 @@ def write_json(document: dict[str, Any], path: str, *, protect: Path | None = No
         raise errors.OptionError(console.json_not_written(path, str(err.strerror or err))) from None
 
 
-def _progress(quiet: bool) -> Callable[..., None]:
-    """Step lines and a bar over the analyses on standard error; stdout stays clean."""
-    # Only on a terminal: scripts and logs then get exactly one line on standard error when
-    # something goes wrong, and nothing when all is well.
+def _progress(quiet: bool) -> contextlib.AbstractContextManager[Callable[..., None]]:
+    """Progress of long steps on standard error (stdout stays clean): a bar on a terminal,
+    plain lines every few seconds elsewhere; nothing with --quiet."""
+    if quiet:
+        return contextlib.nullcontext(lambda message, done=None, total=None: None)
+    from .progress import ProgressDisplay
+
     stream = click.get_text_stream("stderr")
-    show = not quiet and stream.isatty()
-
-    def say(message: str, done: int | None = None, total: int | None = None) -> None:
-        if not show:
-            return
-        if done is None or not total:
-            click.echo(console.progress_step(message), err=True)
-            return
-        end = "\n" if done == total else ""
-        stream.write("\r" + console.progress_bar(done, total, message) + end)
-        stream.flush()
-
-    return say
+    return ProgressDisplay(stream, terminal=stream.isatty())
 
 
 # ---------------------------------------------------------------- the group
@@ -322,11 +314,12 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 
     meta = click.get_current_context().meta
     check_json_target(json_path, workbook, out)
-    summary = plan_workbook(
-        workbook, sheet=sheet, header_row=header_row, outcome=outcome, by=by, pairing_key=pairing_key,
-        treat=treat, against=against, paired_with=paired_with + tuple(meta.get("old_paired_with", ())),
-        event=event, events=events, out_of=out_of, per=per, count=count, period=period, out=out,
-    )
+    with _progress(json_path == "-") as progress:
+        summary = plan_workbook(
+            workbook, sheet=sheet, header_row=header_row, outcome=outcome, by=by, pairing_key=pairing_key,
+            treat=treat, against=against, paired_with=paired_with + tuple(meta.get("old_paired_with", ())),
+            event=event, events=events, out_of=out_of, per=per, count=count, period=period, out=out, progress=progress,
+        )
     if json_path != "-":
         click.echo(console.plan_summary(summary, workbook.name))
     if json_path:
@@ -363,10 +356,9 @@ def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | 
                     summary=write_summary, json_path=json_path, quiet=quiet)
         return
     check_json_target(json_path, workbook, out)
-    with warnings.catch_warnings():
+    with warnings.catch_warnings(), _progress(quiet or json_path == "-") as progress:
         warnings.simplefilter("ignore")  # caveats are in each result's notes
-        summary = run_workbook(workbook, out=out, share=share, min_count=min_count,
-                               progress=_progress(quiet or json_path == "-"))
+        summary = run_workbook(workbook, out=out, share=share, min_count=min_count, progress=progress)
     if json_path != "-":
         click.echo(console.run_summary(summary))
     if json_path:
@@ -380,11 +372,11 @@ def _run_folder(folder: Path, *, out: Path | None, share: bool, min_count: int |
     from .words import period_words
 
     check_json_target(json_path)
-    bar = _progress(quiet or json_path == "-")
-    done_folder = run_folder(
-        folder, pattern, jobs=jobs, summary=summary, summary_path=out, share=share, min_count=min_count,
-        progress=lambda done, total, outcome: bar(period_words.FOLDER_PROGRESS, done=done, total=total),
-    )
+    with _progress(quiet or json_path == "-") as bar:
+        done_folder = run_folder(
+            folder, pattern, jobs=jobs, summary=summary, summary_path=out, share=share, min_count=min_count,
+            progress=lambda done, total, outcome: bar(period_words.FOLDER_PROGRESS, done=done, total=total),
+        )
     if json_path != "-":
         for line in period_words.folder_report(done_folder):
             click.echo(line)
@@ -408,9 +400,9 @@ def demo_command(folder: Path, quiet: bool) -> None:
     """
     from .jobs.demo import run_demo
 
-    with warnings.catch_warnings():
+    with warnings.catch_warnings(), _progress(quiet) as progress:
         warnings.simplefilter("ignore")
-        summaries = run_demo(folder, progress=_progress(quiet))
+        summaries = run_demo(folder, progress=progress)
     for summary in summaries:
         click.echo(console.run_summary(summary))
         click.echo("")

@@ -256,6 +256,13 @@ class MemoryWorkbook:
         first_col = held.first_col()
         return first_col, (row[first_col:] for row in held.rows)
 
+    def last_row(self, sheet: str) -> int:
+        """Rows held for the sheet (trailing empty rows included)."""
+        return len(self.sheet(sheet).rows)
+
+    def release(self) -> None:
+        """Nothing to free: the rows are the workbook itself."""
+
     def tables(self, sheet: str) -> list[TableRange]:
         """The tables given for the sheet."""
         return list(self.sheet(sheet).tables)

@@ -158,6 +158,18 @@ class WorkbookSource(Protocol):
         """
         ...
 
+    def last_row(self, sheet: str) -> int:
+        """1-based number of the last row holding a value (0 for an empty sheet).
+
+        Readers size their arrays with it before the rows stream in; a back end
+        that cannot tell cheaply may answer low (the reader then grows them).
+        """
+        ...
+
+    def release(self) -> None:
+        """Free any copy of the sheet read last; a later read reads it again (may do nothing)."""
+        ...
+
     def tables(self, sheet: str) -> list[TableRange]:
         """Excel tables (ListObjects) on a worksheet, in the order the sheet lists them.
 

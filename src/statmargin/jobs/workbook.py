@@ -13,6 +13,7 @@ from datetime import datetime, timezone
 from pathlib import Path
 from typing import Any
 
+from .. import stages
 from .._version import __version__
 from ..errors import RoleError
 from ..io.protocol import WorkbookSink, WorkbookSource, WriteReport
@@ -25,6 +26,7 @@ from ..read.table import Table
 from ..sheets.share import DEFAULT_MIN_COUNT, suppress
 from ..vocabulary import MeasureType, Role
 from ..words import console, refusals
+from ..words import progress as words
 from ..words.cautions import count_comparisons
 
 # Called as each step starts; during the analyses also with (done, total) so a
@@ -131,6 +133,7 @@ def plan_workbook(
     out: str | Path | None = None,
     source: WorkbookSource | None = None,
     sink: WorkbookSink | None = None,
+    progress: Progress | None = None,
 ) -> PlanSummary:
     """Add or refresh the roles sheet, keeping every choice the user already made.
 
@@ -151,6 +154,8 @@ def plan_workbook(
         column; ``count`` marks a frequency weight and ``period`` the date or period column.
     out
         Write to this new file instead of ``path`` (which is then left untouched).
+    progress
+        Called with a short message as each step starts, and with counts while rows are read.
     """
     from ..plan.types import infer_type, usable_values
     from ..read.reader import first_data_sheet, read_table, sample_values
@@ -158,10 +163,17 @@ def plan_workbook(
     source, sink, opened = _backends(path, source, sink)
     previous = read_roles(source)
     plan = previous.plan if previous else Plan()
+    say = progress or (lambda message, done=None, total=None: None)
+    say(console.reading_sheet(sheet or plan.sheet) if sheet or plan.sheet else words.FINDING_DATA)
     data_sheet = sheet or plan.sheet or first_data_sheet(source)
     if header_row is None and plan.sheet == data_sheet:
         header_row = plan.header_row
-    table = read_table(path, sheet=data_sheet, header_row=header_row, source=source)
+    say(console.reading_sheet(data_sheet))
+    table = read_table(
+        path, sheet=data_sheet, header_row=header_row, source=source,
+        progress=lambda done, total: say(words.READING_ROWS, done=done, total=total),
+    )
+    say(words.INFERRING_TYPES)
     if opened is not None:
         opened.close()  # everything is read; the write does not need the source
 
@@ -196,7 +208,9 @@ def plan_workbook(
     model = build_roles_sheet(
         facts, new_plan, data_sheet=data_sheet, header_row=table.header_row, missing=missing, new=new
     )
-    report = sink.write_sheets([model], out=str(out) if out else None)
+    say(words.WRITING_ROLES)
+    with stages.stage("write"):
+        report = sink.write_sheets([model], out=str(out) if out else None)
     return PlanSummary(
         path=report.path,
         data_sheet=data_sheet,
@@ -300,26 +314,42 @@ def run_workbook(
 
     say = progress or (lambda message, done=None, total=None: None)
     started = time.perf_counter()
-    source, sink, opened = _backends(path, source, sink)
-    sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
-    roles = read_roles(source)
+    with stages.stage("open"):
+        source, sink, opened = _backends(path, source, sink)
+        sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
+        roles = read_roles(source)
     if roles is None:
         raise RoleError(refusals.no_roles_sheet(source.display_name))
     plan = roles.plan
     _check_roles(plan, roles)
     used = _used_columns(plan)
     say(console.reading_sheet(plan.sheet))
-    table = read_table(path, sheet=plan.sheet, header_row=plan.header_row, columns=used, source=source)
-    say(console.running_on_rows(len(table.rows)))
-    answers = run_answers(
-        table, plan, progress=lambda done, total: say(console.RUNNING, done=done, total=total)
+    table = read_table(
+        path, sheet=plan.sheet, header_row=plan.header_row, columns=used, source=source,
+        progress=lambda done, total: say(words.READING_ROWS, done=done, total=total),
     )
+    say(console.running_on_rows(len(table.rows)))
+    analyses_start = time.perf_counter()
+    last_analysis = [analyses_start]
+
+    def analysis_done(done: int, total: int) -> None:
+        last_analysis[0] = time.perf_counter()
+        say(console.RUNNING, done=done, total=total)
+        if done == total:
+            say(words.FOLLOW_UPS)
+
+    answers = run_answers(table, plan, progress=analysis_done)
+    # run_answers adjusts p-values and runs the follow-ups after its last progress call.
+    stages.add("analyses", last_analysis[0] - analyses_start)
+    stages.add("follow-ups", time.perf_counter() - last_analysis[0])
     results = [answer.result for answer in answers]
     family = count_comparisons(results)
     if share:
         # Hidden on values before any sentence is made, so the sheets, the JSON and the
         # terminal summary all carry the same suppressed numbers.
         results = suppress(results, min_count or DEFAULT_MIN_COUNT)
+    say(words.BUILDING_SHEETS)
+    report_start = time.perf_counter()
     context = report.ReportContext.from_run(
         workbook=source.display_name,
         table=table,
@@ -332,14 +362,16 @@ def run_workbook(
         share_min_count=(min_count or DEFAULT_MIN_COUNT) if share else None,
     )
     explain_results(results, plan.settings, context, n_comparisons=family)
-    say(console.WRITING)
     previous_log = _previous_log_rows(source)
     if opened is not None:
         opened.close()  # everything is read; the write does not need the source
     models = report.build_sheets(results, table, context, previous_log=previous_log)
     if share:
         models = suppress(models, context.share_min_count)
-    write = sink.write_sheets(models, out=str(out) if out else None)
+    stages.add("report", time.perf_counter() - report_start)
+    say(console.WRITING)
+    with stages.stage("write"):
+        write = sink.write_sheets(models, out=str(out) if out else None)
     return RunSummary(
         path=write.path,
         data_sheet=table.sheet,

@@ -23,10 +23,12 @@ their numbers.
 
 from __future__ import annotations
 
+import time
 from dataclasses import dataclass, field
 
 import numpy as np
 
+from .. import stages
 from ..errors import RoleError
 from ..read.table import Column
 from ..vocabulary import MeasureType
@@ -94,12 +96,56 @@ def format_number(value: float) -> str:
     return repr(float(value))
 
 
+def _not_none(labels: np.ndarray) -> np.ndarray:
+    """Mask of the entries of an object array that are not None (an elementwise C loop)."""
+    # numpy's stubs reject None as an operand; at run time it compares element by element.
+    return np.not_equal(labels, None)  # type: ignore[call-overload]
+
+
+def _frozen(array: np.ndarray) -> np.ndarray:
+    """The array made read-only, since it is shared through the column's cache."""
+    array.flags.writeable = False
+    return array
+
+
+def _text_codes(column: Column) -> tuple[np.ndarray, list[str]]:
+    """Each row's index into the column's distinct stripped texts (-1: no text), and those texts.
+
+    Notes
+    -----
+    Distinct values are found by hashing (``pandas.factorize``), so each distinct
+    text is stripped once however many rows repeat it.
+    """
+    import pandas as pd
+
+    cached = column.cache.get("text codes")
+    if cached is not None:
+        return cached
+    labels = column.labels
+    codes = np.full(labels.shape[0], -1, dtype=np.int64)
+    texts: list[str] = []
+    has = _not_none(labels)
+    if has.any():
+        found, uniques = pd.factorize(labels[has])
+        stripped = [str(u).strip() for u in uniques]
+        keep = np.array([t != "" for t in stripped], dtype=bool)
+        # Renumber so blank texts drop out and the codes index the non-blank texts.
+        renumber = np.where(keep, np.cumsum(keep) - 1, -1)
+        codes[has] = renumber[found]
+        texts = [t for t, k in zip(stripped, keep, strict=True) if k]
+    column.cache["text codes"] = (_frozen(codes), texts)
+    return codes, texts
+
+
 def _present(column: Column) -> tuple[np.ndarray, np.ndarray]:
-    """Masks of cells holding a number and cells holding text."""
-    has_number = ~np.isnan(column.numbers)
-    has_text = np.array([lab is not None and str(lab).strip() != "" for lab in column.labels], dtype=bool)
-    has_text &= ~has_number
-    return has_number, has_text
+    """Masks of cells holding a number and cells holding text (read-only, computed once per column)."""
+    cached = column.cache.get("present")
+    if cached is None:
+        has_number = ~np.isnan(column.numbers)
+        codes, _ = _text_codes(column)
+        has_text = (codes >= 0) & ~has_number
+        cached = column.cache["present"] = (_frozen(has_number), _frozen(has_text))
+    return cached
 
 
 def _is_numeric(column: Column) -> bool:
@@ -108,19 +154,33 @@ def _is_numeric(column: Column) -> bool:
 
 
 def category_labels(column: Column) -> np.ndarray:
-    """Every row's category label (numbers formatted, text stripped), None where blank."""
-    has_number, has_text = _present(column)
+    """Every row's category label (numbers formatted, text stripped), None where blank.
+
+    The array is computed once per column and shared, so it is read-only.
+    """
+    cached = column.cache.get("labels")
+    if cached is not None:
+        return cached
+    has_number, _ = _present(column)
     out = np.full(len(column), None, dtype=object)
-    for i in np.flatnonzero(has_number):
-        out[i] = format_number(column.numbers[i])
-    for i in np.flatnonzero(has_text):
-        out[i] = str(column.labels[i]).strip()
+    if has_number.any():
+        distinct, inverse = np.unique(column.numbers[has_number], return_inverse=True)
+        shown = np.array([format_number(v) for v in distinct.tolist()], dtype=object)
+        out[has_number] = shown[inverse.ravel()]
+    codes, texts = _text_codes(column)
+    has_text = (codes >= 0) & ~has_number
+    if has_text.any():
+        out[has_text] = np.array(texts, dtype=object)[codes[has_text]]
+    column.cache["labels"] = _frozen(out)
     return out
 
 
 def sorted_levels(labels: np.ndarray) -> tuple[str, ...]:
     """Distinct labels, numerically when all are numbers, else alphabetically."""
-    distinct = {lab for lab in labels if lab is not None}
+    import pandas as pd
+
+    present = labels[_not_none(labels)]
+    distinct = set(pd.unique(present).tolist()) if present.size else set()
     try:
         return tuple(sorted(distinct, key=float))
     except ValueError:
@@ -150,12 +210,22 @@ def infer_type(column: Column, choice: ColumnChoice | None = None) -> TypeInfo:
     numeric column with at most 10 distinct whole numbers as categorical is a rule
     of thumb (common practice, no single source); the user can override it.
     """
+    order = tuple(choice.order) if choice and choice.order else None
+    treat = choice.treat_as if choice else None
+    key = ("type", treat, order)
+    info = column.cache.get(key)
+    if info is None:
+        start = time.perf_counter()
+        info = column.cache[key] = _infer(column, treat, order)
+        stages.add("types", time.perf_counter() - start)
+    return info
+
+
+def _infer(column: Column, treat: MeasureType | None, order: tuple[str, ...] | None) -> TypeInfo:
+    """``infer_type`` without the cache."""
     name = column.name
     has_number, has_text = _present(column)
     n_filled = int(has_number.sum() + has_text.sum())
-    order = tuple(choice.order) if choice and choice.order else None
-    treat = choice.treat_as if choice else None
-
     if treat is not None:
         return _user_type(column, treat, order)
     if n_filled == 0:
@@ -163,13 +233,12 @@ def infer_type(column: Column, choice: ColumnChoice | None = None) -> TypeInfo:
     if column.n_dates * 2 >= n_filled:
         return TypeInfo(MeasureType.DATE, reason=f"{name} holds dates in {column.n_dates} of {n_filled} cells.")
 
-    labels = category_labels(column)
-    levels = order or sorted_levels(labels)
     if _is_numeric(column):
         numbers = column.numbers[has_number]
         whole = bool(np.all(np.mod(numbers, 1) == 0))
         n_distinct = len(np.unique(numbers))
         if whole and n_distinct <= MAX_CATEGORICAL_CODES:
+            levels = order or sorted_levels(category_labels(column))
             return TypeInfo(
                 MeasureType.CATEGORICAL,
                 n_levels=len(levels),
@@ -186,13 +255,17 @@ def infer_type(column: Column, choice: ColumnChoice | None = None) -> TypeInfo:
             )
         return TypeInfo(MeasureType.CONTINUOUS, reason=f"{name} holds numbers with {n_distinct} distinct values.")
 
+    import pandas as pd
+
+    labels = category_labels(column)
     texts = labels[has_text]
-    n_distinct = len(set(texts))
+    n_distinct = len(pd.unique(texts))
     if len(texts) > IDENTIFIER_MIN_N and n_distinct > IDENTIFIER_MIN_UNIQUE_SHARE * len(texts):
         return TypeInfo(
             MeasureType.IDENTIFIER,
             reason=f"{name} holds {n_distinct} different texts in {len(texts)} rows, so it is read as an identifier.",
         )
+    levels = order or sorted_levels(labels)
     return TypeInfo(
         MeasureType.CATEGORICAL,
         n_levels=len(levels),

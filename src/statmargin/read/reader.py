@@ -44,7 +44,8 @@ import hashlib
 import math
 import os
 import re
-from collections.abc import Iterator, Sequence
+import threading
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass, field
 from itertools import chain, islice
 from operator import itemgetter
@@ -52,6 +53,7 @@ from typing import Any
 
 import numpy as np
 
+from .. import stages
 from ..errors import ColumnNotFoundError, NotEnoughDataError, OptionError, WorkbookError
 from ..io.protocol import ERROR_ISSUE, CellIssues, TableRange, WorkbookSource
 from ..words.workbook_messages import no_workbook_given
@@ -585,6 +587,17 @@ class _NoteBook:
         elif count == NOTE_CAP + 1:
             self.first_over[kind] = row
 
+    def add_rows(self, kind: NoteKind, rows: np.ndarray, values: list[str], actions: list[str]) -> None:
+        """Notes for many cells of one kind at once (rows in order); only the first ``NOTE_CAP`` are kept."""
+        before = self.counts.get(kind, 0)
+        room = max(0, NOTE_CAP - before)
+        for row, value, action in zip(rows[:room].tolist(), values[:room], actions[:room], strict=True):
+            note = DataNote(self.sheet, f"{self.letter}{row}", self.column, value, kind, action)
+            self.notes.append((row, note))
+        if before + len(rows) > NOTE_CAP and kind not in self.first_over:
+            self.first_over[kind] = int(rows[room])
+        self.counts[kind] = before + len(rows)
+
     def summaries(self) -> list[DataNote]:
         out = []
         for kind, row in self.first_over.items():
@@ -609,6 +622,56 @@ _ACTIONS = {
 }
 
 
+class _Codebook:
+    """The distinct non-float values of one column, each classified once.
+
+    Label and date columns repeat few values many times, so each batch of cells
+    is turned into codes (one dict look-up per cell, in C) and everything else
+    is done on arrays indexed by code.
+    """
+
+    def __init__(self) -> None:
+        self.index: dict[Any, int] = {}
+        self.kinds = np.empty(0, dtype=np.int8)
+        self.numbers = np.empty(0, dtype=np.float64)
+        self.labels = np.empty(0, dtype=object)
+        self.raw: list[Any] = []  # the value of each code as it came
+        self.size = 0
+
+    def codes(self, values: Sequence[Any]) -> np.ndarray:
+        """The code of each value, classifying values not seen before."""
+        index = self.index
+        new = [v for v in set(values) if v not in index]  # may raise TypeError (unhashable)
+        if new:
+            self._grow(len(new))
+            for value in new:
+                index[value] = self.add(value)
+        return np.fromiter(map(index.__getitem__, values), dtype=np.int64, count=len(values))
+
+    def add(self, value: Any) -> int:
+        """A new code for ``value`` (a boolean comes wrapped in a 1-tuple); room must be there."""
+        raw = value[0] if type(value) is tuple else value
+        kind, number, label = classify_cell(raw)
+        if kind == _NUM and number != number:
+            kind = _BLANK  # a NaN float (possible from other sources) is a blank
+        code = self.size
+        self.kinds[code], self.numbers[code], self.labels[code] = kind, number, label
+        self.raw.append(raw)
+        self.size += 1
+        return code
+
+    def _grow(self, extra: int) -> None:
+        need = self.size + extra
+        if need <= self.kinds.shape[0]:
+            return
+        capacity = max(need, 2 * self.kinds.shape[0], 64)
+        for name in ("kinds", "numbers", "labels"):
+            old = getattr(self, name)
+            grown = np.empty(capacity, dtype=old.dtype)
+            grown[: self.size] = old[: self.size]
+            setattr(self, name, grown)
+
+
 @dataclass
 class _ColumnState:
     """Arrays and counts being filled for one column."""
@@ -617,100 +680,114 @@ class _ColumnState:
     offset: int  # position in each source row
     letter: str
     notes: _NoteBook
-    numbers: list[np.ndarray] = field(default_factory=list)
-    labels: list[np.ndarray] = field(default_factory=list)
+    numbers: np.ndarray  # the whole column, filled batch by batch
+    labels: np.ndarray
     n_blank: int = 0
     n_unreadable: int = 0
     n_dates: int = 0
     error_rows: set[int] = field(default_factory=set)  # rows whose text was an error code
-    cache: dict[Any, tuple[int, float, str | None]] = field(default_factory=dict)
+    codebook: _Codebook = field(default_factory=_Codebook)
+    texty: bool = False  # the last batch held mostly values other than numbers
+
+    def ensure(self, size: int) -> None:
+        """Room for ``size`` rows (the source's row count can be an underestimate)."""
+        have = self.numbers.shape[0]
+        if size > have:
+            grow = max(size, have + have // 2)
+            self.numbers = np.concatenate([self.numbers, np.full(grow - have, np.nan)])
+            self.labels = np.concatenate([self.labels, np.empty(grow - have, dtype=object)])
 
 
-_CACHE_LIMIT = 100_000  # distinct texts/dates remembered per column; bounds memory
+_NOTED = (_TEXTNUM, _MARKER, _ERROR, _SUPP)  # cell kinds that get a data note
+_FILLED = np.array([k not in (_BLANK,) for k in range(8)], dtype=bool)  # kinds that are an entry
 
 
-def _fill_batch(state: _ColumnState, values: Sequence[Any], row0: int, content: np.ndarray) -> None:
-    """Append one batch of a column's raw values to its typed arrays.
+def _fill_batch(
+    state: _ColumnState, values: Sequence[Any], row0: int, at: int, content: np.ndarray
+) -> None:
+    """Put one batch of a column's raw values into its typed arrays from position ``at``.
 
     Notes
     -----
-    Floats (numbers in the sheet) never leave C code: a batch of only floats is
-    one ``np.array`` call. Other cells are classified one by one, with the
-    result of each distinct text or date remembered, since label and date
-    columns repeat few values many times.
+    Two ways, chosen by what the column held in its previous batch, give the
+    same result. Mostly numbers: floats go to the array in one C-level step, and
+    only the other cells (blanks, texts, dates) are looked up in the column's
+    codebook. Mostly other values (labels, dates): every cell is looked up, one
+    dict look-up per cell. Notes are made only for the cells that need one.
     """
     count = len(values)
-    odd = [k for k, v in enumerate(values) if type(v) is not float]
-    if not odd:
-        numbers = np.array(values, dtype=np.float64)
-        present = ~np.isnan(numbers)  # a NaN float (possible from other sources) is a blank
-        content |= present
-        state.n_blank += count - int(present.sum())
-        state.numbers.append(numbers)
-        state.labels.append(np.empty(count, dtype=object))  # all None
-        return
-    fixed = list(values)
-    labels: list[str | None] = [None] * count
-    cache = state.cache
-    add_note = state.notes.add
-    n_blank = n_dates = 0
-    for k in odd:
-        raw = values[k]
-        if raw == "" or raw is None:
+    numbers = state.numbers[at : at + count]
+    book = state.codebook
+    if state.texty:
+        where = np.arange(count)
+        codes = _codes(book, values)
+        numbers[:] = book.numbers[codes]
+    else:
+        odd = [k for k, v in enumerate(values) if type(v) is not float]
+        if not odd:
+            numbers[:] = values
+            present = ~np.isnan(numbers)  # a NaN float (possible from other sources) is a blank
+            content |= present
+            state.n_blank += count - int(present.sum())
+            return
+        fixed = list(values)
+        for k in odd:
             fixed[k] = _NAN
-            n_blank += 1
-            continue
-        hit = cache.get(raw) if type(raw) is not bool else None
-        if hit is None:
-            hit = classify_cell(raw)
-            if type(raw) is not bool and len(cache) < _CACHE_LIMIT:
-                cache[raw] = hit
-        kind, number, label = hit
-        fixed[k] = number
-        if kind == _LABEL:
-            labels[k] = label
-            content[k] = True
-        elif kind == _NUM:
-            content[k] = True
-        elif kind == _DATE:
-            n_dates += 1
-            content[k] = True
-        elif kind == _BLANK:
-            n_blank += 1
-        elif kind == _TEXTNUM:
-            content[k] = True
-            shown = (
-                " (the % sign dropped; value kept in percent)"
-                if str(raw).rstrip().endswith("%")
-                else ""
-            )
-            add_note(
-                row0 + k,
-                NoteKind.TEXT_NUMBER,
-                str(raw),
-                f"converted to {format_number(number)}{shown}",
-            )
-        else:
-            content[k] = True
-            note_kind, action = _ACTIONS[kind]
-            if kind == _MARKER:
-                n_blank += 1
-            else:
-                state.n_unreadable += 1
-                if kind == _ERROR:
-                    state.error_rows.add(row0 + k)
-            add_note(row0 + k, note_kind, str(raw).strip(), action)
-    state.n_blank += n_blank
-    state.n_dates += n_dates
-    numbers = np.array(fixed, dtype=np.float64)
-    if len(odd) < count:
+        numbers[:] = fixed
+        where = np.array(odd, dtype=np.int64)
         is_float = np.ones(count, dtype=bool)
-        is_float[odd] = False
-        present = ~np.isnan(numbers)
-        content |= present & is_float
-        state.n_blank += int((is_float & ~present).sum())
-    state.numbers.append(numbers)
-    state.labels.append(np.array(labels, dtype=object))
+        is_float[where] = False
+        present = ~np.isnan(numbers) & is_float
+        content |= present
+        state.n_blank += int(count - len(odd) - present.sum())
+        codes = _codes(book, [values[k] for k in odd])
+        numbers[where] = book.numbers[codes]
+    state.labels[at + where] = book.labels[codes]
+    kinds = book.kinds[codes]
+    content[where] |= _FILLED[kinds]
+    tally = np.bincount(kinds, minlength=8)
+    state.texty = (len(where) - int(tally[_NUM])) * 2 > count  # cells that were not numbers
+    state.n_blank += int(tally[_BLANK] + tally[_MARKER])
+    state.n_unreadable += int(tally[_ERROR] + tally[_SUPP])
+    state.n_dates += int(tally[_DATE])
+    for kind in _NOTED:
+        if tally[kind]:
+            _note_cells(state, kind, row0 + where[kinds == kind], codes[kinds == kind])
+
+
+def _codes(book: _Codebook, values: Sequence[Any]) -> np.ndarray:
+    """The codebook's code of each value (booleans kept apart from the numbers 0 and 1)."""
+    try:
+        distinct = set(values)
+        if (True in distinct or False in distinct) and any(type(v) is bool for v in values):
+            # True == 1 == 1.0 as dict keys: wrap booleans so each keeps its own code.
+            values = [(v,) if type(v) is bool else v for v in values]
+        return book.codes(values)
+    except TypeError:  # an unhashable value from an unusual source: classify cell by cell
+        book._grow(len(values))
+        return np.array([book.add(value) for value in values], dtype=np.int64)
+
+
+def _note_cells(state: _ColumnState, kind: int, rows: np.ndarray, codes: np.ndarray) -> None:
+    """Data notes for the cells of one kind in a batch (at most ``NOTE_CAP`` are made)."""
+    book = state.codebook
+    head = codes[: NOTE_CAP + 1].tolist()
+    raws = [book.raw[c] for c in head]
+    if kind == _ERROR:
+        state.error_rows.update(rows.tolist())
+    if kind == _TEXTNUM:
+        texts = [str(r) for r in raws]
+        numbers = book.numbers[head].tolist()
+        actions = [_converted(t, n) for t, n in zip(texts, numbers, strict=True)]
+        state.notes.add_rows(NoteKind.TEXT_NUMBER, rows, texts, actions)
+    else:
+        note_kind, action = _ACTIONS[kind]
+        state.notes.add_rows(note_kind, rows, [str(r).strip() for r in raws], [action] * len(raws))
+
+
+def _converted(text: str, number: float) -> str:
+    shown = " (the % sign dropped; value kept in percent)" if text.rstrip().endswith("%") else ""
+    return f"converted to {format_number(number)}{shown}"
 
 
 def read_table(
@@ -721,6 +798,7 @@ def read_table(
     columns: Sequence[str] | None = None,
     source: WorkbookSource | None = None,
     table: str | None = None,
+    progress: Callable[[int, int], None] | None = None,
 ) -> Table:
     """Read a sheet's data region into typed columns.
 
@@ -742,6 +820,8 @@ def read_table(
         An open source to read from instead of opening ``path``.
     table : str, optional
         Name of the Excel table to read when the sheet has several.
+    progress : callable, optional
+        Called with (rows read, rows expected) after each batch of rows.
 
     Returns
     -------
@@ -762,12 +842,13 @@ def read_table(
     the header's span (no header above them) are not read; each such column
     gets one note. See the module docstring for the cell rules.
     """
-    src, owned = _open_source(path, source)
-    try:
-        return _read(src, src.display_name, sheet, header_row, columns, table)
-    finally:
-        if owned:
-            src.close()
+    with stages.stage("read"):
+        src, owned = _open_source(path, source)
+        try:
+            return _read(src, src.display_name, sheet, header_row, columns, table, progress)
+        finally:
+            if owned:
+                src.close()
 
 
 def _read(
@@ -777,67 +858,76 @@ def _read(
     header_row: int | None,
     columns: Sequence[str] | None,
     table: str | None,
+    progress: Callable[[int, int], None] | None = None,
 ) -> Table:
     sheet = _first_data_sheet(source, display) if sheet is None else source.resolve_sheet(sheet)
+    scan = _IssueScan(source, sheet)  # runs while the sheet loads (the load releases the GIL)
     layout = _locate(source, sheet, header_row, table, display)
     chosen = _select(layout, columns)
+    first_data_row = layout.header_row + 1
+    expected = _expected_rows(source, sheet, layout)
     states = [
         _ColumnState(
             head=h,
             offset=h.index - layout.first_col,
             letter=column_letter(h.index),
             notes=_NoteBook(sheet, h.name, column_letter(h.index)),
+            numbers=np.full(expected, np.nan),
+            labels=np.empty(expected, dtype=object),
         )
         for h in chosen
     ]
     span = (layout.columns[0].index, layout.columns[-1].index)
     stray: dict[int, list[Any]] = {}  # column -> [first row, count] of values without a header
-    content_parts: list[np.ndarray] = []
-    first_data_row = layout.header_row + 1
+    content_all = np.zeros(expected, dtype=bool)  # rows holding an entry in a column read
     row0 = first_data_row
     rows = layout.rows
-    getters = [s.offset for s in states]
-    need = max(getters, default=-1) + 1
+    need = max((s.offset for s in states), default=-1) + 1
     check_stray = layout.table is None
-    while True:
-        size = BATCH_ROWS
-        if layout.last_row is not None:
-            size = min(size, layout.last_row - row0 + 1)
-            if size <= 0:
+    with stages.stage("read.convert"):
+        while True:
+            size = BATCH_ROWS
+            if layout.last_row is not None:
+                size = min(size, layout.last_row - row0 + 1)
+                if size <= 0:
+                    break
+            batch = _next_batch(rows, size, display)
+            if not batch:
                 break
-        batch = _next_batch(rows, size, display)
-        if not batch:
-            break
-        if need and min(map(len, batch)) < need:
-            batch = [r if len(r) >= need else list(r) + [None] * (need - len(r)) for r in batch]
-        content = np.zeros(len(batch), dtype=bool)
-        if len(getters) == 1:
-            slices: list[Sequence[Any]] = [list(map(itemgetter(getters[0]), batch))]
-        elif getters:
-            slices = list(zip(*map(itemgetter(*getters), batch), strict=True))
-        else:
-            slices = []
-        for state, values in zip(states, slices, strict=True):
-            _fill_batch(state, values, row0, content)
-        if check_stray:
-            _find_stray(batch, row0, layout.first_col, span, stray)
-        content_parts.append(content)
-        row0 += len(batch)
+            at, count = row0 - first_data_row, len(batch)
+            if at + count > content_all.shape[0]:
+                for state in states:
+                    state.ensure(at + count)
+                capacity = states[0].numbers.shape[0] if states else at + count
+                grown = np.zeros(capacity - content_all.shape[0], dtype=bool)
+                content_all = np.concatenate([content_all, grown])
+            if states:
+                by_column = _transpose(batch, need)
+                content = content_all[at : at + count]
+                for state in states:
+                    _fill_batch(state, by_column[state.offset], row0, at, content)
+            if check_stray:
+                _find_stray(batch, row0, layout.first_col, span, stray)
+            row0 += count
+            if progress is not None:
+                progress(at + count, max(expected, at + count))
+    source.release()  # the loaded sheet's cells are no longer needed: free them before the analyses
 
     n_seen = row0 - first_data_row
-    had_values = any(bool(part.any()) for part in content_parts)
+    content_all = content_all[:n_seen]
+    had_values = bool(content_all.any())
     # The source may stop before trailing cells it reads as empty (errors, uncalculated
     # formulas), so look for those up to the table's end, or the sheet's end.
-    issues = _cell_issues(source, sheet, first_data_row, layout.last_row, chosen)
+    issues = scan.issues(first_data_row, layout.last_row, chosen)
     beyond = max((row for row, _ in issues), default=0) - (first_data_row + n_seen - 1)
     if beyond > 0:
         for state in states:
-            state.numbers.append(np.full(beyond, np.nan))
-            state.labels.append(np.empty(beyond, dtype=object))
+            state.ensure(n_seen + beyond)
+            state.numbers[n_seen : n_seen + beyond] = np.nan
+            state.labels[n_seen : n_seen + beyond] = None
             state.n_blank += beyond
-        content_parts.append(np.zeros(beyond, dtype=bool))
+        content_all = np.concatenate([content_all, np.zeros(beyond, dtype=bool)])
         n_seen += beyond
-    content_all = np.concatenate(content_parts) if content_parts else np.zeros(0, dtype=bool)
     n_errors, n_no_value = _apply_issues(states, issues, first_data_row, content_all)
     if not had_values and n_no_value and not n_errors:
         raise WorkbookError(
@@ -857,17 +947,17 @@ def _read(
     cell_notes: list[tuple[int, int, DataNote]] = []
     summaries: list[DataNote] = []
     for position, state in enumerate(states):
-        numbers = np.concatenate(state.numbers)[:n_rows] if state.numbers else np.zeros(0)
-        labels = (
-            np.concatenate(state.labels)[:n_rows] if state.labels else np.empty(0, dtype=object)
-        )
+        numbers, labels = state.numbers, state.labels
+        if numbers.shape[0] != n_rows:  # a copy, so the unused end of the arrays is freed
+            numbers, labels = numbers[:n_rows].copy(), labels[:n_rows].copy()
+        state.numbers = state.labels = np.empty(0)
         # Trailing blank rows were counted as blanks while streaming; take them back out.
-        trailing = max(0, n_seen - n_rows) if state.numbers else 0
+        trailing = max(0, n_seen - n_rows)
         head = state.head
         built[head.name] = Column(
             name=head.name,
             letter=state.letter,
-            numbers=np.ascontiguousarray(numbers, dtype=np.float64),
+            numbers=numbers,
             labels=labels,
             header=head.header,
             n_blank=state.n_blank - trailing,
@@ -892,6 +982,66 @@ def _read(
     )
     result.fingerprint = fingerprint(result)
     return result
+
+
+def _expected_rows(source: WorkbookSource, sheet: str, layout: _Layout) -> int:
+    """Data rows to make room for: the table's, else the source's last row (grown if short)."""
+    if layout.last_row is not None:
+        return max(0, layout.last_row - layout.header_row)
+    return max(0, int(source.last_row(sheet)) - layout.header_row)
+
+
+def _transpose(batch: list[list[Any]], need: int) -> list[tuple[Any, ...]]:
+    """A batch of rows as one tuple per column (short rows padded with blanks)."""
+    widths = set(map(len, batch))
+    width = max(max(widths), need)
+    if len(widths) > 1 or width > min(widths):
+        batch = [r if len(r) == width else list(r) + [None] * (width - len(r)) for r in batch]
+    return list(zip(*batch, strict=True))
+
+
+class _IssueScan:
+    """The source's search for error cells and uncalculated formulas, run in a thread.
+
+    Notes
+    -----
+    The file source's search decompresses the sheet XML a second time; run
+    beside python-calamine's load of the sheet (which releases the GIL), it
+    costs little extra wall time on a machine with two or more cores.
+    """
+
+    def __init__(self, source: WorkbookSource, sheet: str) -> None:
+        self.found: dict[tuple[int, int], tuple[str, str]] = {}
+        self.error: BaseException | None = None
+        self.thread: threading.Thread | None = None
+        finder = source.cell_issues
+
+        def search() -> None:
+            try:
+                with stages.stage("read.scan"):
+                    self.found = dict(finder(sheet))
+            except BaseException as exc:  # noqa: BLE001 - raised again in the reading thread
+                self.error = exc
+
+        self.thread = threading.Thread(target=search, name="statmargin-cell-issues", daemon=True)
+        self.thread.start()
+
+    def issues(
+        self, first_row: int, last_row: int | None, chosen: list[HeaderColumn]
+    ) -> dict[tuple[int, int], tuple[str, str]]:
+        """The issues found in the rows and columns read."""
+        if self.thread is None:
+            return {}
+        with stages.stage("read.scan wait"):
+            self.thread.join()
+        if self.error is not None:
+            raise self.error
+        wanted = {h.index for h in chosen}
+        return {
+            (row, col): issue
+            for (row, col), issue in self.found.items()
+            if col in wanted and row >= first_row and (last_row is None or row <= last_row)
+        }
 
 
 def _guard(rows: Iterator[list[Any]], display: str) -> Iterator[list[Any]]:
@@ -979,23 +1129,6 @@ def _stray_notes(sheet: str, stray: dict[int, list[Any]]) -> list[DataNote]:
     return notes
 
 
-def _cell_issues(
-    source: WorkbookSource,
-    sheet: str,
-    first_row: int,
-    last_row: int | None,
-    chosen: list[HeaderColumn],
-) -> CellIssues:
-    """Error cells and uncalculated formulas the source read as empty."""
-    if not chosen:
-        return {}
-    return dict(
-        source.cell_issues(
-            sheet, first_row=first_row, last_row=last_row, columns=[h.index for h in chosen]
-        )
-    )
-
-
 def _apply_issues(
     states: list[_ColumnState],
     issues: CellIssues,
@@ -1046,11 +1179,12 @@ def fingerprint(table: Table) -> str:
     for name, column in table.columns.items():
         digest.update(b"\x01" + name.encode("utf-8") + b"\x00")
         digest.update(np.ascontiguousarray(column.numbers, dtype=np.float64).tobytes())
-        digest.update(
-            "\x1f".join(["\x00" if x is None else x for x in column.labels.tolist()]).encode(
-                "utf-8"
-            )
-        )
+        labels = column.labels
+        missing = np.equal(labels, None)  # type: ignore[call-overload]  # elementwise at run time
+        if missing.any():
+            labels = labels.copy()
+            labels[missing] = "\x00"
+        digest.update("\x1f".join(labels.tolist()).encode("utf-8"))
     return digest.hexdigest()
 
 

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from enum import Enum
+from typing import Any
 
 import numpy as np
 
@@ -60,6 +61,9 @@ class Column:
     n_unreadable: int = 0  # error values, suppressed counts, formulas without values
     n_dates: int = 0  # cells that held dates (their numbers are Excel day serials)
     units: str | None = None  # from the header, e.g. "Wait (minutes)" -> "minutes"
+    # Values derived from the arrays (types, masks, labels), computed once and shared;
+    # the arrays are not changed after reading, so nothing here goes stale.
+    cache: dict[Any, Any] = field(default_factory=dict, repr=False, compare=False)
 
     def __len__(self) -> int:
         return int(self.numbers.shape[0])

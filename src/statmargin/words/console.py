@@ -43,15 +43,6 @@ def old_option(old: str, new: str) -> str:
     return f"statmargin: {old} is now {new}; the old spelling still works in this release."
 
 
-def progress_step(message: str) -> str:
-    return f"statmargin: {message} ..."
-
-
-def progress_bar(done: int, total: int, message: str, width: int = 30) -> str:
-    filled = width * done // total
-    return f"  [{'#' * filled}{'.' * (width - filled)}] {done}/{total} {message}"
-
-
 # ---------------------------------------------------------------- progress messages
 
 

@@ -134,6 +134,17 @@ class ExcelBook:
         pad = [None] * first_col
         return (pad + row for row in rows)
 
+    def last_row(self, sheet: str) -> int:
+        """1-based last row of the sheet's used range (0 when it cannot be told; a size hint only)."""
+        try:
+            used = self._sheet(sheet).used_range
+            return int(used.row) + int(used.shape[0]) - 1
+        except Exception:  # noqa: BLE001 - a hint: the reader grows its arrays when it is low
+            return 0
+
+    def release(self) -> None:
+        """Nothing to free: the open workbook holds the cells."""
+
     def iter_rows_at(self, sheet: str) -> tuple[int, Iterator[list[Any]]]:
         """Rows from row 1, starting at the used range's first column; returns (that column, rows).
 

@@ -29,6 +29,7 @@ from typing import Any
 from xml.etree import ElementTree as ET
 from xml.sax.saxutils import unescape
 
+from ... import stages
 from ...errors import WorkbookError
 from ...read.table import column_index
 from ..protocol import ERROR_ISSUE as ERROR_ISSUE  # re-exported from the protocol
@@ -48,10 +49,16 @@ _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 _ENCRYPTED_STREAM = "EncryptedPackage".encode("utf-16-le")
 _SCAN_CHUNK = 1 << 22  # 4 MiB of decompressed sheet XML per read
 
-# Chunk pre-check: any formula element or error-typed cell in this block? Plain
-# substring tests run at memory speed; a false hit (e.g. "<formula1>" in a
-# validation rule) only costs the full cell scan of that block.
-_ISSUE_HINTS = (b"f>", b"<f ", b":f ", b't="e"', b"t='e'")
+# Where a formula element (``<f``/``<x:f`` followed by ``>``, ``/`` or a space) or an
+# error-typed cell (``="e"``) may be: found with vectorised byte comparisons, so a
+# block of plain values costs a few passes at memory speed, and only the cells
+# around the hits are parsed. A false hit (e.g. ``<formula1>`` in a validation
+# rule, or ``="e"`` in a text) only costs parsing one more cell.
+_TAG_OPEN, _PREFIX_END, _F, _E, _EQUALS = (ord(c) for c in "<:fe=")
+_QUOTES = (ord('"'), ord("'"))
+_AFTER_NAME = tuple(ord(c) for c in ">/ \t\r\n")
+_CELL_OPEN = re.compile(rb"<(?:\w+:)?c[\s/>]")
+_WALK_BACK = 64  # tags looked at before a hint to find the cell that holds it
 # One cell element: attributes, then either self-closing or a body up to </c>.
 _CELL = re.compile(rb"<(?:\w+:)?c(\s[^>]*?)?(?:/>|>(.*?)</(?:\w+:)?c>)", re.DOTALL)
 _ATTR_R = re.compile(rb"\sr=[\"']([A-Za-z]+)(\d+)[\"']")
@@ -187,6 +194,10 @@ class FileSource:
             return 0, iter(())
         return int(start[1]), iter(calamine_sheet.iter_rows())
 
+    def release(self) -> None:
+        """Free the cells of the sheet loaded last; a later read loads it again."""
+        self._cached = None
+
     def last_row(self, sheet: str) -> int:
         """1-based number of the last row holding a value (0 for an empty sheet)."""
         end = self._sheet(sheet).end
@@ -309,8 +320,7 @@ class FileSource:
                             tail = block
                             continue
                         block, tail = block[:cut], block[cut:]
-                    if any(hint in block for hint in _ISSUE_HINTS):
-                        _scan_block(block, found, first_row, last_row, wanted)
+                    _scan_block(block, found, first_row, last_row, wanted)
                     if not chunk:
                         break
         except (OSError, zipfile.BadZipFile, KeyError) as exc:
@@ -327,7 +337,8 @@ class FileSource:
             return self._cached[1]
         self._cached = None  # free the previous sheet before loading the next
         try:
-            loaded = self._book.get_sheet_by_name(sheet)
+            with stages.stage("read.load"):
+                loaded = self._book.get_sheet_by_name(sheet)
         except Exception as exc:  # noqa: BLE001 - calamine raises several types
             raise WorkbookError(
                 f"Sheet {sheet!r} in {self.display!r} cannot be read ({_one_line(exc)}). "
@@ -453,8 +464,14 @@ def _scan_block(
     last_row: int | None,
     wanted: set[int] | None,
 ) -> None:
-    """Record error cells and formulas without a cached value in one block of sheet XML."""
-    for cell in _CELL.finditer(block):
+    """Record error cells and formulas without a cached value in one block of sheet XML.
+
+    Notes
+    -----
+    Only the cells holding a hint (``_ISSUE_HINTS``) are parsed, so a block of
+    plain values costs a few substring searches.
+    """
+    for cell in _hinted_cells(block):
         attrs = cell.group(1) or b""
         body = cell.group(2) or b""
         type_match = _ATTR_T.search(attrs)
@@ -480,6 +497,48 @@ def _scan_block(
         ):
             formula_text = _text(formula.group(1) or b"") or "(shared formula)"
             found[(row, col)] = (NO_VALUE_ISSUE, "=" + formula_text)
+
+
+def _hint_positions(block: bytes) -> list[int]:
+    """Offsets in the block where a formula element or an error type attribute may start."""
+    import numpy as np
+
+    data = np.frombuffer(block, dtype=np.uint8)
+    # One pass per letter, then the few neighbours of each hit are checked.
+    f_at = np.flatnonzero(data[1:-1] == _F) + 1
+    before, after = data[f_at - 1], data[f_at + 1]
+    ends = np.zeros(f_at.shape, dtype=bool)
+    for byte in _AFTER_NAME:
+        ends |= after == byte
+    formula = f_at[((before == _TAG_OPEN) | (before == _PREFIX_END)) & ends]
+    e_at = np.flatnonzero(data[2:-1] == _E) + 2
+    before, after = data[e_at - 1], data[e_at + 1]
+    quoted = ((before == _QUOTES[0]) | (before == _QUOTES[1])) & (after == before)
+    error = e_at[quoted & (data[e_at - 2] == _EQUALS)]
+    return sorted(formula.tolist() + error.tolist())
+
+
+def _hinted_cells(block: bytes) -> Iterator[re.Match[bytes]]:
+    """The cell elements that hold a formula or error hint, in document order."""
+    starts: set[int] = set()
+    for pos in _hint_positions(block):
+        start = _cell_start(block, pos)
+        if start >= 0:
+            starts.add(start)
+    for start in sorted(starts):
+        cell = _CELL.match(block, start)
+        if cell is not None:
+            yield cell
+
+
+def _cell_start(block: bytes, pos: int) -> int:
+    """Offset of the ``<c`` tag of the cell around ``pos`` (-1 if none is near)."""
+    at = block.rfind(b"<", 0, pos + 1)
+    for _ in range(_WALK_BACK):
+        if at < 0 or _CELL_OPEN.match(block, at):
+            return at
+        at = block.rfind(b"<", 0, at)
+    return -1
 
 
 def _text(raw: bytes) -> str:
