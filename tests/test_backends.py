@@ -366,6 +366,7 @@ def test_protocols_declare_the_seam() -> None:
     source = {
         "display_name", "sheet_names", "hidden_sheet_names", "resolve_sheet", "iter_rows",
         "iter_rows_at", "last_row", "release", "tables", "merged_ranges", "tool_sheets", "cell_issues",
+        "hidden_rows",
         "close",
     }
     assert set(declared_members(WorkbookSource)) == source

@@ -100,7 +100,7 @@ def test_a_hundred_thousand_rows_take_a_few_reads() -> None:
     assert table.columns["a"].numbers[-1] == (n - 1) * 0.5
     calls = xs.recorder(book).calls
     assert calls["Range.value"] == math.ceil((n + 1) / (CELLS_PER_CALL // 5)) == 3
-    assert sum(calls.values()) <= 40
+    assert sum(calls.values()) <= 45  # 5 of them ask for hidden rows (one row-height call with none hidden)
 
 
 def test_merged_header_found_by_halving() -> None:

@@ -86,6 +86,7 @@ class MemorySheet:
     tables: list[TableRange] = field(default_factory=list)
     merged: list[MergedRange] = field(default_factory=list)
     issues: CellIssues = field(default_factory=dict)
+    hidden_rows: frozenset[int] | None = frozenset()  # 1-based rows hidden by a filter or the user
     tool_kind: str | None = None  # the marker's kind, for a sheet the tool wrote
     model: SheetModel | None = None  # the model a written sheet was made from
 
@@ -202,6 +203,7 @@ class MemoryWorkbook:
                     tables=source.tables(sheet),
                     merged=source.merged_ranges(sheet),
                     issues=source.cell_issues(sheet),
+                    hidden_rows=source.hidden_rows(sheet),
                     tool_kind=kinds.get(sheet),
                 )
             )
@@ -292,6 +294,10 @@ class MemoryWorkbook:
             and (last_row is None or row <= last_row)
             and (wanted is None or col in wanted)
         }
+
+    def hidden_rows(self, sheet: str) -> frozenset[int] | None:
+        """The rows the sheet was given as hidden."""
+        return self.sheet(sheet).hidden_rows
 
     def close(self) -> None:
         """Nothing to release; remembered so tests can see who closed the book."""

@@ -221,6 +221,18 @@ class WorkbookSource(Protocol):
         """
         ...
 
+    def hidden_rows(self, sheet: str) -> frozenset[int] | None:
+        """1-based numbers of the rows a filter or the user hid on a worksheet.
+
+        Returns
+        -------
+        frozenset of int or None
+            Empty when no row is hidden; ``None`` when the back end cannot tell
+            (a file type that does not record it), so the reader can say so
+            instead of implying that every row is shown.
+        """
+        ...
+
     def close(self) -> None:
         """Release what the source holds (a file handle); calling it twice is harmless."""
         ...

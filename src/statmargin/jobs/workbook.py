@@ -28,6 +28,7 @@ from ..vocabulary import MeasureType, Role
 from ..words import console, refusals
 from ..words import progress as words
 from ..words.cautions import count_comparisons
+from ..words.results_text import hidden_rows_note
 
 # Called as each step starts; during the analyses also with (done, total) so a
 # front end can draw a progress bar.
@@ -327,8 +328,9 @@ def run_workbook(
     table = read_table(
         path, sheet=plan.sheet, header_row=plan.header_row, columns=used, source=source,
         progress=lambda done, total: say(words.READING_ROWS, done=done, total=total),
+        rows_to_use=plan.settings.rows,
     )
-    say(console.running_on_rows(len(table.rows)))
+    say(console.running_on_rows(len(table.rows), hidden_rows_note(table.n_hidden, plan.settings.rows)))
     analyses_start = time.perf_counter()
     last_analysis = [analyses_start]
 

@@ -52,18 +52,16 @@ class SettingRow:
     choices: tuple[str, ...] = ()  # the dropdown's words; empty = free text or a number
 
 
-SETTINGS: tuple[SettingRow, ...] = (
-    SettingRow("Data sheet", "sheet"),
-    SettingRow("Header row", "header_row"),
-    SettingRow("Confidence level", "confidence"),
-    SettingRow("Multiple comparisons", "adjust", tuple(m.value for m in AdjustMethod)),
-    SettingRow("Adjust across", "family", tuple(f.value for f in AdjustFamily)),
-    SettingRow("Sides", "alternative", tuple(a.value for a in Alternative)),
-    SettingRow("Rows to use", "rows", tuple(r.value for r in RowsToUse)),
-    SettingRow("Merge look-alike labels", "merge_look_alikes", tuple(y.value for y in YesNo)),
-    SettingRow("Period length", "grain", tuple(g.value for g in Grain)),
-    SettingRow("Latest period", "latest_period"),
-    SettingRow("Rates per", "per_unit"),
+_CHOICES: dict[str, tuple[str, ...]] = {
+    "adjust": tuple(m.value for m in AdjustMethod),
+    "family": tuple(f.value for f in AdjustFamily),
+    "alternative": tuple(a.value for a in Alternative),
+    "rows": tuple(r.value for r in RowsToUse),
+    "merge_look_alikes": tuple(y.value for y in YesNo),
+    "grain": tuple(g.value for g in Grain),
+}
+SETTINGS: tuple[SettingRow, ...] = tuple(
+    SettingRow(label, key, _CHOICES.get(key, ())) for key, label in roles_words.SETTING_LABELS.items()
 )
 SETTING_LABELS = {row.label: row.key for row in SETTINGS}
 INSTRUCTIONS = roles_words.INSTRUCTIONS

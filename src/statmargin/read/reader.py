@@ -56,6 +56,7 @@ import numpy as np
 from .. import stages
 from ..errors import ColumnNotFoundError, NotEnoughDataError, OptionError, WorkbookError
 from ..io.protocol import ERROR_ISSUE, CellIssues, TableRange, WorkbookSource
+from ..vocabulary import RowsToUse
 from ..words.workbook_messages import no_workbook_given
 from .table import Column, DataNote, NoteKind, Table, column_letter
 
@@ -799,6 +800,7 @@ def read_table(
     source: WorkbookSource | None = None,
     table: str | None = None,
     progress: Callable[[int, int], None] | None = None,
+    rows_to_use: RowsToUse = RowsToUse.ALL,
 ) -> Table:
     """Read a sheet's data region into typed columns.
 
@@ -822,6 +824,10 @@ def read_table(
         Name of the Excel table to read when the sheet has several.
     progress : callable, optional
         Called with (rows read, rows expected) after each batch of rows.
+    rows_to_use : RowsToUse
+        ``ALL`` (default) reads hidden and filtered rows like any other and counts
+        them in ``Table.n_hidden``; ``VISIBLE`` reads them as empty rows, so no
+        analysis uses them and no count includes them.
 
     Returns
     -------
@@ -845,7 +851,7 @@ def read_table(
     with stages.stage("read"):
         src, owned = _open_source(path, source)
         try:
-            return _read(src, src.display_name, sheet, header_row, columns, table, progress)
+            return _read(src, src.display_name, sheet, header_row, columns, table, progress, rows_to_use)
         finally:
             if owned:
                 src.close()
@@ -859,6 +865,7 @@ def _read(
     columns: Sequence[str] | None,
     table: str | None,
     progress: Callable[[int, int], None] | None = None,
+    rows_to_use: RowsToUse = RowsToUse.ALL,
 ) -> Table:
     sheet = _first_data_sheet(source, display) if sheet is None else source.resolve_sheet(sheet)
     scan = _IssueScan(source, sheet)  # runs while the sheet loads (the load releases the GIL)
@@ -884,6 +891,9 @@ def _read(
     rows = layout.rows
     need = max((s.offset for s in states), default=-1) + 1
     check_stray = layout.table is None
+    # Hidden rows to read as empty: known before the rows stream in, so the search
+    # must finish first (it shares the pass over the sheet with the issue scan).
+    leave_out = _hidden_rows(source, sheet, scan) if rows_to_use is RowsToUse.VISIBLE else None
     with stages.stage("read.convert"):
         while True:
             size = BATCH_ROWS
@@ -895,6 +905,8 @@ def _read(
             if not batch:
                 break
             at, count = row0 - first_data_row, len(batch)
+            if leave_out:
+                batch = [[] if row0 + i in leave_out else row for i, row in enumerate(batch)]
             if at + count > content_all.shape[0]:
                 for state in states:
                     state.ensure(at + count)
@@ -919,6 +931,9 @@ def _read(
     # The source may stop before trailing cells it reads as empty (errors, uncalculated
     # formulas), so look for those up to the table's end, or the sheet's end.
     issues = scan.issues(first_data_row, layout.last_row, chosen)
+    hidden = leave_out if rows_to_use is RowsToUse.VISIBLE else _hidden_rows(source, sheet, scan)
+    if leave_out:
+        issues = {cell: issue for cell, issue in issues.items() if cell[0] not in leave_out}
     beyond = max((row for row, _ in issues), default=0) - (first_data_row + n_seen - 1)
     if beyond > 0:
         for state in states:
@@ -943,6 +958,12 @@ def _read(
             + " Check the sheet and the header row."
         )
 
+    # Rows left out are counted wherever they were read (a filter often hides the last
+    # rows); rows kept only where they hold data.
+    last_counted = first_data_row + (n_seen if leave_out else n_rows) - 1
+    n_hidden = None if hidden is None else sum(1 for r in hidden if first_data_row <= r <= last_counted)
+    last_data_row = first_data_row + n_rows - 1
+    hidden_in_data = sum(1 for r in leave_out if first_data_row <= r <= last_data_row) if leave_out else 0
     built: dict[str, Column] = {}
     cell_notes: list[tuple[int, int, DataNote]] = []
     summaries: list[DataNote] = []
@@ -953,6 +974,8 @@ def _read(
         state.numbers = state.labels = np.empty(0)
         # Trailing blank rows were counted as blanks while streaming; take them back out.
         trailing = max(0, n_seen - n_rows)
+        if leave_out:  # rows read as empty are not blanks of the column either
+            trailing += hidden_in_data
         head = state.head
         built[head.name] = Column(
             name=head.name,
@@ -979,6 +1002,8 @@ def _read(
         columns=built,
         notes=notes,
         n_rows_read=n_rows,
+        n_hidden=n_hidden,
+        hidden_left_out=bool(leave_out),
     )
     result.fingerprint = fingerprint(result)
     return result
@@ -989,6 +1014,12 @@ def _expected_rows(source: WorkbookSource, sheet: str, layout: _Layout) -> int:
     if layout.last_row is not None:
         return max(0, layout.last_row - layout.header_row)
     return max(0, int(source.last_row(sheet)) - layout.header_row)
+
+
+def _hidden_rows(source: WorkbookSource, sheet: str, scan: _IssueScan) -> frozenset[int] | None:
+    """The sheet's hidden rows, asked once the issue scan (which may find them on its way) is done."""
+    scan.wait()
+    return source.hidden_rows(sheet)
 
 
 def _transpose(batch: list[list[Any]], need: int) -> list[tuple[Any, ...]]:
@@ -1026,16 +1057,21 @@ class _IssueScan:
         self.thread = threading.Thread(target=search, name="statmargin-cell-issues", daemon=True)
         self.thread.start()
 
+    def wait(self) -> None:
+        """Wait for the search to finish; raise what it raised."""
+        if self.thread is not None:
+            with stages.stage("read.scan wait"):
+                self.thread.join()
+        if self.error is not None:
+            raise self.error
+
     def issues(
         self, first_row: int, last_row: int | None, chosen: list[HeaderColumn]
     ) -> dict[tuple[int, int], tuple[str, str]]:
         """The issues found in the rows and columns read."""
         if self.thread is None:
             return {}
-        with stages.stage("read.scan wait"):
-            self.thread.join()
-        if self.error is not None:
-            raise self.error
+        self.wait()
         wanted = {h.index for h in chosen}
         return {
             (row, col): issue

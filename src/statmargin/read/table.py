@@ -80,6 +80,10 @@ class Table:
     notes: list[DataNote] = field(default_factory=list)
     n_rows_read: int = 0
     fingerprint: str = ""  # hash of the values read, for the run log
+    # Data rows a filter or the user hid: None when the workbook cannot tell. With
+    # ``hidden_left_out`` they were read as empty rows (Rows to use: visible rows only).
+    n_hidden: int | None = 0
+    hidden_left_out: bool = False
 
     def column(self, name: str) -> Column:
         """The column called ``name``; raise ColumnNotFoundError with the closest names otherwise."""

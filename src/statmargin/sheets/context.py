@@ -57,7 +57,7 @@ class ReportContext:
     samples: dict[tuple[str, str, str], Mapping[str, Sequence[float]]] = field(default_factory=dict)
     fingerprint: str = ""
     decimals: dict[str, int] = field(default_factory=dict)  # each numeric column's own precision
-    rows_note: str = ""  # words on which rows were used (hidden and filtered rows), for the run line
+    hidden_rows: int | None = 0  # data rows a filter or the user hid (None: the workbook cannot tell)
 
     @classmethod
     def from_run(
@@ -132,6 +132,7 @@ class ReportContext:
             samples=drawn,
             fingerprint=table.fingerprint if table is not None else "",
             decimals=decimals,
+            hidden_rows=table.n_hidden if table is not None else 0,
         )
 
 

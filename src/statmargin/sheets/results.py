@@ -139,7 +139,7 @@ def _top_block(model: SheetModel, context: ReportContext, results: Sequence[Resu
         workbook=context.workbook, sheet=context.data_sheet, rows_read=context.rows_read,
         when=_run_time_text(context), version=context.version, confidence=settings.confidence,
         adjust=explain.ADJUST_NAMES.get(str(settings.adjust), str(settings.adjust)), family=family,
-        sides=str(settings.alternative), hidden_rows=context.rows_note,
+        sides=str(settings.alternative), hidden_rows=results_text.hidden_rows_note(context.hidden_rows, settings.rows),
     )
     model.put(1, 0, run_line, "muted")
     _merge_plain(model, 1)

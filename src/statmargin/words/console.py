@@ -50,8 +50,9 @@ def reading_sheet(sheet: str | None) -> str:
     return f"reading sheet {sheet!r}"
 
 
-def running_on_rows(rows: int) -> str:
-    return f"running analyses on {rows:,} rows"
+def running_on_rows(rows: int, hidden_note: str = "") -> str:
+    """The step line before the analyses, with what was done about hidden rows (``results_text.hidden_rows_note``)."""
+    return f"running analyses on {rows:,} rows{hidden_note}"
 
 
 RUNNING = "running analyses"

@@ -2,7 +2,9 @@
 
 from __future__ import annotations
 
+from ..vocabulary import RowsToUse
 from .numbers import fmt_percent
+from .roles_words import SETTING_LABELS
 
 TITLE = "statmargin results"
 ANSWERS = "Answers"
@@ -27,6 +29,24 @@ def run_line(*, workbook: str, sheet: str, rows_read: int, when: str, version: s
         f"{workbook}, sheet {sheet}: {rows_read:,} rows read{hidden_rows}. Run {when} with statmargin "
         f"{version}; {fmt_percent(confidence, 0)} intervals, {sides}, {adjusted}."
     )
+
+
+def hidden_rows_note(hidden: int | None, rows: RowsToUse) -> str:
+    """What the run line adds about rows a filter or the user hid ("" when there were none)."""
+    if rows is RowsToUse.VISIBLE:
+        if hidden is None:
+            return "; this file does not record which rows are hidden, so all rows were used"
+        return f"; {hidden:,} hidden or filtered {_rows(hidden)} left out ({SETTING_LABELS['rows']}: {rows})" if hidden else ""
+    if not hidden:
+        return ""
+    return (
+        f", {hidden:,} of them hidden or filtered in the sheet and used like the others"
+        f" ({SETTING_LABELS['rows']} on the roles sheet can leave them out)"
+    )
+
+
+def _rows(n: int) -> str:
+    return "row" if n == 1 else "rows"
 
 
 def status_line(answered: int, not_run: int) -> str:

@@ -13,6 +13,20 @@ INSTRUCTIONS = (
     "Fail=0.10, 4%), with its 'Paired with' column, and over time by the 'period' column; 'events' "
     "are counted 'Out of' a total or 'Per' person-time.",
 )
+# The settings block's labels, by the ``Settings`` field each one sets.
+SETTING_LABELS = {
+    "sheet": "Data sheet",
+    "header_row": "Header row",
+    "confidence": "Confidence level",
+    "adjust": "Multiple comparisons",
+    "family": "Adjust across",
+    "alternative": "Sides",
+    "rows": "Rows to use",
+    "merge_look_alikes": "Merge look-alike labels",
+    "grain": "Period length",
+    "latest_period": "Latest period",
+    "per_unit": "Rates per",
+}
 STATUS_MISSING = "not in the data any more"
 STATUS_NEW = "new column"
 

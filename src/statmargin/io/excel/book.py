@@ -43,7 +43,7 @@ from ..protocol import (
     resolve_sheet_name,
     string_constant,
 )
-from . import render
+from . import hidden, render
 from .render import CELLS_PER_CALL
 
 PRINT_TITLES_NAME = "Print_Titles"  # Excel's built-in sheet-scoped name for repeated rows/columns
@@ -114,6 +114,16 @@ class ExcelBook:
         """Nothing to add: Excel gives error values as their text and every formula's current value."""
         self.resolve_sheet(sheet)
         return {}
+
+    def hidden_rows(self, sheet: str) -> frozenset[int] | None:
+        """Rows of the used range that a filter or the user hid (height 0); None when Excel cannot say."""
+        try:
+            xsheet = self._sheet(sheet)
+            used = xsheet.used_range
+            top = int(used.row)
+            return hidden.hidden_rows(xsheet, top, top + int(used.shape[0]) - 1)
+        except Exception:  # noqa: BLE001 - the run then says it could not tell
+            return None
 
     def sheet_names(self) -> list[str]:
         """Worksheet names in workbook order (Excel's ``Worksheets``: chart sheets are not listed)."""

@@ -42,6 +42,7 @@ from ..protocol import (
     resolve_sheet_name,
     string_constant,
 )
+from .hidden_rows import hidden_rows_in_block
 
 _REL_ID_SUFFIX = "}id"
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
@@ -125,6 +126,7 @@ class FileSource:
         self._meta = list(self._book.sheets_metadata)
         self._zip_parts: dict[str, str] | None = None  # sheet name -> XML part path
         self._cached: tuple[str, Any] | None = None
+        self._hidden: dict[str, frozenset[int]] = {}  # sheet -> hidden rows, found by the cell scan
 
     # -- lifetime -------------------------------------------------------------
     def close(self) -> None:
@@ -308,6 +310,7 @@ class FileSource:
             return {}
         wanted = None if columns is None else set(columns)
         found: CellIssues = {}
+        hidden: set[int] = set()
         try:
             with zipfile.ZipFile(self.path) as archive, archive.open(part) as stream:
                 tail = b""
@@ -321,6 +324,7 @@ class FileSource:
                             continue
                         block, tail = block[:cut], block[cut:]
                     _scan_block(block, found, first_row, last_row, wanted)
+                    hidden_rows_in_block(block, hidden)
                     if not chunk:
                         break
         except (OSError, zipfile.BadZipFile, KeyError) as exc:
@@ -328,7 +332,21 @@ class FileSource:
                 f"File {self.display!r} is damaged and its sheet {sheet!r} cannot be read ({exc}). "
                 "Open it in a spreadsheet program and save it again."
             ) from None
+        self._hidden[sheet] = frozenset(hidden)
         return found
+
+    def hidden_rows(self, sheet: str) -> frozenset[int] | None:
+        """1-based rows a filter or the user hid; None for a file type that does not say (not .xlsx/.xlsm).
+
+        The search shares the pass of ``cell_issues`` over the sheet's XML, so after
+        that call the answer costs nothing.
+        """
+        sheet = self.resolve_sheet(sheet)
+        if sheet not in self._hidden:
+            if self._sheet_parts().get(sheet) is None:
+                return None
+            self.cell_issues(sheet)
+        return self._hidden[sheet]
 
     # -- internals ------------------------------------------------------------------
     def _sheet(self, sheet: str) -> Any:
