@@ -57,3 +57,18 @@ def test_excluded_counts_agree_across_analyses_of_one_outcome() -> None:
     # by site also leaves out the record with no site (23 rows - 20 used)
     assert by_site.n_excluded == 3 and by_site.n == 20
     assert np.isclose(alone.n, 21)
+
+
+def test_a_group_of_one_is_named_with_its_cell() -> None:
+    """With merging off, 'Old  Mill' (row 12 of the sheet, site in column A) is a group of one: named by cell."""
+    from statmargin.vocabulary.codes import Skip
+    from statmargin.words.sentences import say
+
+    table = Table.from_frame(FRAME)
+    plan = build_plan(["Wait"], ["Site"])
+    plan.settings = type(plan.settings)(merge_look_alikes=False)
+    [answer] = run_answers(table, plan)
+    skipped = answer.result.skipped
+    assert skipped is not None and skipped.code is Skip.GROUP_OF_ONE
+    assert skipped.facts["level"] == "Old  Mill" and skipped.facts["cell"] == "A12"
+    assert "(cell A12)" in say(skipped)

@@ -14,7 +14,7 @@ from ..plan.types import TypeInfo
 from ..read.table import Column
 from ..stats.shape import assess, spread_check
 from ..vocabulary import Design, MeasureType, ShapeHandling
-from ..vocabulary.codes import Coded, Reason, Skip, coded
+from ..vocabulary.codes import Coded, Count, Reason, Skip, coded
 from .base import Prepared, Skipped, constant_reason
 from .question import Question
 
@@ -32,6 +32,15 @@ class GroupData:
     n: int
     n_excluded: int
     lead: list[Coded]  # the reason for swapping roles, when the outcome is the category
+    usable: np.ndarray  # the table rows used (bool), to point at a group's cells
+    labels: np.ndarray  # the group label of each usable row
+
+    def cell_of(self, level: str, rows: np.ndarray | None) -> str | None:
+        """The grouping cell of a group's first row (e.g. "B62"), None without sheet rows."""
+        if rows is None:
+            return None
+        first = np.flatnonzero(self.usable)[np.flatnonzero(self.labels == level)[0]]
+        return f"{self.grouping.letter}{int(rows[first])}"
 
 
 def levels_present(info: TypeInfo, labels: np.ndarray) -> list[str]:
@@ -74,7 +83,7 @@ def group_data(question: Question) -> GroupData:
     levels = levels_present(grouping_info, labels)
     groups = {lev: values[labels == lev] for lev in levels}
     data = GroupData(numbers, numbers_info, grouping, grouping_info, levels, groups, int(values.size),
-                     n_excluded, lead)
+                     n_excluded, lead, usable, labels)
     question.cache["groups"] = data
     return data
 
@@ -93,6 +102,10 @@ def prepare_groups(question: Question, design: Design, would: tuple[object, obje
     if len(data.levels) < 2:
         reason = coded(Skip.FEWER_THAN_TWO_GROUPS, by=by, level=data.levels[0] if data.levels else None)
         raise Skipped(reason, prepared, design=Design.TWO_GROUP_CONTINUOUS, reasons=data.lead)
+    single = next((lev for lev in data.levels if data.groups[lev].size == 1), None)
+    if single is not None:  # often a typing slip; naming the cell lets the user find it
+        reason = coded(Skip.GROUP_OF_ONE, by=by, level=single, n=Count(1), cell=data.cell_of(single, question.rows))
+        raise Skipped(reason, prepared, reasons=data.lead)
     ordinal = data.numbers_info.type is MeasureType.ORDINAL
     rank = ordinal or question.handling is ShapeHandling.RANK
     constant = constant_reason(name, np.concatenate(list(data.groups.values())))

@@ -43,6 +43,15 @@ def _too_few_values(f: Facts) -> str:
     )
 
 
+def _group_of_one(f: Facts) -> str:
+    size = "very few values" if isinstance(f["n"], Hidden) else "a single value"
+    where = f" (cell {f['cell']})" if f.get("cell") else ""
+    return (
+        f"Group {f['level']!r} of {f['by']} has {size}{where}; each group needs at least 2. "
+        "A typing slip in that cell often makes such a group: correct the label, or leave the row out."
+    )
+
+
 def _few(noun: str, limit: Any) -> str:
     """'fewer than 5 values', or 'very few values' when sharing mode hid the threshold (it would narrow a count)."""
     return f"very few {noun}" if isinstance(limit, Hidden) else f"fewer than {limit} {noun}"
@@ -206,6 +215,7 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
         f"{f['by']} has fewer than two groups{_level_suffix(f)} among the usable rows, so there is "
         "nothing to compare."
     ),
+    Skip.GROUP_OF_ONE: _group_of_one,
     Skip.TOO_MANY_CONDITIONS: _too_many_conditions,
     Skip.NEED_TWO_CONDITIONS: "{by} needs two conditions to pair {outcome} by {key}.",
     Skip.DUPLICATE_KEYS: lambda f: (
