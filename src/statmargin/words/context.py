@@ -12,6 +12,7 @@ from collections.abc import Mapping
 from typing import Any
 
 from ..vocabulary.codes import Hidden
+from .numbers import decimals_for, is_number
 
 DEFAULT_SHARE_FLOOR = 11  # the sharing-mode default (sheets.share.DEFAULT_MIN_COUNT)
 
@@ -52,6 +53,22 @@ def column_decimals(context: Any, column: str | None) -> int | None:
         value = decimals[column]
         return int(value) if isinstance(value, int) else None
     return None
+
+
+def reading_decimals(context: Any, column: str | None, *values: Any, extra: int = 1) -> int:
+    """One number of decimals for the numbers of a reading: the column's precision plus ``extra``.
+
+    Medians and shifts of whole numbers stay whole (no ``extra`` when every value
+    shown already has the column's precision); without a known precision, about
+    three significant digits.
+    """
+    own = column_decimals(context, column)
+    if own is None:
+        return decimals_for(*values)
+    shown = [float(v) for v in values if is_number(v)]
+    if extra and shown and all(round(v, own) == v for v in shown):
+        extra = 0
+    return min(own + extra, 4)
 
 
 def observational(context: Any) -> bool:

@@ -8,7 +8,7 @@ from ..plan.model import Settings
 from ..results import Followup, Result
 from ..vocabulary import EstimateKind, Test
 from . import context as ctx
-from .numbers import ci_label, decimals_for, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
+from .numbers import ci_label, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
 
 
 def followup_label(followup: Followup) -> str:
@@ -69,16 +69,21 @@ def followup_reading(
                 (-high if is_number(high) else None),
                 (-low if is_number(low) else None),
             )
-        decimals = decimals_for(value, low, high)
+        decimals = ctx.reading_decimals(context, parent.outcome, value, low, high)
         ci = fmt_ci(low, high, decimals)
         ci_part = f" ({ci_label(parent.confidence)} {ci})" if ci else ""
         # A Hodges-Lehmann shift is a typical difference, not a difference in means.
-        typically = "typically " if est.kind is EstimateKind.LOCATION_SHIFT else ""
+        typical = est.kind is EstimateKind.LOCATION_SHIFT
         suffix = f" {units}" if units else ""
-        size = (
-            f"{outcome} {typically}{fmt_number(value, decimals)}{suffix} higher in {first} "
-            f"than in {second}{ci_part}; "
-        )
+        if fmt_number(value, decimals) == fmt_number(0.0, decimals):
+            what = "typical difference" if typical else "difference"
+            size = f"{outcome}: no {what} between {first} and {second}{ci_part}; "
+        else:
+            typically = "typically " if typical else ""
+            size = (
+                f"{outcome} {typically}{fmt_number(value, decimals)}{suffix} higher in {first} "
+                f"than in {second}{ci_part}; "
+            )
     significant = is_number(p) and p < settings.alpha
     verdict = (
         f"{evidence_words(p)} of a difference" if significant else "compatible with no difference"

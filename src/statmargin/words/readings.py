@@ -25,7 +25,7 @@ from ..results import Result
 from ..vocabulary import AdjustMethod, Design, EstimateKind, Test
 from . import context as ctx
 from .magnitude import NEGLIGIBLE, Magnitude, magnitude
-from .numbers import ci_label, decimals_for, evidence_words, fmt_number, fmt_p, is_number
+from .numbers import ci_label, evidence_words, fmt_number, fmt_p, is_number
 from .questions import (
     ONE_SAMPLE,
     PAIRED,
@@ -71,17 +71,6 @@ def p_used(result: Result) -> tuple[float | None, bool]:
 def _units(context: Any, column: str | None) -> str:
     units = ctx.display_units(context, column)
     return f" {units}" if units else ""
-
-
-def _decimals(context: Any, column: str | None, *values: Any, extra: int = 1) -> int:
-    """One number of decimals for a reading: the column's precision plus ``extra``, else 3 digits."""
-    own = ctx.column_decimals(context, column)
-    if own is None:
-        return decimals_for(*values)
-    shown = [float(v) for v in values if is_number(v)]
-    if extra and shown and all(round(v, own) == v for v in shown):
-        extra = 0  # medians and shifts of whole numbers stay whole
-    return min(own + extra, 4)
 
 
 def _n(number: Any, decimals: int) -> str:
@@ -190,7 +179,7 @@ def _groups_line(result: Result, context: Any) -> tuple[str, int]:
         rows = rows[:2]  # the third summary is of the differences
     outcome = result.outcome or "the outcome"
     values = [v for _, v in rows]
-    decimals = _decimals(context, outcome, *values)
+    decimals = ctx.reading_decimals(context, outcome, *values)
     units = _units(context, outcome)
     if not rows:
         return "", decimals
@@ -265,7 +254,7 @@ def _multi_group_answer(result: Result, settings: Settings, context: Any, n_fami
     gap = ""
     if est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2:
         high, low = (named(result, label) for label in est.levels)
-        size = f"{_n(est.value, decimals)}{units}"
+        size = f"{_n(est.value, decimals)}{units} ({high} over {low}, the widest gap)"
         gap = f"; the widest gap is {high} over {low}, {_n(est.value, decimals)}{units}"
     if ev.significant:
         pairs = "; the pairs of groups that stand out are marked below" if any(f.flagged for f in result.followups) else ""
@@ -314,10 +303,28 @@ def _event_level(result: Result) -> str | None:
     return levels[0] if len(levels) == 2 else None
 
 
+def _level_that_differs_most(result: Result) -> str | None:
+    """Of an outcome with several levels, the one whose share varies most across the groups."""
+    spreads = []
+    for level in _table_levels(result):
+        shares = [share for _, share, _ in _rates(result, level) if is_number(share)]
+        if len(shares) >= 2:
+            spreads.append((max(shares) - min(shares), level))
+    return max(spreads)[1] if spreads else None
+
+
 def _shares_line(result: Result) -> tuple[str, str | None]:
-    """'Share with Result = Fail: 12% in North, 22% in South.' and the level counted."""
+    """'Share with Result = Fail: 12% in North, 22% in South.' and the level counted.
+
+    An outcome of more than two levels is shown by the level whose share differs
+    most between the groups, and the line says why that level.
+    """
     outcome = result.outcome or "the outcome"
     level = _event_level(result)
+    most = ""
+    if level is None:
+        level = _level_that_differs_most(result)
+        most = " (the level whose share differs most)"
     if level is None:
         return f"This compares the mix of {outcome} across the groups of {result.exposure or 'the groups'}.", None
     rows = _rates(result, level)
@@ -330,11 +337,11 @@ def _shares_line(result: Result) -> tuple[str, str | None]:
         low = min(known, key=lambda r: r[1])
         high = max(known, key=lambda r: r[1])
         return (
-            f"Share with {outcome} = {level} ranged from {_percent(low[1], decimals)} ({low[0]}) to "
+            f"Share with {outcome} = {level}{most} ranged from {_percent(low[1], decimals)} ({low[0]}) to "
             f"{_percent(high[1], decimals)} ({high[0]}) across {len(rows)} groups of {result.exposure}."
         ), level
     listed = ", ".join(f"{value} {where}" for where, value in shown)
-    return f"Share with {outcome} = {level}: {listed}.", level
+    return f"Share with {outcome} = {level}{most}: {listed}.", level
 
 
 def _share_difference_answer(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
@@ -420,7 +427,7 @@ def _one_value(result: Result, settings: Settings, context: Any, n_family: int |
         centre, low, high, word = mu + float(est.value), _shift(est.ci_low, mu), _shift(est.ci_high, mu), "Mean"
     else:
         centre, low, high, word = float(est.value), est.ci_low, est.ci_high, "Typical"
-    decimals = _decimals(context, outcome, centre, low, high)
+    decimals = ctx.reading_decimals(context, outcome, centre, low, high)
     interval = _interval(result, low, high, decimals)
     figures = f"{word} {outcome} was {_n(centre, decimals)}{units} ({interval}), against a stated {mu:g}{units}."
     gap = centre - mu
