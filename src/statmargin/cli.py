@@ -15,7 +15,9 @@ from __future__ import annotations
 import contextlib
 import functools
 import json
+import signal
 import sys
+import threading
 import warnings
 from collections.abc import Callable
 from pathlib import Path
@@ -50,10 +52,18 @@ def handle_errors(fn: Callable[..., Any]) -> Callable[..., Any]:
     def wrapper(*args: Any, **kwargs: Any) -> Any:
         ctx = click.get_current_context()
         debug = bool(ctx.meta.get("statmargin_debug"))
+        _stop_on_sigterm()
         try:
             return fn(*args, **kwargs)
         except (click.exceptions.Exit, click.ClickException, click.Abort):
             raise
+        except KeyboardInterrupt:
+            if debug:
+                raise
+            from .words.file_messages import interrupted
+
+            click.echo(console.error_line(interrupted()), err=True)
+            ctx.exit(errors.EXIT_INTERRUPTED)
         except errors.StatmarginError as err:
             if debug:
                 raise
@@ -78,6 +88,17 @@ def _old_spelling(new: str, param_name: str) -> Callable[[click.Context, click.P
         return value
 
     return callback
+
+
+def _stop_on_sigterm() -> None:
+    """Treat a stop signal (SIGTERM) like Ctrl+C, so it ends with one line and the same clean-up."""
+
+    def stop(_signum: int, _frame: Any) -> None:
+        raise KeyboardInterrupt
+
+    if hasattr(signal, "SIGTERM") and threading.current_thread() is threading.main_thread():
+        signal.signal(signal.SIGTERM, stop)
+
 
 
 sheet_option = click.option(
@@ -148,7 +169,7 @@ pair_alias = click.option(
     callback=_old_spelling("--paired-with", "paired_with"),
 )
 out_option = click.option(
-    "--out", metavar="PATH", type=click.Path(dir_okay=False, path_type=Path), default=None,
+    "--out", metavar="PATH", type=click.Path(path_type=Path, readable=False), default=None,
     help=console.HELP["out"],
 )
 quiet_option = click.option("--quiet", is_flag=True, help=console.HELP["quiet"])
@@ -217,7 +238,7 @@ def main() -> None:
 
 
 @main.command("test")
-@click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
+@click.argument("workbook", type=click.Path(path_type=Path, readable=False))
 @sheet_option
 @outcome_option
 @by_option
@@ -281,7 +302,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 
 
 @main.command("plan")
-@click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
+@click.argument("workbook", type=click.Path(path_type=Path, readable=False))
 @sheet_option
 @click.option("--header-row", type=int, default=None, metavar="N", help=console.HELP["header_row"])
 @outcome_option
@@ -327,7 +348,7 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 
 
 @main.command("run")
-@click.argument("workbook", type=click.Path(path_type=Path))
+@click.argument("workbook", type=click.Path(path_type=Path, readable=False))
 @out_option
 @share_option
 @min_count_option

@@ -100,6 +100,7 @@ class Skip(Word):
     NO_ROWS_WITH_BOTH = "no_rows_with_both"  # outcome, by
     ONE_LEVEL = "one_level"  # column, level (optional)
     FEWER_THAN_TWO_GROUPS = "fewer_than_two_groups"  # by, level (optional)
+    TOO_MANY_GROUPS = "too_many_groups"  # by, n, limit
     TOO_MANY_CONDITIONS = "too_many_conditions"  # by, n, key
     NEED_TWO_CONDITIONS = "need_two_conditions"  # by, outcome, key
     DUPLICATE_KEYS = "duplicate_keys"  # key, by, keys
