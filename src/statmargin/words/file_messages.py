@@ -469,6 +469,10 @@ def interrupted() -> str:
 
 # ---------------------------------------------------------------- styles, sheets, charts
 
+# The printed page's footer: sheet name on the left, "Page 2 of 5" on the right
+# (&A, &P and &N are the spreadsheet program's codes for them).
+PAGE_FOOTER = "&L&A&RPage &P of &N"
+
 
 def styles_not_utf8() -> str:
     """The styles part is not UTF-8."""

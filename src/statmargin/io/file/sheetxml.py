@@ -246,7 +246,7 @@ def print_settings_xml(model: SheetModel) -> list[str]:
     if model.page_numbers:
         parts.append(
             "<headerFooter><oddFooter>"
-            + escape("&L&A&RPage &P of &N")
+            + escape(messages.PAGE_FOOTER)
             + "</oddFooter></headerFooter>"
         )
     breaks = sorted({int(c) for c in model.column_breaks if 0 < int(c) < 16_384})
