@@ -27,7 +27,8 @@ import subprocess
 import sys
 import tempfile
 import zlib
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -120,16 +121,24 @@ def visits(n: int = N_ROWS, seed: int = 20260301) -> list[tuple[str, float, str]
 HEADERS = ("Site", "Wait minutes", "Follow-up")
 
 
+@contextmanager
+def new_sheet(path: Path, name: str = SHEET, **options: Any) -> Iterator[tuple[Any, Any]]:
+    """An XlsxWriter workbook at ``path`` with one sheet, closed (written) when the block ends."""
+    book = xlsxwriter.Workbook(str(path), options)
+    try:
+        yield book, book.add_worksheet(name)
+    finally:
+        book.close()
+
+
 def xlsxwriter_book(path: Path, *, extra: Callable[[Any, Any], None] | None = None, n: int = N_ROWS) -> Path:
     """The visits on sheet ``Visits``, written by XlsxWriter; ``extra(book, sheet)`` adds more."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, HEADERS)
-    for r, row in enumerate(visits(n), start=1):
-        sheet.write_row(r, 0, row)
-    if extra is not None:
-        extra(book, sheet)
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, HEADERS)
+        for r, row in enumerate(visits(n), start=1):
+            sheet.write_row(r, 0, row)
+        if extra is not None:
+            extra(book, sheet)
     return path
 
 
@@ -843,14 +852,12 @@ def many_sheets(path: Path, n: int = 500) -> Path:
 
 def long_cells(path: Path) -> Path:
     """A comment column and one site label of 32,767 characters (the most a cell holds)."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, (*HEADERS, "Comment"))
-    long_site = ("Harbour outreach point " * 1500)[:32_767]
-    for r, (site, wait, follow) in enumerate(visits(), start=1):
-        sheet.write_row(r, 0, (long_site if site == "Harbour" else site, wait, follow))
-        sheet.write_string(r, 3, ("Invented remark. " * 2000)[:32_767])
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, (*HEADERS, "Comment"))
+        long_site = ("Harbour outreach point " * 1500)[:32_767]
+        for r, (site, wait, follow) in enumerate(visits(), start=1):
+            sheet.write_row(r, 0, (long_site if site == "Harbour" else site, wait, follow))
+            sheet.write_string(r, 3, ("Invented remark. " * 2000)[:32_767])
     return path
 
 
@@ -859,55 +866,47 @@ def long_cells(path: Path) -> Path:
 
 def title_rows(path: Path) -> Path:
     """Two title lines and a blank row above the header row."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write(0, 0, "Outreach clinic visits, March 2026 (invented)")
-    sheet.write(1, 0, "Prepared for the monthly review")
-    sheet.write_row(3, 0, HEADERS)
-    for r, row in enumerate(visits(), start=4):
-        sheet.write_row(r, 0, row)
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write(0, 0, "Outreach clinic visits, March 2026 (invented)")
+        sheet.write(1, 0, "Prepared for the monthly review")
+        sheet.write_row(3, 0, HEADERS)
+        for r, row in enumerate(visits(), start=4):
+            sheet.write_row(r, 0, row)
     return path
 
 
 def merged_duplicate_headers(path: Path) -> Path:
     """A merged group header above the headers, and two columns both headed 'Wait minutes'."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.merge_range(0, 1, 0, 2, "Waiting times")
-    sheet.write_row(1, 0, ("Site", "Wait minutes", "Wait minutes", "Follow-up"))
-    for r, (site, wait, follow) in enumerate(visits(), start=2):
-        sheet.write_row(r, 0, (site, wait, wait + 1.5, follow))
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.merge_range(0, 1, 0, 2, "Waiting times")
+        sheet.write_row(1, 0, ("Site", "Wait minutes", "Wait minutes", "Follow-up"))
+        for r, (site, wait, follow) in enumerate(visits(), start=2):
+            sheet.write_row(r, 0, (site, wait, wait + 1.5, follow))
     return path
 
 
 def excel_table(path: Path) -> Path:
     """The data in an Excel table with a totals row, beside other cells."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write(0, 6, "Notes beside the table (invented)")
-    rows = visits()
-    sheet.add_table(0, 0, len(rows) + 1, 2, {
-        "name": "VisitTable", "total_row": True,
-        "columns": [{"header": "Site", "total_string": "Total"},
-                    {"header": "Wait minutes", "total_function": "average"}, {"header": "Follow-up"}],
-    })
-    for r, row in enumerate(rows, start=1):
-        sheet.write_row(r, 0, row)
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write(0, 6, "Notes beside the table (invented)")
+        rows = visits()
+        sheet.add_table(0, 0, len(rows) + 1, 2, {
+            "name": "VisitTable", "total_row": True,
+            "columns": [{"header": "Site", "total_string": "Total"},
+                        {"header": "Wait minutes", "total_function": "average"}, {"header": "Follow-up"}],
+        })
+        for r, row in enumerate(rows, start=1):
+            sheet.write_row(r, 0, row)
     return path
 
 
 def emoji_rtl(path: Path) -> Path:
     """Site labels with emoji and right-to-left scripts, and a header in Arabic."""
     labels = {"Harbour": "מרפאת הנמל 🏥", "Millbrook": "عيادة الطاحونة", "Ashgrove": "Ashgrove 🌳"}
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, ("Site", "Wait minutes", "المتابعة"))
-    for r, (site, wait, follow) in enumerate(visits(), start=1):
-        sheet.write_row(r, 0, (labels[site], wait, follow))
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, ("Site", "Wait minutes", "المتابعة"))
+        for r, (site, wait, follow) in enumerate(visits(), start=1):
+            sheet.write_row(r, 0, (labels[site], wait, follow))
     return path
 
 
@@ -916,101 +915,87 @@ QUOTED_SHEET = "Dr O'Brien's \"visits\""
 
 def quoted_sheet_name(path: Path) -> Path:
     """The data sheet's name holds apostrophes and double quotes."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(QUOTED_SHEET)
-    sheet.write_row(0, 0, HEADERS)
-    for r, row in enumerate(visits(), start=1):
-        sheet.write_row(r, 0, row)
-    book.close()
+    with new_sheet(path, name=QUOTED_SHEET) as (book, sheet):
+        sheet.write_row(0, 0, HEADERS)
+        for r, row in enumerate(visits(), start=1):
+            sheet.write_row(r, 0, row)
     return path
 
 
 def blank_and_constant(path: Path) -> Path:
     """An all-blank column (header only) and a column holding one value throughout."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, (*HEADERS, "Empty", "Programme"))
-    for r, row in enumerate(visits(), start=1):
-        sheet.write_row(r, 0, row)
-        sheet.write(r, 4, "Outreach")
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, (*HEADERS, "Empty", "Programme"))
+        for r, row in enumerate(visits(), start=1):
+            sheet.write_row(r, 0, row)
+            sheet.write(r, 4, "Outreach")
     return path
 
 
 def many_labels(path: Path, n: int = 5_000, repeats: int = 4) -> Path:
     """A compare-by column with {n:,} different labels, each on {repeats} rows."""
-    book = xlsxwriter.Workbook(str(path), {"constant_memory": True})
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, HEADERS)
-    rng = np.random.default_rng(5)
-    for r in range(1, n * repeats + 1):
-        follow = "yes" if rng.random() < 0.6 else "no"
-        sheet.write_row(r, 0, (f"Point {r % n:05d}", round(float(rng.normal(33, 6)), 2), follow))
-    book.close()
+    with new_sheet(path, constant_memory=True) as (book, sheet):
+        sheet.write_row(0, 0, HEADERS)
+        rng = np.random.default_rng(5)
+        for r in range(1, n * repeats + 1):
+            follow = "yes" if rng.random() < 0.6 else "no"
+            sheet.write_row(r, 0, (f"Point {r % n:05d}", round(float(rng.normal(33, 6)), 2), follow))
     return path
 
 
 def mixed_values(path: Path) -> Path:
     """Numbers mixed with text in the outcome: 'NA', '-', '12,5', 'about 30', '<5', numbers stored as text."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, HEADERS)
-    odd = {3: "NA", 7: "-", 11: "12,5", 15: "about 30", 19: "<5", 23: "41", 27: "1,250"}
-    for r, (site, wait, follow) in enumerate(visits(), start=1):
-        sheet.write(r, 0, site)
-        if r in odd:
-            sheet.write_string(r, 1, odd[r])
-        else:
-            sheet.write_number(r, 1, wait)
-        sheet.write(r, 2, follow)
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, HEADERS)
+        odd = {3: "NA", 7: "-", 11: "12,5", 15: "about 30", 19: "<5", 23: "41", 27: "1,250"}
+        for r, (site, wait, follow) in enumerate(visits(), start=1):
+            sheet.write(r, 0, site)
+            if r in odd:
+                sheet.write_string(r, 1, odd[r])
+            else:
+                sheet.write_number(r, 1, wait)
+            sheet.write(r, 2, follow)
     return path
 
 
 def dates_as_text(path: Path) -> Path:
     """Visit dates typed as text in several formats, beside real dates."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, (*HEADERS, "Visit date"))
-    date_format = book.add_format({"num_format": "yyyy-mm-dd"})
-    texts = ("2026-03-{d:02d}", "{d:02d}/03/2026", "03/{d:02d}/2026", "{d} March 2026", "2026.03.{d:02d}")
-    for r, row in enumerate(visits(), start=1):
-        sheet.write_row(r, 0, row)
-        day = 1 + r % 28
-        if r % 3:
-            sheet.write_string(r, 3, texts[r % len(texts)].format(d=day))
-        else:
-            sheet.write_datetime(r, 3, dt.datetime(2026, 3, day), date_format)
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, (*HEADERS, "Visit date"))
+        date_format = book.add_format({"num_format": "yyyy-mm-dd"})
+        texts = ("2026-03-{d:02d}", "{d:02d}/03/2026", "03/{d:02d}/2026", "{d} March 2026", "2026.03.{d:02d}")
+        for r, row in enumerate(visits(), start=1):
+            sheet.write_row(r, 0, row)
+            day = 1 + r % 28
+            if r % 3:
+                sheet.write_string(r, 3, texts[r % len(texts)].format(d=day))
+            else:
+                sheet.write_datetime(r, 3, dt.datetime(2026, 3, day), date_format)
     return path
 
 
 def error_values(path: Path) -> Path:
     """Error values (#N/A, #DIV/0!, #VALUE!) among the waits, as cached formula results."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, HEADERS)
-    errors = {4: ("=NA()", "#N/A"), 9: ("=1/0", "#DIV/0!"), 14: ('="a"+1', "#VALUE!")}
-    for r, (site, wait, follow) in enumerate(visits(), start=1):
-        sheet.write(r, 0, site)
-        if r in errors:
-            sheet.write_formula(r, 1, errors[r][0], None, errors[r][1])
-        else:
-            sheet.write_number(r, 1, wait)
-        sheet.write(r, 2, follow)
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, HEADERS)
+        errors = {4: ("=NA()", "#N/A"), 9: ("=1/0", "#DIV/0!"), 14: ('="a"+1', "#VALUE!")}
+        for r, (site, wait, follow) in enumerate(visits(), start=1):
+            sheet.write(r, 0, site)
+            if r in errors:
+                sheet.write_formula(r, 1, errors[r][0], None, errors[r][1])
+            else:
+                sheet.write_number(r, 1, wait)
+            sheet.write(r, 2, follow)
     return path
 
 
 def uncached_formulas(path: Path) -> Path:
     """The outcome is all formulas saved without values (a script wrote them, no program calculated them)."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet(SHEET)
-    sheet.write_row(0, 0, (*HEADERS, "Wait hours"))
-    for r, row in enumerate(visits(), start=1):
-        sheet.write_row(r, 0, row)
-        sheet.write_formula(r, 3, f"=B{r + 1}/60", None, "")
-    book.close()
+    with new_sheet(path) as (book, sheet):
+        sheet.write_row(0, 0, (*HEADERS, "Wait hours"))
+        for r, row in enumerate(visits(), start=1):
+            sheet.write_row(r, 0, row)
+            sheet.write_formula(r, 3, f"=B{r + 1}/60", None, "")
     return path
 
 
