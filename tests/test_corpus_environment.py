@@ -91,13 +91,16 @@ def planned(book: Path) -> Path:
 
 
 def test_a_folder_given_as_the_workbook(tmp_path: Path) -> None:
-    """A folder named like a workbook gets the tool's one line (not a usage error) from every command."""
+    """A folder named like a workbook gets the tool's one line (not a usage error); run treats it as a folder of workbooks."""
     folder = tmp_path / "visits.xlsx"
     folder.mkdir()
-    for step in (TEST, PLAN, RUN):
+    for step in (TEST, PLAN):
         code, _, err = invoke(args_for(step, folder))
         assert code == INPUT
         one_line(err, "is a folder")
+    code, _, err = invoke(args_for(RUN, folder))  # run's folder mode: every workbook in it
+    assert code == INPUT
+    one_line(err, "No workbook in")
     assert list(folder.iterdir()) == []
 
 
