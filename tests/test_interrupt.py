@@ -178,3 +178,17 @@ def test_ctrl_c_at_a_random_moment(planned_big: Path, tmp_path: Path, run_second
     assert sha(path) == before or fully_written(path)
     only_the_workbook(path)
     rerun_succeeds(path)
+
+
+def test_a_command_leaves_the_stop_signal_handler_as_it_found_it(tmp_path: Path) -> None:
+    """SIGTERM becomes Ctrl+C only while a command runs, so a program calling the command line keeps its own handler."""
+
+    def mine(_signum: int, _frame: object) -> None:
+        """A handler of the calling program's."""
+
+    previous = signal.signal(signal.SIGTERM, mine)
+    try:
+        CliRunner().invoke(main, ["test", str(tmp_path / "missing.xlsx"), "--outcome", "a", "--by", "b"])
+        assert signal.getsignal(signal.SIGTERM) is mine
+    finally:
+        signal.signal(signal.SIGTERM, previous)

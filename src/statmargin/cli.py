@@ -19,7 +19,8 @@ import signal
 import sys
 import threading
 import warnings
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from pathlib import Path
 from typing import Any
 
@@ -52,28 +53,28 @@ def handle_errors(fn: Callable[..., Any]) -> Callable[..., Any]:
     def wrapper(*args: Any, **kwargs: Any) -> Any:
         ctx = click.get_current_context()
         debug = bool(ctx.meta.get("statmargin_debug"))
-        _stop_on_sigterm()
-        try:
-            return fn(*args, **kwargs)
-        except (click.exceptions.Exit, click.ClickException, click.Abort):
-            raise
-        except KeyboardInterrupt:
-            if debug:
+        with _sigterm_as_interrupt():
+            try:
+                return fn(*args, **kwargs)
+            except (click.exceptions.Exit, click.ClickException, click.Abort):
                 raise
-            from .words.file_messages import interrupted
+            except KeyboardInterrupt:
+                if debug:
+                    raise
+                from .words.file_messages import interrupted
 
-            click.echo(console.error_line(interrupted()), err=True)
-            ctx.exit(errors.EXIT_INTERRUPTED)
-        except errors.StatmarginError as err:
-            if debug:
-                raise
-            click.echo(console.error_line(str(err)), err=True)
-            ctx.exit(errors.exit_code_for(err))
-        except Exception as err:  # a bug: one line unless --debug
-            if debug:
-                raise
-            click.echo(console.internal_error_line(type(err).__name__, str(err)), err=True)
-            ctx.exit(errors.EXIT_BUG)
+                click.echo(console.error_line(interrupted()), err=True)
+                ctx.exit(errors.EXIT_INTERRUPTED)
+            except errors.StatmarginError as err:
+                if debug:
+                    raise
+                click.echo(console.error_line(str(err)), err=True)
+                ctx.exit(errors.exit_code_for(err))
+            except Exception as err:  # a bug: one line unless --debug
+                if debug:
+                    raise
+                click.echo(console.internal_error_line(type(err).__name__, str(err)), err=True)
+                ctx.exit(errors.EXIT_BUG)
 
     return wrapper
 
@@ -90,15 +91,21 @@ def _old_spelling(new: str, param_name: str) -> Callable[[click.Context, click.P
     return callback
 
 
-def _stop_on_sigterm() -> None:
-    """Treat a stop signal (SIGTERM) like Ctrl+C, so it ends with one line and the same clean-up."""
+@contextmanager
+def _sigterm_as_interrupt() -> Iterator[None]:
+    """While a command runs, treat a stop signal (SIGTERM) like Ctrl+C: one line and the same clean-up."""
 
     def stop(_signum: int, _frame: Any) -> None:
         raise KeyboardInterrupt
 
-    if hasattr(signal, "SIGTERM") and threading.current_thread() is threading.main_thread():
-        signal.signal(signal.SIGTERM, stop)
-
+    if not hasattr(signal, "SIGTERM") or threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    previous = signal.signal(signal.SIGTERM, stop)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)
 
 
 sheet_option = click.option(
