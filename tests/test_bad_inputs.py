@@ -8,22 +8,16 @@ write; 70 is reserved for bugs). Every workbook here is invented
 from __future__ import annotations
 
 import hashlib
-import os
 import shutil
 import zipfile
-import zlib
 from pathlib import Path
 
 import pytest
 import xlsxwriter
 from click.testing import CliRunner
-from hypothesis import HealthCheck, given, settings
-from hypothesis import strategies as st
 
 from statmargin.cli import main
-from statmargin.errors import EXIT_BUG
 from statmargin.io.file import sink as xlsxsink
-from statmargin.io.file.zipio import new_entry, read_zip, write_zip
 from statmargin.plan.roles_sheet import HEADERS, TABLE_HEADER_ROW
 from statmargin.read.table import column_letter
 from workbook_edit import make_newcomer_workbook, set_roles
@@ -84,7 +78,7 @@ class TestUnreadableFiles:
         path.write_text("Site,Wait\nNorth,30\n", encoding="utf-8")
         for args in (["run"], ["plan"], ["test", "--outcome", "Wait", "--by", "Site"]):
             line = refuse(path, args[0], str(path), *args[1:], code=INPUT)
-            assert "could not be opened as a workbook" in line
+            assert "plain text" in line and "save it as an Excel workbook" in line
 
     def test_empty_zip(self, tmp_path) -> None:
         """A zip with no parts is refused as not a workbook."""
@@ -204,119 +198,3 @@ class TestOptions:
             path, "test", str(path), "--outcome", "Wait minutes", "--against", "abc", code=INPUT
         )
         assert "'abc'" in line and "not a number" in line
-
-
-# ---------------------------------------------------------------- fuzzing
-
-FUZZ_ROWS = 12
-
-
-def _small_book(path: Path) -> Path:
-    """A tiny invented workbook with roles already picked, so a run goes all the way through."""
-    book = xlsxwriter.Workbook(str(path))
-    sheet = book.add_worksheet("Data")
-    sheet.write_row(0, 0, ["Site", "Wait"])
-    for i in range(FUZZ_ROWS):
-        sheet.write_row(i + 1, 0, ["North" if i % 2 else "South", 20.0 + 3 * i + (i % 3)])
-    book.close()
-    assert (
-        CliRunner().invoke(main, ["plan", str(path), "--outcome", "Wait", "--by", "Site"]).exit_code
-        == 0
-    )
-    return path
-
-
-@pytest.fixture(scope="module")
-def small_book(tmp_path_factory) -> bytes:
-    """The bytes of the tiny planned workbook the fuzz tests mutate."""
-    return _small_book(tmp_path_factory.mktemp("fuzz") / "small.xlsx").read_bytes()
-
-
-def _check_no_bug(path: Path, data: bytes) -> None:
-    path.write_bytes(data)
-    for args in (
-        ["run", str(path), "--quiet"],
-        ["test", str(path), "--outcome", "Wait", "--by", "Site"],
-    ):
-        result = CliRunner().invoke(main, args)
-        output = result.stdout + result.stderr
-        assert result.exit_code != EXIT_BUG, output
-        assert result.exit_code in (0, INPUT, LOCKED, WRITE), output
-        assert "Traceback" not in output
-        if result.exit_code != 0:
-            assert len(result.stderr.splitlines()) == 1 and result.stderr.startswith(
-                "statmargin: "
-            ), output
-
-
-mutation = st.lists(
-    st.tuples(
-        st.floats(0, 1, exclude_max=True),
-        st.integers(0, 255),
-        st.sampled_from(["set", "insert", "delete"]),
-    ),
-    min_size=1,
-    max_size=4,
-)
-
-
-# Deterministic in CI so a red run always reproduces; STATMARGIN_FUZZ=N explores N fresh random cases.
-FUZZ_EXAMPLES = int(os.environ.get("STATMARGIN_FUZZ", "150"))
-FUZZ_DERANDOMIZE = "STATMARGIN_FUZZ" not in os.environ
-
-
-@settings(
-    max_examples=FUZZ_EXAMPLES,
-    deadline=None,
-    derandomize=FUZZ_DERANDOMIZE,
-    suppress_health_check=[HealthCheck.function_scoped_fixture],
-)
-@given(edits=mutation, cut=st.one_of(st.none(), st.floats(0, 1)))
-def test_fuzz_raw_bytes(small_book, tmp_path, edits, cut) -> None:
-    """Random byte edits and truncations of a valid workbook never end in an internal error or a traceback."""
-    data = bytearray(small_book)
-    for where, value, how in edits:
-        at = int(where * len(data))
-        if how == "set":
-            data[at] = value
-        elif how == "insert":
-            data[at:at] = bytes([value])
-        else:
-            del data[at]
-    if cut is not None:
-        data = data[: int(cut * len(data))]
-    _check_no_bug(tmp_path / "fuzzed.xlsx", bytes(data))
-
-
-@settings(
-    max_examples=FUZZ_EXAMPLES,
-    deadline=None,
-    derandomize=FUZZ_DERANDOMIZE,
-    suppress_health_check=[HealthCheck.function_scoped_fixture],
-)
-@given(part=st.integers(0, 100), edits=mutation)
-def test_fuzz_part_contents(small_book, tmp_path, part, edits) -> None:
-    """Byte edits inside one XML part, re-zipped with a valid checksum, never end in an internal error."""
-    entries = read_zip(small_book)
-    xml_parts = [i for i, e in enumerate(entries) if e.name.endswith((".xml", ".rels"))]
-    index = xml_parts[part % len(xml_parts)]
-    data = bytearray(entries[index].data())
-    for where, value, how in edits:
-        at = int(where * len(data))
-        if how == "set":
-            data[at] = value
-        elif how == "insert":
-            data[at:at] = bytes([value])
-        else:
-            del data[at]
-    entries[index] = new_entry(entries[index].name, bytes(data))
-    _check_no_bug(tmp_path / "fuzzed.xlsx", write_zip(entries))
-
-
-def test_fuzz_inputs_are_valid_to_start_with(small_book, tmp_path) -> None:
-    """The unmutated fuzz workbook runs cleanly (so the fuzz starts from a working file)."""
-    path = tmp_path / "small.xlsx"
-    path.write_bytes(small_book)
-    result = CliRunner().invoke(main, ["run", str(path), "--quiet"])
-    assert result.exit_code == 0, result.stderr
-    assert zlib.crc32(small_book) != zlib.crc32(path.read_bytes())  # results were written

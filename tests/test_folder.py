@@ -57,7 +57,7 @@ def test_twenty_workbooks_one_corrupt(tmp_path: Path, planned_workbook: Path) ->
     result = CliRunner().invoke(main, ["run", str(folder), "--jobs", "2", "--json", str(tmp_path / "all.json")])
     assert result.exit_code == 2, result.output
     assert _digest(bad) == before
-    assert "district-14.xlsx: File 'district-14.xlsx' could not be opened as a workbook" in result.output
+    assert "district-14.xlsx: File 'district-14.xlsx' is not a readable workbook" in result.output
     assert "1 of 20 workbooks could not be refreshed" in result.output
     document = json.loads((tmp_path / "all.json").read_text(encoding="utf-8"))
     statuses = {Path(w["path"]).name: w["status"] for w in document["workbooks"]}
@@ -87,7 +87,7 @@ def test_summary_workbook_has_a_row_per_workbook_and_analysis(tmp_path: Path, pl
         ("district-03.xlsx", None, "failed"),
     ]
     assert isinstance(rows[0][COL["p-value"]], float)
-    assert "could not be opened as a workbook" in rows[4][COL["Message"]]
+    assert "is not a readable workbook" in rows[4][COL["Message"]]
     assert "reviewed by a qualified analyst" in sheet.cell(2, 1).value
     # A second run replaces its own earlier summary and does not refresh it as a workbook.
     again = run_folder(folder, jobs=1)

@@ -369,10 +369,8 @@ class TestCharts:
 
 
 class TestPackage:
-    def test_sheet_scoped_names_are_renumbered_when_a_tool_sheet_moves(
-        self, tmp_path: Path
-    ) -> None:
-        """Replacing a tool sheet in the middle renumbers later sheets' localSheetId and the active tab."""
+    def test_a_tool_sheet_in_the_middle_is_replaced_in_place(self, tmp_path: Path) -> None:
+        """Replacing a tool sheet the user moved between their sheets keeps every position, name scope and the active tab."""
         import xlsxwriter
 
         path = tmp_path / "middle.xlsx"
@@ -395,11 +393,11 @@ class TestPackage:
         blob = write_zip(result.entries)
         text = {e.name: e for e in read_zip(blob)}["xl/workbook.xml"].data().decode()
         names = re.findall(r'<definedName name="([^"]+)" localSheetId="(\d+)"', text)
-        assert ("LocalThing", "1") in names and ("statmargin_sheet", "2") in names
-        assert 'activeTab="1"' in text  # "Later" was active at position 2, now at 1
+        assert ("LocalThing", "2") in names and ("statmargin_sheet", "1") in names
+        assert 'activeTab="2"' in text  # "Later" is still active, still third
         assert result.replaced == ["results"] and result.sheets == {"results": "results"}
         book = openpyxl.load_workbook(io.BytesIO(blob))
-        assert book.sheetnames == ["Data", "Later", "results"]
+        assert book.sheetnames == ["Data", "results", "Later"]
         assert book["results"]["A1"].value == "new results"
 
     def test_rich_workbook_parts_changed_are_the_listed_few(self, tmp_path: Path) -> None:
@@ -562,7 +560,7 @@ class TestRemovalOfEarlierSheets:
         results_only = [m for m in sample_tool_models() if m.kind == "results"]
         FileSink(path).write_sheets(results_only)
         book = openpyxl.load_workbook(path)
-        assert book.sheetnames == ["Visits", "Notes", "charts", "results"]
+        assert book.sheetnames == ["Visits", "Notes", "results", "charts"]
         assert book.active.title == "results"
 
 

@@ -221,7 +221,8 @@ class TestReruns:
         report = FileSink(rich).write_sheets(results_only)
         assert report.replaced == ["results"]
         book = openpyxl.load_workbook(rich)
-        assert book.sheetnames == [DATA_SHEET, SECOND_SHEET, "charts", "results"]
+        # The new results sheet takes the old one's place, before the charts sheet.
+        assert book.sheetnames == [DATA_SHEET, SECOND_SHEET, "results", "charts"]
         # The link to {charts} resolves to the kept charts sheet.
         assert book["results"]["A7"].hyperlink.location == "'charts'!A1"
         entries = _entries(rich)

@@ -187,7 +187,7 @@ class TestOpening:
         path = tmp_path / "notes.xlsx"
         path.write_text("site,wait\nNorth,12\n")
         with pytest.raises(
-            WorkbookError, match=r"^File 'notes\.xlsx' could not be opened as a workbook"
+            WorkbookError, match=r"^File 'notes\.xlsx' is plain text \(for example CSV\), not a workbook"
         ) as info:
             FileSource(path)
         assert "\n" not in str(info.value)

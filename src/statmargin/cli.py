@@ -15,9 +15,12 @@ from __future__ import annotations
 import contextlib
 import functools
 import json
+import signal
 import sys
+import threading
 import warnings
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from pathlib import Path
 from typing import Any
 
@@ -50,20 +53,28 @@ def handle_errors(fn: Callable[..., Any]) -> Callable[..., Any]:
     def wrapper(*args: Any, **kwargs: Any) -> Any:
         ctx = click.get_current_context()
         debug = bool(ctx.meta.get("statmargin_debug"))
-        try:
-            return fn(*args, **kwargs)
-        except (click.exceptions.Exit, click.ClickException, click.Abort):
-            raise
-        except errors.StatmarginError as err:
-            if debug:
+        with _sigterm_as_interrupt():
+            try:
+                return fn(*args, **kwargs)
+            except (click.exceptions.Exit, click.ClickException, click.Abort):
                 raise
-            click.echo(console.error_line(str(err)), err=True)
-            ctx.exit(errors.exit_code_for(err))
-        except Exception as err:  # a bug: one line unless --debug
-            if debug:
-                raise
-            click.echo(console.internal_error_line(type(err).__name__, str(err)), err=True)
-            ctx.exit(errors.EXIT_BUG)
+            except KeyboardInterrupt:
+                if debug:
+                    raise
+                from .words.file_messages import interrupted
+
+                click.echo(console.error_line(interrupted()), err=True)
+                ctx.exit(errors.EXIT_INTERRUPTED)
+            except errors.StatmarginError as err:
+                if debug:
+                    raise
+                click.echo(console.error_line(str(err)), err=True)
+                ctx.exit(errors.exit_code_for(err))
+            except Exception as err:  # a bug: one line unless --debug
+                if debug:
+                    raise
+                click.echo(console.internal_error_line(type(err).__name__, str(err)), err=True)
+                ctx.exit(errors.EXIT_BUG)
 
     return wrapper
 
@@ -78,6 +89,23 @@ def _old_spelling(new: str, param_name: str) -> Callable[[click.Context, click.P
         return value
 
     return callback
+
+
+@contextmanager
+def _sigterm_as_interrupt() -> Iterator[None]:
+    """While a command runs, treat a stop signal (SIGTERM) like Ctrl+C: one line and the same clean-up."""
+
+    def stop(_signum: int, _frame: Any) -> None:
+        raise KeyboardInterrupt
+
+    if not hasattr(signal, "SIGTERM") or threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    previous = signal.signal(signal.SIGTERM, stop)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)
 
 
 sheet_option = click.option(
@@ -148,7 +176,7 @@ pair_alias = click.option(
     callback=_old_spelling("--paired-with", "paired_with"),
 )
 out_option = click.option(
-    "--out", metavar="PATH", type=click.Path(dir_okay=False, path_type=Path), default=None,
+    "--out", metavar="PATH", type=click.Path(path_type=Path, readable=False), default=None,
     help=console.HELP["out"],
 )
 quiet_option = click.option("--quiet", is_flag=True, help=console.HELP["quiet"])
@@ -217,7 +245,7 @@ def main() -> None:
 
 
 @main.command("test")
-@click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
+@click.argument("workbook", type=click.Path(path_type=Path, readable=False))
 @sheet_option
 @outcome_option
 @by_option
@@ -281,7 +309,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 
 
 @main.command("plan")
-@click.argument("workbook", type=click.Path(dir_okay=False, path_type=Path))
+@click.argument("workbook", type=click.Path(path_type=Path, readable=False))
 @sheet_option
 @click.option("--header-row", type=int, default=None, metavar="N", help=console.HELP["header_row"])
 @outcome_option
@@ -327,7 +355,7 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 
 
 @main.command("run")
-@click.argument("workbook", type=click.Path(path_type=Path))
+@click.argument("workbook", type=click.Path(path_type=Path, readable=False))
 @out_option
 @share_option
 @min_count_option

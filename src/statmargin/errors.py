@@ -66,7 +66,8 @@ class ExcelBridgeError(StatmarginError):
 
 # Exit codes, mapped here and nowhere else. 2 is "your input is wrong"; 3 is
 # "the file is busy"; 4 is "writing failed"; 5 is an environment problem; 70 is
-# a bug in statmargin (EX_SOFTWARE from sysexits.h).
+# a bug in statmargin (EX_SOFTWARE from sysexits.h); 130 is "stopped by Ctrl+C
+# or a stop signal" (128 + SIGINT, as shells report it).
 EXIT_CODES: dict[type[StatmarginError], int] = {
     WorkbookError: 2,
     SheetNotFoundError: 2,
@@ -79,6 +80,7 @@ EXIT_CODES: dict[type[StatmarginError], int] = {
     ExcelBridgeError: 5,
 }
 EXIT_BUG = 70
+EXIT_INTERRUPTED = 130
 
 
 def exit_code_for(error: StatmarginError) -> int:

@@ -18,6 +18,10 @@ from ..vocabulary.codes import Coded, Count, Reason, Skip, coded
 from .base import Prepared, Skipped, constant_reason
 from .question import Question
 
+# At most this many groups in one comparison: beyond it the follow-up pairs (n(n-1)/2) and
+# the results sheet stop being readable, and splitting the rows by group grows with n.
+MAX_GROUPS = 50
+
 
 @dataclass
 class GroupData:
@@ -81,7 +85,8 @@ def group_data(question: Question) -> GroupData:
     values = y.values[usable].astype(float)
     labels = g.values[usable]
     levels = levels_present(grouping_info, labels)
-    groups = {lev: values[labels == lev] for lev in levels}
+    # Too many groups are refused in prepare_groups; splitting them would cost n x groups.
+    groups = {lev: values[labels == lev] for lev in levels} if len(levels) <= MAX_GROUPS else {}
     data = GroupData(numbers, numbers_info, grouping, grouping_info, levels, groups, int(values.size),
                      n_excluded, lead, usable, labels)
     question.cache["groups"] = data
@@ -93,6 +98,9 @@ def prepare_groups(question: Question, design: Design, would: tuple[object, obje
     data = group_data(question)
     name, by = data.numbers.name, data.grouping.name
     prepared = Prepared(design, n=data.n, n_excluded=data.n_excluded, groups=data.groups)
+    if len(data.levels) > MAX_GROUPS:
+        reason = coded(Skip.TOO_MANY_GROUPS, by=by, n=len(data.levels), limit=MAX_GROUPS)
+        raise Skipped(reason, prepared, design=Design.MULTI_GROUP_CONTINUOUS, reasons=data.lead)
     shape = assess(data.groups)
     spread = spread_check(data.groups) if len(data.levels) >= 3 else None
     prepared.shape = {"assessment": shape.to_record(), "spread": spread.to_record() if spread else None}

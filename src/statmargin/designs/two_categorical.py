@@ -16,7 +16,7 @@ from ..stats.shape import count_check, expected_counts
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Coded, Derived, Reason, Skip, coded
 from .base import Choice, DesignSpec, Prepared, Skipped, method_options
-from .groups import levels_present
+from .groups import MAX_GROUPS, levels_present
 from .question import Question
 
 COCHRAN_MIN_EXPECTED = 5.0  # Cochran 1954, Biometrics 10(4):417-451, doi:10.2307/3001616
@@ -58,6 +58,10 @@ class TwoCategorical(DesignSpec):
         cols = levels_present(question.outcome_info, out_labels)
         if len(cols) == 2:
             cols = event_first(cols, question.event_level(cols))
+        for column, levels in ((by, rows), (name, cols)):
+            if len(levels) > MAX_GROUPS:
+                reason = coded(Skip.TOO_MANY_GROUPS, by=column, n=len(levels), limit=MAX_GROUPS)
+                raise Skipped(reason, Prepared(self.design, n=int(usable.sum()), n_excluded=n_excl))
         observed = np.array([[int(np.sum((by_labels == r) & (out_labels == c))) for c in cols] for r in rows])
         prepared = Prepared(self.design, n=int(usable.sum()), n_excluded=n_excl, table=observed,
                             row_labels=rows, col_labels=cols)

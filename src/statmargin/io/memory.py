@@ -324,11 +324,15 @@ class MemoryWorkbook:
         new_sheets = [
             _written_sheet(m, placement.final[m.kind], placement.kind_to_name) for m in models
         ]
-        kept = [
-            replace(s, tool_kind=None) if i in placement.unmarked else s
-            for i, s in enumerate(self._sheets)
-            if i not in placement.removed
-        ]
+        # A replacement takes the replaced sheet's place and visibility; new kinds go last.
+        successors = {m.kind: sheet for m, sheet in zip(models, new_sheets, strict=True)}
+        kept: list[MemorySheet] = []
+        for i, sheet in enumerate(self._sheets):
+            if i in placement.removed:
+                kept.append(replace(successors.pop(str(sheet.tool_kind)), hidden=sheet.hidden))
+            else:
+                kept.append(replace(sheet, tool_kind=None) if i in placement.unmarked else sheet)
+        new_sheets = [successors[m.kind] for m in models if m.kind in successors]
         report = WriteReport(
             path=out or self.name,
             sheets=dict(placement.final),

@@ -325,11 +325,15 @@ class WorkbookSink(Protocol):
         -----
         The rules every back end follows (``io.placement.place``): a
         marked sheet of the same kind is replaced (one per kind; other marked
-        copies lose the marker and stay as the user's own), new sheets go after
-        the user's sheets, a user sheet holding a wanted name is never touched
-        and the tool's sheet gets another name, which ``WriteReport.renamed``
-        tells. Each written sheet carries the ``TOOL_SHEET_MARKER`` of its kind.
-        A failure leaves the book as it was.
+        copies lose the marker and stay as the user's own). The user's layout
+        is theirs: a replacement takes the replaced sheet's position and its
+        visibility (hidden and very hidden sheets stay so), so a tool sheet the
+        user moved or hid stays where and as they left it and no other sheet
+        moves; sheets of kinds the book does not have yet go after its last
+        sheet, in the order given. A user sheet holding a wanted name is never
+        touched and the tool's sheet gets another name, which
+        ``WriteReport.renamed`` tells. Each written sheet carries the
+        ``TOOL_SHEET_MARKER`` of its kind. A failure leaves the book as it was.
         """
         ...
 

@@ -162,6 +162,7 @@ def plan_workbook(
     from ..read.reader import first_data_sheet, read_table, sample_values
 
     source, sink, opened = _backends(path, source, sink)
+    sink.check(str(out) if out else None)  # a file that cannot be written is refused before the reading
     previous = read_roles(source)
     plan = previous.plan if previous else Plan()
     say = progress or (lambda message, done=None, total=None: None)

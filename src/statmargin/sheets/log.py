@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections import deque
 from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 
@@ -32,6 +33,9 @@ LOG_COLUMNS: tuple[tuple[str, str, float], ...] = (
     ("Data fingerprint", "fingerprint", 24),
 )
 _LOG_COUNTS = ("rows_read", "rows_used")
+# The run log keeps this many runs (this one included), dropping the oldest, so a
+# workbook refreshed every day does not grow without bound.
+LOG_KEEP_RUNS = 100
 
 
 def run_info(context: ReportContext, results: Sequence[Result]) -> dict[str, Any]:
@@ -65,20 +69,21 @@ def log_sheet(
     Returns
     -------
     SheetModel
-        Kind "log", oldest run first.
+        Kind "log", oldest run first; at most ``LOG_KEEP_RUNS`` runs, this one included.
     """
     model = SheetModel(name=SHEET_NAMES["log"], kind="log")
     model.landscape = True
     model.fit_to_width = True
     model.page_numbers = True
     model.put(0, 0, "statmargin run log", "title")
-    model.put(1, 0, "One row per run, oldest first.", "muted")
+    model.put(1, 0, f"One row per run, oldest first; the last {LOG_KEEP_RUNS} runs are kept.", "muted")
     header = 3
     model.put_row(header, [h for h, _, _ in LOG_COLUMNS], "header")
     model.freeze = (header + 1, 0)
     model.widths = {i: width for i, (_, _, width) in enumerate(LOG_COLUMNS)}
     row = header + 1
-    for old in list(previous_rows) + [run_info]:
+    kept = list(previous_rows)[-(LOG_KEEP_RUNS - 1) :]  # this run makes LOG_KEEP_RUNS
+    for old in kept + [run_info]:
         for col, (heading, key, _) in enumerate(LOG_COLUMNS):
             if isinstance(old, Mapping):
                 value = old.get(key, old.get(heading))
@@ -104,10 +109,11 @@ def parse_log_rows(rows: Iterable[Sequence[Any]]) -> list[list[Any]]:
     -------
     list of list
         Each run's row in ``LOG_COLUMNS`` order (padded with None), oldest first;
-        rows above the header and blank rows are dropped.
+        rows above the header and blank rows are dropped, and only the newest
+        ``LOG_KEEP_RUNS`` rows are kept.
     """
     width = len(LOG_COLUMNS)
-    out: list[list[Any]] = []
+    out: deque[list[Any]] = deque(maxlen=LOG_KEEP_RUNS)
     seen_header = False
     for row in rows:
         cells = list(row)[:width]
@@ -117,6 +123,6 @@ def parse_log_rows(rows: Iterable[Sequence[Any]]) -> list[list[Any]]:
         if all(c is None or (isinstance(c, str) and not c.strip()) for c in cells):
             continue
         out.append(cells + [None] * (width - len(cells)))
-    return out
+    return list(out)
 
 

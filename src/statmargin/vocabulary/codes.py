@@ -101,6 +101,7 @@ class Skip(Word):
     ONE_LEVEL = "one_level"  # column, level (optional)
     FEWER_THAN_TWO_GROUPS = "fewer_than_two_groups"  # by, level (optional)
     GROUP_OF_ONE = "group_of_one"  # by, level, n (a Count, 1), cell (of its row; None without sheet rows)
+    TOO_MANY_GROUPS = "too_many_groups"  # by, n, limit
     TOO_MANY_CONDITIONS = "too_many_conditions"  # by, n, key
     NEED_TWO_CONDITIONS = "need_two_conditions"  # by, outcome, key
     DUPLICATE_KEYS = "duplicate_keys"  # key, by, keys

@@ -216,6 +216,11 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
         "nothing to compare."
     ),
     Skip.GROUP_OF_ONE: _group_of_one,
+    Skip.TOO_MANY_GROUPS: lambda f: (
+        f"{f['by']} has {f['n']:,} different groups, more than the {f['limit']} statmargin compares at once "
+        f"({f['limit']} groups already make {f['limit'] * (f['limit'] - 1) // 2:,} pairs to follow up); group the "
+        "labels into fewer categories in a new column (for example region instead of site) and compare by that."
+    ),
     Skip.TOO_MANY_CONDITIONS: _too_many_conditions,
     Skip.NEED_TWO_CONDITIONS: "{by} needs two conditions to pair {outcome} by {key}.",
     Skip.DUPLICATE_KEYS: lambda f: (

@@ -13,6 +13,7 @@ from ...errors import WriteError
 from ...sheets.layout import parse_cell_ref, quote_sheet
 from ...sheets.looks import SERIES_COLOURS
 from ...sheets.model import Chart, SheetModel
+from ...words import file_messages as messages
 from .sheetxml import escape
 
 C_NS = "http://schemas.openxmlformats.org/drawingml/2006/chart"
@@ -29,15 +30,11 @@ def _range_cells(ref: str, sheet: str) -> list[tuple[int, int]]:
     """0-based cells of a one-row or one-column range such as "$C$5:$C$14"."""
     match = _RANGE.match(ref.strip())
     if not match:
-        raise WriteError(
-            f"The chart range '{ref}' on sheet {sheet} is not a range such as $C$5:$C$14; the file was left as it was."
-        )
+        raise WriteError(messages.chart_range_not_a_range(ref, sheet))
     r1, c1 = parse_cell_ref(f"{match.group(1)}{match.group(2)}")
     r2, c2 = parse_cell_ref(f"{match.group(3)}{match.group(4)}")
     if r1 != r2 and c1 != c2:
-        raise WriteError(
-            f"The chart range '{ref}' on sheet {sheet} must be one row or one column; the file was left as it was."
-        )
+        raise WriteError(messages.chart_range_not_a_line(ref, sheet))
     return [
         (r, c)
         for r in range(min(r1, r2), max(r1, r2) + 1)
@@ -49,7 +46,7 @@ def absolute(ref: str) -> str:
     """A range with $ anchors on every part: "C5:C14" -> "$C$5:$C$14"."""
     match = _RANGE.match(ref.strip())
     if not match:
-        raise WriteError(f"'{ref}' is not a range such as $C$5:$C$14; the file was left as it was.")
+        raise WriteError(messages.not_a_range(ref))
     c1, r1, c2, r2 = match.groups()
     return f"${c1.upper()}${r1}:${c2.upper()}${r2}"
 
@@ -83,13 +80,9 @@ def chart_xml(chart: Chart, sheet_name: str, model: SheetModel) -> bytes:
     Element order follows ECMA-376 Part 1, 21.2 (DrawingML charts).
     """
     if chart.kind not in CHART_KINDS:
-        raise WriteError(
-            f"Unknown chart kind '{chart.kind}' on sheet {sheet_name}; the file was left as it was."
-        )
+        raise WriteError(messages.unknown_chart_kind(chart.kind, sheet_name))
     if not chart.series:
-        raise WriteError(
-            f"The chart '{chart.title}' on sheet {sheet_name} has no series; the file was left as it was."
-        )
+        raise WriteError(messages.chart_without_series(chart.title, sheet_name))
     prefix = quote_sheet(sheet_name) + "!"
     cat_cells = _range_cells(chart.categories, sheet_name)
     labels = [

@@ -5,8 +5,10 @@ active tab), its relationships, ``[Content_Types].xml``, ``docProps/app.xml``
 (sheet titles) and the styles part. Those are edited as text, inserting or
 cutting whole elements, so every prefix, namespace declaration and extension
 the user's program wrote stays as it was. Every other part is carried over
-byte for byte. Tool sheets are appended after the user's sheets, so no user
-sheet changes position.
+byte for byte. A replaced tool sheet's successor takes its place and its
+visibility in the sheet list (the user may have moved or hidden it); tool
+sheets of new kinds are appended after the last sheet. No sheet changes
+position.
 
 A tool sheet is recognised by a hidden, sheet-scoped defined name
 (``backend.TOOL_SHEET_MARKER``) holding its kind, never by its name alone.
@@ -24,6 +26,7 @@ from dataclasses import dataclass, field
 from ...errors import WorkbookError, WriteError
 from ...sheets.layout import print_titles
 from ...sheets.model import SheetModel
+from ...words import file_messages as messages
 from ..placement import place
 from ..protocol import TOOL_SHEET_MARKER
 from . import charts as chartxml
@@ -147,21 +150,15 @@ def office_document_part(parts: dict[str, ZipEntry]) -> str:
             return rel["part"]
     if "xl/workbook.xml" in parts:
         return "xl/workbook.xml"
-    raise WorkbookError(
-        "The file has no workbook part; it is not an Excel workbook (.xlsx or .xlsm)."
-    )
+    raise WorkbookError(messages.no_workbook_part())
 
 
 def _main_prefix(text: str) -> str:
     match = re.search(r"<(?:(\w+):)?workbook\b([^>]*)>", text)
     if not match:
-        raise WorkbookError(
-            "The workbook part has no workbook element; save the file again from a spreadsheet program."
-        )
+        raise WorkbookError(messages.no_workbook_element())
     if STRICT_NS in match.group(2):
-        raise WriteError(
-            "The workbook is saved in the 'Strict Open XML' format, which statmargin cannot write; save it as a regular .xlsx and try again."
-        )
+        raise WriteError(messages.strict_not_writable())
     return f"{match.group(1)}:" if match.group(1) else ""
 
 
@@ -220,9 +217,7 @@ def read_sheets(parts: dict[str, ZipEntry]) -> tuple[str, list[SheetInfo]]:
     """
     workbook_part = office_document_part(parts)
     if workbook_part not in parts:
-        raise WorkbookError(
-            "The workbook part is missing from the file; save it again from a spreadsheet program."
-        )
+        raise WorkbookError(messages.workbook_part_missing())
     workbook_xml = parts[workbook_part].data()
     text = workbook_xml.decode("utf-8")
     prefix = _main_prefix(text)
@@ -340,9 +335,7 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
     wb_dir = posixpath.dirname(workbook_part)
     wb_rels_part = rels_part_for(workbook_part)
     if wb_rels_part not in parts:
-        raise WorkbookError(
-            "The workbook has no relationships part; save it again from a spreadsheet program."
-        )
+        raise WorkbookError(messages.no_workbook_rels())
 
     # Which sheets go, which stay, and the new sheets' names (shared with every back end).
     placement = place([(s.name, s.tool_kind) for s in sheets], models)
@@ -470,7 +463,10 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
     if edited_styles:
         edited[edited_styles] = styles_xml
     if APP_PART in parts:
-        app = _edit_app(parts[APP_PART].data(), sheets, removed_idx, [n for n, _, _ in new_sheets])
+        successors = {i: final[str(sheets[i].tool_kind)] for i in removed_idx}
+        replaced_kinds = {sheets[i].tool_kind for i in removed_idx}
+        appended = [final[k] for k in final if k not in replaced_kinds]
+        app = _edit_app(parts[APP_PART].data(), sheets, successors, appended)
         if app is not None:
             edited[APP_PART] = app
 
@@ -486,9 +482,7 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
             out.append(entry)
     for name, data in added.items():
         if name in parts and name not in removed_parts:
-            raise WriteError(
-                f"statmargin would overwrite the part {name}; the file was left as it was."
-            )
+            raise WriteError(messages.would_overwrite(name))
         out.append(new_entry(name, data))
     return PackageResult(
         entries=out,
@@ -511,54 +505,46 @@ def _edit_workbook(
     unmark: AbstractSet[int] = frozenset(),
     titles: list[str | None] | None = None,
 ) -> bytes:
-    """Cut removed <sheet> elements and their names, renumber, append new sheets and markers.
+    """Swap replaced <sheet> elements for new ones in place, append new kinds, add markers.
 
-    ``titles`` holds each new sheet's print-titles reference (or None); it becomes the
-    sheet-scoped ``_xlnm.Print_Titles`` name, removed with the sheet on the next run.
+    A replaced tool sheet's successor takes its place in the sheet list and its
+    visibility (``state="hidden"`` or ``"veryHidden"``), so no sheet changes
+    position and sheet-scoped names, the active tab and the first visible tab
+    keep pointing where they did. Kinds the workbook did not have yet are
+    appended after the last sheet. Names scoped to a replaced sheet go with it.
+    ``titles`` holds each new sheet's print-titles reference (or None); it becomes
+    the sheet-scoped ``_xlnm.Print_Titles`` name, removed with the sheet on the next run.
     """
     prefix = _main_prefix(text)
     removed = set(removed_idx)
-    new_index = {}
-    position = 0
-    for i in range(len(sheets)):
-        if i not in removed:
-            new_index[i] = position
-            position += 1
-    n_kept = position
-    # A replaced sheet's position passes to its replacement, so a user who was
-    # looking at the results sheet sees the new one.
-    replacement_index: dict[int, int] = {}
+    positions = sheet_positions(sheets, removed_idx, kinds)
+    states = {}
+    elements = _sheet_elements(text, prefix)
     for i in removed:
-        tool_kind = sheets[i].tool_kind
-        if tool_kind is not None and tool_kind in kinds:
-            replacement_index[i] = n_kept + kinds.index(tool_kind)
-    r_prefix = _rel_prefix(text)
+        state = _attrs(elements[i].group(1)).get("state")
+        if state and state != "visible":
+            states[sheets[i].tool_kind] = state
 
     # Defined names first (offsets are recomputed after each structural edit).
-    def fix_name(match: re.Match[str]) -> str:
+    def drop_name(match: re.Match[str]) -> str:
         attrs = _attrs(match.group(1))
         local = attrs.get("localSheetId")
-        if local is None:
+        if local is None or not local.strip().isdigit():
             return match.group(0)
         index = int(local)
         if index in removed or (index in unmark and attrs.get("name") == TOOL_SHEET_MARKER):
             return ""
-        if new_index.get(index, index) != index:
-            # localSheetId was just read from these attributes, so the search finds it.
-            found = re.search(r"""localSheetId\s*=\s*["']\d+["']""", match.group(0))
-            assert found is not None
-            return match.group(0).replace(found.group(0), f'localSheetId="{new_index[index]}"', 1)
         return match.group(0)
 
     pattern = re.compile(
         rf"<{prefix}definedName\b([^>]*?)(?:/>|>(.*?)</{prefix}definedName>)", re.S
     )
-    text = pattern.sub(fix_name, text)
+    text = pattern.sub(drop_name, text)
     markers = "".join(
-        f'<{prefix}definedName name="{TOOL_SHEET_MARKER}" localSheetId="{n_kept + k}" hidden="1">"{sheetxml.escape(kind)}"</{prefix}definedName>'
+        f'<{prefix}definedName name="{TOOL_SHEET_MARKER}" localSheetId="{positions[k]}" hidden="1">"{sheetxml.escape(kind)}"</{prefix}definedName>'
         for k, kind in enumerate(kinds)
     ) + "".join(
-        f'<{prefix}definedName name="_xlnm.Print_Titles" localSheetId="{n_kept + k}">{sheetxml.escape(ref)}</{prefix}definedName>'
+        f'<{prefix}definedName name="_xlnm.Print_Titles" localSheetId="{positions[k]}">{sheetxml.escape(ref)}</{prefix}definedName>'
         for k, ref in enumerate(titles or [])
         if ref
     )
@@ -581,9 +567,7 @@ def _edit_workbook(
                     after = found.end()
                     break
             if after is None:
-                raise WriteError(
-                    "The workbook part has no sheet list; the file was left as it was."
-                )
+                raise WriteError(messages.no_sheet_list())
             text = (
                 text[:after]
                 + f"<{prefix}definedNames>{markers}</{prefix}definedNames>"
@@ -591,44 +575,91 @@ def _edit_workbook(
             )
     # An emptied <definedNames></definedNames> cannot happen: markers are always added.
 
-    # Sheet list.
+    # Sheet list: successors in place (from the end, so earlier offsets stay valid), then new kinds.
+    r_prefix = _rel_prefix(text)
+    by_kind = dict(zip(kinds, new_sheets, strict=True))
     elements = _sheet_elements(text, prefix)
     for i in sorted(removed, reverse=True):
-        m = elements[i]
-        text = text[: m.start()] + text[m.end() :]
+        kind = sheets[i].tool_kind
+        assert kind is not None  # only tool sheets are replaced
+        element = _sheet_element(prefix, r_prefix, *by_kind[kind], states.get(kind))
+        text = text[: elements[i].start()] + element + text[elements[i].end() :]
     close = re.search(rf"</{prefix}sheets>", text)
     if close is None:
-        raise WriteError("The workbook part has no sheet list; the file was left as it was.")
+        raise WriteError(messages.no_sheet_list())
+    replaced_kinds = {sheets[i].tool_kind for i in removed}
     added = "".join(
-        f'<{prefix}sheet name="{sheetxml.escape(name)}" sheetId="{sheet_id}" {r_prefix}:id="{rel_id}"/>'
-        for name, rel_id, sheet_id in new_sheets
+        _sheet_element(prefix, r_prefix, *by_kind[kind], None)
+        for kind in kinds
+        if kind not in replaced_kinds
     )
     text = text[: close.start()] + added + text[close.start() :]
-
-    # Active and first visible tab refer to positions.
-    def fix_view(match: re.Match[str]) -> str:
-        tag = match.group(0)
-        for attr in ("activeTab", "firstSheet"):
-            found = re.search(rf'\b{attr}="(\d+)"', tag)
-            if found:
-                old = int(found.group(1))
-                value = new_index.get(old, replacement_index.get(old, 0))
-                tag = tag.replace(found.group(0), f'{attr}="{value}"', 1)
-        return tag
-
-    text = re.sub(rf"<{prefix}workbookView\b[^>]*>", fix_view, text)
     encoded = text.encode("utf-8")
     ET.fromstring(encoded)  # must still be well-formed
     return encoded
 
 
-def _rel_prefix(text: str) -> str:
-    match = re.search(rf'xmlns:(\w+)="{re.escape(DOC_REL_NS)}"', text)
-    if not match:
-        raise WriteError(
-            "The workbook part declares no relationship namespace; the file was left as it was."
-        )
-    return match.group(1)
+def sheet_positions(sheets: list[SheetInfo], removed_idx: list[int], kinds: list[str]) -> list[int]:
+    """Final 0-based position of each new tool sheet: its predecessor's, else after the last sheet.
+
+    Parameters
+    ----------
+    sheets : list of SheetInfo
+        The workbook's sheets before the write.
+    removed_idx : list of int
+        Positions of the tool sheets being replaced.
+    kinds : list of str
+        Kinds of the sheets being written, in the order given.
+
+    Returns
+    -------
+    list of int
+        One position per kind.
+
+    Examples
+    --------
+    >>> data = SheetInfo("Data", 1, "rId1", "", "", None)
+    >>> roles = SheetInfo("roles", 2, "rId2", "", "", "roles")
+    >>> sheet_positions([roles, data], [0], ["roles", "results"])
+    [0, 2]
+    """
+    where = {sheets[i].tool_kind: i for i in removed_idx}
+    positions, extra = [], len(sheets)
+    for kind in kinds:
+        if kind in where:
+            positions.append(where[kind])
+        else:
+            positions.append(extra)
+            extra += 1
+    return positions
+
+
+def _sheet_element(
+    prefix: str, r_prefix: str | None, name: str, rel_id: str, sheet_id: int, state: str | None
+) -> str:
+    """A <sheet> element; declares the relationships namespace itself when the root does not."""
+    declare = "" if r_prefix else f' xmlns:r="{DOC_REL_NS}"'
+    state_attr = f' state="{state}"' if state else ""
+    return (
+        f'<{prefix}sheet{declare} name="{sheetxml.escape(name)}" sheetId="{sheet_id}"'
+        f'{state_attr} {r_prefix or "r"}:id="{rel_id}"/>'
+    )
+
+
+def _rel_prefix(text: str) -> str | None:
+    """The prefix the workbook element binds to the relationships namespace, if any.
+
+    Only the root's own declarations count: some writers (openpyxl with lxml)
+    declare the prefix on each <sheet> element instead, where it is out of scope
+    for an element we add.
+    """
+    root = re.search(r"<(?:\w+:)?workbook\b[^>]*>", text)
+    if root is None:
+        return None
+    match = re.search(
+        rf"""xmlns:([\w.-]+)\s*=\s*["']{re.escape(DOC_REL_NS)}["']""", root.group(0)
+    )
+    return match.group(1) if match else None
 
 
 def _edit_rels(xml: bytes, drop_ids: set[str], add: list[tuple[str, str, str]]) -> bytes:
@@ -675,16 +706,21 @@ def _edit_content_types(
 
 
 def _edit_app(
-    xml: bytes, sheets: list[SheetInfo], removed_idx: list[int], new_names: list[str]
+    xml: bytes, sheets: list[SheetInfo], successors: dict[int, str], appended: list[str]
 ) -> bytes | None:
     """Update the sheet titles listed in docProps/app.xml; None leaves the part alone.
 
     The titles are grouped by the heading pairs (e.g. worksheets, then named
     ranges). The worksheet group is found by content, since its heading is
     written in the user's language; if it cannot be found the part is left as
-    it was (it is informational only).
+    it was (it is informational only). ``successors`` maps the position of each
+    replaced sheet to its successor's name, which takes its place in the list;
+    ``appended`` names come last. A part that declares a DOCTYPE is left alone:
+    spreadsheet programs never write one, and its entities are not ours to expand.
     """
     text = xml.decode("utf-8")
+    if "<!DOCTYPE" in text:
+        return None
     heading = re.search(
         r"(<(\w+:)?HeadingPairs>\s*<(\w+:)?vector\b[^>]*>)(.*?)(</\3vector>)", text, re.S
     )
@@ -698,7 +734,8 @@ def _edit_app(
     title_items = re.findall(rf"<{vt}lpstr>(.*?)</{vt}lpstr>", titles.group(4), re.S)
     if sum(counts) != len(title_items):
         return None
-    worksheet_names = [html.unescape(s.name) for s in sheets if s.rel_type == REL_WORKSHEET]
+    worksheets = [i for i, s in enumerate(sheets) if s.rel_type == REL_WORKSHEET]
+    worksheet_names = [sheets[i].name for i in worksheets]
     start = 0
     group = None
     for g, count in enumerate(counts):
@@ -708,13 +745,11 @@ def _edit_app(
         start += count
     if group is None:
         return None
-    removed_names = {sheets[i].name for i in removed_idx}
-    kept = [
-        t
-        for t in title_items[start : start + counts[group]]
-        if html.unescape(t) not in removed_names
-    ]
-    new_group = kept + [sheetxml.escape(n) for n in new_names]
+    current = title_items[start : start + counts[group]]
+    new_group = [
+        sheetxml.escape(successors[i]) if i in successors else title
+        for i, title in zip(worksheets, current, strict=True)
+    ] + [sheetxml.escape(n) for n in appended]
     title_items[start : start + counts[group]] = new_group
     counts[group] = len(new_group)
 

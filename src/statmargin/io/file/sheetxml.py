@@ -21,6 +21,7 @@ from ...sheets.layout import quote_sheet as quote_sheet
 from ...sheets.layout import resolve_link as resolve_link
 from ...sheets.layout import wrapped_row_heights as wrapped_row_heights
 from ...sheets.model import UNWRITABLE_TEXT, SheetModel, Validation
+from ...words import file_messages as messages
 
 MAIN_NS = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
 REL_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
@@ -36,6 +37,8 @@ _EXCEL_EPOCH_1904 = dt.datetime(1904, 1, 1)
 # Excel refuses longer lists: common practice, Microsoft support article
 # "Apply data validation to cells").
 MAX_LIST_CHARS = 255
+# The most characters a cell holds (Excel specifications and limits, common knowledge).
+MAX_CELL_CHARS = 32_767
 
 
 def clean_text(text: str) -> str:
@@ -133,9 +136,7 @@ def render_sheet(
     rows: dict[int, list[int]] = {}
     for row, col in model.cells:
         if row < 0 or col < 0 or row >= 1_048_576 or col >= 16_384:
-            raise WriteError(
-                f"Cell ({row}, {col}) on sheet {model.name} is outside a worksheet; the file was left as it was."
-            )
+            raise WriteError(messages.cell_outside_sheet(row, col, model.name))
         rows.setdefault(row, []).append(col)
 
     parts: list[str] = [
@@ -171,9 +172,7 @@ def render_sheet(
         for col in sorted(rows[row]):
             cell = model.cells[(row, col)]
             if cell.style not in style_index:
-                raise WriteError(
-                    f"Unknown style '{cell.style}' on sheet {model.name}; the file was left as it was."
-                )
+                raise WriteError(messages.unknown_style(cell.style, model.name))
             ref = cell_ref(row, col)
             parts.append(
                 _cell_xml(ref, cell.value, style_index[cell.style], date1904, model.name, on_note)
@@ -247,7 +246,7 @@ def print_settings_xml(model: SheetModel) -> list[str]:
     if model.page_numbers:
         parts.append(
             "<headerFooter><oddFooter>"
-            + escape("&L&A&RPage &P of &N")
+            + escape(messages.PAGE_FOOTER)
             + "</oddFooter></headerFooter>"
         )
     breaks = sorted({int(c) for c in model.column_breaks if 0 < int(c) < 16_384})
@@ -300,7 +299,7 @@ def _cell_xml(
         number = float(value)
         if math.isnan(number):
             if on_note:
-                on_note(f"A missing number at {sheet}!{ref} was left empty.")
+                on_note(messages.missing_number_left_empty(f"{sheet}!{ref}"))
             return head + "/>"
         if math.isinf(number):
             return _string_cell(head, "inf" if number > 0 else "-inf")
@@ -316,13 +315,26 @@ def _cell_xml(
         epoch = _EXCEL_EPOCH_1904 if date1904 else _EXCEL_EPOCH
         serial = (moment - epoch).total_seconds() / 86400.0
         return head + f"><v>{_number_text(serial)}</v></c>"
-    return _string_cell(head, str(value))
+    text = clean_text(str(value))
+    if len(text) > MAX_CELL_CHARS // 2 and _utf16_units(text) > MAX_CELL_CHARS:
+        # A longer text makes spreadsheet programs refuse or "repair" the whole file.
+        if on_note:
+            on_note(messages.text_cut(f"{sheet}!{ref}", MAX_CELL_CHARS))
+        text = text[: MAX_CELL_CHARS - 1]
+        while _utf16_units(text) > MAX_CELL_CHARS - 1:
+            text = text[:-1]
+        text += "\u2026"
+    return _string_cell(head, text, cleaned=True)
 
 
-def _string_cell(head: str, text: str) -> str:
-    return (
-        head + f' t="inlineStr"><is><t xml:space="preserve">{escape(clean_text(text))}</t></is></c>'
-    )
+def _utf16_units(text: str) -> int:
+    """Length as spreadsheet programs count it (characters beyond U+FFFF count twice)."""
+    return len(text.encode("utf-16-le")) // 2
+
+
+def _string_cell(head: str, text: str, *, cleaned: bool = False) -> str:
+    text = text if cleaned else clean_text(text)
+    return head + f' t="inlineStr"><is><t xml:space="preserve">{escape(text)}</t></is></c>'
 
 
 def _validation_xml(validation: Validation, sheet: str) -> str:
@@ -330,15 +342,11 @@ def _validation_xml(validation: Validation, sheet: str) -> str:
     for choice in validation.choices:
         text = clean_text(str(choice))
         if "," in text:
-            raise WriteError(
-                f"The dropdown choice '{text}' on sheet {sheet} contains a comma, which a list validation cannot hold; the file was left as it was."
-            )
+            raise WriteError(messages.dropdown_comma(text, sheet))
         items.append(text.replace('"', '""'))
     formula = '"' + ",".join(items) + '"'
     if len(formula) - 2 > MAX_LIST_CHARS:
-        raise WriteError(
-            f"The dropdown list for {validation.cells} on sheet {sheet} is longer than {MAX_LIST_CHARS} characters; the file was left as it was."
-        )
+        raise WriteError(messages.dropdown_too_long(validation.cells, sheet, MAX_LIST_CHARS))
     attrs = f'type="list" allowBlank="1" showInputMessage="1" showErrorMessage="1" sqref="{escape(validation.cells.replace(",", " "))}"'
     if validation.prompt:
         attrs += f' prompt="{escape(validation.prompt[:255])}"'

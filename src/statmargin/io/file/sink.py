@@ -3,25 +3,40 @@
 The new workbook is assembled in memory, written to a temporary file in the
 target folder, verified, and only then moved over the target with
 ``os.replace``. On any failure the temporary file is removed and the original
-stays byte for byte as it was.
+stays byte for byte as it was. Ctrl+C and stop signals (SIGINT, SIGTERM) that
+arrive while the temporary file exists are held until it has either replaced
+the target or been removed, so an interrupted run leaves the workbook either
+as it was or completely written, and no temporary file behind.
 """
 
 from __future__ import annotations
 
 import hashlib
 import os
+import signal
 import tempfile
+import threading
 import xml.etree.ElementTree as ET
 import zipfile
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
+from types import FrameType
 
 from ...errors import StatmarginError, WorkbookError, WorkbookLockedError, WriteError
 from ...sheets.model import SheetModel
+from ...words import file_messages as messages
 from ..protocol import WriteReport
+from . import guard
 from .package import PackageResult, build_package, office_document_part
-from .zipio import read_zip, write_zip
+from .zipio import read_directory, read_zip, write_zip
 
 WRITABLE_SUFFIXES = (".xlsx", ".xlsm")
+# Formats python-calamine reads but this writer cannot write into.
+READ_ONLY_SUFFIXES = (".xls", ".xlsb", ".ods")
+HELD_SIGNALS = tuple(
+    getattr(signal, name) for name in ("SIGINT", "SIGTERM", "SIGHUP") if hasattr(signal, name)
+)
 TEMP_PREFIX = ".statmargin-writing-"
 
 
@@ -78,30 +93,29 @@ class FileSink:
         target = Path(out) if out else source
         if out and source.exists() and target.exists() and os.path.samefile(source, target):
             out = None  # writing "a copy" over the workbook itself is an in-place write
+        if source.is_dir():
+            raise WorkbookError(messages.is_folder(source.name or str(source)))
         if not source.is_file():
-            raise WorkbookError(f"The workbook {source} does not exist; check the path.")
+            raise WorkbookError(messages.workbook_missing(str(source)))
+        if source.suffix.lower() in READ_ONLY_SUFFIXES:
+            raise WriteError(messages.legacy_format_not_writable(source.name, source.suffix.lower()))
+        if out and target.is_dir():
+            raise WriteError(messages.out_is_folder(str(target)))
         if target.suffix.lower() not in WRITABLE_SUFFIXES:
-            raise WriteError(
-                f"statmargin writes .xlsx or .xlsm workbooks, not '{target.suffix}'; save the file as .xlsx and try again."
-            )
+            raise WriteError(messages.wrong_output_suffix(target.suffix))
         if source.suffix.lower() == ".xlsm" and target.suffix.lower() != ".xlsm":
-            raise WriteError(
-                "A macro workbook (.xlsm) must be written to an .xlsm file; change the output name to end in .xlsm."
-            )
+            raise WriteError(messages.macro_needs_xlsm())
         if source.suffix.lower() == ".xlsx" and target.suffix.lower() == ".xlsm":
-            raise WriteError(
-                "An .xlsx workbook cannot be written as .xlsm; change the output name to end in .xlsx."
-            )
+            raise WriteError(messages.xlsx_not_as_xlsm())
+        if out and not _folder(target).is_dir():
+            raise WriteError(messages.out_folder_missing(str(_folder(target))))
         locks = lock_files(target)
         if locks and not out:
-            raise WorkbookLockedError(
-                f"{target.name} is open in a spreadsheet program (lock file {locks[0].name}); close it there, or write a copy with --out."
-            )
+            raise WorkbookLockedError(messages.locked(target.name, locks[0].name))
         if out and target.exists() and locks:
-            raise WorkbookLockedError(
-                f"{target.name} is open in a spreadsheet program; close it or choose another output name."
-            )
-
+            raise WorkbookLockedError(messages.out_locked(target.name))
+        if target.exists() and not _writable(target):
+            raise WriteError(messages.read_only_file(target.name))
         return out
 
     def write_sheets(self, models: list[SheetModel], out: str | None = None) -> WriteReport:
@@ -140,6 +154,8 @@ class FileSink:
         if not models:  # nothing to write: leave the file alone
             return WriteReport(path=str(source), sheets={}, renamed=[], replaced=[])
         blob = source.read_bytes()
+        if blob[:2] == b"PK":
+            guard.check_directory(read_directory(blob), source.name)
         entries = read_zip(blob)
         # Fingerprints taken before anything is built, so the check cannot be fooled
         # by an entry object that was changed on the way.
@@ -150,9 +166,7 @@ class FileSink:
         except StatmarginError:
             raise
         except (ValueError, LookupError, IndexError, ET.ParseError) as exc:
-            raise WriteError(
-                f"statmargin could not add its sheets to this workbook ({_brief(exc)}); the file was left as it was."
-            ) from exc
+            raise WriteError(messages.could_not_add(_brief(exc))) from exc
 
         expected_names = _sheet_names_after(result)
         self._replace_atomically(target, new_blob, fingerprints, result, expected_names)
@@ -171,35 +185,78 @@ class FileSink:
         result: PackageResult,
         expected: list[str],
     ) -> None:
-        folder = target.parent if str(target.parent) else Path(".")
-        try:
-            fd, temp_name = tempfile.mkstemp(prefix=TEMP_PREFIX, suffix=target.suffix, dir=folder)
-        except OSError as exc:
-            raise WriteError(
-                f"Cannot create a file in {folder} ({exc.strerror}); check that the folder is writable."
-            ) from exc
-        temp = Path(temp_name)
-        try:
-            with os.fdopen(fd, "wb") as handle:
-                handle.write(new_blob)
-                handle.flush()
-                os.fsync(handle.fileno())
-            if target.exists():
-                os.chmod(temp, target.stat().st_mode & 0o7777)
-            else:
-                os.chmod(temp, 0o666 & ~_umask())
-            verify(temp, original, result, expected)
-            before_replace(str(temp))
-            os.replace(temp, target)
-        except BaseException as exc:
-            temp.unlink(missing_ok=True)
-            if isinstance(exc, StatmarginError):
+        folder = _folder(target)
+        with signals_held():
+            try:
+                fd, temp_name = tempfile.mkstemp(prefix=TEMP_PREFIX, suffix=target.suffix, dir=folder)
+            except OSError as exc:
+                raise WriteError(messages.cannot_create_in(str(folder), exc)) from exc
+            temp = Path(temp_name)
+            try:
+                with os.fdopen(fd, "wb") as handle:
+                    handle.write(new_blob)
+                    handle.flush()
+                    os.fsync(handle.fileno())
+                if target.exists():
+                    os.chmod(temp, target.stat().st_mode & 0o7777)
+                else:
+                    os.chmod(temp, 0o666 & ~_umask())
+                verify(temp, original, result, expected)
+                before_replace(str(temp))
+                os.replace(temp, target)
+            except BaseException as exc:
+                temp.unlink(missing_ok=True)
+                if isinstance(exc, StatmarginError):
+                    raise
+                if isinstance(exc, OSError):
+                    raise WriteError(messages.write_failed_os(target.name, exc)) from exc
+                if isinstance(exc, Exception):
+                    raise WriteError(messages.write_failed(target.name, _brief(exc))) from exc
                 raise
-            if isinstance(exc, Exception):
-                raise WriteError(
-                    f"Writing {target.name} failed ({_brief(exc)}); the original file was left as it was."
-                ) from exc
-            raise
+
+
+@contextmanager
+def signals_held() -> Iterator[None]:
+    """Hold Ctrl+C and stop signals for the duration of the block, then deliver them.
+
+    Notes
+    -----
+    Python runs signal handlers in the main thread only, so swapping the handlers
+    there holds a signal whichever thread the system delivered it to (numerical
+    libraries start threads of their own, so blocking with a signal mask would
+    not). A held signal is raised again after the block with the handler that was
+    in place before, so Ctrl+C still stops the program, just not half way
+    through a write. Outside the main thread nothing is held.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    caught: list[int] = []
+
+    def hold(signum: int, _frame: FrameType | None) -> None:
+        caught.append(signum)
+
+    previous = {sig: signal.signal(sig, hold) for sig in HELD_SIGNALS}
+    try:
+        yield
+    finally:
+        for sig, handler in previous.items():
+            signal.signal(sig, handler)
+        if caught:
+            signal.raise_signal(caught[0])
+
+
+def _folder(target: Path) -> Path:
+    return target.parent if str(target.parent) else Path(".")
+
+
+def _writable(path: Path) -> bool:
+    """Whether the file may be changed: the system allows it and no read-only mark is set.
+
+    An administrator may write anything, so the mode bits are looked at too: a
+    file nobody may write is one the user marked read-only.
+    """
+    return os.access(path, os.W_OK) and bool(path.stat().st_mode & 0o222)
 
 
 def _umask() -> int:
@@ -243,36 +300,26 @@ def verify(
         with zipfile.ZipFile(path) as archive:
             bad = archive.testzip()
             if bad is not None:
-                raise WriteError(
-                    f"The new file's part {bad} fails its checksum; the original file was left as it was."
-                )
+                raise WriteError(messages.new_part_checksum(bad))
     except zipfile.BadZipFile as exc:
-        raise WriteError(
-            f"The new file is not a valid zip ({_brief(exc)}); the original file was left as it was."
-        ) from exc
+        raise WriteError(messages.new_file_not_zip(_brief(exc))) from exc
     written = {e.name: e for e in read_zip(blob)}
     for name, (digest, crc) in original.items():
         if name in result.removed:
             if name in written and name not in result.added:
-                raise WriteError(
-                    f"The part {name} should have been removed; the original file was left as it was."
-                )
+                raise WriteError(messages.part_not_removed(name))
             continue
         if name in result.edited:
             continue
         copy = written.get(name)
         if copy is None or _digest(copy.raw) != digest or copy.crc != crc:
-            raise WriteError(
-                f"The part {name} changed while copying; the original file was left as it was."
-            )
+            raise WriteError(messages.part_changed(name))
     for name in result.edited | result.added:
         if name.endswith((".xml", ".rels")):
             try:
                 ET.fromstring(written[name].data())
             except (ET.ParseError, LookupError, ValueError) as exc:
-                raise WriteError(
-                    f"The new part {name} is not well-formed XML ({_brief(exc)}); the original file was left as it was."
-                ) from exc
+                raise WriteError(messages.part_not_well_formed(name, _brief(exc))) from exc
     office_document_part(written)
     try:
         import python_calamine
@@ -281,13 +328,9 @@ def verify(
         names = list(workbook.sheet_names)
         workbook.close()
     except Exception as exc:  # calamine raises several unrelated types
-        raise WriteError(
-            f"The new file could not be read back ({_brief(exc)}); the original file was left as it was."
-        ) from exc
+        raise WriteError(messages.not_readable_back(_brief(exc))) from exc
     if names != expected_sheets:
-        raise WriteError(
-            f"The new file lists sheets {names}, expected {expected_sheets}; the original file was left as it was."
-        )
+        raise WriteError(messages.sheets_mismatch(names, expected_sheets))
 
 
 def _brief(exc: BaseException) -> str:

@@ -23,8 +23,7 @@ import os
 import posixpath
 import re
 import zipfile
-import zlib
-from collections.abc import Iterable, Iterator
+from collections.abc import Callable, Iterable, Iterator
 from typing import Any
 from xml.etree import ElementTree as ET
 from xml.sax.saxutils import unescape
@@ -32,6 +31,7 @@ from xml.sax.saxutils import unescape
 from ... import stages
 from ...errors import WorkbookError
 from ...read.table import column_index
+from ...words import file_messages as messages
 from ..protocol import ERROR_ISSUE as ERROR_ISSUE  # re-exported from the protocol
 from ..protocol import NO_VALUE_ISSUE as NO_VALUE_ISSUE
 from ..protocol import (
@@ -42,12 +42,11 @@ from ..protocol import (
     resolve_sheet_name,
     string_constant,
 )
+from . import guard
 from .hidden_rows import hidden_rows_in_block
 
 _REL_ID_SUFFIX = "}id"
-_OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
-# An encrypted OOXML file is an OLE container holding a stream of this name.
-_ENCRYPTED_STREAM = "EncryptedPackage".encode("utf-16-le")
+_STRICT_NS = b"http://purl.oclc.org/ooxml/spreadsheetml/main"
 _SCAN_CHUNK = 1 << 22  # 4 MiB of decompressed sheet XML per read
 
 # Where a formula element (``<f``/``<x:f`` followed by ``>``, ``/`` or a space) or an
@@ -327,11 +326,8 @@ class FileSource:
                     hidden_rows_in_block(block, hidden)
                     if not chunk:
                         break
-        except (OSError, zipfile.BadZipFile, KeyError) as exc:
-            raise WorkbookError(
-                f"File {self.display!r} is damaged and its sheet {sheet!r} cannot be read ({exc}). "
-                "Open it in a spreadsheet program and save it again."
-            ) from None
+        except guard.ZIP_READ_ERRORS as exc:
+            raise WorkbookError(messages.sheet_damaged(self.display, sheet, _one_line(exc))) from None
         self._hidden[sheet] = frozenset(hidden)
         return found
 
@@ -354,14 +350,15 @@ class FileSource:
         if self._cached is not None and self._cached[0] == sheet:
             return self._cached[1]
         self._cached = None  # free the previous sheet before loading the next
+        part = self._sheet_parts().get(sheet)
+        if part is not None:  # calamine holds the whole span of a sheet: refuse a runaway one first
+            guard.check_sheet_extent(self.path, part, self.display, sheet)
         try:
             with stages.stage("read.load"):
                 loaded = self._book.get_sheet_by_name(sheet)
-        except Exception as exc:  # noqa: BLE001 - calamine raises several types
-            raise WorkbookError(
-                f"Sheet {sheet!r} in {self.display!r} cannot be read ({_one_line(exc)}). "
-                "Open the file in a spreadsheet program and save it again."
-            ) from None
+        except BaseException as exc:  # calamine raises several types, and panics on some damage
+            _reraise_interrupts(exc)
+            raise WorkbookError(_read_failure(exc, self.display, messages.sheet_unreadable, sheet)) from None
         self._cached = (sheet, loaded)
         return loaded
 
@@ -378,7 +375,7 @@ class FileSource:
                     return None
                 data = archive.read(part)
             return ET.fromstring(data)
-        except (OSError, zipfile.BadZipFile, ET.ParseError, ValueError, LookupError, NotImplementedError, zlib.error):
+        except (*guard.ZIP_READ_ERRORS, ET.ParseError, LookupError):
             # A damaged or oddly encoded part (an unknown XML encoding raises LookupError):
             # treat it as absent; reading the cells then reports what is wrong.
             return None
@@ -406,57 +403,55 @@ def _open_book(path: str, display: str) -> Any:
     """Open with calamine, turning every failure into a one-line WorkbookError."""
     import python_calamine as pc
 
-    if not os.path.exists(path):
-        raise WorkbookError(f"File {display!r} was not found. Check the path.")
-    if os.path.isdir(path):
-        raise WorkbookError(
-            f"{display!r} is a folder, not a workbook file. Give the path of the file."
-        )
-    if _looks_encrypted(path):
-        raise WorkbookError(_locked_message(display))
+    if guard.check_file(path) is guard.FileKind.PACKAGE and _is_strict(path):
+        raise WorkbookError(messages.strict_open_xml(display))
     try:
         return pc.CalamineWorkbook.from_path(path)
     except pc.PasswordError:
-        raise WorkbookError(_locked_message(display)) from None
-    except Exception as exc:  # noqa: BLE001 - calamine raises several types
-        raise WorkbookError(
-            f"File {display!r} could not be opened as a workbook ({_one_line(exc)}). "
-            "Check that it is an .xlsx, .xlsm, .xls or .ods file and not damaged."
-        ) from None
+        raise WorkbookError(messages.encrypted(display)) from None
+    except BaseException as exc:  # calamine raises several types, and panics on some damage
+        _reraise_interrupts(exc)
+        raise WorkbookError(_read_failure(exc, display, messages.could_not_open)) from None
 
 
-def _locked_message(display: str) -> str:
-    return (
-        f"File {display!r} is password-protected (encrypted). "
-        "Save an unprotected copy in your spreadsheet program and use that."
-    )
+def _reraise_interrupts(exc: BaseException) -> None:
+    """Let Ctrl+C and exits through; everything else from calamine is a damaged file."""
+    if isinstance(exc, (KeyboardInterrupt, SystemExit, GeneratorExit)):
+        raise exc
 
 
-def _looks_encrypted(path: str) -> bool:
-    """An OLE container holding an ``EncryptedPackage`` stream is an encrypted .xlsx.
+def _read_failure(exc: BaseException, display: str, message: Callable[..., str], *args: str) -> str:
+    """The one-line message for a calamine failure; a part larger than declared is named as such."""
+    detail = _one_line(exc)
+    if "larger than its declared" in detail:  # the zip reader stopped a lying part (zip bomb)
+        return messages.larger_than_declared(display)
+    if "unrecognized entity" in detail:  # a DOCTYPE's entity (XXE, entity expansion), never expanded
+        return messages.entities_refused(display)
+    return message(*args, display, detail)
 
-    Notes
-    -----
-    The stream name sits in the container's directory, which for these files is
-    small and near the start; only the first 1 MiB is searched.
-    """
+
+def _is_strict(path: str) -> bool:
+    """Whether the package's workbook part is Strict Open XML (ECMA-376 Part 1, strict namespaces)."""
     try:
-        with open(path, "rb") as handle:
-            head = handle.read(1 << 20)
-    except OSError:
-        return False
-    return head.startswith(_OLE_MAGIC) and _ENCRYPTED_STREAM in head
+        with zipfile.ZipFile(path) as archive:
+            names = {n.casefold(): n for n in archive.namelist()}
+            part = names.get("xl/workbook.xml")
+            if part is None:
+                return False
+            with archive.open(part) as stream:
+                head = stream.read(4096)
+    except guard.ZIP_READ_ERRORS:
+        return False  # calamine then says what is wrong
+    return _STRICT_NS in head
 
 
 def _guarded(rows: Iterator[list[Any]], display: str) -> Iterator[list[Any]]:
     """Pass rows through, turning a read failure part-way into a WorkbookError."""
     try:
         yield from rows
-    except Exception as exc:  # noqa: BLE001 - calamine raises several types
-        raise WorkbookError(
-            f"File {display!r} is damaged part-way through ({_one_line(exc)}). "
-            "Open it in a spreadsheet program and save it again."
-        ) from None
+    except BaseException as exc:  # calamine raises several types, and panics on some damage
+        _reraise_interrupts(exc)
+        raise WorkbookError(_read_failure(exc, display, messages.damaged_part_way)) from None
 
 
 def _one_line(exc: BaseException) -> str:

@@ -18,6 +18,7 @@ from xml.sax.saxutils import quoteattr
 from ...errors import WriteError
 from ...sheets.looks import BUILTIN_FORMATS, CUSTOM_FORMATS, INPUT_BORDER, LOOKS, RULE, Font
 from ...sheets.model import STYLES
+from ...words import file_messages as messages
 
 MINIMAL_STYLES = (
     b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
@@ -82,20 +83,25 @@ def add_styles(styles_xml: bytes) -> tuple[bytes, dict[str, int]]:
     try:
         text = styles_xml.decode("utf-8")
     except UnicodeDecodeError as exc:
-        raise WriteError(
-            "The workbook's styles part is not UTF-8 text; the file was left as it was."
-        ) from exc
+        raise WriteError(messages.styles_not_utf8()) from exc
     prefix = _main_prefix(text)
     base_name, base_size, base_family = _default_font(text, prefix)
 
     format_ids: dict[str, int] = dict(BUILTIN_FORMATS)
 
+    # Only <numFmts> declares formats cells may use; a <numFmt> inside a differential
+    # format (<dxfs>, used by conditional formats) is private to it, so its code is
+    # never reused, but its id is avoided in case a reader shares the id space.
     existing_fmts: dict[str, int] = {}
     all_fmt_ids = [163]  # custom formats start at 164 (ECMA-376 Part 1, 18.8.30)
+    declared = _section(text, prefix, "numFmts")
+    declared_span = (declared.start(), declared.end()) if declared else (0, 0)
     for tag in re.finditer(r"<(?:\w+:)?numFmt\b([^>]*)>", text):
         fmt_attrs = {k: html.unescape(a or b) for k, a, b in _ATTR.findall(tag.group(1))}
-        if fmt_attrs.get("numFmtId", "").isdigit():
-            all_fmt_ids.append(int(fmt_attrs["numFmtId"]))
+        if not fmt_attrs.get("numFmtId", "").isdigit():
+            continue
+        all_fmt_ids.append(int(fmt_attrs["numFmtId"]))
+        if declared_span[0] <= tag.start() < declared_span[1]:
             existing_fmts.setdefault(fmt_attrs.get("formatCode", ""), int(fmt_attrs["numFmtId"]))
     next_fmt = max(all_fmt_ids) + 1
     new_fmts = []
@@ -171,9 +177,7 @@ def _main_prefix(text: str) -> str:
     """The element prefix used for the SpreadsheetML namespace ('' or 'x:')."""
     match = re.search(r"<(?:(\w+):)?styleSheet\b", text)
     if not match:
-        raise WriteError(
-            "The workbook's styles part has no styleSheet element; the file was left as it was."
-        )
+        raise WriteError(messages.no_stylesheet())
     return f"{match.group(1)}:" if match.group(1) else ""
 
 

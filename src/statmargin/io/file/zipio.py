@@ -10,12 +10,14 @@ and ``zlib``.
 
 from __future__ import annotations
 
+import mmap
 import struct
 import time
 import zlib
 from dataclasses import dataclass, field
 
 from ...errors import WorkbookError, WriteError
+from ...words import file_messages as messages
 
 _LOCAL_SIG = 0x04034B50
 _CENTRAL_SIG = 0x02014B50
@@ -35,6 +37,9 @@ _FLAG_UTF8 = 0x0800
 _OLE_SIGNATURE = bytes.fromhex("D0CF11E0A1B11AE1")
 _U16_MAX = 0xFFFF
 _U32_MAX = 0xFFFFFFFF
+
+# The whole archive in memory, or mapped from the file without reading it.
+Buffer = bytes | mmap.mmap
 
 
 @dataclass
@@ -88,20 +93,17 @@ class ZipEntry:
         if self.method == _STORED:
             out = self.raw
         elif self.method == _DEFLATED:
+            # Inflate at most one byte more than the directory declares, so a part
+            # that lies about its size (a zip bomb) is caught without unpacking it.
+            inflater = zlib.decompressobj(-15)
             try:
-                out = zlib.decompress(self.raw, -15)
+                out = inflater.decompress(self.raw, self.size + 1)
             except zlib.error as exc:
-                raise WorkbookError(
-                    f"The part {self.name} inside the workbook is damaged ({exc}); repair the file in a spreadsheet program and try again."
-                ) from exc
+                raise WorkbookError(messages.part_damaged(self.name, str(exc))) from exc
         else:
-            raise WorkbookError(
-                f"The part {self.name} uses zip compression method {self.method}, which statmargin cannot read; save the workbook again from a spreadsheet program."
-            )
-        if zlib.crc32(out) & _U32_MAX != self.crc or len(out) != self.size:
-            raise WorkbookError(
-                f"The part {self.name} inside the workbook fails its checksum; repair the file in a spreadsheet program and try again."
-            )
+            raise WorkbookError(messages.part_method(self.name, self.method))
+        if len(out) != self.size or zlib.crc32(out) & _U32_MAX != self.crc:
+            raise WorkbookError(messages.part_checksum(self.name))
         return out
 
 
@@ -177,36 +179,74 @@ def read_zip(blob: bytes) -> list[ZipEntry]:
     (ZIP64 end records), 4.5.3 (ZIP64 extra field).
     """
     if blob[:8] == _OLE_SIGNATURE:
-        raise WorkbookError(
-            "The file is an old-style .xls workbook or is password-protected; save it as an unprotected .xlsx and try again."
-        )
+        raise WorkbookError(messages.old_or_encrypted())
     if blob[:2] != b"PK":
-        raise WorkbookError(
-            "The file is not an .xlsx/.xlsm workbook (it is not a zip package); open it in a spreadsheet program and save it as .xlsx."
-        )
+        raise WorkbookError(messages.not_zip_package())
+    records = read_directory(blob)
     try:
-        return _read_zip(blob)
+        return [_entry(blob, record) for record in records]
+    except (struct.error, IndexError, ValueError) as exc:
+        raise WorkbookError(messages.zip_damaged(" ".join(str(exc).split()))) from exc
+
+
+@dataclass(frozen=True)
+class DirectoryRecord:
+    """One central-directory record: what the zip says about an entry, before reading it."""
+
+    name: str
+    method: int
+    flags: int
+    crc: int
+    comp_size: int
+    size: int
+    local_offset: int
+    dos_time: int
+    dos_date: int
+    external_attr: int
+    extra: bytes
+
+
+def read_directory(blob: Buffer, display: str | None = None) -> list[DirectoryRecord]:
+    """The central directory of a zip archive, without touching any entry's data.
+
+    Parameters
+    ----------
+    blob : bytes-like
+        The whole archive (``bytes`` or an ``mmap`` of the file).
+    display : str, optional
+        The file's name, for the message.
+
+    Returns
+    -------
+    list of DirectoryRecord
+        In directory order, ZIP64 sizes and offsets resolved.
+
+    Raises
+    ------
+    WorkbookError
+        If the directory cannot be followed or an entry is encrypted.
+    """
+    try:
+        return _read_directory(blob)
     except (struct.error, IndexError, ValueError, UnicodeDecodeError) as exc:
-        raise WorkbookError(
-            f"The file is not a readable workbook (its zip structure is damaged: {' '.join(str(exc).split())}); save it again from a spreadsheet program."
-        ) from exc
+        raise WorkbookError(messages.zip_damaged(" ".join(str(exc).split()), display)) from exc
 
 
-def _read_zip(blob: bytes) -> list[ZipEntry]:
+def _read_directory(blob: Buffer) -> list[DirectoryRecord]:
     eocd = _find_eocd(blob)
     (_, disk, cd_disk, _n_here, n_total, cd_size, cd_offset, _comment_len) = struct.unpack_from(
         "<IHHHHIIH", blob, eocd
     )
     if disk != 0 or cd_disk != 0:
-        raise ValueError("multi-part (spanned) archives are not supported")
+        raise ValueError(messages.ZIP_SPANNED)
     if n_total == _U16_MAX or cd_size == _U32_MAX or cd_offset == _U32_MAX:
         n_total, cd_size, cd_offset = _read_zip64_end(blob, eocd)
 
-    entries: list[ZipEntry] = []
+    records: list[DirectoryRecord] = []
     pos = cd_offset
     for _ in range(n_total):
         if struct.unpack_from("<I", blob, pos)[0] != _CENTRAL_SIG:
-            raise ValueError(f"bad central directory record at offset {pos}")
+            raise ValueError(messages.zip_bad_record(pos))
         (
             _sig,
             _made_by,
@@ -226,58 +266,77 @@ def _read_zip(blob: bytes) -> list[ZipEntry]:
             external_attr,
             local_offset,
         ) = struct.unpack_from("<IHHHHHHIIIHHHHHII", blob, pos)
-        name_bytes = blob[pos + 46 : pos + 46 + name_len]
-        extra = blob[pos + 46 + name_len : pos + 46 + name_len + extra_len]
+        name_bytes = bytes(blob[pos + 46 : pos + 46 + name_len])
+        extra = bytes(blob[pos + 46 + name_len : pos + 46 + name_len + extra_len])
+        if len(name_bytes) != name_len:
+            raise ValueError(messages.zip_bad_record(pos))
         pos += 46 + name_len + extra_len + comment_len
 
         if size == _U32_MAX or comp_size == _U32_MAX or local_offset == _U32_MAX:
             size, comp_size, local_offset = _apply_zip64_extra(extra, size, comp_size, local_offset)
         if flags & _FLAG_ENCRYPTED:
-            raise ValueError("the workbook is encrypted (password protected)")
+            raise ValueError(messages.ZIP_ENCRYPTED)
         name = name_bytes.decode("utf-8" if flags & _FLAG_UTF8 else "cp437")
-
-        if struct.unpack_from("<I", blob, local_offset)[0] != _LOCAL_SIG:
-            raise ValueError(f"bad local header for {name}")
-        local_name_len, local_extra_len = struct.unpack_from("<HH", blob, local_offset + 26)
-        start = local_offset + 30 + local_name_len + local_extra_len
-        raw = blob[start : start + comp_size]
-        if len(raw) != comp_size:
-            raise ValueError(f"entry {name} is truncated")
-        entries.append(
-            ZipEntry(
+        records.append(
+            DirectoryRecord(
                 name=name,
                 method=method,
+                flags=flags,
                 crc=crc,
+                comp_size=comp_size,
                 size=size,
-                raw=bytes(raw),
+                local_offset=local_offset,
                 dos_time=dos_time,
                 dos_date=dos_date,
-                flags=flags,
                 external_attr=external_attr,
                 extra=_without_zip64(extra),
             )
         )
-    return entries
+    return records
 
 
-def _find_eocd(blob: bytes) -> int:
+def _entry(blob: bytes, record: DirectoryRecord) -> ZipEntry:
+    """The entry a directory record describes, with its compressed bytes as stored."""
+    offset = record.local_offset
+    if struct.unpack_from("<I", blob, offset)[0] != _LOCAL_SIG:
+        raise ValueError(messages.zip_bad_local(record.name))
+    local_name_len, local_extra_len = struct.unpack_from("<HH", blob, offset + 26)
+    start = offset + 30 + local_name_len + local_extra_len
+    raw = blob[start : start + record.comp_size]
+    if len(raw) != record.comp_size:
+        raise ValueError(messages.zip_truncated(record.name))
+    return ZipEntry(
+        name=record.name,
+        method=record.method,
+        crc=record.crc,
+        size=record.size,
+        raw=bytes(raw),
+        dos_time=record.dos_time,
+        dos_date=record.dos_date,
+        flags=record.flags,
+        external_attr=record.external_attr,
+        extra=record.extra,
+    )
+
+
+def _find_eocd(blob: Buffer) -> int:
     """Offset of the end-of-central-directory record (searching back over a comment)."""
     floor = max(0, len(blob) - 22 - _U16_MAX)
     pos = blob.rfind(struct.pack("<I", _EOCD_SIG), floor)
     if pos < 0 or len(blob) - pos < 22:
-        raise ValueError("no end-of-central-directory record")
+        raise ValueError(messages.ZIP_NO_END)
     return pos
 
 
-def _read_zip64_end(blob: bytes, eocd: int) -> tuple[int, int, int]:
+def _read_zip64_end(blob: Buffer, eocd: int) -> tuple[int, int, int]:
     """Entry count, directory size and offset from the ZIP64 end records."""
     locator = eocd - 20
     sig, _disk, zip64_eocd, _disks = struct.unpack_from("<IIQI", blob, locator)
     if sig != _ZIP64_LOCATOR_SIG:
-        raise ValueError("ZIP64 locator missing")
+        raise ValueError(messages.ZIP64_NO_LOCATOR)
     fields = struct.unpack_from("<IQHHIIQQQQ", blob, zip64_eocd)
     if fields[0] != _ZIP64_EOCD_SIG:
-        raise ValueError("ZIP64 end record missing")
+        raise ValueError(messages.ZIP64_NO_END)
     return fields[7], fields[8], fields[9]
 
 
@@ -299,7 +358,7 @@ def _apply_zip64_extra(
                 offset = values.pop(0)
             return size, comp_size, offset
         pos += 4 + length
-    raise ValueError("ZIP64 sizes announced but no ZIP64 extra field")
+    raise ValueError(messages.ZIP64_NO_EXTRA)
 
 
 def _without_zip64(extra: bytes) -> bytes:
@@ -343,17 +402,13 @@ def write_zip(entries: list[ZipEntry]) -> bytes:
     central = bytearray()
     for entry in entries:
         if entry.name in seen:
-            raise WriteError(
-                f"Two parts named {entry.name} would be written; the workbook was left as it was."
-            )
+            raise WriteError(messages.two_parts_written(entry.name))
         seen.add(entry.name)
         name = entry.name.encode("utf-8")
         flags = (entry.flags & ~_FLAG_DATA_DESCRIPTOR) | (0 if entry.name.isascii() else _FLAG_UTF8)
         offset = len(out)
         if max(offset, len(entry.raw), entry.size) >= _U32_MAX:
-            raise WriteError(
-                "The workbook is too large (over 4 GiB) for statmargin's writer; the file was left as it was."
-            )
+            raise WriteError(messages.too_large_to_write())
         version = 20
         out += struct.pack(
             "<IHHHHHIIIHH",
@@ -392,9 +447,7 @@ def write_zip(entries: list[ZipEntry]) -> bytes:
         )
         central += name + entry.extra
     if len(entries) >= _U16_MAX or len(out) + len(central) >= _U32_MAX:
-        raise WriteError(
-            "The workbook has too many parts or is too large for statmargin's writer; the file was left as it was."
-        )
+        raise WriteError(messages.too_many_parts_to_write())
     cd_offset = len(out)
     out += central
     out += struct.pack(
