@@ -386,7 +386,7 @@ def run_workbook(
 
 
 def _check_roles(plan: Plan, roles: RolesSheet) -> None:
-    outcomes = [c for c in plan.columns if c.role is Role.OUTCOME]
+    outcomes = [c for c in plan.columns if c.role in (Role.OUTCOME, Role.EVENTS)]
     if not outcomes:
         raise RoleError(refusals.no_outcome_on_sheet())
     gone = [c.name for c in plan.columns if c.name in roles.missing and c.role is not Role.IGNORE]
@@ -401,6 +401,8 @@ def _used_columns(plan: Plan) -> list[str]:
             names.append(c.name)
         if c.role is Role.OUTCOME and c.paired_with and c.paired_with not in names:
             names.append(c.paired_with)
+        if c.role is Role.EVENTS:
+            names.extend(t for t in (c.out_of, c.per) if t and t not in names)
     return list(dict.fromkeys(names))
 
 
