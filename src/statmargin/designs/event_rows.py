@@ -10,6 +10,7 @@ Impossible rows were refused when the analyses were planned (``plan.expand``).
 from __future__ import annotations
 
 from dataclasses import dataclass
+
 import numpy as np
 
 from ..errors import NotEnoughDataError

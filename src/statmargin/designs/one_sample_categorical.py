@@ -42,14 +42,15 @@ class OneSampleCategorical(DesignSpec):
         info = question.outcome_info
         name = question.outcome.name
         vals = question.values(question.outcome, info)
-        n, n_excl = vals.n, question.left_out(vals.usable)
+        kept, weights = question.weighted(vals.usable)
+        n, n_excl = int(weights.sum()), question.left_out(vals.usable)
         shares = question.analysis.against
         assert isinstance(shares, dict)  # a categorical outcome always parses to shares by label
-        labels = vals.values[vals.usable]
+        labels = vals.values[kept]
         levels = list(info.levels) or sorted(set(labels))
         if len(levels) == 2:
             levels = event_first(levels, question.event_level(levels))
-        counts = {lev: int(np.sum(labels == lev)) for lev in levels}
+        counts = {lev: int(weights[labels == lev].sum()) for lev in levels}
         prepared = Prepared(self.design, n=n, n_excluded=n_excl)
         prepared.summaries = [{"label": lev, "n": c, "share": c / n if n else None} for lev, c in counts.items()]
         prepared.extra.update(shares=dict(shares), counts=counts, levels=levels)

@@ -53,13 +53,15 @@ class TwoCategorical(DesignSpec):
         b = question.values(question.by, question.by_info)
         usable = a.usable & b.usable
         n_excl = question.left_out(usable)
-        out_labels, by_labels = a.values[usable], b.values[usable]
+        kept, weights = question.weighted(usable)
+        out_labels, by_labels = a.values[kept], b.values[kept]
         rows = levels_present(question.by_info, by_labels)
         cols = levels_present(question.outcome_info, out_labels)
         if len(cols) == 2:
             cols = event_first(cols, question.event_level(cols))
-        observed = np.array([[int(np.sum((by_labels == r) & (out_labels == c))) for c in cols] for r in rows])
-        prepared = Prepared(self.design, n=int(usable.sum()), n_excluded=n_excl, table=observed,
+        # Records per cell: each row counts its records (one without a count column).
+        observed = np.array([[int(weights[(by_labels == r) & (out_labels == c)].sum()) for c in cols] for r in rows])
+        prepared = Prepared(self.design, n=int(weights.sum()), n_excluded=n_excl, table=observed,
                             row_labels=rows, col_labels=cols)
         prepared.summaries = [
             {"label": r, "n": int(observed[i].sum()), "counts": {c: int(observed[i, j]) for j, c in enumerate(cols)}}

@@ -25,7 +25,7 @@ from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse
 from ..read.table import Table
 from ..sheets.share import DEFAULT_MIN_COUNT, suppress
 from ..vocabulary import MeasureType, Role
-from ..words import console, refusals
+from ..words import console, refusals, roles_words
 from ..words import progress as words
 from ..words.cautions import count_comparisons
 from ..words.results_text import hidden_rows_note
@@ -46,6 +46,7 @@ class PlanSummary:
     new_columns: list[str]
     missing_columns: list[str]
     write: WriteReport
+    suggestions: list[str] = field(default_factory=list)  # roles the data suggest, with the evidence
 
     def to_record(self) -> dict[str, Any]:
         return {
@@ -55,6 +56,7 @@ class PlanSummary:
             "columns": self.columns,
             "new_columns": self.new_columns,
             "missing_columns": self.missing_columns,
+            "suggestions": self.suggestions,
             "sheets": self.write.sheets,
             "renamed": self.write.renamed,
         }
@@ -186,11 +188,13 @@ def plan_workbook(
         out_of=parse_col_values(out_of, "--out-of"), per=parse_col_values(per, "--per"),
         count=count, period=period,
     )
+    statuses, suggestions = _suggestions(table, choices)
     facts = []
     for name, column in table.columns.items():
         info = infer_type(column)
         facts.append(
             ColumnFacts(
+                suggestion=statuses.get(name, ""),
                 name=name,
                 letter=column.letter,
                 inferred=info.type.value,
@@ -223,7 +227,38 @@ def plan_workbook(
         new_columns=new,
         missing_columns=[c.name for c in missing],
         write=report,
+        suggestions=suggestions,
     )
+
+
+def _suggestions(table: Table, choices: Mapping[str, ColumnChoice]) -> tuple[dict[str, str], list[str]]:
+    """Roles the data suggest for columns without one yet: a status per column and a line each.
+
+    Summary layouts (events out of a total, events per person-time, a count of
+    records) are recognised by ``plan.aggregate.suggest_roles``; they are shown,
+    never applied.
+    """
+    from ..plan.aggregate import suggest_roles
+    from ..vocabulary.codes import Reason
+    from ..words.sentences import say
+
+    parts: dict[str, list[str]] = {}
+    lines: list[str] = []
+    for suggestion in suggest_roles(table):
+        name = str(suggestion.events or suggestion.count)
+        chosen = choices.get(name)
+        if chosen is not None and chosen.role is not Role.IGNORE:
+            continue  # the user has decided this column's role
+        total = str(suggestion.total)
+        if suggestion.count is not None:
+            part, advice = roles_words.SUGGESTED_COUNT, roles_words.advice_count(name)
+        elif suggestion.reason.code is Reason.SUGGEST_EVENTS_OUT_OF:
+            part, advice = roles_words.suggested_out_of(total), roles_words.advice_out_of(name, total)
+        else:
+            part, advice = roles_words.suggested_per(total), roles_words.advice_per(name, total)
+        parts.setdefault(name, []).append(part)
+        lines.append(roles_words.suggestion_line(say(suggestion.reason), advice))
+    return {name: roles_words.suggested_status(found) for name, found in parts.items()}, lines
 
 
 def _apply_presets(

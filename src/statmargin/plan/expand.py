@@ -22,13 +22,13 @@ import numpy as np
 from ..errors import NotEnoughDataError, RoleError
 from ..options.against import parse_against
 from ..read.table import Table
-from ..vocabulary import MeasureType, Role
+from ..vocabulary import Role
 from ..vocabulary.codes import Skip, coded
 from ..words import rates_words, refusals
 from ..words.sentences import say
+from .clean import NUMBERS
 from .model import ColumnChoice, Plan, Settings
 from .rates_units import parse_per_unit, parse_target, rate_target, share_target
-from .clean import NUMBERS
 from .types import infer_type, usable_values
 
 
@@ -163,36 +163,50 @@ def _count_column(plan: Plan, table: Table, events: list[ColumnChoice], key: str
 
 
 def _event_analyses(choice: ColumnChoice, bys: list[ColumnChoice], table: Table, settings: Settings) -> list[Analysis]:
-    """An events column against its target, then by each compare-by column; impossible rows refused."""
+    """An events column against its target, then by each compare-by column, for each of its totals.
+
+    A column may have both totals (positives out of people screened and per 1,000
+    person-years). It has one target: a rate written with "per" ('2 per 1000') is
+    for its Per total; anything else (4%, 0.04) is a share for its Out of total,
+    and a bare number is a rate when the column has only a Per total.
+    """
     name = choice.name
-    if bool(choice.out_of) == bool(choice.per):
+    totals = [(t, binomial) for t, binomial in ((choice.out_of, True), (choice.per, False)) if t]
+    if not totals:
         raise RoleError(rates_words.events_need_total(name))
-    total = str(choice.out_of or choice.per)
-    if total == name:
-        raise RoleError(rates_words.total_is_events(name))
-    table.column(total)  # a missing column is refused with the closest names
-    try:
-        check_rows_of(table, name, total, binomial=bool(choice.out_of))
-    except NotEnoughDataError as err:
-        assert err.reason is not None
-        raise RoleError(say(err.reason)) from None
-    links = {"out_of": choice.out_of, "per": choice.per}
+    for total, binomial in totals:
+        if total == name:
+            raise RoleError(rates_words.total_is_events(name))
+        table.column(total)  # a missing column is refused with the closest names
+        try:
+            check_rows_of(table, name, total, binomial=binomial)
+        except NotEnoughDataError as err:
+            assert err.reason is not None
+            raise RoleError(say(err.reason)) from None
     analyses: list[Analysis] = []
     if choice.against is not None and str(choice.against).strip() != "":
-        text = str(choice.against)
-        target = parse_target(text)
-        if choice.out_of:
-            value = share_target(target)
-        else:
-            unit = parse_per_unit(settings.per_unit) if settings.per_unit else None
-            value = rate_target(target, unit)
-        analyses.append(Analysis(name, against=value, against_text=text, outcome_choice=choice, **links))
-    for by in bys:
-        if by.name not in (name, total):
-            analyses.append(Analysis(name, by=by.name, outcome_choice=choice, by_choice=by, **links))
+        analyses.append(_against_target(choice, str(choice.against), settings))
+    for total, binomial in totals:
+        links = (total, None) if binomial else (None, total)
+        for by in bys:
+            if by.name not in (name, total):
+                analyses.append(Analysis(name, by=by.name, outcome_choice=choice, by_choice=by, out_of=links[0],
+                                         per=links[1]))
     if not analyses:
         raise RoleError(rates_words.events_alone(name))
     return analyses
+
+
+def _against_target(choice: ColumnChoice, text: str, settings: Settings) -> Analysis:
+    """The events column against its target: a share of its Out of total, or a rate of its Per total."""
+    target = parse_target(text)
+    as_rate = choice.per is not None and (choice.out_of is None or (target.unit is not None and not target.percent))
+    if as_rate:
+        unit = parse_per_unit(settings.per_unit) if settings.per_unit else None
+        return Analysis(choice.name, against=rate_target(target, unit), against_text=text, outcome_choice=choice,
+                        per=choice.per)
+    return Analysis(choice.name, against=share_target(target), against_text=text, outcome_choice=choice,
+                    out_of=choice.out_of)
 
 
 def check_rows_of(table: Table, events: str, total: str, *, binomial: bool) -> None:

@@ -125,6 +125,7 @@ def plan_summary(summary: Any, workbook_name: str) -> str:
             "  No roles chosen yet: open the file, pick roles in the shaded cells, save, then run "
             f"'statmargin run {workbook_name}'."
         )
+    lines.extend(f"  suggestion: {line}" for line in summary.suggestions)
     lines.extend(f"  new column: {name}" for name in summary.new_columns)
     lines.extend(f"  no longer in the data: {name}" for name in summary.missing_columns)
     lines.extend(f"  {line}" for line in summary.write.renamed)

@@ -211,10 +211,10 @@ def share_test_refused(test: Any) -> str:
 
 
 def events_need_total(name: str) -> str:
-    """An events column without its total, or with both kinds of total."""
+    """An events column without a total."""
     return (
-        f"Events column {name!r} needs one total: the column it is 'Out of' (people screened, "
-        "inspections) or the column it is 'Per' (person-time, population), not both and not neither."
+        f"Events column {name!r} needs its total: the column it is 'Out of' (people screened, "
+        "inspections), the column it is 'Per' (person-time, population), or both."
     )
 
 
