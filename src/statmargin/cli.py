@@ -294,6 +294,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @events_option
 @out_of_option
 @per_option
+@per_unit_option
 @count_option
 @period_option
 @treat_option
@@ -304,8 +305,8 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outcome: tuple[str, ...],
                  by: tuple[str, ...], pairing_key: str | None, against: tuple[str, ...],
                  paired_with: tuple[str, ...], event: tuple[str, ...], events: tuple[str, ...],
-                 out_of: tuple[str, ...], per: tuple[str, ...], count: str | None, period: str | None,
-                 treat: tuple[str, ...], out: Path | None, json_path: str | None) -> None:
+                 out_of: tuple[str, ...], per: tuple[str, ...], per_unit: str | None, count: str | None,
+                 period: str | None, treat: tuple[str, ...], out: Path | None, json_path: str | None) -> None:
     """Add or refresh the roles sheet, keeping every choice already made; options preset roles.
 
     Example: statmargin plan clinics.xlsx --outcome wait_minutes --by site
@@ -318,7 +319,8 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
         summary = plan_workbook(
             workbook, sheet=sheet, header_row=header_row, outcome=outcome, by=by, pairing_key=pairing_key,
             treat=treat, against=against, paired_with=paired_with + tuple(meta.get("old_paired_with", ())),
-            event=event, events=events, out_of=out_of, per=per, count=count, period=period, out=out, progress=progress,
+            event=event, events=events, out_of=out_of, per=per, count=count, period=period, per_unit=per_unit,
+            out=out, progress=progress,
         )
     if json_path != "-":
         click.echo(console.plan_summary(summary, workbook.name))

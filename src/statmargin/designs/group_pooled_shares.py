@@ -4,17 +4,21 @@ Chi-square on the pooled table, or Fisher's exact test for two groups with an
 expected count below 5 (Cochran's rule, as for record-level tables), so every
 number equals the record-level analysis of the same people
 (``two_categorical``). Tables of three or more groups with a clear overall
-result get each group's adjusted residual of events as a follow-up (the
-non-event column's residuals are the same numbers with the sign turned).
+result get each group's adjusted residual of events as a follow-up, with
+Holm's adjustment across the groups (a group's non-event cell has the same
+residual with the sign turned, so it is one question, not two).
 """
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from ..plan.model import Settings
 from ..results import Followup, Result
 from ..stats import followup, proportions
+from ..stats.adjust import adjust_p
 from ..stats.shape import count_check, expected_counts
-from ..vocabulary import Design, Test
+from ..vocabulary import AdjustMethod, Design, Test
 from ..vocabulary.codes import Coded, Reason, Skip, coded
 from .base import Choice, DesignSpec, Prepared, Skipped
 from .event_rows import decorate_events, independence_caution, shell
@@ -81,5 +85,10 @@ class GroupPooledShares(DesignSpec):
             return [], []
         cells = followup.adjusted_residuals(prepared.table, prepared.row_labels, prepared.col_labels,
                                             threshold=RESIDUAL_FLAG)
+        # In a table of events and non-events the two cells of a group are one question (their
+        # residuals differ only in sign): keep the events' cell, labelled by its group, and adjust
+        # across the groups.
         events = [cell for cell in cells if cell.levels[1] == prepared.col_labels[0]]
-        return events, [coded(Reason.FOLLOWUP_RESIDUALS, threshold=RESIDUAL_FLAG)]
+        adjusted = adjust_p([cell.p_value for cell in events], AdjustMethod.HOLM)
+        kept = [replace(cell, levels=cell.levels[:1], p_adjusted=p) for cell, p in zip(events, adjusted, strict=True)]
+        return kept, [coded(Reason.FOLLOWUP_RESIDUALS, threshold=RESIDUAL_FLAG)]

@@ -133,6 +133,7 @@ def plan_workbook(
     per: Mapping[str, str] | Iterable[str] | None = None,
     count: str | None = None,
     period: str | None = None,
+    per_unit: str | None = None,
     out: str | Path | None = None,
     source: WorkbookSource | None = None,
     sink: WorkbookSink | None = None,
@@ -154,7 +155,8 @@ def plan_workbook(
         ``paired_with`` ``COL=COL2`` items, or mappings; ``event`` ``COL=LEVEL`` items
         name the event level of two-level outcomes; ``events`` mark columns of event
         counts, each ``out_of`` (``COL=TOTALS``) or ``per`` (``COL=PERSON_TIME``) another
-        column; ``count`` marks a frequency weight and ``period`` the date or period column.
+        column; ``count`` marks a frequency weight and ``period`` the date or period column;
+        ``per_unit`` sets the unit rates are given in ("per 1,000 person-years").
     out
         Write to this new file instead of ``path`` (which is then left untouched).
     progress
@@ -163,11 +165,17 @@ def plan_workbook(
     from ..plan.types import infer_type, usable_values
     from ..read.reader import first_data_sheet, read_table, sample_values
 
+    if per_unit is not None:
+        from ..plan.rates_units import parse_per_unit
+
+        parse_per_unit(per_unit)  # refuses a unit it cannot read, before the file is opened
     source, sink, opened = _backends(path, source, sink)
     previous = read_roles(source)
     plan = previous.plan if previous else Plan()
     say = progress or (lambda message, done=None, total=None: None)
     say(console.reading_sheet(sheet or plan.sheet) if sheet or plan.sheet else words.FINDING_DATA)
+    if per_unit is not None:
+        plan = replace(plan, settings=replace(plan.settings, per_unit=str(per_unit)))
     data_sheet = sheet or plan.sheet or first_data_sheet(source)
     if header_row is None and plan.sheet == data_sheet:
         header_row = plan.header_row

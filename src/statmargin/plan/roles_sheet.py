@@ -101,7 +101,7 @@ CHOICE_COLUMNS: tuple[ChoiceColumn, ...] = (
     ChoiceColumn("Label order", "order", (), 20),
     ChoiceColumn("Event level", "event", (), 13),
 )
-STATUS_HEADER = ("Status", 20)
+STATUS_HEADER = ("Status", 30)
 HEADERS = tuple(
     [name for name, _ in FACT_HEADERS] + [c.header for c in CHOICE_COLUMNS] + [STATUS_HEADER[0]]
 )

@@ -13,7 +13,9 @@ from ..results import Result
 from ..vocabulary import Design
 from ..words import context as words_context
 from ..words import explain, technical
+from ..words.questions import EVENT_DESIGNS
 from .context import SHEET_NAMES, ReportContext, _a1, _finite, _num, _value, analysis_key
+from .event_tables import put_event_table
 from .model import Cell, Chart, ChartSeries, SheetModel
 
 # ---------------------------------------------------------------- shape sheet
@@ -509,6 +511,10 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
                 charts.append(chart)
         if result.design in (Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL):
             row, chart = _put_crosstab(model, row, result)
+            if chart:
+                charts.append(chart)
+        elif result.design in EVENT_DESIGNS:
+            row, chart = put_event_table(model, row, result)
             if chart:
                 charts.append(chart)
         spread = technical.spread_check(result)

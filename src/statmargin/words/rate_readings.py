@@ -80,6 +80,9 @@ def _figures(result: Result) -> str:
         )
     parts = []
     for g in groups:
+        if g.get("suppressed"):  # sharing mode: a small count of events
+            parts.append(f"hidden in {named(result, str(g['label']))}")
+            continue
         text = f"{_value_text(result, g.get('rate'), decimals)} in {named(result, str(g['label']))}"
         if _binomial(result):
             text += f" ({_count(g.get('events'))} of {_count(g.get('total'))})"
@@ -206,12 +209,14 @@ def _groups_answer(result: Result, settings: Settings, n_family: int | None) -> 
         decimals = _decimals(result, high["rate"], low["rate"])
         hi_name, lo_name = named(result, str(high["label"])), named(result, str(low["label"]))
         if _binomial(result):
-            size = f"{_n((high['rate'] - low['rate']) * 100, 1)} percentage points"
-            gap = f"; the widest gap is {hi_name} over {lo_name}, {size}"
+            points = f"{_n((high['rate'] - low['rate']) * 100, 1)} percentage points"
+            size = f"widest gap {points}"
+            gap = f"; the widest gap is {hi_name} over {lo_name}, {points}"
         elif low["rate"] > 0:
-            size = f"{_n(high['rate'] / low['rate'], 2)} times"
+            times = f"{_n(high['rate'] / low['rate'], 2)} times"
+            size = f"highest rate {times} the lowest"
             gap = (
-                f"; the highest rate, {hi_name}, is {size} the lowest, {lo_name} "
+                f"; the highest rate, {hi_name}, is {times} the lowest, {lo_name} "
                 f"({_n(high['rate'], decimals)} against {_n(low['rate'], decimals)} {rate_unit(result)})"
             )
     what = events_subject(result) if _binomial(result) else f"the rate of {events_subject(result)}"
@@ -289,3 +294,20 @@ def residual_reading(followup: Followup, parent: Result) -> str:
         f"group of {parent.exposure or 'the groups'}; adjusted residual {fmt_number(z, 2)}{flag}."
     )
 
+
+
+# ---------------------------------------------------------------- the shape-check sheet's table
+
+
+def table_headers(result: Result) -> list[str]:
+    """Headers of the table of pooled groups: group, events, total, share or rate, interval, rows."""
+    extra = result.extra if isinstance(result.extra, Mapping) else {}
+    total = str(extra.get("total_column") or "Total")
+    value = "Share" if _binomial(result) else f"Rate {rate_unit(result)}"
+    return ["Group", str(result.outcome or "Events"), total, value, "CI low", "CI high", "Rows"]
+
+
+def chart_title(result: Result) -> str:
+    """'Positive out of Screened by Site' or 'Positive per 1,000 person-years' for one group."""
+    by = f" by {result.exposure}" if result.exposure else ""
+    return f"{events_subject(result)}{by}"

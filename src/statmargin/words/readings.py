@@ -27,6 +27,7 @@ from . import context as ctx
 from .magnitude import NEGLIGIBLE, Magnitude, magnitude
 from .numbers import ci_label, evidence_words, fmt_number, fmt_p, is_number
 from .questions import (
+    EVENT_DESIGNS,
     ONE_SAMPLE,
     PAIRED,
     group_labels,
@@ -499,9 +500,14 @@ def _table_min_dim(result: Result) -> int | None:
 
 
 def effect_magnitude(result: Result) -> Magnitude | None:
-    """The size word for the result's effect (None when no convention applies)."""
+    """The size word for the result's effect (None when no convention applies).
+
+    Rows of events get none: Cohen's h and Cramer's V call any gap between shares
+    of rare events negligible, and rate ratios have no convention; their readings
+    give the difference in points or how many times one rate is the other.
+    """
     eff = result.effect
-    if eff is None:
+    if eff is None or result.design in EVENT_DESIGNS:
         return None
     return magnitude(eff.kind, eff.value, table_min_dim=_table_min_dim(result))
 
