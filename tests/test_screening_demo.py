@@ -25,6 +25,7 @@ from scipy import stats
 from statsmodels.stats import rates as sm_rates
 from statsmodels.stats.multitest import multipletests
 
+from event_records import records_of
 from script_loader import REPO_ROOT, load_script
 from statmargin import analyze
 from statmargin.cli import main
@@ -55,15 +56,6 @@ def book(tmp_path: Path) -> Path:
     path = tmp_path / demo.FILE
     shutil.copyfile(packaged_file(demo.FILE), path)
     return path
-
-
-def records_of(rows: pd.DataFrame) -> pd.DataFrame:
-    """The people screened, one per row: Site and Result (Positive or Negative)."""
-    site, result = [], []
-    for row in rows.itertuples(index=False):
-        site += [row.Site] * int(row.Screened)
-        result += ["Positive"] * int(row.Positive) + ["Negative"] * int(row.Screened - row.Positive)
-    return pd.DataFrame({"Site": site, "Result": result})
 
 
 def close(a: float | None, b: float | None) -> bool:

@@ -16,9 +16,10 @@ import numpy as np
 from ..errors import NotEnoughDataError
 from ..plan.expand import NUMBERS
 from ..plan.rates_units import parse_per_unit
+from ..plan.types import category_labels
 from ..results import Result
 from ..stats.aggregated import Pooled, pool
-from ..vocabulary import Design
+from ..vocabulary import Design, MeasureType
 from ..vocabulary.codes import Caution, Skip, coded
 from .base import Prepared, Skipped
 from .groups import levels_present
@@ -36,6 +37,7 @@ class EventRows:
     n_excluded: int  # rows holding anything that could not be used
     per: float  # rates are given per this many units of the total (1 for shares)
     noun: str | None  # the unit's noun as the user wrote it ("person-years"), if any
+    strata: list[str] | None = None  # against a target: each row's site (compare-by labels), if any
 
     def pool(self, prepared: Prepared) -> Pooled:
         """The rows added up per group; a group with no people or no person-time skips the analysis."""
@@ -69,9 +71,19 @@ def event_rows(question: Question) -> EventRows:
     unit = parse_per_unit(question.settings.per_unit) if question.settings.per_unit else None
     per = 1.0 if analysis.out_of or unit is None else unit.per
     rows = EventRows(question.outcome.name, total, bool(analysis.out_of), groups, question.left_out(usable),
-                     per, unit.noun if unit is not None else None)
+                     per, unit.noun if unit is not None else None, _strata(question, usable))
     question.cache["event_rows"] = rows
     return rows
+
+
+def _strata(question: Question, usable: np.ndarray) -> list[str] | None:
+    """Each used row's combination of compare-by labels (category columns only), or None without any."""
+    names = [name for name in question.analysis.strata
+             if question.types.info(name, None).type is MeasureType.CATEGORICAL]
+    if not names or question.by is not None:
+        return None
+    columns = [category_labels(question.table.column(name))[usable] for name in names]
+    return [" | ".join("" if label is None else str(label) for label in row) for row in zip(*columns, strict=True)]
 
 
 def shell(question: Question, design: Design) -> tuple[Prepared, EventRows, Pooled]:
@@ -104,6 +116,8 @@ def decorate_events(result: Result, question: Question, prepared: Prepared) -> N
                         events_kind="out_of" if rows.binomial else "per")
     if question.analysis.against_text is not None:
         result.extra["target_text"] = question.analysis.against_text
+    if rows.strata is not None:
+        result.extra["dispersion_within"] = list(question.analysis.strata)
 
 
 def independence_caution(result: Result, rows: EventRows) -> None:

@@ -47,7 +47,7 @@ class OneSamplePooledShare(DesignSpec):
         return proportions.one_share(events, totals, target=prepared.extra["target"], label=rows.events,
                                      other_label=f"not {rows.events}", group="all",
                                      alternative=settings.alternative.value, confidence=settings.confidence,
-                                     seed=settings.seed)
+                                     seed=settings.seed, strata=rows.strata)
 
     def decorate(self, result: Result, question: Question, prepared: Prepared) -> None:
         result.against = prepared.extra.get("target")

@@ -40,7 +40,7 @@ class OneSampleRate(DesignSpec):
         events, time = rows.groups["all"]
         return rates.one_rate(events, time, target=prepared.extra["target"], per=rows.per, label="all",
                               alternative=settings.alternative.value, confidence=settings.confidence,
-                              seed=settings.seed)
+                              seed=settings.seed, strata=rows.strata)
 
     def decorate(self, result: Result, question: Question, prepared: Prepared) -> None:
         rows = prepared.extra.get("rows")

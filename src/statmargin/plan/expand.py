@@ -47,6 +47,7 @@ class Analysis:
     out_of: str | None = None  # events: the column of totals (people, inspections) they are out of
     per: str | None = None  # events: the column of person-time or population they are per
     count: str | None = None  # a frequency weight: each row stands for this many records
+    strata: tuple[str, ...] = ()  # events against a target: groups within which rows should agree (sites)
 
     @property
     def events(self) -> bool:
@@ -185,7 +186,10 @@ def _event_analyses(choice: ColumnChoice, bys: list[ColumnChoice], table: Table,
             raise RoleError(say(err.reason)) from None
     analyses: list[Analysis] = []
     if choice.against is not None and str(choice.against).strip() != "":
-        analyses.append(_against_target(choice, str(choice.against), settings))
+        target = _against_target(choice, str(choice.against), settings)
+        # Sites differ for reasons of their own: extra variation is looked for within them.
+        target.strata = tuple(by.name for by in bys if by.name not in (name, choice.out_of, choice.per))
+        analyses.append(target)
     for total, binomial in totals:
         links = (total, None) if binomial else (None, total)
         for by in bys:

@@ -29,6 +29,7 @@ from .readings import (
     _one_sided,
     _percent,
     _share_decimals,
+    _share_difference_answer,
     _table_answer,
     _verdict,
     register_parts,
@@ -154,19 +155,7 @@ def _two_shares(result: Result, settings: Settings, n_family: int | None) -> tup
     est = result.estimate
     if est is None or not is_number(est.value) or est.kind is not EstimateKind.SHARE_DIFFERENCE:
         return _groups_answer(result, settings, n_family)
-    ev = _evidence(result, settings, n_family)
-    first, second = (named(result, label) for label in (list(est.levels) + ["", ""])[:2])
-    value, low, high, flipped = _flipped(result, float(est.value), est.ci_low, est.ci_high, ratio=False)
-    if flipped:
-        first, second = second, first
-    interval = _interval(result, low, high, 1, scale=100.0)
-    points = f"{_n(value * 100, 1)} percentage points"
-    size = f"{points} ({interval})" if interval else points
-    answer = f"{events_subject(result)} was {points} higher in {first} than in {second}"
-    if interval:
-        answer += f" ({interval})"
-    verdict = _verdict(ev, "a difference", interval_excludes=_excludes_null(low, high))
-    return f"{answer}: {verdict}.", size, f"{ev.words} ({ev.p_text})"
+    return _share_difference_answer(result, settings, n_family, subject=events_subject(result))
 
 
 def _two_rates(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:

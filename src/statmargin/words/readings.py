@@ -345,7 +345,9 @@ def _shares_line(result: Result) -> tuple[str, str | None]:
     return f"Share with {outcome} = {level}{most}: {listed}.", level
 
 
-def _share_difference_answer(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
+def _share_difference_answer(result: Result, settings: Settings, n_family: int | None,
+                             subject: str | None = None) -> tuple[str, str, str]:
+    """The difference in a share in percentage points; ``subject`` names the share (default: from the outcome)."""
     est = result.estimate
     ev = _evidence(result, settings, n_family)
     if est is None or not is_number(est.value):
@@ -363,7 +365,7 @@ def _share_difference_answer(result: Result, settings: Settings, n_family: int |
     size = f"{points} ({interval})" if interval else points
     level = est.level
     outcome = result.outcome or "the outcome"
-    subject = (
+    subject = subject or (
         f"The share with the value {level}" if level is not None and wide_pair(result)
         else f"The share with {outcome} = {level}" if level is not None
         else "The share"
