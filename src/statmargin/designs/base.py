@@ -215,6 +215,11 @@ def clean_numbers(result: Result) -> None:
     result.followups = [replace(f, estimate=_clean_interval(f.estimate)) for f in result.followups]
 
 
+def tally(mask: np.ndarray, weights: np.ndarray | None) -> int:
+    """Records where ``mask`` holds: its rows, or the sum of their counts (a count column)."""
+    return int(np.count_nonzero(mask)) if weights is None else int(weights[mask].sum())
+
+
 def counted_sample(values: np.ndarray, counts: np.ndarray) -> dict[str, list[float]]:
     """What a histogram draws for counted rows: each value with the number of records it stands for."""
     return {"values": np.asarray(values, dtype=float).tolist(), "counts": np.asarray(counts, dtype=float).tolist()}

@@ -12,7 +12,7 @@ from ..stats import categorical
 from ..stats.shape import count_check
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Derived, Reason, Skip, coded
-from .base import Choice, DesignSpec, Prepared, Skipped
+from .base import Choice, DesignSpec, Prepared, Skipped, tally
 from .question import Question
 
 COCHRAN_MIN_EXPECTED = 5.0  # Cochran 1954, Biometrics 10(4):417-451, doi:10.2307/3001616
@@ -50,7 +50,8 @@ class OneSampleCategorical(DesignSpec):
         levels = list(info.levels) or sorted(set(labels))
         if len(levels) == 2:
             levels = event_first(levels, question.event_level(levels))
-        counts = {lev: int(weights[labels == lev].sum()) for lev in levels}
+        counted = weights if question.counts is not None else None
+        counts = {lev: tally(labels == lev, counted) for lev in levels}
         prepared = Prepared(self.design, n=n, n_excluded=n_excl)
         prepared.summaries = [{"label": lev, "n": c, "share": c / n if n else None} for lev, c in counts.items()]
         prepared.extra.update(shares=dict(shares), counts=counts, levels=levels)

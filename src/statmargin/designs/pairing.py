@@ -40,11 +40,6 @@ class PairData:
     def n(self) -> int:
         return int(self.first.size) if self.counts is None else int(self.counts.sum())
 
-    @property
-    def weights(self) -> np.ndarray:
-        """Pairs per row (all 1 without a count column)."""
-        return self.counts if self.counts is not None else np.ones(self.first.size, dtype=np.int64)
-
 
 def is_paired(question: Question) -> bool:
     return question.partner is not None or question.key is not None

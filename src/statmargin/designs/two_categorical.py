@@ -15,7 +15,7 @@ from ..stats import categorical, followup
 from ..stats.shape import count_check, expected_counts
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Coded, Derived, Reason, Skip, coded
-from .base import Choice, DesignSpec, Prepared, Skipped, method_options
+from .base import Choice, DesignSpec, Prepared, Skipped, method_options, tally
 from .groups import levels_present
 from .question import Question
 
@@ -60,7 +60,8 @@ class TwoCategorical(DesignSpec):
         if len(cols) == 2:
             cols = event_first(cols, question.event_level(cols))
         # Records per cell: each row counts its records (one without a count column).
-        observed = np.array([[int(weights[(by_labels == r) & (out_labels == c)].sum()) for c in cols] for r in rows])
+        counts = weights if question.counts is not None else None
+        observed = np.array([[tally((by_labels == r) & (out_labels == c), counts) for c in cols] for r in rows])
         prepared = Prepared(self.design, n=int(weights.sum()), n_excluded=n_excl, table=observed,
                             row_labels=rows, col_labels=cols)
         prepared.summaries = [
