@@ -1,6 +1,6 @@
 """Allow ``python -m statmargin``."""
 
-from .cli import main
+from .cli import run
 
 if __name__ == "__main__":  # pragma: no cover
-    main(prog_name="statmargin")
+    run()

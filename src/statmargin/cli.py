@@ -16,7 +16,6 @@ import contextlib
 import functools
 import json
 import signal
-import sys
 import threading
 import warnings
 from collections.abc import Callable, Iterator
@@ -63,7 +62,8 @@ def handle_errors(fn: Callable[..., Any]) -> Callable[..., Any]:
                     raise
                 from .words.file_messages import interrupted
 
-                click.echo(console.error_line(interrupted()), err=True)
+                with _interrupts_ignored():  # already stopping: a second Ctrl+C must not cut the line short
+                    click.echo(console.error_line(interrupted()), err=True)
                 ctx.exit(errors.EXIT_INTERRUPTED)
             except errors.StatmarginError as err:
                 if debug:
@@ -322,6 +322,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @events_option
 @out_of_option
 @per_option
+@per_unit_option
 @count_option
 @period_option
 @treat_option
@@ -332,8 +333,8 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outcome: tuple[str, ...],
                  by: tuple[str, ...], pairing_key: str | None, against: tuple[str, ...],
                  paired_with: tuple[str, ...], event: tuple[str, ...], events: tuple[str, ...],
-                 out_of: tuple[str, ...], per: tuple[str, ...], count: str | None, period: str | None,
-                 treat: tuple[str, ...], out: Path | None, json_path: str | None) -> None:
+                 out_of: tuple[str, ...], per: tuple[str, ...], per_unit: str | None, count: str | None,
+                 period: str | None, treat: tuple[str, ...], out: Path | None, json_path: str | None) -> None:
     """Add or refresh the roles sheet, keeping every choice already made; options preset roles.
 
     Example: statmargin plan clinics.xlsx --outcome wait_minutes --by site
@@ -346,7 +347,8 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
         summary = plan_workbook(
             workbook, sheet=sheet, header_row=header_row, outcome=outcome, by=by, pairing_key=pairing_key,
             treat=treat, against=against, paired_with=paired_with + tuple(meta.get("old_paired_with", ())),
-            event=event, events=events, out_of=out_of, per=per, count=count, period=period, out=out, progress=progress,
+            event=event, events=events, out_of=out_of, per=per, count=count, period=period, per_unit=per_unit,
+            out=out, progress=progress,
         )
     if json_path != "-":
         click.echo(console.plan_summary(summary, workbook.name))
@@ -437,5 +439,34 @@ def demo_command(folder: Path, quiet: bool) -> None:
     click.echo(console.demo_done(str(folder)))
 
 
+def run() -> None:
+    """The installed ``statmargin`` command: ``main``, with a Ctrl+C after the work is done ignored.
+
+    Once a command has finished (its file written or left alone), a late Ctrl+C
+    would only make Python end by the signal; the exit code should be the command's.
+    """
+    try:
+        main(prog_name="statmargin")
+    finally:
+        _ignore_interrupts()
+
+
+def _ignore_interrupts() -> Any:
+    """Ignore Ctrl+C from here on (main thread only, where handlers can be set); return the handler it replaced."""
+    if hasattr(signal, "SIGINT") and threading.current_thread() is threading.main_thread():
+        return signal.signal(signal.SIGINT, signal.SIG_IGN)
+    return None
+
+
+@contextmanager
+def _interrupts_ignored() -> Iterator[None]:
+    previous = _ignore_interrupts()
+    try:
+        yield
+    finally:
+        if previous is not None:
+            signal.signal(signal.SIGINT, previous)
+
+
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    run()

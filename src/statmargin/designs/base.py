@@ -53,7 +53,9 @@ class Prepared:
     ``table`` a contingency table with its row and column labels; ``samples``
     the values each histogram draws, by label. ``summaries`` are the per-group
     descriptions shown on the results and shape-check sheets. ``shape`` holds
-    the shape and count checks behind the choice.
+    the shape and count checks behind the choice. With a count column a sample
+    is ``{"values": [...], "counts": [...]}`` (``counted_sample``) and the
+    histogram counts each value that many times.
     """
 
     design: Design
@@ -65,7 +67,7 @@ class Prepared:
     col_labels: list[str] = field(default_factory=list)
     summaries: list[dict[str, Any]] = field(default_factory=list)
     shape: dict[str, Any] = field(default_factory=dict)
-    samples: dict[str, list[float]] = field(default_factory=dict)
+    samples: dict[str, Any] = field(default_factory=dict)
     extra: dict[str, Any] = field(default_factory=dict)  # design-specific facts (target, pairing, ...)
 
 
@@ -211,6 +213,16 @@ def clean_numbers(result: Result) -> None:
     result.estimate = _clean_interval(result.estimate)
     result.effect = _clean_interval(result.effect)
     result.followups = [replace(f, estimate=_clean_interval(f.estimate)) for f in result.followups]
+
+
+def tally(mask: np.ndarray, weights: np.ndarray | None) -> int:
+    """Records where ``mask`` holds: its rows, or the sum of their counts (a count column)."""
+    return int(np.count_nonzero(mask)) if weights is None else int(weights[mask].sum())
+
+
+def counted_sample(values: np.ndarray, counts: np.ndarray) -> dict[str, list[float]]:
+    """What a histogram draws for counted rows: each value with the number of records it stands for."""
+    return {"values": np.asarray(values, dtype=float).tolist(), "counts": np.asarray(counts, dtype=float).tolist()}
 
 
 def method_options(settings: Settings) -> dict[str, Any]:

@@ -255,7 +255,7 @@ def analyze(
     plan = build_plan(
         outcomes,
         bys,
-        against=parse_col_values(against_text, "--against", outcomes),
+        against=parse_col_values(against_text, "--against", [*outcomes, *event_columns]),
         pairing_key=pairing_key or paired_by,
         paired_with=parse_col_values(paired_with, "--paired-with", outcomes),
         treat=parse_treat(treat),

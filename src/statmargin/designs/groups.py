@@ -1,7 +1,9 @@
 """Numbers by the groups of a category column: the data of the two-group and several-group designs.
 
 When the outcome is the category and the compare-by column holds numbers, the
-numbers are compared across the outcome's levels (the reason says so).
+numbers are compared across the outcome's levels (the reason says so). With a
+count column each group keeps its rows' counts, and the shape checks, tests and
+follow-ups are those of the rows repeated ``count`` times.
 """
 
 from __future__ import annotations
@@ -13,9 +15,10 @@ import numpy as np
 from ..plan.types import TypeInfo
 from ..read.table import Column
 from ..stats.shape import assess, spread_check
+from ..stats.weighted_shape import assess_weighted, spread_check_weighted
 from ..vocabulary import Design, MeasureType, ShapeHandling
 from ..vocabulary.codes import Coded, Count, Reason, Skip, coded
-from .base import Prepared, Skipped, constant_reason
+from .base import Prepared, Skipped, constant_reason, counted_sample
 from .question import Question
 
 # At most this many groups in one comparison: beyond it the follow-up pairs (n(n-1)/2) and
@@ -45,6 +48,12 @@ class GroupData:
             return None
         first = np.flatnonzero(self.usable)[np.flatnonzero(self.labels == level)[0]]
         return f"{self.grouping.letter}{int(rows[first])}"
+    counts: dict[str, np.ndarray] | None = None  # records per row of each group (a count column)
+
+    def counted(self) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """Each group's (values, counts); counts of 1 without a count column."""
+        return {lev: (v, self.counts[lev] if self.counts is not None else np.ones(v.size, dtype=np.int64))
+                for lev, v in self.groups.items()}
 
 
 def levels_present(info: TypeInfo, labels: np.ndarray) -> list[str]:
@@ -82,13 +91,16 @@ def group_data(question: Question) -> GroupData:
     g = question.values(grouping, grouping_info)
     usable = y.usable & g.usable
     n_excluded = question.left_out(usable)
-    values = y.values[usable].astype(float)
-    labels = g.values[usable]
+    kept, weights = question.weighted(usable)
+    values = y.values[kept].astype(float)
+    labels = g.values[kept]
     levels = levels_present(grouping_info, labels)
     # Too many groups are refused in prepare_groups; splitting them would cost n x groups.
-    groups = {lev: values[labels == lev] for lev in levels} if len(levels) <= MAX_GROUPS else {}
-    data = GroupData(numbers, numbers_info, grouping, grouping_info, levels, groups, int(values.size),
-                     n_excluded, lead, usable, labels)
+    few = len(levels) <= MAX_GROUPS
+    groups = {lev: values[labels == lev] for lev in levels} if few else {}
+    counts = None if question.counts is None or not few else {lev: weights[labels == lev] for lev in levels}
+    data = GroupData(numbers, numbers_info, grouping, grouping_info, levels, groups, int(weights.sum()),
+                     n_excluded, lead, kept, labels, counts)
     question.cache["groups"] = data
     return data
 
@@ -101,16 +113,25 @@ def prepare_groups(question: Question, design: Design, would: tuple[object, obje
     if len(data.levels) > MAX_GROUPS:
         reason = coded(Skip.TOO_MANY_GROUPS, by=by, n=len(data.levels), limit=MAX_GROUPS)
         raise Skipped(reason, prepared, design=Design.MULTI_GROUP_CONTINUOUS, reasons=data.lead)
-    shape = assess(data.groups)
-    spread = spread_check(data.groups) if len(data.levels) >= 3 else None
+    if data.counts is None:
+        shape = assess(data.groups)
+        spread = spread_check(data.groups) if len(data.levels) >= 3 else None
+        prepared.samples = {label: values.tolist() for label, values in data.groups.items()}
+    else:
+        counted = data.counted()
+        shape = assess_weighted(counted)
+        spread = spread_check_weighted(counted) if len(data.levels) >= 3 else None
+        prepared.samples = {label: counted_sample(v, c) for label, (v, c) in counted.items()}
+        prepared.extra["counts"] = data.counts
     prepared.shape = {"assessment": shape.to_record(), "spread": spread.to_record() if spread else None}
     prepared.extra.update(assessment=shape, spread=spread, lead=data.lead)
     prepared.summaries = [s.to_record() for s in shape.summaries]
-    prepared.samples = {label: values.tolist() for label, values in data.groups.items()}
     if len(data.levels) < 2:
         reason = coded(Skip.FEWER_THAN_TWO_GROUPS, by=by, level=data.levels[0] if data.levels else None)
         raise Skipped(reason, prepared, design=Design.TWO_GROUP_CONTINUOUS, reasons=data.lead)
-    single = next((lev for lev in data.levels if data.groups[lev].size == 1), None)
+    sizes = {lev: int(data.counts[lev].sum()) if data.counts is not None else data.groups[lev].size
+             for lev in data.levels}
+    single = next((lev for lev in data.levels if sizes[lev] == 1), None)
     if single is not None:  # often a typing slip; naming the cell lets the user find it
         reason = coded(Skip.GROUP_OF_ONE, by=by, level=single, n=Count(1), cell=data.cell_of(single, question.rows))
         raise Skipped(reason, prepared, reasons=data.lead)

@@ -8,10 +8,11 @@ Dunn's test with Holm adjustment after Kruskal-Wallis.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from typing import Any
 
 from ..plan.model import Settings
 from ..results import Followup, Result
-from ..stats import followup, multigroup
+from ..stats import followup, multigroup, weighted, weighted_followup
 from ..stats.shape import ShapeAssessment, SpreadCheck
 from ..vocabulary import Design, MeasureType, ShapeHandling, Test
 from ..vocabulary.codes import Coded, Reason, coded
@@ -62,6 +63,11 @@ class MultiGroupContinuous(DesignSpec):
                       shape=prepared.extra["assessment"], spread=prepared.extra["spread"], lead=data.lead)
 
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
+        counted = _counted(prepared)
+        if counted is not None:
+            weighted_fn = {Test.ONE_WAY_ANOVA: weighted.one_way_anova, Test.WELCH_ANOVA: weighted.welch_anova,
+                           Test.KRUSKAL_WALLIS: weighted.kruskal_wallis}[choice.test]
+            return weighted_fn(counted, **method_options(question.settings))
         fn = {Test.ONE_WAY_ANOVA: multigroup.one_way_anova, Test.WELCH_ANOVA: multigroup.welch_anova,
               Test.KRUSKAL_WALLIS: multigroup.kruskal_wallis}[choice.test]
         return fn(prepared.groups, **method_options(question.settings))
@@ -69,13 +75,16 @@ class MultiGroupContinuous(DesignSpec):
     def follow_up(self, result: Result, prepared: Prepared, settings: Settings) -> tuple[list[Followup], list[Coded]]:
         if len(prepared.groups) < 3:
             return [], []
+        counted = _counted(prepared)
+        # The same follow-ups on counted rows, from stats.weighted_followup.
+        source: Any = weighted_followup if counted is not None else followup
+        groups: Any = counted if counted is not None else prepared.groups
         if result.test == Test.ONE_WAY_ANOVA:
-            pairs = followup.tukey_hsd(prepared.groups, confidence=settings.confidence, alpha=settings.alpha)
+            pairs = source.tukey_hsd(groups, confidence=settings.confidence, alpha=settings.alpha)
         elif result.test == Test.WELCH_ANOVA:
-            pairs = followup.games_howell(prepared.groups, confidence=settings.confidence, alpha=settings.alpha)
+            pairs = source.games_howell(groups, confidence=settings.confidence, alpha=settings.alpha)
         elif result.test == Test.KRUSKAL_WALLIS:
-            pairs = followup.dunn(prepared.groups, adjust="holm", alpha=settings.alpha,
-                                  confidence=settings.confidence)
+            pairs = source.dunn(groups, adjust="holm", alpha=settings.alpha, confidence=settings.confidence)
         else:
             return [], []
         pairs = list(pairs)
@@ -83,3 +92,11 @@ class MultiGroupContinuous(DesignSpec):
         reason = coded(Reason.FOLLOWUP_PAIRS, alpha=settings.alpha, test=test,
                        holm=result.test == Test.KRUSKAL_WALLIS)
         return pairs, [reason]
+
+
+def _counted(prepared: Prepared) -> dict[str, tuple[Any, Any]] | None:
+    """Each group's (values, counts) when the rows carry a count column, else None."""
+    counts = prepared.extra.get("counts")
+    if counts is None:
+        return None
+    return {label: (values, counts[label]) for label, values in prepared.groups.items()}

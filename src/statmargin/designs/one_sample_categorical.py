@@ -12,7 +12,7 @@ from ..stats import categorical
 from ..stats.shape import count_check
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Derived, Reason, Skip, coded
-from .base import Choice, DesignSpec, Prepared, Skipped
+from .base import Choice, DesignSpec, Prepared, Skipped, tally
 from .question import Question
 
 COCHRAN_MIN_EXPECTED = 5.0  # Cochran 1954, Biometrics 10(4):417-451, doi:10.2307/3001616
@@ -42,14 +42,16 @@ class OneSampleCategorical(DesignSpec):
         info = question.outcome_info
         name = question.outcome.name
         vals = question.values(question.outcome, info)
-        n, n_excl = vals.n, question.left_out(vals.usable)
+        kept, weights = question.weighted(vals.usable)
+        n, n_excl = int(weights.sum()), question.left_out(vals.usable)
         shares = question.analysis.against
         assert isinstance(shares, dict)  # a categorical outcome always parses to shares by label
-        labels = vals.values[vals.usable]
+        labels = vals.values[kept]
         levels = list(info.levels) or sorted(set(labels))
         if len(levels) == 2:
             levels = event_first(levels, question.event_level(levels))
-        counts = {lev: int(np.sum(labels == lev)) for lev in levels}
+        counted = weights if question.counts is not None else None
+        counts = {lev: tally(labels == lev, counted) for lev in levels}
         prepared = Prepared(self.design, n=n, n_excluded=n_excl)
         prepared.summaries = [{"label": lev, "n": c, "share": c / n if n else None} for lev, c in counts.items()]
         prepared.extra.update(shares=dict(shares), counts=counts, levels=levels)

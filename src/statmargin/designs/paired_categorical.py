@@ -9,7 +9,7 @@ from ..results import Result
 from ..stats import categorical
 from ..vocabulary import Design, Test
 from ..vocabulary.codes import Reason, Skip, coded
-from .base import Choice, DesignSpec, Prepared, Skipped, method_options
+from .base import Choice, DesignSpec, Prepared, Skipped, method_options, tally
 from .paired_continuous import decorate_pairs
 from .pairing import is_categorical, is_paired, prepare_pairs
 from .question import Question
@@ -37,7 +37,8 @@ class PairedCategorical(DesignSpec):
         if len(levels) != 2:
             raise Skipped(coded(Skip.PAIRED_NOT_TWO_LEVELS, outcome=question.outcome.name, n=len(levels)),
                           prepared, test=Test.MCNEMAR)
-        table = np.array([[int(np.sum((a == r) & (b == c))) for c in levels] for r in levels])
+        w = data.counts
+        table = np.array([[tally((a == r) & (b == c), w) for c in levels] for r in levels])
         prepared.table = table
         prepared.row_labels = [f"{first}: {lv}" for lv in levels]
         prepared.col_labels = [f"{second}: {lv}" for lv in levels]
@@ -45,8 +46,8 @@ class PairedCategorical(DesignSpec):
         prepared.shape = {"counts": {"observed": table.tolist(), "row_labels": prepared.row_labels,
                                      "col_labels": prepared.col_labels}}
         prepared.summaries = [
-            {"label": first, "n": data.n, "counts": {lv: int(np.sum(a == lv)) for lv in levels}},
-            {"label": second, "n": data.n, "counts": {lv: int(np.sum(b == lv)) for lv in levels}},
+            {"label": first, "n": data.n, "counts": {lv: tally(a == lv, w) for lv in levels}},
+            {"label": second, "n": data.n, "counts": {lv: tally(b == lv, w) for lv in levels}},
         ]
         return prepared
 

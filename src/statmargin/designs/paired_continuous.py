@@ -3,11 +3,20 @@
 from __future__ import annotations
 
 from ..results import Result
-from ..stats import paired
+from ..stats import paired, weighted
 from ..stats.shape import assess
+from ..stats.weighted_shape import assess_weighted
 from ..vocabulary import Design, MeasureType, ShapeHandling, Test
 from ..vocabulary.codes import Skip, coded
-from .base import Choice, DesignSpec, Prepared, Skipped, constant_reason, method_options
+from .base import (
+    Choice,
+    DesignSpec,
+    Prepared,
+    Skipped,
+    constant_reason,
+    counted_sample,
+    method_options,
+)
 from .continuous import choose_family
 from .pairing import is_categorical, is_paired, prepare_pairs
 from .question import Question
@@ -28,12 +37,20 @@ class PairedContinuous(DesignSpec):
         a, b = data.first, data.second
         first, second = data.labels
         diff = a - b
-        shape = assess({f"{first} - {second}": diff})
+        if data.counts is None:
+            shape = assess({f"{first} - {second}": diff})
+            halves = assess({first: a, second: b})
+            prepared.samples = {first: a.tolist(), second: b.tolist()}
+        else:
+            w = data.counts
+            shape = assess_weighted({f"{first} - {second}": (diff, w)})
+            halves = assess_weighted({first: (a, w), second: (b, w)})
+            prepared.samples = {first: counted_sample(a, w), second: counted_sample(b, w)}
+            prepared.extra["counts"] = w
         prepared.shape = {"assessment": shape.to_record()}
         prepared.extra["assessment"] = shape
-        prepared.summaries = [s.to_record() for s in assess({first: a, second: b}).summaries]
+        prepared.summaries = [s.to_record() for s in halves.summaries]
         prepared.groups = {first: a, second: b}
-        prepared.samples = {first: a.tolist(), second: b.tolist()}
         ordinal = data.info.type is MeasureType.ORDINAL
         would = TESTS[1 if ordinal or question.handling is ShapeHandling.RANK else 0]
         if data.n == 0:
@@ -53,6 +70,11 @@ class PairedContinuous(DesignSpec):
 
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
         first, second = prepared.extra["labels"]
+        counts = prepared.extra.get("counts")
+        if counts is not None:
+            counted = weighted.paired_t if choice.test is Test.PAIRED_T else weighted.wilcoxon_paired
+            return counted(prepared.groups[first], prepared.groups[second], counts, labels=(first, second),
+                           **method_options(question.settings))
         fn = paired.paired_t if choice.test is Test.PAIRED_T else paired.wilcoxon_paired
         return fn(prepared.groups[first], prepared.groups[second], labels=(first, second),
                   **method_options(question.settings))

@@ -34,10 +34,11 @@ class PairData:
     pairing: str  # the key column (long form) or the second measurement column (wide form)
     incomplete: list[Any] = field(default_factory=list)
     notes: list[Coded] = field(default_factory=list)
+    counts: np.ndarray | None = None  # pairs each row stands for (a count column; wide form only)
 
     @property
     def n(self) -> int:
-        return int(self.first.size)
+        return int(self.first.size) if self.counts is None else int(self.counts.sum())
 
 
 def is_paired(question: Question) -> bool:
@@ -80,7 +81,8 @@ def _wide(question: Question, design: Design) -> PairData:
     b = question.values(b_col, b_info)
     usable = a.usable & b.usable
     n_excl = question.left_out(usable)
-    x, z = a.values[usable], b.values[usable]
+    kept, counts = question.weighted(usable)
+    x, z = a.values[kept], b.values[kept]
     if not a_cat:
         x, z = x.astype(float), z.astype(float)
     # Sheet rows whose pair had one half missing or unreadable, so the data notes can list them.
@@ -89,7 +91,8 @@ def _wide(question: Question, design: Design) -> PairData:
     incomplete: list[Any] = (
         [f"row {int(r)}" for r in rows[half]] if rows is not None else np.flatnonzero(half).tolist()
     )
-    return PairData(a_info, x, z, (a_col.name, b_col.name), n_excl, b_col.name, incomplete)
+    return PairData(a_info, x, z, (a_col.name, b_col.name), n_excl, b_col.name, incomplete,
+                    counts=None if question.counts is None else counts)
 
 
 def _long(question: Question, design: Design) -> PairData:

@@ -12,13 +12,13 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import OptionError, RoleError
-from ..plan.expand import Analysis
+from ..plan.expand import NUMBERS, Analysis
 from ..plan.levels import infer_event
 from ..plan.model import ColumnChoice, Settings
 from ..plan.types import ColumnValues, TypeInfo, infer_type, usable_values
 from ..read.table import Column, Table
 from ..vocabulary import Alternative, MeasureType, ShapeHandling
-from ..words import refusals
+from ..words import rates_words, refusals
 
 USABLE_TYPES = (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)
 
@@ -104,13 +104,40 @@ class Question:
     def values(self, column: Column, info: TypeInfo) -> ColumnValues:
         return self.types.values(column.name, info)
 
+    @property
+    def counts(self) -> np.ndarray | None:
+        """The count column's number per row (NaN where blank or text), or None without one."""
+        name = self.analysis.count
+        if name is None:
+            return None
+        return self.values(self.table.column(name), NUMBERS).values
+
+    def weighted(self, usable: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Rows an analysis uses and each one's number of records (all 1 without a count column).
+
+        With a count column a row is used only when its count is given and above 0 (a
+        row with a count of 0 stands for no record).
+        """
+        counts = self.counts
+        if counts is None:
+            return usable, np.ones(int(usable.sum()), dtype=np.int64)
+        keep = usable & np.isfinite(counts) & (counts > 0)
+        return keep, counts[keep].astype(np.int64)
+
     def left_out(self, usable: np.ndarray) -> int:
         """Records (rows holding anything) that an analysis using ``usable`` rows leaves out.
 
         One definition for every design, so analyses of the same outcome report the
-        same count for the outcome's blank, unreadable or unusable cells.
+        same count for the outcome's blank, unreadable or unusable cells. With a
+        count column each such row counts its records, and a row without a count
+        counts once (the records it stands for are not known).
         """
-        return int(np.sum(self.types.records() & ~usable))
+        records = self.types.records()
+        counts = self.counts
+        if counts is None:
+            return int(np.sum(records & ~usable))
+        has = np.isfinite(counts)
+        return int(counts[records & ~usable & has].sum()) + int(np.sum(records & ~has))
 
     def event_level(self, levels: list[str]) -> str | None:
         """The outcome's event level among ``levels``: the user's choice, else inferred from common words."""
@@ -137,7 +164,10 @@ class Question:
 def build_question(analysis: Analysis, table: Table, settings: Settings, types: ColumnTypes) -> Question:
     """Resolve an analysis's columns and types; refuse columns that cannot take their role."""
     outcome = table.column(analysis.outcome)
-    out_info = types.usable_info(outcome.name, analysis.outcome_choice, refusals.ROLE_OUTCOME)
+    if analysis.events:
+        out_info = NUMBERS  # counts of events, whatever their inferred type (small whole numbers look like codes)
+    else:
+        out_info = types.usable_info(outcome.name, analysis.outcome_choice, refusals.ROLE_OUTCOME)
     question = Question(analysis, table, settings, types, outcome, out_info)
     if analysis.against is not None:
         return question
@@ -155,6 +185,8 @@ def build_question(analysis: Analysis, table: Table, settings: Settings, types: 
         raise OptionError(refusals.nothing_to_compare(analysis.outcome))
     question.by = table.column(analysis.by)
     question.by_info = types.usable_info(question.by.name, analysis.by_choice, refusals.ROLE_BY)
+    if analysis.events and question.by_info.type is not MeasureType.CATEGORICAL:
+        raise RoleError(rates_words.groups_need_categories(outcome.name, question.by.name))
     if analysis.pairing_key and question.by_info.type is MeasureType.CATEGORICAL:
         question.key = table.column(analysis.pairing_key)
     return question

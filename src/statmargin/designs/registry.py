@@ -9,9 +9,13 @@ from __future__ import annotations
 
 from ..vocabulary import Design, Test
 from .base import DesignSpec
+from .group_pooled_shares import GroupPooledShares
+from .group_rates import GroupRates
 from .multi_group_continuous import MultiGroupContinuous
 from .one_sample_categorical import OneSampleCategorical
 from .one_sample_continuous import OneSampleContinuous
+from .one_sample_pooled_share import OneSamplePooledShare
+from .one_sample_rate import OneSampleRate
 from .paired_categorical import PairedCategorical
 from .paired_continuous import PairedContinuous
 from .question import Question
@@ -20,6 +24,12 @@ from .two_continuous import TwoContinuous
 from .two_group_continuous import TwoGroupContinuous
 
 REGISTRY: list[DesignSpec] = [
+    # Rows of events with their totals: ahead of the record-level designs, which would
+    # read a count of events as a measurement.
+    OneSamplePooledShare(),
+    GroupPooledShares(),
+    OneSampleRate(),
+    GroupRates(),
     OneSampleCategorical(),
     OneSampleContinuous(),
     PairedCategorical(),

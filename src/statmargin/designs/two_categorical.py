@@ -15,7 +15,7 @@ from ..stats import categorical, followup
 from ..stats.shape import count_check, expected_counts
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Coded, Derived, Reason, Skip, coded
-from .base import Choice, DesignSpec, Prepared, Skipped, method_options
+from .base import Choice, DesignSpec, Prepared, Skipped, method_options, tally
 from .groups import MAX_GROUPS, levels_present
 from .question import Question
 
@@ -53,7 +53,8 @@ class TwoCategorical(DesignSpec):
         b = question.values(question.by, question.by_info)
         usable = a.usable & b.usable
         n_excl = question.left_out(usable)
-        out_labels, by_labels = a.values[usable], b.values[usable]
+        kept, weights = question.weighted(usable)
+        out_labels, by_labels = a.values[kept], b.values[kept]
         rows = levels_present(question.by_info, by_labels)
         cols = levels_present(question.outcome_info, out_labels)
         if len(cols) == 2:
@@ -61,9 +62,11 @@ class TwoCategorical(DesignSpec):
         for column, levels in ((by, rows), (name, cols)):
             if len(levels) > MAX_GROUPS:
                 reason = coded(Skip.TOO_MANY_GROUPS, by=column, n=len(levels), limit=MAX_GROUPS)
-                raise Skipped(reason, Prepared(self.design, n=int(usable.sum()), n_excluded=n_excl))
-        observed = np.array([[int(np.sum((by_labels == r) & (out_labels == c))) for c in cols] for r in rows])
-        prepared = Prepared(self.design, n=int(usable.sum()), n_excluded=n_excl, table=observed,
+                raise Skipped(reason, Prepared(self.design, n=int(weights.sum()), n_excluded=n_excl))
+        # Records per cell: each row counts its records (one without a count column).
+        counts = weights if question.counts is not None else None
+        observed = np.array([[tally((by_labels == r) & (out_labels == c), counts) for c in cols] for r in rows])
+        prepared = Prepared(self.design, n=int(weights.sum()), n_excluded=n_excl, table=observed,
                             row_labels=rows, col_labels=cols)
         prepared.summaries = [
             {"label": r, "n": int(observed[i].sum()), "counts": {c: int(observed[i, j]) for j, c in enumerate(cols)}}

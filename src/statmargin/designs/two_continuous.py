@@ -3,11 +3,20 @@
 from __future__ import annotations
 
 from ..results import Result
-from ..stats import correlation
+from ..stats import correlation, weighted
 from ..stats.shape import assess
+from ..stats.weighted_shape import assess_weighted
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Skip, coded
-from .base import Choice, DesignSpec, Prepared, Skipped, constant_reason, method_options
+from .base import (
+    Choice,
+    DesignSpec,
+    Prepared,
+    Skipped,
+    constant_reason,
+    counted_sample,
+    method_options,
+)
 from .continuous import choose_family
 from .question import Question
 
@@ -33,14 +42,20 @@ class TwoContinuous(DesignSpec):
         b = question.values(question.by, question.by_info)
         usable = a.usable & b.usable
         n_excl = question.left_out(usable)
-        x = a.values[usable].astype(float)
-        y = b.values[usable].astype(float)
-        prepared = Prepared(self.design, n=int(x.size), n_excluded=n_excl, groups={name: x, by: y})
-        shape = assess({name: x, by: y})
+        kept, counts = question.weighted(usable)
+        x = a.values[kept].astype(float)
+        y = b.values[kept].astype(float)
+        prepared = Prepared(self.design, n=int(counts.sum()), n_excluded=n_excl, groups={name: x, by: y})
+        if question.counts is None:
+            shape = assess({name: x, by: y})
+            prepared.samples = {name: x.tolist(), by: y.tolist()}
+        else:
+            shape = assess_weighted({name: (x, counts), by: (y, counts)})
+            prepared.samples = {name: counted_sample(x, counts), by: counted_sample(y, counts)}
+            prepared.extra["counts"] = counts
         prepared.shape = {"assessment": shape.to_record()}
         prepared.extra["assessment"] = shape
         prepared.summaries = [s.to_record() for s in shape.summaries]
-        prepared.samples = {name: x.tolist(), by: y.tolist()}
         for column, values in ((name, x), (by, y)):
             constant = constant_reason(column, values)
             if constant or x.size == 0:
@@ -58,5 +73,9 @@ class TwoContinuous(DesignSpec):
 
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
         x, y = prepared.groups.values()
+        counts = prepared.extra.get("counts")
+        if counts is not None:
+            counted = weighted.pearson_r if choice.test is Test.PEARSON_R else weighted.spearman_rho
+            return counted(x, y, counts, **method_options(question.settings))
         fn = correlation.pearson_r if choice.test is Test.PEARSON_R else correlation.spearman_rho
         return fn(x, y, **method_options(question.settings))

@@ -8,7 +8,7 @@ import numpy as np
 from scipy import stats
 
 from ..results import Effect, Result
-from ..stats import twogroup
+from ..stats import twogroup, weighted
 from ..stats.shape import ShapeAssessment
 from ..vocabulary import Design, EffectKind, MeasureType, ShapeHandling, Test
 from ..vocabulary.codes import Coded, Reason, coded
@@ -52,6 +52,12 @@ class TwoGroupContinuous(DesignSpec):
 
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
         levels = list(prepared.groups)
+        counts = prepared.extra.get("counts")
+        if counts is not None:
+            counted = {Test.WELCH_T: weighted.welch_t, Test.STUDENT_T: weighted.student_t,
+                       Test.MANN_WHITNEY_U: weighted.mann_whitney_u}[choice.test]
+            first, second = ((prepared.groups[lev], counts[lev]) for lev in levels[:2])
+            return counted(first, second, labels=(levels[0], levels[1]), **method_options(question.settings))
         fn = {Test.WELCH_T: twogroup.welch_t, Test.STUDENT_T: twogroup.student_t,
               Test.MANN_WHITNEY_U: twogroup.mann_whitney_u}[choice.test]
         return fn(prepared.groups[levels[0]], prepared.groups[levels[1]], labels=(levels[0], levels[1]),
@@ -63,7 +69,9 @@ class TwoGroupContinuous(DesignSpec):
         if not (choice.rank_based or ordinal):
             return
         levels = list(prepared.groups)
-        ps = probability_of_superiority(prepared.groups[levels[0]], prepared.groups[levels[1]])
+        counts = prepared.extra.get("counts") or {}
+        ps = probability_of_superiority(prepared.groups[levels[0]], prepared.groups[levels[1]],
+                                        counts.get(levels[0]), counts.get(levels[1]))
         result.extra[EffectKind.PROBABILITY_OF_SUPERIORITY.value] = ps
         result.extra["probability_of_superiority_levels"] = [levels[0], levels[1]]
         if ordinal and result.effect is not None and result.effect.kind is EffectKind.RANK_BISERIAL:
@@ -80,8 +88,12 @@ class TwoGroupContinuous(DesignSpec):
             )
 
 
-def probability_of_superiority(x: np.ndarray, y: np.ndarray) -> float:
+def probability_of_superiority(x: np.ndarray, y: np.ndarray, x_counts: np.ndarray | None = None,
+                               y_counts: np.ndarray | None = None) -> float:
     """P(X > Y) + P(X = Y) / 2 over all pairs of one value from each group.
+
+    With counts (a count column) each value stands for that many records, and the
+    pairs are those of the repeated records.
 
     Notes
     -----
@@ -102,9 +114,21 @@ def probability_of_superiority(x: np.ndarray, y: np.ndarray) -> float:
     0.4166666666666667
     >>> (2 + 0.5 * 1) / 6
     0.4166666666666667
+
+    The same records given as counted rows:
+
+    >>> probability_of_superiority(np.array([1.0, 3.0, 5.0]), np.array([2.0, 5.0]),
+    ...                            np.array([1, 1, 1]), np.array([1, 1]))
+    0.4166666666666667
     """
     x = np.asarray(x, dtype=float).ravel()
     y = np.asarray(y, dtype=float).ravel()
+    if x_counts is not None and y_counts is not None:
+        cx, cy = np.asarray(x_counts, dtype=float), np.asarray(y_counts, dtype=float)
+        ranks, _ = weighted.midranks(np.concatenate([x, y]), np.concatenate([cx, cy]))
+        nx, ny = float(cx.sum()), float(cy.sum())
+        u = float(np.dot(cx, ranks[: x.size])) - nx * (nx + 1) / 2.0
+        return float(u / (nx * ny))
     ranks = stats.rankdata(np.concatenate([x, y]))
     u = float(ranks[: x.size].sum()) - x.size * (x.size + 1) / 2.0
     return float(u / (x.size * y.size))

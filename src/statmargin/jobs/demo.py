@@ -14,7 +14,7 @@ from ..errors import WorkbookError
 from ..words import refusals
 from .workbook import Progress, RunSummary, run_workbook
 
-DEMO_WORKBOOKS = ("inspections_demo.xlsx", "outreach_demo.xlsx")
+DEMO_WORKBOOKS = ("inspections_demo.xlsx", "outreach_demo.xlsx", "screening_demo.xlsx")
 TEMPLATE = "statmargin_template.xlsx"
 
 

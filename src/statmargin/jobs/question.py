@@ -99,7 +99,7 @@ def test_workbook(
     plan = build_plan(
         outcomes,
         bys,
-        against=parse_col_values(against, "--against", outcomes),
+        against=parse_col_values(against, "--against", [*outcomes, *event_columns]),
         pairing_key=pairing_key,
         paired_with=parse_col_values(paired_with, "--paired-with", outcomes),
         treat=parse_treat(treat),

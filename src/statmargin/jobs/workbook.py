@@ -25,7 +25,7 @@ from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse
 from ..read.table import Table
 from ..sheets.share import DEFAULT_MIN_COUNT, suppress
 from ..vocabulary import MeasureType, Role
-from ..words import console, refusals
+from ..words import console, refusals, roles_words
 from ..words import progress as words
 from ..words.cautions import count_comparisons
 from ..words.results_text import hidden_rows_note
@@ -46,6 +46,7 @@ class PlanSummary:
     new_columns: list[str]
     missing_columns: list[str]
     write: WriteReport
+    suggestions: list[str] = field(default_factory=list)  # roles the data suggest, with the evidence
 
     def to_record(self) -> dict[str, Any]:
         return {
@@ -55,6 +56,7 @@ class PlanSummary:
             "columns": self.columns,
             "new_columns": self.new_columns,
             "missing_columns": self.missing_columns,
+            "suggestions": self.suggestions,
             "sheets": self.write.sheets,
             "renamed": self.write.renamed,
         }
@@ -131,6 +133,7 @@ def plan_workbook(
     per: Mapping[str, str] | Iterable[str] | None = None,
     count: str | None = None,
     period: str | None = None,
+    per_unit: str | None = None,
     out: str | Path | None = None,
     source: WorkbookSource | None = None,
     sink: WorkbookSink | None = None,
@@ -152,7 +155,8 @@ def plan_workbook(
         ``paired_with`` ``COL=COL2`` items, or mappings; ``event`` ``COL=LEVEL`` items
         name the event level of two-level outcomes; ``events`` mark columns of event
         counts, each ``out_of`` (``COL=TOTALS``) or ``per`` (``COL=PERSON_TIME``) another
-        column; ``count`` marks a frequency weight and ``period`` the date or period column.
+        column; ``count`` marks a frequency weight and ``period`` the date or period column;
+        ``per_unit`` sets the unit rates are given in ("per 1,000 person-years").
     out
         Write to this new file instead of ``path`` (which is then left untouched).
     progress
@@ -161,12 +165,18 @@ def plan_workbook(
     from ..plan.types import infer_type, usable_values
     from ..read.reader import first_data_sheet, read_table, sample_values
 
+    if per_unit is not None:
+        from ..plan.rates_units import parse_per_unit
+
+        parse_per_unit(per_unit)  # refuses a unit it cannot read, before the file is opened
     source, sink, opened = _backends(path, source, sink)
     sink.check(str(out) if out else None)  # a file that cannot be written is refused before the reading
     previous = read_roles(source)
     plan = previous.plan if previous else Plan()
     say = progress or (lambda message, done=None, total=None: None)
     say(console.reading_sheet(sheet or plan.sheet) if sheet or plan.sheet else words.FINDING_DATA)
+    if per_unit is not None:
+        plan = replace(plan, settings=replace(plan.settings, per_unit=str(per_unit)))
     data_sheet = sheet or plan.sheet or first_data_sheet(source)
     if header_row is None and plan.sheet == data_sheet:
         header_row = plan.header_row
@@ -187,11 +197,13 @@ def plan_workbook(
         out_of=parse_col_values(out_of, "--out-of"), per=parse_col_values(per, "--per"),
         count=count, period=period,
     )
+    statuses, suggestions = _suggestions(table, choices)
     facts = []
     for name, column in table.columns.items():
         info = infer_type(column)
         facts.append(
             ColumnFacts(
+                suggestion=statuses.get(name, ""),
                 name=name,
                 letter=column.letter,
                 inferred=info.type.value,
@@ -224,7 +236,38 @@ def plan_workbook(
         new_columns=new,
         missing_columns=[c.name for c in missing],
         write=report,
+        suggestions=suggestions,
     )
+
+
+def _suggestions(table: Table, choices: Mapping[str, ColumnChoice]) -> tuple[dict[str, str], list[str]]:
+    """Roles the data suggest for columns without one yet: a status per column and a line each.
+
+    Summary layouts (events out of a total, events per person-time, a count of
+    records) are recognised by ``plan.aggregate.suggest_roles``; they are shown,
+    never applied.
+    """
+    from ..plan.aggregate import suggest_roles
+    from ..vocabulary.codes import Reason
+    from ..words.sentences import say
+
+    parts: dict[str, list[str]] = {}
+    lines: list[str] = []
+    for suggestion in suggest_roles(table):
+        name = str(suggestion.events or suggestion.count)
+        chosen = choices.get(name)
+        if chosen is not None and chosen.role is not Role.IGNORE:
+            continue  # the user has decided this column's role
+        total = str(suggestion.total)
+        if suggestion.count is not None:
+            part, advice = roles_words.SUGGESTED_COUNT, roles_words.advice_count(name)
+        elif suggestion.reason.code is Reason.SUGGEST_EVENTS_OUT_OF:
+            part, advice = roles_words.suggested_out_of(total), roles_words.advice_out_of(name, total)
+        else:
+            part, advice = roles_words.suggested_per(total), roles_words.advice_per(name, total)
+        parts.setdefault(name, []).append(part)
+        lines.append(roles_words.suggestion_line(say(suggestion.reason), advice))
+    return {name: roles_words.suggested_status(found) for name, found in parts.items()}, lines
 
 
 def _apply_presets(
@@ -387,7 +430,7 @@ def run_workbook(
 
 
 def _check_roles(plan: Plan, roles: RolesSheet) -> None:
-    outcomes = [c for c in plan.columns if c.role is Role.OUTCOME]
+    outcomes = [c for c in plan.columns if c.role in (Role.OUTCOME, Role.EVENTS)]
     if not outcomes:
         raise RoleError(refusals.no_outcome_on_sheet())
     gone = [c.name for c in plan.columns if c.name in roles.missing and c.role is not Role.IGNORE]
@@ -402,6 +445,8 @@ def _used_columns(plan: Plan) -> list[str]:
             names.append(c.name)
         if c.role is Role.OUTCOME and c.paired_with and c.paired_with not in names:
             names.append(c.paired_with)
+        if c.role is Role.EVENTS:
+            names.extend(t for t in (c.out_of, c.per) if t and t not in names)
     return list(dict.fromkeys(names))
 
 

@@ -131,7 +131,7 @@ def build_plan(
     Refuses what cannot be asked at once: nothing to compare with, a comparison
     value together with a compare-by or paired column, a paired column together
     with a compare-by column, a pairing key without a compare-by column, events
-    without a total or person-time (or with both).
+    without a total or person-time.
     """
     if not outcomes and not events:
         raise OptionError(refusals.no_outcome_named())
@@ -157,7 +157,7 @@ def build_plan(
             if name not in events:
                 raise OptionError(refusals.total_for_non_events(option, name))
     for name in events:
-        if (name in out_of) == (name in per):
+        if name not in out_of and name not in per:
             raise OptionError(refusals.events_need_one_total(name))
     handling = parse_shape(shape)
     treat = dict(treat or {})

@@ -21,6 +21,10 @@ from .levels import infer_event, look_alikes
 from .model import Plan
 from .types import TypeInfo, category_labels, infer_type, usable_values
 
+# Counts of events, totals, person-time and count weights are read as numbers whatever
+# their inferred type (a column of small whole numbers would otherwise be categories).
+NUMBERS = TypeInfo(MeasureType.CONTINUOUS, reason="counts and totals", inferred=False)
+
 
 def merge_look_alikes(table: Table, names: Iterable[str]) -> list[DataNote]:
     """Merge labels that differ only in case, spacing or trailing punctuation; one note per cell changed.
@@ -83,10 +87,14 @@ def prepare_table(table: Table, plan: Plan) -> list[DataNote]:
     """
     names = [c.name for c in plan.columns if c.role is not Role.IGNORE and c.name in table.columns]
     names += [c.paired_with for c in plan.columns if c.paired_with and c.paired_with in table.columns]
+    # Events, their totals and count weights are read as numbers whatever their inferred type.
+    numbers = {c.name for c in plan.columns if c.role in (Role.EVENTS, Role.COUNT)}
+    numbers |= {str(t) for c in plan.columns if c.role is Role.EVENTS for t in (c.out_of, c.per) if t}
+    names += [name for name in numbers if name in table.columns]
     names = list(dict.fromkeys(names))
-    notes = merge_look_alikes(table, names) if plan.settings.merge_look_alikes else []
+    notes = merge_look_alikes(table, [n for n in names if n not in numbers]) if plan.settings.merge_look_alikes else []
     for name in names:
-        info = infer_type(table.columns[name], plan.choice(name))
+        info = NUMBERS if name in numbers else infer_type(table.columns[name], plan.choice(name))
         if info.type in (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL):
             notes.extend(left_out_notes(table, name, info))
     table.notes.extend(notes)

@@ -6,19 +6,30 @@ Each outcome is analysed:
 - with its wide-form partner, when ``paired_with`` names another column;
 - by each compare-by column; with a pairing key and a two-level compare-by
   column this becomes a paired (long-form) analysis.
+
+Each events column (rows of events out of a total, or per person-time) is
+analysed the same way: against its target, then by each compare-by column. A
+count column weights every analysis (each row stands for that many records).
+Impossible event rows and counts are refused here, once, in one line.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..errors import RoleError
+import numpy as np
+
+from ..errors import NotEnoughDataError, RoleError
 from ..options.against import parse_against
 from ..read.table import Table
 from ..vocabulary import Role
-from ..words import refusals
-from .model import ColumnChoice, Plan
-from .types import infer_type
+from ..vocabulary.codes import Skip, coded
+from ..words import rates_words, refusals
+from ..words.sentences import say
+from .clean import NUMBERS
+from .model import ColumnChoice, Plan, Settings
+from .rates_units import parse_per_unit, parse_target, rate_target, share_target
+from .types import infer_type, usable_values
 
 
 @dataclass
@@ -33,6 +44,15 @@ class Analysis:
     paired_with: str | None = None  # wide-form pairing: the second measurement column
     outcome_choice: ColumnChoice | None = None
     by_choice: ColumnChoice | None = None
+    out_of: str | None = None  # events: the column of totals (people, inspections) they are out of
+    per: str | None = None  # events: the column of person-time or population they are per
+    count: str | None = None  # a frequency weight: each row stands for this many records
+    strata: tuple[str, ...] = ()  # events against a target: groups within which rows should agree (sites)
+
+    @property
+    def events(self) -> bool:
+        """An analysis of rows of events (the outcome is a count of events with its total)."""
+        return bool(self.out_of or self.per)
 
 
 def expand(plan: Plan, table: Table) -> list[Analysis]:
@@ -54,7 +74,10 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
     Raises
     ------
     RoleError
-        No outcome, more than one pairing key, or an outcome with nothing to compare.
+        No outcome, more than one pairing key, or an outcome with nothing to compare;
+        an events column without one total, or with an impossible row (a count that
+        is not a whole number, events above their total); a count column that is not
+        whole numbers 0 or more, or that cannot weight the analyses asked for.
     ColumnNotFoundError
         A named column is not in the table (with the closest names).
     OptionError
@@ -68,7 +91,8 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
     outcomes = [c for c in plan.columns if c.role is Role.OUTCOME]
     bys = [c for c in plan.columns if c.role is Role.COMPARE_BY]
     keys = [c for c in plan.columns if c.role is Role.PAIRING_KEY]
-    if not outcomes:
+    events = [c for c in plan.columns if c.role is Role.EVENTS]
+    if not outcomes and not events:
         raise RoleError(refusals.no_outcome_role())
     if len(keys) > 1:
         names = ", ".join(repr(k.name) for k in keys)
@@ -76,6 +100,7 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
     key = keys[0].name if keys else None
     if key and not bys:
         raise RoleError(refusals.key_needs_by(key))
+    count = _count_column(plan, table, events, key)
 
     analyses: list[Analysis] = []
     for out in outcomes:
@@ -83,18 +108,114 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
         if out.against is not None and str(out.against).strip() != "":
             info = infer_type(table.column(out.name), out)
             value = parse_against(str(out.against), info, column=out.name)
-            analyses.append(Analysis(out.name, against=value, against_text=str(out.against), outcome_choice=out))
+            analyses.append(Analysis(out.name, against=value, against_text=str(out.against), outcome_choice=out,
+                                     count=count))
         if out.paired_with:
             if out.paired_with == out.name:
                 raise RoleError(refusals.paired_with_itself(out.name))
             partner = plan.choice(out.paired_with)
             analyses.append(
-                Analysis(out.name, paired_with=out.paired_with, outcome_choice=out, by_choice=partner)
+                Analysis(out.name, paired_with=out.paired_with, outcome_choice=out, by_choice=partner, count=count)
             )
         for by in bys:
             if by.name == out.name:
                 continue
-            analyses.append(Analysis(out.name, by=by.name, pairing_key=key, outcome_choice=out, by_choice=by))
+            analyses.append(Analysis(out.name, by=by.name, pairing_key=key, outcome_choice=out, by_choice=by,
+                                     count=count))
         if len(analyses) == before:
             raise RoleError(refusals.outcome_alone(out.name))
+    for choice in events:
+        analyses.extend(_event_analyses(choice, bys, table, plan.settings))
     return analyses
+
+
+# ---------------------------------------------------------------- count weights and events
+
+
+def _numbers(table: Table, name: str) -> np.ndarray:
+    """A column's numbers (NaN where blank or text), as the analyses read counts and totals."""
+    return usable_values(table.column(name), NUMBERS).values
+
+
+def _first_bad_row(table: Table, name: str, values: np.ndarray) -> None:
+    """Refuse a count column holding a number below 0 or not whole, naming the first such row."""
+    finite = np.isfinite(values)
+    bad = np.flatnonzero(finite & ((values < 0) | (values != np.floor(values))))
+    if bad.size:
+        i = int(bad[0])
+        code = Skip.NEGATIVE_VALUE if values[i] < 0 else Skip.NOT_WHOLE_COUNT
+        raise RoleError(say(coded(code, what=name, row=int(table.rows[i]), value=float(values[i]))))
+
+
+def _count_column(plan: Plan, table: Table, events: list[ColumnChoice], key: str | None) -> str | None:
+    """The count column (a frequency weight), checked; None when there is none."""
+    counts = [c.name for c in plan.columns if c.role is Role.COUNT]
+    if not counts:
+        return None
+    if len(counts) > 1:
+        raise RoleError(rates_words.several_counts(", ".join(repr(n) for n in counts)))
+    name = counts[0]
+    if events:
+        raise RoleError(rates_words.count_with_events(name, events[0].name))
+    if key:
+        raise RoleError(rates_words.count_with_pairing_key(name, key))
+    _first_bad_row(table, name, _numbers(table, name))
+    return name
+
+
+def _event_analyses(choice: ColumnChoice, bys: list[ColumnChoice], table: Table, settings: Settings) -> list[Analysis]:
+    """An events column against its target, then by each compare-by column, for each of its totals.
+
+    A column may have both totals (positives out of people screened and per 1,000
+    person-years). It has one target: a rate written with "per" ('2 per 1000') is
+    for its Per total; anything else (4%, 0.04) is a share for its Out of total,
+    and a bare number is a rate when the column has only a Per total.
+    """
+    name = choice.name
+    totals = [(t, binomial) for t, binomial in ((choice.out_of, True), (choice.per, False)) if t]
+    if not totals:
+        raise RoleError(rates_words.events_need_total(name))
+    for total, binomial in totals:
+        if total == name:
+            raise RoleError(rates_words.total_is_events(name))
+        table.column(total)  # a missing column is refused with the closest names
+        try:
+            check_rows_of(table, name, total, binomial=binomial)
+        except NotEnoughDataError as err:
+            assert err.reason is not None
+            raise RoleError(say(err.reason)) from None
+    analyses: list[Analysis] = []
+    if choice.against is not None and str(choice.against).strip() != "":
+        target = _against_target(choice, str(choice.against), settings)
+        # Sites differ for reasons of their own: extra variation is looked for within them.
+        target.strata = tuple(by.name for by in bys if by.name not in (name, choice.out_of, choice.per))
+        analyses.append(target)
+    for total, binomial in totals:
+        links = (total, None) if binomial else (None, total)
+        for by in bys:
+            if by.name not in (name, total):
+                analyses.append(Analysis(name, by=by.name, outcome_choice=choice, by_choice=by, out_of=links[0],
+                                         per=links[1]))
+    if not analyses:
+        raise RoleError(rates_words.events_alone(name))
+    return analyses
+
+
+def _against_target(choice: ColumnChoice, text: str, settings: Settings) -> Analysis:
+    """The events column against its target: a share of its Out of total, or a rate of its Per total."""
+    target = parse_target(text)
+    as_rate = choice.per is not None and (choice.out_of is None or (target.unit is not None and not target.percent))
+    if as_rate:
+        unit = parse_per_unit(settings.per_unit) if settings.per_unit else None
+        return Analysis(choice.name, against=rate_target(target, unit), against_text=text, outcome_choice=choice,
+                        per=choice.per)
+    return Analysis(choice.name, against=share_target(target), against_text=text, outcome_choice=choice,
+                    out_of=choice.out_of)
+
+
+def check_rows_of(table: Table, events: str, total: str, *, binomial: bool) -> None:
+    """Refuse (``NotEnoughDataError``) the first row of events that cannot be: see ``aggregated.check_rows``."""
+    from ..stats.aggregated import check_rows
+
+    check_rows(_numbers(table, events), _numbers(table, total), binomial=binomial, events_name=events,
+               totals_name=total, row_numbers=table.rows)

@@ -101,7 +101,7 @@ CHOICE_COLUMNS: tuple[ChoiceColumn, ...] = (
     ChoiceColumn("Label order", "order", (), 20),
     ChoiceColumn("Event level", "event", (), 13),
 )
-STATUS_HEADER = ("Status", 20)
+STATUS_HEADER = ("Status", 30)
 HEADERS = tuple(
     [name for name, _ in FACT_HEADERS] + [c.header for c in CHOICE_COLUMNS] + [STATUS_HEADER[0]]
 )
@@ -121,6 +121,7 @@ class ColumnFacts:
     n_levels: int | None = None  # categories and ordinal labels
     look_alikes: str = ""  # e.g. "Old Mill (180), Old  Mill (1)"
     event: str | None = None  # the inferred event level of a two-level column
+    suggestion: str = ""  # a role the data suggest (shown in the Status column, never applied)
 
 
 @dataclass
@@ -178,7 +179,8 @@ def build_roles_sheet(
     for fact in facts:
         row += 1
         choice = plan.choice(fact.name) or ColumnChoice(fact.name)
-        _put_column_row(model, row, fact, choice, STATUS_NEW if fact.name in new_names else "")
+        status = "; ".join(t for t in (STATUS_NEW if fact.name in new_names else "", fact.suggestion) if t)
+        _put_column_row(model, row, fact, choice, status)
     for choice in missing:
         row += 1
         _put_column_row(model, row, ColumnFacts(choice.name, "", "", "", 0, 0), choice, STATUS_MISSING)

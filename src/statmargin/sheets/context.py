@@ -54,7 +54,7 @@ class ReportContext:
     link_sheet: str | None = None  # sheet for links to data cells; defaults to data_sheet
     column_letters: dict[str, str] = field(default_factory=dict)
     observational: bool = True
-    samples: dict[tuple[str, str, str], Mapping[str, Sequence[float]]] = field(default_factory=dict)
+    samples: dict[tuple[str, str, str], Mapping[str, Any]] = field(default_factory=dict)
     fingerprint: str = ""
     decimals: dict[str, int] = field(default_factory=dict)  # each numeric column's own precision
     hidden_rows: int | None = 0  # data rows a filter or the user hid (None: the workbook cannot tell)
@@ -66,7 +66,7 @@ class ReportContext:
         workbook: str,
         table: Table | None = None,
         results: Sequence[Result] = (),
-        samples: Sequence[Mapping[str, Sequence[float]]] = (),
+        samples: Sequence[Mapping[str, Any]] = (),
         settings: Settings | None = None,
         version: str = __version__,
         started: datetime | None = None,

@@ -80,6 +80,12 @@ SHARE_KINDS = (
     EstimateKind.SHARE_DIFFERENCE,
     EstimateKind.PAIRED_SHARE_DIFFERENCE,
 )
+RATE_KINDS = (
+    EstimateKind.RATE,
+    EstimateKind.RATE_DIFFERENCE,
+    EstimateKind.RATE_RATIO,
+    EstimateKind.LARGEST_RATE_GAP,
+)
 
 
 def _merge_plain(model: SheetModel, row: int) -> None:
@@ -94,6 +100,9 @@ def _against_or_by(result: Result) -> str:
         return f"paired by {result.pairing}"
     if result.against is None:
         return ""
+    typed = result.extra.get("target_text") if isinstance(result.extra, Mapping) else None
+    if typed:
+        return f"against {typed}"  # a target of events as typed ("4%", "2 per 1000")
     if isinstance(result.against, Mapping):
         return ", ".join(f"{k} = {v:g}" if _finite(v) else f"{k} = {v}" for k, v in result.against.items())
     return f"against {result.against:g}" if _finite(result.against) else f"against {result.against}"
@@ -118,6 +127,8 @@ def _estimate_style(result: Result, context: ReportContext) -> str:
     est = result.estimate
     if est is not None and est.kind in SHARE_KINDS:
         return "percent"
+    if est is not None and est.kind in RATE_KINDS:
+        return "number"  # rates per unit and ratios are not in the counts' own precision
     own = context.decimals.get(result.outcome or "")
     return "number" if own is None else _fixed(own + 1)
 
@@ -297,7 +308,11 @@ def results_sheet(
             _number(model, row, COL["Adjusted p"], followup.p_adjusted, "p_value")
             if followup.estimate is not None:
                 fe = followup.estimate
-                style = _fixed(context.decimals[result.outcome] + 1) if result.outcome in context.decimals else "number"
+                style = (
+                    _fixed(context.decimals[result.outcome] + 1)
+                    if result.outcome in context.decimals and fe.kind not in RATE_KINDS
+                    else "number"
+                )
                 model.put(row, COL["Estimate"], fe.name, "wrap")
                 for name, value in (("Estimate value", fe.value), ("CI low", fe.ci_low), ("CI high", fe.ci_high)):
                     _number(model, row, COL[name], value, style)

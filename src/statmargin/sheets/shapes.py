@@ -13,7 +13,9 @@ from ..results import Result
 from ..vocabulary import Design
 from ..words import context as words_context
 from ..words import explain, technical
+from ..words.questions import EVENT_DESIGNS
 from .context import SHEET_NAMES, ReportContext, _a1, _finite, _num, _value, analysis_key
+from .event_tables import put_event_table
 from .model import Cell, Chart, ChartSeries, SheetModel
 
 # ---------------------------------------------------------------- shape sheet
@@ -312,13 +314,16 @@ def _put_crosstab(model: SheetModel, row: int, result: Result) -> tuple[int, Cha
     return row, chart
 
 
-def bin_edges(values: Sequence[float]) -> np.ndarray:
+def bin_edges(values: Sequence[float], counts: Sequence[float] | None = None) -> np.ndarray:
     """Shared histogram bin edges: NumPy's "auto" rule held to 8 to 15 bins.
 
     Parameters
     ----------
     values : sequence of float
         All values to be binned (every group together, so groups share bins).
+    counts : sequence of float, optional
+        Records per value (a count column); the edges are those of the values
+        repeated that many times.
 
     Returns
     -------
@@ -329,17 +334,40 @@ def bin_edges(values: Sequence[float]) -> np.ndarray:
     -----
     "auto" is the larger-bin choice of the Sturges and Freedman-Diaconis rules
     (NumPy documentation); its count is clamped to 8..15 and the edges are then
-    spread evenly over the data range.
+    spread evenly over the data range. With counts the same rule is computed
+    from the counted values (``_auto_bins``), without repeating them.
     """
-    data = np.asarray([v for v in values if _finite(v)], dtype=float)
+    data = np.asarray(values, dtype=float).ravel()
+    weights = None if counts is None else np.asarray(counts, dtype=float).ravel()
+    keep = np.isfinite(data) if weights is None else np.isfinite(data) & np.isfinite(weights) & (weights > 0)
+    data = data[keep]
     if data.size == 0:
         return np.array([0.0, 1.0])
     low, high = float(data.min()), float(data.max())
     if low == high:
         return np.array([low - 0.5, high + 0.5])
-    count = len(np.histogram_bin_edges(data, bins="auto")) - 1
+    if weights is None:
+        count = len(np.histogram_bin_edges(data, bins="auto")) - 1
+    else:
+        count = _auto_bins(data, weights[keep])
     count = min(MAX_BINS, max(MIN_BINS, count))
     return np.linspace(low, high, count + 1)
+
+
+def _auto_bins(values: np.ndarray, counts: np.ndarray) -> int:
+    """The number of bins NumPy's "auto" rule gives the values repeated ``counts`` times.
+
+    NumPy 2: width = min(max(FD, sqrt / 2), Sturges), with FD = 2 IQR n^(-1/3),
+    sqrt = range / sqrt(n) and Sturges = range / (log2 n + 1); bins = ceil(range / width).
+    """
+    from ..stats.weighted_shape import quantiles
+
+    n = float(counts.sum())
+    spread = float(values.max() - values.min())
+    q75, q25 = quantiles(values, counts, [0.75, 0.25])
+    fd = 2.0 * float(q75 - q25) * n ** (-1.0 / 3.0)
+    width = min(max(fd, spread / np.sqrt(n) / 2.0), spread / (np.log2(n) + 1.0))
+    return int(np.ceil(spread / width)) if width else 1
 
 
 def _bin_labels(edges: np.ndarray) -> list[str]:
@@ -356,21 +384,29 @@ def _put_histogram(
     model: SheetModel,
     row: int,
     title: str,
-    samples: Mapping[str, Sequence[float]],
+    samples: Mapping[str, Any],
     n_cells: Mapping[str, tuple[int, int]],
     units: str,
 ) -> tuple[int, Chart]:
     """Counts per shared bin for each group, and a column chart over them."""
     labels = list(samples)
-    edges = bin_edges([v for label in labels for v in samples[label]])
+    values = {label: _values_and_counts(samples[label]) for label in labels}
+    weighted = any(c is not None for _, c in values.values())
+    edges = bin_edges(
+        [v for label in labels for v in values[label][0]],
+        [w for label in labels for w in _counts_or_ones(*values[label])] if weighted else None,
+    )
     model.put_row(row, ["Bin"] + labels, "header")
     bin_text = _bin_labels(edges)
     top = row + 1
     for i, text in enumerate(bin_text):
         model.put(top + i, 0, text, "label")
     for j, label in enumerate(labels):
-        data = np.asarray([v for v in samples[label] if _finite(v)], dtype=float)
-        counts, _ = np.histogram(data, bins=edges)
+        raw, weights = values[label]
+        data = np.asarray(raw, dtype=float)
+        keep = np.isfinite(data)
+        counts, _ = np.histogram(data[keep], bins=edges,
+                                 weights=None if weights is None else np.asarray(weights, dtype=float)[keep])
         column = []
         for i, count in enumerate(counts):
             model.put(top + i, 1 + j, int(count), "integer", is_count=True)
@@ -393,13 +429,28 @@ def _put_histogram(
     return bottom + 2, chart
 
 
-def _samples_for(result: Result, context: ReportContext) -> dict[str, Sequence[float]]:
+def _values_and_counts(sample: Any) -> tuple[Sequence[float], Sequence[float] | None]:
+    """A sample's values and, for counted rows (``{"values", "counts"}``), the records per value."""
+    if isinstance(sample, Mapping):
+        return list(sample.get("values", [])), list(sample.get("counts", []))
+    return sample, None
+
+
+def _counts_or_ones(values: Sequence[float], counts: Sequence[float] | None) -> Sequence[float]:
+    return counts if counts is not None else [1.0] * len(values)
+
+
+def _samples_for(result: Result, context: ReportContext) -> dict[str, Any]:
     samples = context.samples.get(analysis_key(result))
     if samples is None and isinstance(result.extra, Mapping):
         samples = result.extra.get("values")
     if not isinstance(samples, Mapping):
         return {}
-    return {str(k): list(v) for k, v in samples.items() if isinstance(v, (Sequence, np.ndarray))}
+    return {
+        str(k): (dict(v) if isinstance(v, Mapping) else list(v))
+        for k, v in samples.items()
+        if isinstance(v, (Sequence, np.ndarray, Mapping))
+    }
 
 
 def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel:
@@ -460,6 +511,10 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
                 charts.append(chart)
         if result.design in (Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL):
             row, chart = _put_crosstab(model, row, result)
+            if chart:
+                charts.append(chart)
+        elif result.design in EVENT_DESIGNS:
+            row, chart = put_event_table(model, row, result)
             if chart:
                 charts.append(chart)
         spread = technical.spread_check(result)

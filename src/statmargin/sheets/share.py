@@ -57,6 +57,7 @@ from ..results import Result
 from ..vocabulary import Design, Test
 from ..vocabulary.codes import Coded, Count, Derived, Hidden, Note, coded
 from ..words import explain
+from ..words.questions import EVENT_DESIGNS
 from .model import Cell, SheetModel
 
 DEFAULT_MIN_COUNT = 11
@@ -174,6 +175,19 @@ def _group_size(group: Mapping[str, Any]) -> Any:
     return group.get("n", group.get("count"))
 
 
+def _small_group(group: Mapping[str, Any], design: Any, min_count: int) -> bool:
+    """A group with a small count of records, or (rows of events) of events or of people without one."""
+    if is_small_count(_group_size(group), min_count):
+        return True
+    if design not in EVENT_DESIGNS:
+        return False
+    events, total = group.get("events"), group.get("total")
+    if is_small_count(events, min_count):
+        return True
+    people = design in (Design.ONE_SAMPLE_POOLED_SHARE, Design.GROUP_POOLED_SHARES)
+    return people and isinstance(events, int) and isinstance(total, int) and is_small_count(total - events, min_count)
+
+
 def _small_cells(result: Result, min_count: int) -> bool:
     """True when a categorical result has a cell or level count from 1 to N-1."""
     values: list[Any] = [_group_size(g) for g in result.groups if isinstance(g, Mapping)]
@@ -222,7 +236,7 @@ def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Resul
     hidden: set[str] = set()
     small_group = False
     for g in out.groups:
-        if not isinstance(g, Mapping) or not is_small_count(_group_size(g), min_count):
+        if not isinstance(g, Mapping) or not _small_group(g, out.design, min_count):
             continue
         small_group = True
         keep = {"label", "n", "count", "normality_test"}
@@ -237,6 +251,11 @@ def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Resul
         out.followups = [f for f in out.followups if f.test != Test.ADJUSTED_RESIDUAL]
     elif out.design in _GROUPED_CONTINUOUS and small_group:
         hidden.add("estimate")
+    elif out.design in EVENT_DESIGNS and small_group:
+        # A group's share or rate with its total gives its events back; so do the pooled
+        # estimate and its effect with the other groups' figures.
+        hidden |= {"estimate", "effect"}
+        out.followups = []
     if "estimate" in hidden and out.estimate is not None:
         out.estimate = replace(out.estimate, value=None, ci_low=None, ci_high=None)
     if "effect" in hidden and out.effect is not None:

@@ -226,6 +226,24 @@ def pool(groups: Mapping[str, tuple[Any, Any]], *, binomial: bool) -> Pooled:
     )
 
 
+def split_by(events: Any, totals: Any, strata: Sequence[Any]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """One group's rows split by a label per row (the strata whose differences are not sampling noise).
+
+    Examples
+    --------
+    >>> parts = split_by([1, 2, 3], [10, 20, 30], ["a", "b", "a"])
+    >>> {k: (e.tolist(), t.tolist()) for k, (e, t) in parts.items()}
+    {'a': ([1.0, 3.0], [10.0, 30.0]), 'b': ([2.0], [20.0])}
+    """
+    e = np.asarray(events, dtype=float).ravel()
+    t = np.asarray(totals, dtype=float).ravel()
+    labels = np.asarray([str(s) for s in strata], dtype=object)
+    if labels.size != e.size:
+        raise NotEnoughDataError(coded(Skip.LENGTH_MISMATCH, what="the rows and their strata", first=e.size,
+                                       second=labels.size))
+    return {str(k): (e[labels == k], t[labels == k]) for k in dict.fromkeys(labels.tolist())}
+
+
 def pearson_dispersion(
     pooled: Pooled,
     *,

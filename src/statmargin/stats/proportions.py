@@ -11,7 +11,7 @@ of the test and interval is used instead, with a note.
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from typing import Any
 
 import numpy as np
@@ -27,6 +27,7 @@ from statmargin.stats.aggregated import (
     pearson_dispersion,
     pool,
     scale_for,
+    split_by,
     summaries,
 )
 from statmargin.stats.categorical import (
@@ -99,6 +100,7 @@ def one_share(
     alternative: str = "two-sided",
     confidence: float = 0.95,
     seed: int = DEFAULT_SEED,
+    strata: Sequence[Any] | None = None,
 ) -> Result:
     """One share of events out of totals against a target: exact binomial test and Wilson interval.
 
@@ -120,6 +122,12 @@ def one_share(
         Level of the interval.
     seed : int
         Seed of the Monte Carlo dispersion test.
+    strata : sequence, optional
+        A label per row (sites, districts): extra variation is then measured
+        within each stratum. Differences between fixed strata are not sampling
+        noise for the pooled total (they make its variance smaller than binomial,
+        not larger), so only rows that vary within a stratum call for the
+        quasi-binomial version.
 
     Returns
     -------
@@ -162,7 +170,8 @@ def one_share(
     common.check_options(alternative, confidence)
     target = _share_target(target)
     pooled = pool({str(group): (events, totals)}, binomial=True)
-    dispersion = pearson_dispersion(pooled, seed=seed)
+    within = pooled if strata is None else pool(split_by(events, totals, strata), binomial=True)
+    dispersion = pearson_dispersion(within, seed=seed)
     x, n = int(pooled.events[0]), int(pooled.totals[0])
     notes: list[Coded] = []
     reasons: list[Coded] = []

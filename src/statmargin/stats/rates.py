@@ -11,7 +11,7 @@ unit (2 per 1,000 is ``0.002``).
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -29,6 +29,7 @@ from statmargin.stats.aggregated import (
     pearson_dispersion,
     pool,
     scale_for,
+    split_by,
     summaries,
 )
 from statmargin.stats.categorical import (
@@ -235,6 +236,7 @@ def one_rate(
     alternative: str = "two-sided",
     confidence: float = 0.95,
     seed: int = DEFAULT_SEED,
+    strata: Sequence[Any] | None = None,
 ) -> Result:
     """One rate against a target: the exact Poisson test and the Garwood interval.
 
@@ -255,6 +257,10 @@ def one_rate(
         Level of the interval.
     seed : int
         Seed of the Monte Carlo dispersion test.
+    strata : sequence, optional
+        A label per row (sites, districts): extra variation is measured within
+        each stratum, since differences between fixed strata are not sampling
+        noise for the pooled count (see ``proportions.one_share``).
 
     Returns
     -------
@@ -296,7 +302,8 @@ def one_rate(
     target = _target(target)
     per = _per(per)
     pooled = pool({str(label): (events, time)}, binomial=False)
-    dispersion = pearson_dispersion(pooled, seed=seed)
+    within = pooled if strata is None else pool(split_by(events, time, strata), binomial=False)
+    dispersion = pearson_dispersion(within, seed=seed)
     x, total = int(pooled.events[0]), float(pooled.totals[0])
     expected = target * total
     notes: list[Coded] = []

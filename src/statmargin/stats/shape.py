@@ -120,7 +120,11 @@ def fmt_p(p: float) -> str:
 
 def summarize(values, label: str = "all") -> GroupSummary:
     """Summaries and the normal-shape verdict for one group (see :func:`_summarize`)."""
-    summary = _summarize(values, label)
+    return with_direction(_summarize(values, label))
+
+
+def with_direction(summary: GroupSummary) -> GroupSummary:
+    """The summary with its verdict split into the direction and the evidence behind it."""
     head, _, tail = summary.verdict.partition(" (")
     summary.direction = head
     summary.evidence = tail.rstrip(")")
@@ -168,6 +172,12 @@ def _summarize(values, label: str) -> GroupSummary:
     base: dict[str, Any] = dict(label=label, n=n, mean=float(np.mean(x)), sd=sd, median=median, q1=q1, q3=q3,
                 min=float(np.min(x)), max=float(np.max(x)), skewness=skew,
                 excess_kurtosis=kurt, n_outliers=n_out)
+    return judge(base, constant, x)
+
+
+def judge(base: dict[str, Any], constant: bool, x: np.ndarray | None) -> GroupSummary:
+    """The verdict of ``SHAPE_RULES`` for a group's summaries (``x``: its values, for Shapiro-Wilk)."""
+    n, skew, kurt = base["n"], base["skewness"], base["excess_kurtosis"]
     if constant:
         return GroupSummary(**base, check="constant", check_statistic=None, check_p=None,
                             normal_shaped=None, verdict="all values are equal")
@@ -176,6 +186,7 @@ def _summarize(values, label: str) -> GroupSummary:
         return GroupSummary(**base, check=check, check_statistic=None, check_p=None,
                             normal_shaped=None, verdict=f"too few values to check the shape (n = {n})")
     if check == "shapiro_wilk":
+        assert x is not None  # up to 50 values the check reads them
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # scipy warns on ties/small n; the verdict stands
             w, p = stats.shapiro(x)
@@ -234,7 +245,11 @@ def assess(groups: dict[str, np.ndarray]) -> ShapeAssessment:
         was checked and passed (constant groups count as not checked). Groups too small to check lead to a rank-based
         test (the safer choice when shape is unknown).
     """
-    summaries = [summarize(v, str(k)) for k, v in groups.items()]
+    return combine([summarize(v, str(k)) for k, v in groups.items()])
+
+
+def combine(summaries: list[GroupSummary]) -> ShapeAssessment:
+    """The verdict over all groups from each group's summary (see :func:`assess`)."""
     failing = [s.label for s in summaries if s.normal_shaped is False]
     unchecked = [s.label for s in summaries if s.normal_shaped is None and s.check != "constant"]
     constant = [s.label for s in summaries if s.check == "constant"]

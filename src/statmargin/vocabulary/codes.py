@@ -183,6 +183,9 @@ class Reason(Word):
     QUASI_POISSON = "quasi_poisson"  # dispersion
     QUASI_BINOMIAL = "quasi_binomial"  # dispersion
     # layout suggestions of the plan step (never applied without the user)
+    POOLED_SHARE_TARGET = "pooled_share_target"  # events, total: rows added up, exact binomial test
+    POOLED_SHARES_TABLE = "pooled_shares_table"  # events, total, by: rows added up per group into one table
+    POOLED_RATES = "pooled_rates"  # events, per, by (optional): rows added up per group
     SUGGEST_EVENTS_OUT_OF = "suggest_events_out_of"  # events, total, rows
     SUGGEST_EVENTS_PER = "suggest_events_per"  # events, per, rows, whole: bool
     SUGGEST_COUNT = "suggest_count"  # count, categories

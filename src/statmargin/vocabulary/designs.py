@@ -24,6 +24,8 @@ class Design(Word):
     PAIRED_CATEGORICAL = "paired_categorical"
     ONE_SAMPLE_RATE = "one_sample_rate"  # events per person-time (or population) against a target rate
     GROUP_RATES = "group_rates"  # events per person-time compared across two or more groups
+    ONE_SAMPLE_POOLED_SHARE = "one_sample_pooled_share"  # events out of totals, pooled, against a target share
+    GROUP_POOLED_SHARES = "group_pooled_shares"  # events out of totals, pooled per group, compared across groups
 
 
 class Test(Word):

@@ -2,5 +2,6 @@
 
 from . import (
     period_words,  # noqa: F401  (registers the period templates)
+    rate_readings,  # noqa: F401  (registers the readings of the event designs)
     rates_words,  # noqa: F401  (registers the templates of aggregated-row codes)
 )

@@ -18,7 +18,7 @@ from ..vocabulary.codes import Note
 from . import context as ctx
 from .magnitude import NEGLIGIBLE
 from .numbers import decimals_for, fmt_number, is_number
-from .questions import ONE_SAMPLE, PAIRED
+from .questions import EVENT_DESIGNS, ONE_SAMPLE, PAIRED
 from .readings import effect_magnitude, min_expected, p_used
 from .sentences import say
 from .technical import ADJUST_NAMES
@@ -119,9 +119,14 @@ def _group_sizes(result: Result) -> list[int]:
     return sizes
 
 
-def _excluded_line(count: int, context: Any) -> str:
-    records = "record was" if count == 1 and ctx.share_floor(context) is None else "records were"
+def _excluded_line(count: int, context: Any, noun: str = "record") -> str:
+    records = f"{noun} was" if count == 1 and ctx.share_floor(context) is None else f"{noun}s were"
     return EXCLUDED_LINE.format(count=ctx.count_text(count, context), records=records)
+
+
+def _left_out_noun(result: Result) -> str:
+    """Rows of events stand for unknown numbers of people, so what is left out is counted in rows."""
+    return "row" if result.design in EVENT_DESIGNS else "record"
 
 
 def cautions(
@@ -150,7 +155,7 @@ def cautions(
     out: list[str] = []
     if result.skipped:
         if ctx.positive(result.n_excluded):
-            out.append(_excluded_line(result.n_excluded, context))
+            out.append(_excluded_line(result.n_excluded, context, _left_out_noun(result)))
         out.append(REVIEW_LINE)
         return out
     if result.design in PAIRED:
@@ -170,7 +175,7 @@ def cautions(
             out.append(UNEQUAL_GROUPS_LINE.format(ratio=f"{UNEQUAL_RATIO:g}"))
     elif (
         not grouped
-        and result.design not in (Design.TWO_CATEGORICAL, Design.ONE_SAMPLE_CATEGORICAL)
+        and result.design not in (Design.TWO_CATEGORICAL, Design.ONE_SAMPLE_CATEGORICAL, *EVENT_DESIGNS)
         and ctx.below(result.n, SMALL_SAMPLE_LIMIT)
     ):
         out.append(SMALL_SAMPLE_LINE.format(limit=SMALL_SAMPLE_LIMIT))
@@ -191,7 +196,7 @@ def cautions(
         line = EXPECTED_LINE.format(smallest=shown, p_how=p_how)
         out.append(line)
     if ctx.positive(result.n_excluded):
-        out.append(_excluded_line(result.n_excluded, context))
+        out.append(_excluded_line(result.n_excluded, context, _left_out_noun(result)))
     p, _ = p_used(result)
     mag = effect_magnitude(result)
     if mag is not None and is_number(p):

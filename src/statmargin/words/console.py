@@ -81,7 +81,8 @@ def test_summary(results: Sequence[Result], *, sheet: str | None = None) -> str:
     if sheet:
         lines.append(f"Sheet {sheet!r}: {len(results)} analysis(es)")
     for r in results:
-        target = r.exposure or r.pairing or (f"against {r.against}" if r.against is not None else "")
+        against = r.extra.get("target_text", r.against) if isinstance(r.extra, dict) else r.against
+        target = r.exposure or r.pairing or (f"against {against}" if r.against is not None else "")
         lines.append("")
         lines.append(f"{r.outcome} {'by ' if r.exposure else ''}{target}".rstrip() + f"  [{r.test or 'no test'}]")
         if r.skipped:
@@ -125,6 +126,7 @@ def plan_summary(summary: Any, workbook_name: str) -> str:
             "  No roles chosen yet: open the file, pick roles in the shaded cells, save, then run "
             f"'statmargin run {workbook_name}'."
         )
+    lines.extend(f"  suggestion: {line}" for line in summary.suggestions)
     lines.extend(f"  new column: {name}" for name in summary.new_columns)
     lines.extend(f"  no longer in the data: {name}" for name in summary.missing_columns)
     lines.extend(f"  {line}" for line in summary.write.renamed)

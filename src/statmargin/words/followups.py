@@ -6,7 +6,7 @@ from typing import Any
 
 from ..plan.model import Settings
 from ..results import Followup, Result
-from ..vocabulary import EstimateKind, Test
+from ..vocabulary import Design, EstimateKind, Test
 from . import context as ctx
 from .numbers import ci_label, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
 
@@ -38,6 +38,14 @@ def followup_reading(
     str
     """
     outcome = parent.outcome or "the outcome"
+    if followup.test == Test.PAIRWISE_RATE_RATIO:
+        from .rate_readings import pair_reading
+
+        return pair_reading(followup, parent, settings)
+    if followup.test == Test.ADJUSTED_RESIDUAL and parent.design == Design.GROUP_POOLED_SHARES:
+        from .rate_readings import residual_reading
+
+        return residual_reading(followup, parent)
     if followup.test == Test.ADJUSTED_RESIDUAL:
         z = followup.statistic
         if not is_number(z):

@@ -10,7 +10,19 @@ from ..vocabulary import Design, EstimateKind, Test
 from .numbers import fmt_percent, is_number
 
 PAIRED = (Design.PAIRED_CONTINUOUS, Design.PAIRED_CATEGORICAL)
-ONE_SAMPLE = (Design.ONE_SAMPLE_CONTINUOUS, Design.ONE_SAMPLE_CATEGORICAL)
+ONE_SAMPLE = (
+    Design.ONE_SAMPLE_CONTINUOUS,
+    Design.ONE_SAMPLE_CATEGORICAL,
+    Design.ONE_SAMPLE_POOLED_SHARE,
+    Design.ONE_SAMPLE_RATE,
+)
+# Rows of events with their totals (out of people, or per person-time), pooled per group.
+EVENT_DESIGNS = (
+    Design.ONE_SAMPLE_POOLED_SHARE,
+    Design.GROUP_POOLED_SHARES,
+    Design.ONE_SAMPLE_RATE,
+    Design.GROUP_RATES,
+)
 
 
 def group_labels(result: Result) -> list[str]:
@@ -78,10 +90,47 @@ def share_label_and_target(result: Result) -> tuple[str, float | None]:
     return (str(label) if label is not None else "the counted value"), (float(target) if is_number(target) else None)
 
 
+def rate_unit(result: Result) -> str:
+    """The unit of a result's rates: 'per 1,000 person-years', 'per 1,000 Population' or 'per Person-years'."""
+    from .rates_words import per_text
+
+    extra = result.extra if isinstance(result.extra, Mapping) else {}
+    per, noun, total = extra.get("per"), extra.get("per_noun"), extra.get("total_column") or "unit"
+    if noun:
+        return per_text(per, str(noun))
+    if not is_number(per) or float(per) == 1.0:
+        return f"per {total}"
+    return f"{per_text(per)} {total}"
+
+
+def events_subject(result: Result) -> str:
+    """'Positive out of Screened' or 'Cases per 1,000 person-years': what an event design measures."""
+    outcome = result.outcome or "the events"
+    extra = result.extra if isinstance(result.extra, Mapping) else {}
+    if extra.get("events_kind") == "out_of":
+        return f"{outcome} out of {extra.get('total_column') or 'the totals'}"
+    return f"{outcome} {rate_unit(result)}"
+
+
+def _events_question(result: Result) -> str:
+    subject = events_subject(result)
+    extra = result.extra if isinstance(result.extra, Mapping) else {}
+    if result.design == Design.ONE_SAMPLE_POOLED_SHARE:
+        target = f"{float(result.against) * 100:.3g}%" if is_number(result.against) else "its target"
+        return f"Does {subject} differ from the target {target}?"
+    if result.design == Design.ONE_SAMPLE_RATE:
+        target = f"the target {extra['target_text']}" if extra.get("target_text") else "its target"
+        return f"Does the rate of {subject} differ from {target}?"
+    what = "" if result.design == Design.GROUP_POOLED_SHARES else "the rate of "
+    return f"Does {what}{subject} differ by {result.exposure or 'the groups'}?"
+
+
 def question(result: Result) -> str:
     """The analysis as a question in words, e.g. 'Does Wait differ by District?'."""
     outcome, by = result.outcome or "the outcome", result.exposure or "the groups"
     design = result.design
+    if design in EVENT_DESIGNS:
+        return _events_question(result)
     if design == Design.ONE_SAMPLE_CONTINUOUS:
         return f"Does {outcome} differ from {against_text(result.against)}?"
     if design == Design.ONE_SAMPLE_CATEGORICAL:

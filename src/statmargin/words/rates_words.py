@@ -112,6 +112,20 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, Any] = {
         "The rows vary more than binomial sampling allows (dispersion {dispersion:.2f}), so the "
         "quasi-binomial version of the test was used."
     ),
+    Reason.POOLED_SHARE_TARGET: (
+        "{events} counts events out of {total}, so the rows were added up and the share compared with "
+        "its target by the exact binomial test."
+    ),
+    Reason.POOLED_SHARES_TABLE: lambda f: (
+        f"{f['events']} counts events out of {f['total']}, so the rows of each group of {f['by']} were added "
+        "up into one table of events and non-events"
+        + ("." if f.get("exact") else ", compared by a chi-square test of independence.")
+    ),
+    Reason.POOLED_RATES: lambda f: (
+        f"{f['events']} counts events per {f['per']}, so the rows"
+        + (f" of each group of {f['by']}" if f.get("by") else "")
+        + " were added up into events over person-time (or population)."
+    ),
     Reason.SUGGEST_EVENTS_OUT_OF: (
         "{events} looks like a count of events out of {total}: both hold whole numbers and "
         "{events} is at most {total} in all {rows} rows."
@@ -190,4 +204,57 @@ def share_test_refused(test: Any) -> str:
     return (
         f"The test {test!r} cannot compare shares of events out of totals; use Fisher's exact test "
         "or the chi-square test."
+    )
+
+
+# ---------------------------------------------------------------- refusals of roles
+
+
+def events_need_total(name: str) -> str:
+    """An events column without a total."""
+    return (
+        f"Events column {name!r} needs its total: the column it is 'Out of' (people screened, "
+        "inspections), the column it is 'Per' (person-time, population), or both."
+    )
+
+
+def total_is_events(name: str) -> str:
+    """An events column named as its own total."""
+    return f"Events column {name!r} cannot be out of or per itself; name the column of its totals."
+
+
+def events_alone(name: str) -> str:
+    """An events column with neither a target nor a compare-by column."""
+    return (
+        f"Events column {name!r} has nothing to be compared with; give a target in 'Compare with' "
+        "(4%, 0.04 or 2 per 1000) or mark a compare-by column."
+    )
+
+
+def several_counts(names: str) -> str:
+    """More than one count column."""
+    return f"Only one count column is allowed, but {names} are marked; keep one."
+
+
+def count_with_events(count: str, events: str) -> str:
+    """A count weight together with rows of events."""
+    return (
+        f"Count column {count!r} cannot be used with events column {events!r}: rows of events already "
+        "carry their totals; remove one of the two roles."
+    )
+
+
+def count_with_pairing_key(count: str, key: str) -> str:
+    """A count weight on pairs matched across rows."""
+    return (
+        f"Count column {count!r} cannot weight pairs matched across rows by {key!r}; put both "
+        "measurements of a pair in one row ('Paired with') or remove the count role."
+    )
+
+
+def groups_need_categories(events: str, by: str) -> str:
+    """Events compared by a column of numbers."""
+    return (
+        f"{events} is compared across the groups of a category column, but {by!r} holds numbers; "
+        f"set the type of {by!r} to categorical or use another compare-by column."
     )

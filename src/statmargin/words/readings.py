@@ -27,6 +27,7 @@ from . import context as ctx
 from .magnitude import NEGLIGIBLE, Magnitude, magnitude
 from .numbers import ci_label, evidence_words, fmt_number, fmt_p, is_number
 from .questions import (
+    EVENT_DESIGNS,
     ONE_SAMPLE,
     PAIRED,
     group_labels,
@@ -344,7 +345,9 @@ def _shares_line(result: Result) -> tuple[str, str | None]:
     return f"Share with {outcome} = {level}{most}: {listed}.", level
 
 
-def _share_difference_answer(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
+def _share_difference_answer(result: Result, settings: Settings, n_family: int | None,
+                             subject: str | None = None) -> tuple[str, str, str]:
+    """The difference in a share in percentage points; ``subject`` names the share (default: from the outcome)."""
     est = result.estimate
     ev = _evidence(result, settings, n_family)
     if est is None or not is_number(est.value):
@@ -362,7 +365,7 @@ def _share_difference_answer(result: Result, settings: Settings, n_family: int |
     size = f"{points} ({interval})" if interval else points
     level = est.level
     outcome = result.outcome or "the outcome"
-    subject = (
+    subject = subject or (
         f"The share with the value {level}" if level is not None and wide_pair(result)
         else f"The share with {outcome} = {level}" if level is not None
         else "The share"
@@ -499,9 +502,14 @@ def _table_min_dim(result: Result) -> int | None:
 
 
 def effect_magnitude(result: Result) -> Magnitude | None:
-    """The size word for the result's effect (None when no convention applies)."""
+    """The size word for the result's effect (None when no convention applies).
+
+    Rows of events get none: Cohen's h and Cramer's V call any gap between shares
+    of rare events negligible, and rate ratios have no convention; their readings
+    give the difference in points or how many times one rate is the other.
+    """
     eff = result.effect
-    if eff is None:
+    if eff is None or result.design in EVENT_DESIGNS:
         return None
     return magnitude(eff.kind, eff.value, table_min_dim=_table_min_dim(result))
 

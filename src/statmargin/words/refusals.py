@@ -80,8 +80,8 @@ def total_for_non_events(option: str, name: str) -> str:
 
 def events_need_one_total(name: str) -> str:
     return (
-        f"Events column {name!r} needs either --out-of COL (a total of people or inspections) or --per "
-        "COL (person-time or population), not both."
+        f"Events column {name!r} needs its total: --out-of COL (people or inspections), --per COL "
+        "(person-time or population), or both."
     )
 
 

@@ -62,3 +62,36 @@ def bad_header_row(cell: str, sheet: str) -> str:
 def look_alike_text(labels: dict[str, int]) -> str:
     """'Old Mill (180), Old  Mill (1)': look-alike labels as typed, with their counts."""
     return ", ".join(f"{label} ({count})" for label, count in labels.items())
+
+
+def suggested_status(parts: Sequence[str]) -> str:
+    """The roles sheet's status of a column the plan step recognised: 'suggested: events out of Screened'."""
+    return "suggested: " + "; ".join(parts)
+
+
+def suggested_out_of(total: str) -> str:
+    return f"events out of {total}"
+
+
+def suggested_per(total: str) -> str:
+    return f"events per {total}"
+
+
+SUGGESTED_COUNT = "count (each row stands for that many records)"
+
+
+def suggestion_line(evidence: str, advice: str) -> str:
+    """One suggestion for the plan summary: the evidence, then how to take it up (never applied here)."""
+    return f"{evidence.rstrip('.')}; to use it, {advice}."
+
+
+def advice_out_of(events: str, total: str) -> str:
+    return f"set the role of {events} to 'events' and its 'Out of' to {total}"
+
+
+def advice_per(events: str, total: str) -> str:
+    return f"set the role of {events} to 'events' and its 'Per' to {total}"
+
+
+def advice_count(count: str) -> str:
+    return f"set the role of {count} to 'count'"

@@ -14,7 +14,7 @@ from typing import Any
 
 from ..plan.model import Settings
 from ..results import Result
-from ..vocabulary import AdjustMethod, Test
+from ..vocabulary import AdjustMethod, Design, Test
 from . import context as ctx
 from .numbers import ci_label, decimals_for, fmt_ci, fmt_df, fmt_number, fmt_p, is_number
 from .readings import effect_magnitude, min_expected
@@ -122,8 +122,10 @@ def technical_lines(
     if result.skipped:
         parts.append(f"{name} was not run: {say(result.skipped).rstrip('.')}.")
     else:
+        # Rates count events (the person-time is in the groups), every other design records.
+        used = "events" if result.design in (Design.ONE_SAMPLE_RATE, Design.GROUP_RATES) else "records"
         parts.append(
-            f"{name} ({result.alternative}), {ctx.count_text(result.n, context)} records used."
+            f"{name} ({result.alternative}), {ctx.count_text(result.n, context)} {used} used."
         )
     if result.reasons:
         parts.append("Chosen because: " + "; ".join(say(r).rstrip(".") for r in result.reasons) + ".")
