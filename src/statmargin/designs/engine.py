@@ -18,7 +18,7 @@ from ..plan.expand import Analysis, expand
 from ..plan.model import Plan, Settings
 from ..read.table import Table
 from ..results import Result
-from ..stats.adjust import adjust_results
+from ..stats.adjust import adjust_by_family
 from ..words import refusals
 from .base import DesignSpec, Prepared, clean_numbers
 from .question import ColumnTypes, build_question
@@ -57,9 +57,12 @@ def run_answers(
     -----
     Look-alike labels of the used columns are merged first (``plan.clean``), and
     the cells each column's type leaves out are added to ``table.notes``.
-    The adjustment family is every non-skipped result of the run
-    (``stats.adjust.adjust_results``). Follow-ups run only when the adjusted p is
-    below ``settings.alpha``; which ones is up to each design module.
+    The adjustment family is set by ``settings.family``
+    (``stats.adjust.adjust_by_family``): every non-skipped result of the run
+    (default), the results of each outcome, or none. A period analysis joins it
+    with its trend test's p-value. Follow-ups run only when the adjusted p is
+    below ``settings.alpha``; which ones is up to each design module (the latest-
+    period comparisons of a period analysis always run, adjusted within it).
     """
     settings = plan.settings
     analyses = expand(plan, table)
@@ -73,7 +76,7 @@ def run_answers(
         answers.append(Answer(result, prepared, spec))
         if progress is not None:
             progress(len(answers), len(analyses))
-    adjust_results([a.result for a in answers], settings.adjust)
+    adjust_by_family([a.result for a in answers], settings.adjust, settings.family)
     for answer in answers:
         _follow_up(answer, settings)
     return answers

@@ -14,12 +14,16 @@ from .one_sample_categorical import OneSampleCategorical
 from .one_sample_continuous import OneSampleContinuous
 from .paired_categorical import PairedCategorical
 from .paired_continuous import PairedContinuous
+from .period_centre import PeriodCentre
+from .period_shares import PeriodShares
 from .question import Question
 from .two_categorical import TwoCategorical
 from .two_continuous import TwoContinuous
 from .two_group_continuous import TwoGroupContinuous
 
 REGISTRY: list[DesignSpec] = [
+    PeriodShares(),  # questions over time come first: a group's series also has a compare-by column
+    PeriodCentre(),
     OneSampleCategorical(),
     OneSampleContinuous(),
     PairedCategorical(),

@@ -4,21 +4,32 @@ Each outcome is analysed:
 
 - against its comparison value, when one is given (``ColumnChoice.against``);
 - with its wide-form partner, when ``paired_with`` names another column;
+- over time, when a column has the role ``period`` (the whole data; and, with
+  the "Series by group" setting, each group of each compare-by column);
 - by each compare-by column; with a pairing key and a two-level compare-by
   column this becomes a paired (long-form) analysis.
+
+A period column is never a compare-by column: a compare-by column whose text
+cells all read as periods (``2026-03``, ``Mar 2026``, ``2026 Q1``) is refused
+with a one-line message pointing at the period role, unless its type was set
+on the roles sheet.
 """
 
 from __future__ import annotations
 
+from collections import Counter
 from dataclasses import dataclass
+
+import numpy as np
 
 from ..errors import RoleError
 from ..options.against import parse_against
-from ..read.table import Table
-from ..vocabulary import Role
+from ..read.table import Column, Table
+from ..vocabulary import MeasureType, Precision, Role
 from ..words import refusals
+from .levels import look_alikes
 from .model import ColumnChoice, Plan
-from .types import infer_type
+from .types import category_labels, infer_type
 
 
 @dataclass
@@ -33,6 +44,8 @@ class Analysis:
     paired_with: str | None = None  # wide-form pairing: the second measurement column
     outcome_choice: ColumnChoice | None = None
     by_choice: ColumnChoice | None = None
+    period: str | None = None  # the period column: the outcome over time (with ``by``: one group's series)
+    group: str | None = None  # the level of ``by`` whose series this is
 
 
 def expand(plan: Plan, table: Table) -> list[Analysis]:
@@ -76,6 +89,9 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
     key = keys[0].name if keys else None
     if key and not bys:
         raise RoleError(refusals.key_needs_by(key))
+    period = _period_column(plan)
+    for by in bys:
+        _refuse_periods_as_groups(table.column(by.name), by)
 
     analyses: list[Analysis] = []
     for out in outcomes:
@@ -91,10 +107,73 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
             analyses.append(
                 Analysis(out.name, paired_with=out.paired_with, outcome_choice=out, by_choice=partner)
             )
+        if period is not None:
+            analyses.append(Analysis(out.name, period=period, outcome_choice=out))
         for by in bys:
             if by.name == out.name:
                 continue
             analyses.append(Analysis(out.name, by=by.name, pairing_key=key, outcome_choice=out, by_choice=by))
+            if period is not None and plan.settings.series_by_group and not key:
+                analyses.extend(
+                    Analysis(out.name, by=by.name, outcome_choice=out, by_choice=by, period=period, group=level)
+                    for level in _group_levels(table.column(by.name), by, plan.settings.merge_look_alikes)
+                )
         if len(analyses) == before:
             raise RoleError(refusals.outcome_alone(out.name))
     return analyses
+
+
+# --------------------------------------------------------------------------- the period role
+
+
+def _period_column(plan: Plan) -> str | None:
+    """The one column marked ``period`` (None without one); refuse two."""
+    from ..words.period_words import several_periods
+
+    marked = [c.name for c in plan.columns if c.role is Role.PERIOD]
+    if len(marked) > 1:
+        raise RoleError(several_periods(marked))
+    return marked[0] if marked else None
+
+
+def _refuse_periods_as_groups(column: Column, choice: ColumnChoice) -> None:
+    """Refuse a compare-by column whose text cells are all periods, unless the user set its type.
+
+    A month column compared as unordered categories gives a chi-square with no
+    trend; the period role gives the series, the trend and the flags instead.
+    Years alone (``2025``, ``2026``) are left as groups: two years are a plain
+    two-group comparison as often as a series.
+    """
+    from ..words.period_words import compare_by_holds_periods
+    from .periods import read_period_text
+
+    if choice.treat_as is not None:
+        return
+    if not bool(np.all(np.isnan(column.numbers))):
+        return  # numbers (or dates) among the cells: not a column of period labels
+    present = column.labels[column.labels != np.array(None)]  # elementwise: the cells holding text
+    import pandas as pd
+
+    distinct = pd.unique(present)
+    if distinct.size < 2:
+        return
+    examples = []
+    for label in distinct:
+        read = read_period_text(str(label))
+        if read is None or read.precision is Precision.YEAR:
+            return
+        if len(examples) < 3:
+            examples.append(str(label))
+    raise RoleError(compare_by_holds_periods(column.name, examples))
+
+
+def _group_levels(column: Column, choice: ColumnChoice, merge: bool) -> list[str]:
+    """The groups of a compare-by column, in its level order, look-alike spellings merged as the run will."""
+    info = infer_type(column, choice)
+    if info.type not in (MeasureType.CATEGORICAL, MeasureType.ORDINAL) or not info.levels:
+        return []
+    kept: dict[str, str] = {}
+    if merge:
+        counts = Counter(label for label in category_labels(column) if label is not None)
+        kept = {label: group.kept for group in look_alikes(counts) for label in group.labels}
+    return list(dict.fromkeys(kept.get(level, level) for level in info.levels))

@@ -79,6 +79,7 @@ SHARE_KINDS = (
     EstimateKind.SHARE_FURTHEST,
     EstimateKind.SHARE_DIFFERENCE,
     EstimateKind.PAIRED_SHARE_DIFFERENCE,
+    EstimateKind.SHARE_CHANGE_PER_PERIOD,
 )
 
 
@@ -140,6 +141,7 @@ def _top_block(model: SheetModel, context: ReportContext, results: Sequence[Resu
         when=_run_time_text(context), version=context.version, confidence=settings.confidence,
         adjust=explain.ADJUST_NAMES.get(str(settings.adjust), str(settings.adjust)), family=family,
         sides=str(settings.alternative), hidden_rows=results_text.hidden_rows_note(context.hidden_rows, settings.rows),
+        across=str(settings.family),
     )
     model.put(1, 0, run_line, "muted")
     _merge_plain(model, 1)
@@ -297,7 +299,11 @@ def results_sheet(
             _number(model, row, COL["Adjusted p"], followup.p_adjusted, "p_value")
             if followup.estimate is not None:
                 fe = followup.estimate
-                style = _fixed(context.decimals[result.outcome] + 1) if result.outcome in context.decimals else "number"
+                style = (
+                    "percent" if fe.kind in SHARE_KINDS
+                    else _fixed(context.decimals[result.outcome] + 1) if result.outcome in context.decimals
+                    else "number"
+                )
                 model.put(row, COL["Estimate"], fe.name, "wrap")
                 for name, value in (("Estimate value", fe.value), ("CI low", fe.ci_low), ("CI high", fe.ci_high)):
                     _number(model, row, COL[name], value, style)

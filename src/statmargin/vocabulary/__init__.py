@@ -8,7 +8,7 @@ and the identifiers written to JSON; display text is made from them in
 from .columns import MeasureType, Role, ShapeHandling
 from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
 from .effects import EffectKind, EstimateKind
-from .periods import ChartKind, ControlRule, Grain, Precision, SinceLastRun
+from .periods import ChartKind, ControlRule, Grain, PeriodComparison, Precision, SinceLastRun
 from .run import AdjustFamily, AdjustMethod, Alternative, RowsToUse, YesNo
 
 __all__ = [
@@ -24,6 +24,7 @@ __all__ = [
     "Grain",
     "MeasureType",
     "PMethod",
+    "PeriodComparison",
     "Precision",
     "Role",
     "RowsToUse",

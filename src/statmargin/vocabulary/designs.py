@@ -24,6 +24,8 @@ class Design(Word):
     PAIRED_CATEGORICAL = "paired_categorical"
     ONE_SAMPLE_RATE = "one_sample_rate"  # events per person-time (or population) against a target rate
     GROUP_RATES = "group_rates"  # events per person-time compared across two or more groups
+    PERIOD_SHARES = "period_shares"  # a two-level outcome over periods: share per period, trend, flags
+    PERIOD_CENTRE = "period_centre"  # a continuous outcome over periods: mean or median per period, trend, flags
 
 
 class Test(Word):

@@ -57,3 +57,10 @@ class SinceLastRun(Word):
     DIRECTION_REVERSED = "direction_reversed"
     MOVED_OUTSIDE_INTERVAL = "moved_outside_interval"
     NO_LONGER_RUN = "no_longer_run"
+
+
+class PeriodComparison(Word):
+    """A comparison of the latest period that a period analysis reports beside its trend."""
+
+    PREVIOUS = "latest_vs_previous"  # the latest period against the nearest earlier one with rows
+    YEAR_EARLIER = "latest_vs_year_earlier"  # against the same period a year earlier

@@ -306,3 +306,22 @@ def since_last_run_lines(
     for flag, questions in changes:
         lines.append(f"{capitalized(SINCE_LAST_RUN_WORDS[flag])}: {'; '.join(questions)}.")
     return lines
+
+
+# --------------------------------------------------------------------------- the period role in a plan
+
+
+def several_periods(names: Sequence[str]) -> str:
+    """One line: more than one column is marked as the period."""
+    listed = ", ".join(repr(n) for n in names)
+    return f"Only one period column is allowed, but {listed} are marked 'period'; keep one."
+
+
+def compare_by_holds_periods(column: str, examples: Sequence[str]) -> str:
+    """One line: a compare-by column holds periods, which the period role reads in order."""
+    shown = ", ".join(examples)
+    return (
+        f"{column} holds periods ({shown}), which a compare-by column would treat as unordered groups; "
+        "give it the role 'period' for a series with its trend, or set its type to categorical to "
+        "compare the periods as groups."
+    )
