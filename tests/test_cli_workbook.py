@@ -401,7 +401,7 @@ class TestDemoCommand:
             assert result.exit_code == 0, result.stderr
             for name in DEMO_WORKBOOKS:
                 kinds = sorted(FileSource(folder / name).tool_sheets().values())
-                assert kinds == ["log", "notes", "results", "roles", "shape"], name
+                assert kinds == ["history", "log", "notes", "results", "roles", "shape"], name
                 log = table_records(sheet_rows(folder / name, tool_sheet_name(folder / name, "log")), "Time (UTC)")
                 assert len(log) == attempt
                 assert results_records(folder / name), name

@@ -35,8 +35,8 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import astuple, dataclass, fields
 from typing import Any
 
-from ..results import Result
-from ..vocabulary import EstimateKind, SinceLastRun
+from ..results import Followup, Result
+from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, SinceLastRun
 
 KIND = "history"  # tool-sheet kind of the hidden history sheet
 SHEET_NAME = "statmargin history"
@@ -62,15 +62,7 @@ _SIGNED = frozenset(
 # Estimates compared with the question's fixed value: direction = sign(value - against).
 _AGAINST = frozenset({EstimateKind.PSEUDO_MEDIAN, EstimateKind.SHARE})
 
-PRECEDENCE: tuple[SinceLastRun, ...] = (
-    SinceLastRun.NO_LONGER_RUN,
-    SinceLastRun.NEW,
-    SinceLastRun.DIRECTION_REVERSED,
-    SinceLastRun.NOW_BELOW_LEVEL,
-    SinceLastRun.NO_LONGER_BELOW_LEVEL,
-    SinceLastRun.MOVED_OUTSIDE_INTERVAL,
-    SinceLastRun.UNCHANGED,
-)
+PRECEDENCE: tuple[SinceLastRun, ...] = SINCE_LAST_RUN_ORDER
 
 
 @dataclass(frozen=True)
@@ -117,8 +109,9 @@ def analysis_key(result: Result, part: str | None = None) -> str:
     'Wait | by Site | two_group_continuous'
     """
     pieces = [result.outcome]
+    group = result.extra.get("group") if isinstance(result.extra, Mapping) else None
     if result.exposure:
-        pieces.append(f"by {result.exposure}")
+        pieces.append(f"by {result.exposure}" + (f" = {group}" if group is not None else ""))
     if result.pairing:
         pieces.append(f"with {result.pairing}")
     if result.against is not None:
@@ -180,6 +173,7 @@ def key_results(results: Iterable[Result], run: str, alpha: float) -> list[KeyRe
                 alpha=alpha,
             )
         )
+        out.extend(_comparison_records(result, run, alpha))
         trend = result.trend
         if trend is not None:
             slope = trend.estimate
@@ -199,6 +193,48 @@ def key_results(results: Iterable[Result], run: str, alpha: float) -> list[KeyRe
                     alpha=alpha,
                 )
             )
+    return out
+
+
+def comparison_parts(result: Result) -> list[tuple[str, Followup]]:
+    """A period result's latest-period comparisons as (part name, follow-up), e.g. ('latest_vs_previous', ...)."""
+    kinds = result.extra.get("comparisons") if isinstance(result.extra, Mapping) else None
+    if not isinstance(kinds, (list, tuple)):
+        return []
+    return [(str(kind), followup) for kind, followup in zip(kinds, result.followups, strict=False)]
+
+
+def _comparison_records(result: Result, run: str, alpha: float) -> list[KeyResult]:
+    """One record per latest-period comparison, so a change that reverses is seen next run."""
+    out = []
+    for part, followup in comparison_parts(result):
+        estimate = followup.estimate
+        value = _finite(estimate.value) if estimate is not None else None
+        signed = estimate is not None and estimate.kind in _SIGNED
+        out.append(
+            KeyResult(
+                run=run,
+                analysis=analysis_key(result, part),
+                test=str(followup.test),
+                p_value=_finite(followup.p_value),
+                p_adjusted=_finite(followup.p_adjusted),
+                estimate_kind=str(estimate.kind) if estimate is not None else None,
+                estimate=value,
+                ci_low=_finite(estimate.ci_low) if estimate is not None else None,
+                ci_high=_finite(estimate.ci_high) if estimate is not None else None,
+                direction=_sign(value) if signed and value is not None else None,
+                alpha=alpha,
+            )
+        )
+    return out
+
+
+def parts(result: Result) -> list[str | None]:
+    """The parts of a result the history keeps: the result itself (None), its comparisons and its trend."""
+    out: list[str | None] = [None]
+    out.extend(part for part, _ in comparison_parts(result))
+    if result.trend is not None:
+        out.append(TREND_PART)
     return out
 
 
@@ -285,11 +321,8 @@ def most_important(flags: Iterable[SinceLastRun]) -> SinceLastRun | None:
 def apply_since_last_run(results: Sequence[Result], flags: Mapping[str, SinceLastRun]) -> None:
     """Set ``since_last_run`` on each result: the more important of its own flag and its trend's."""
     for result in results:
-        found = [
-            flags[key]
-            for key in (analysis_key(result), analysis_key(result, TREND_PART))
-            if key in flags
-        ]
+        keys = {analysis_key(result, part) for part in [*parts(result), TREND_PART]}
+        found = [flags[key] for key in keys if key in flags]
         result.since_last_run = most_important(found)
 
 
@@ -380,3 +413,88 @@ def last_run(records: Sequence[KeyResult]) -> dict[str, KeyResult]:
         return {}
     newest = records[-1].run
     return {r.analysis: r for r in records if r.run == newest}
+
+
+# --------------------------------------------------------------------------- one run's bookkeeping
+
+
+@dataclass(frozen=True)
+class RunChanges:
+    """What the sheets need to say what changed: when the last run was, and each analysis's flag.
+
+    ``previous_run`` is the last run's time stamp (None on a first run, when
+    ``flags`` is empty); ``flags`` maps analysis keys (parts included) to flags,
+    analyses of the last run that are gone included.
+    """
+
+    previous_run: str | None
+    flags: Mapping[str, SinceLastRun]
+
+
+def track(results: Sequence[Result], earlier: Sequence[KeyResult], run: str, alpha: float,
+          keep: int = KEEP_RUNS) -> tuple[RunChanges, list[list[Any]]]:
+    """Compare a run with the last one in the history, set each result's flag, and give the new history rows.
+
+    Parameters
+    ----------
+    results : sequence of Result
+        This run's results (flags are set on them in place).
+    earlier : sequence of KeyResult
+        The history as read back before the run (``parse_history_rows``).
+    run : str
+        This run's time stamp (ISO 8601, UTC).
+    alpha : float
+        This run's significance level.
+    keep : int
+        Runs the history keeps, this one included.
+
+    Returns
+    -------
+    (RunChanges, list of rows)
+        The changes for the sheets, and the history sheet's rows (``history_rows``).
+    """
+    previous = last_run(earlier)
+    current = key_results(results, run, alpha)
+    flags = compare_runs(previous, current)
+    apply_since_last_run(results, flags)
+    previous_run = earlier[-1].run if earlier else None
+    return RunChanges(previous_run, flags), history_rows(earlier, current, keep)
+
+
+def history_sheet(rows: Sequence[Sequence[Any]]) -> Any:
+    """The hidden history sheet (kind ``history``): the rows as plain values, header first."""
+    from ..sheets.model import SheetModel
+
+    model = SheetModel(name=SHEET_NAME, kind=KIND, hidden=True)
+    for r, row in enumerate(rows):
+        for c, value in enumerate(row):
+            if value is None:
+                continue
+            style = "text" if isinstance(value, str) else "integer" if isinstance(value, int) else "number"
+            model.put(r, c, value, style)
+    model.widths = {0: 34.0, 1: 48.0}
+    return model
+
+
+def change_lines(results: Sequence[Result], changes: RunChanges) -> list[str]:
+    """The lines at the top of the results sheet: what changed, most important first (in the run's order).
+
+    One line "Nothing changed since the last run on ..." when nothing did; one
+    line saying it is the first run when there is no history.
+    """
+    from ..words.period_readings import change_label, run_time_text
+    from ..words.period_words import since_last_run_lines
+
+    labels: dict[str, str] = {}
+    for result in results:
+        for part in [*parts(result), TREND_PART]:
+            key = analysis_key(result, part)
+            labels.setdefault(key, change_label(result, part, key))
+    order = {key: i for i, key in enumerate(labels)}
+    grouped = []
+    for flag, keys in headline(changes.flags):
+        ranked = sorted(keys, key=lambda k: (order.get(k, len(order)), k))
+        texts = [labels.get(k) or change_label(None, None, k) for k in ranked]
+        grouped.append((flag, list(dict.fromkeys(texts))))
+    when = run_time_text(changes.previous_run) if changes.previous_run else None
+    return since_last_run_lines(grouped, when)

@@ -315,6 +315,7 @@ def run_workbook(
 
     say = progress or (lambda message, done=None, total=None: None)
     started = time.perf_counter()
+    now = datetime.now(timezone.utc)
     with stages.stage("open"):
         source, sink, opened = _backends(path, source, sink)
         sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
@@ -359,17 +360,20 @@ def run_workbook(
         samples=[answer.prepared.samples for answer in answers],
         settings=plan.settings,
         version=__version__,
-        started=datetime.now(timezone.utc),
+        started=now,
         seconds=time.perf_counter() - started,
         share_min_count=(min_count or DEFAULT_MIN_COUNT) if share else None,
     )
     explain_results(results, plan.settings, context, n_comparisons=family)
     previous_log = _previous_log_rows(source)
+    earlier = _previous_history(source)
     if opened is not None:
         opened.close()  # everything is read; the write does not need the source
+    history_model = _since_last_run(results, earlier, now, context)
     models = report.build_sheets(results, table, context, previous_log=previous_log)
     if share:
         models = suppress(models, context.share_min_count)
+    models.append(history_model)
     stages.add("report", time.perf_counter() - report_start)
     say(console.WRITING)
     with stages.stage("write"):
@@ -402,6 +406,37 @@ def _used_columns(plan: Plan) -> list[str]:
         if c.role is Role.OUTCOME and c.paired_with and c.paired_with not in names:
             names.append(c.paired_with)
     return list(dict.fromkeys(names))
+
+
+def _previous_history(source: WorkbookSource) -> list[Any]:
+    """The key results of earlier runs, from the hidden history sheet (none on a first run)."""
+    from . import history
+
+    for name, kind in source.tool_sheets().items():
+        if kind == history.KIND:
+            return history.parse_history_rows(source.iter_rows(name))
+    return []
+
+
+def _since_last_run(results: list[Any], earlier: list[Any], now: datetime, context: Any) -> Any:
+    """Flag each result against the last run, put the changes at the top of the sheet; the new history sheet.
+
+    In sharing mode the history keeps the numbers as the sheets show them (small
+    counts and what reveals them left out), and the flags are worked out from those.
+    """
+    from . import history
+
+    kept = results
+    if context.share_mode:
+        from ..sheets.share import suppress
+
+        kept = suppress(list(results), context.share_min_count)
+    stamp = now.strftime("%Y-%m-%dT%H:%M:%SZ")  # as the run log writes it
+    changes, rows = history.track(kept, earlier, stamp, context.settings.alpha)
+    for result, shown in zip(results, kept, strict=True):
+        result.since_last_run = shown.since_last_run
+    context.changes = history.change_lines(kept, changes)
+    return history.history_sheet(rows)
 
 
 def _previous_log_rows(source: WorkbookSource) -> list[list[Any]]:

@@ -21,6 +21,7 @@ from .context import SHEET_NAMES, ReportContext, analysis_key, quote_sheet
 from .log import LOG_COLUMNS, log_sheet, parse_log_rows, run_info
 from .model import SheetModel
 from .notes import NOTE_COLUMNS, notes_sheet
+from .periods import sheet_if_any
 from .results import COL, RESULT_COLUMNS, RESULT_PAGE_BREAKS, RESULT_PRINT_SCALE, results_sheet
 from .shapes import bin_edges, shape_sheet
 from .share import suppress
@@ -73,7 +74,8 @@ def build_sheets(
     Returns
     -------
     list of SheetModel
-        Results, shape checks, data notes and run log, in that order.
+        Results, the periods sheet (when any result is over time), shape checks,
+        data notes and run log, in that order.
 
     Notes
     -----
@@ -96,6 +98,7 @@ def build_sheets(
     shape = shape_sheet(results, context)
     models = [
         results_sheet(results, context, shape.anchors),
+        *sheet_if_any(results, context),
         shape,
         notes_sheet(notes, extra, context),
         log_sheet(previous_log, run_info(context, results)),

@@ -24,7 +24,8 @@ from typing import Any
 
 from ..read.table import column_letter
 from ..results import Result
-from ..vocabulary import EstimateKind
+from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, SinceLastRun
+from ..words.period_words import SINCE_LAST_RUN_WORDS
 from ..words import explain, results_text
 from ..words.sentences import say, say_all
 from .context import (
@@ -42,9 +43,10 @@ from .shapes import shape_sheet
 # Printed landscape at RESULT_PRINT_SCALE; each printed page's columns (split by
 # RESULT_PAGE_BREAKS) fit a Letter or A4 page inside the default margins.
 RESULT_COLUMNS: tuple[tuple[str, float], ...] = (
-    ("Question", 28),
-    ("Reading", 58),
-    ("Cautions", 40),
+    ("Question", 26),
+    ("Reading", 54),
+    ("Cautions", 32),
+    ("Since last run", 14),
     ("Outcome", 16),
     ("Compared by / against", 20),
     ("n used", 9),
@@ -70,10 +72,13 @@ RESULT_COLUMNS: tuple[tuple[str, float], ...] = (
 COL = {name: i for i, (name, _) in enumerate(RESULT_COLUMNS)}
 RESULT_PAGE_BREAKS = (COL["Outcome"], COL["Statistic"], COL["Estimate"])
 RESULT_PRINT_SCALE = 75
+# Changes since the last run shown in the caution colour.
+ALERTS = frozenset({SinceLastRun.DIRECTION_REVERSED, SinceLastRun.NOW_BELOW_LEVEL,
+                    SinceLastRun.NO_LONGER_BELOW_LEVEL, SinceLastRun.MOVED_OUTSIDE_INTERVAL})
 # Freeze the table's header row only when the rows above it leave most of a laptop screen free
 # (about 35 rows show at 100%; common practice, our own measure).
 FREEZE_MAX_ROW = 20
-PLAIN_SPAN = f"A{{row}}:{column_letter(COL['Cautions'])}{{row}}"
+PLAIN_SPAN = f"A{{row}}:{column_letter(COL['Since last run'])}{{row}}"
 SHARE_KINDS = (
     EstimateKind.SHARE,
     EstimateKind.SHARE_FURTHEST,
@@ -149,6 +154,10 @@ def _top_block(model: SheetModel, context: ReportContext, results: Sequence[Resu
     model.put(2, 0, results_text.status_line(len(results) - not_run, not_run), "subtitle")
     _merge_plain(model, 2)
     row = 3
+    for n, line in enumerate(context.changes):  # what changed since the last run, most important first
+        model.put(row, 0, line, "subtitle" if n == 0 else "wrap")
+        _merge_plain(model, row)
+        row += 1
     model.anchors["share_note"] = f"A{row + 1}"
     if context.share_mode:
         model.put(row, 0, explain.SHARE_NOTE.format(floor=context.share_min_count), "caution")
@@ -166,7 +175,7 @@ def _answer_block(model: SheetModel, row: int, results: Sequence[Result], contex
     row += 1
     model.put_row(row, list(results_text.ANSWER_HEADERS), "header")
     row += 1
-    for result in results:
+    for result in changed_first(results):
         line = explain.headline(result, settings=context.settings, context=context, n_comparisons=family)
         model.put(row, 0, line.question, "wrap")
         if line.not_run:
@@ -176,6 +185,12 @@ def _answer_block(model: SheetModel, row: int, results: Sequence[Result], contex
             model.put(row, 2, results_text.size_and_evidence(line.size, line.evidence), "wrap")
         row += 1
     return row + 1
+
+
+def changed_first(results: Sequence[Result]) -> list[Result]:
+    """The results with those that changed since the last run first (most important change first)."""
+    order = {flag: i for i, flag in enumerate(SINCE_LAST_RUN_ORDER) if flag is not SinceLastRun.UNCHANGED}
+    return sorted(results, key=lambda r: order.get(r.since_last_run, len(order)) if r.since_last_run else len(order))
 
 
 def _cautions_block(model: SheetModel, row: int, run_wide: Sequence[str]) -> int:
@@ -286,6 +301,9 @@ def results_sheet(
             model.put(row, COL["Cautions"], "\n".join(own), "wrap")
         else:
             model.put(row, COL["Cautions"], results_text.NO_ROW_CAUTIONS, "muted")
+        if result.since_last_run is not None:
+            model.put(row, COL["Since last run"], SINCE_LAST_RUN_WORDS[result.since_last_run],
+                      "caution" if result.since_last_run in ALERTS else "wrap")
         _technical(model, row, result, context)
         anchor = shape_anchors.get(f"analysis_{index}")
         if anchor:

@@ -29,6 +29,7 @@ from .cautions import register_lines
 from .followups import register_followup_reading
 from .numbers import ci_label, decimals_for, evidence_words, fmt_number, fmt_p, is_number
 from .period_words import RULE_NAMES
+from .questions import against_text
 from .readings import Parts, _evidence, _family_tail, _verdict, p_used, register_parts
 from .sentences import Facts, capitalized, shape_phrase
 
@@ -94,17 +95,18 @@ def _what(result: Result) -> str:
     return f"{str(extra.get('centre', 'mean')).capitalize()} {outcome}"
 
 
-def _comparison(followup: Followup, result: Result, context: Any) -> str:
-    """'down 16.6 points, 95% CI 7.1 to 26.1; strong evidence of a change, adjusted p = 0.001'."""
+def _comparison(followup: Followup, result: Result, context: Any) -> tuple[str, str]:
+    """('down', '16.6 points, 95% CI 7.1 to 26.1; strong evidence of a change, p = 0.001') for one comparison."""
     est = followup.estimate
     p = followup.p_adjusted if is_number(followup.p_adjusted) else followup.p_value
-    p_text = fmt_p(p).replace("p ", "adjusted p " if is_number(followup.p_adjusted) else "p ", 1)
+    adjusted = is_number(followup.p_adjusted) and len(result.followups) > 1  # two comparisons, adjusted together
+    p_text = fmt_p(p).replace("p ", "adjusted p " if adjusted else "p ", 1)
     clear = is_number(p) and followup.flagged
     verdict = f"{evidence_words(p)} of a change" if clear else "not a clear change"
     if est is None or not is_number(est.value):
-        return f"{verdict}, {p_text}"
+        return "", f"{verdict}, {p_text}"
     value, low, high = float(est.value), est.ci_low, est.ci_high
-    word = "up" if value > 0 else "down" if value < 0 else "unchanged"
+    word = "up" if value > 0 else "down" if value < 0 else ""
     if value < 0:
         value, low, high = -value, (-high if is_number(high) else None), (-low if is_number(low) else None)
     label = ci_label(result.confidence)
@@ -120,13 +122,17 @@ def _comparison(followup: Followup, result: Result, context: Any) -> str:
             f", {label} {fmt_number(low, decimals)} to {fmt_number(high, decimals)}"
             if is_number(low) and is_number(high) else ""
         )
-    if word == "unchanged":
-        return f"no change; {verdict}, {p_text}"
-    return f"{word} {size}{interval}; {verdict}, {p_text}"
+    if not word:
+        return "", f"no change; {verdict}, {p_text}"
+    return word, f"{size}{interval}; {verdict}, {p_text}"
 
 
 def latest_line(result: Result, context: Any = None) -> str:
-    """The latest period against the previous one (and a year earlier), with how clear each change is."""
+    """The latest period against the previous one (and a year earlier), with how clear each change is.
+
+    'Share with X = Yes: 64.7% in 2026-07, down from 81.3% in 2026-06 (16.6 points, 95% CI
+    7.1 to 26.1; strong evidence of a change, p = 0.001).'
+    """
     extra = _extra(result)
     latest = extra.get("latest")
     points = _points(result)
@@ -138,15 +144,15 @@ def latest_line(result: Result, context: Any = None) -> str:
         other = followup.levels[1] if len(followup.levels) > 1 else None
         if other is None or other not in points:
             continue
-        where = f"{other}, a year earlier" if kind == PeriodComparison.YEAR_EARLIER.value else other
-        shown.append(
-            f"against {_value(result, points[other].value, context)} in {where} "
-            f"({_comparison(followup, result, context)})"
-        )
+        word, detail = _comparison(followup, result, context)
+        before = _value(result, points[other].value, context)
+        when = f"a year earlier ({other})" if kind == PeriodComparison.YEAR_EARLIER.value else f"in {other}"
+        lead = f"{word} from {before} {when}" if word else f"against {before} {when}"
+        shown.append(f"{lead} ({detail})")
     previous = extra.get("previous")
     if previous is not None and previous in points and PeriodComparison.PREVIOUS.value not in kinds:
         shown.append(f"against {_value(result, points[previous].value, context)} in {previous}")
-    return "; ".join(shown) + "."
+    return ", ".join(shown[:2]) + "".join(f"; {part}" for part in shown[2:]) + "."
 
 
 def unusual_line(result: Result) -> str:
@@ -164,23 +170,32 @@ def unusual_line(result: Result) -> str:
     return f"Unusual: {', '.join(parts)}."
 
 
-def _trend_size(result: Result, context: Any) -> tuple[str, str, float | None]:
-    """('2.1 percentage points a month', '95% CI 0.9 to 3.3', signed slope) with the sign taken into words."""
+def _slope_decimals(result: Result, context: Any, *values: Any) -> int:
+    """Decimals for a change per period: the outcome's precision plus one, and at least three digits."""
+    return min(max(_decimals(result, context, *values), decimals_for(*values)), 4)
+
+
+def _trend_size(result: Result, context: Any, *, signed: bool = False) -> tuple[str, str, float | None]:
+    """('2.1 percentage points a month', '95% CI 0.9 to 3.3', signed slope).
+
+    Unsigned (the default) the sign is left to the words ("fell by"), and the
+    interval is turned round with it; ``signed`` keeps both as computed.
+    """
     trend = result.trend
     est = trend.estimate if trend is not None else None
     if est is None or not is_number(est.value):
         return "", "", None
     value, low, high = float(est.value), est.ci_low, est.ci_high
-    if value < 0:
+    if value < 0 and not signed:
         value, low, high = -value, (-high if is_number(high) else None), (-low if is_number(low) else None)
     label = ci_label(result.confidence)
     grain = _grain(result)
     if _shares(result):
-        size = f"{value * 100:.1f} percentage points a {grain}"
+        size = f"{fmt_number(value * 100, 1)} percentage points a {grain}"
         bounds = (low * 100 if is_number(low) else None, high * 100 if is_number(high) else None)
         decimals = 1
     else:
-        decimals = _decimals(result, context, value, low, high)
+        decimals = _slope_decimals(result, context, value, low, high)
         units = ctx.display_units(context, result.outcome)
         size = f"{fmt_number(value, decimals)}{' ' + units if units else ''} a {grain}"
         bounds = (low, high)
@@ -218,9 +233,9 @@ def trend_answer(result: Result, settings: Settings, context: Any, n_family: int
     )
     verdict = _verdict(ev, "a trend", interval_excludes=excludes)
     answer = f"Over {plural} {subject} {moved}{f' ({interval})' if interval else ''}: {verdict}."
-    sign = "-" if slope is not None and slope < 0 else ""
-    shown = f"{sign}{size}" if size else ""
-    size_text = f"Trend {shown} ({interval})" if shown and interval else (f"Trend {shown}" if shown else "")
+    shown, signed_interval, _ = _trend_size(result, context, signed=True)
+    size_text = f"Trend {shown} ({signed_interval})" if shown and signed_interval else (
+        f"Trend {shown}" if shown else "")
     return answer, size_text, f"{ev.words} ({ev.p_text})"
 
 
@@ -234,13 +249,65 @@ def period_parts(result: Result, settings: Settings, context: Any, n_family: int
 def period_followup_reading(followup: Followup, parent: Result, *, settings: Settings, context: Any = None) -> str:
     """'2026-07 vs 2026-06: down 16.6 points, 95% CI 7.1 to 26.1; strong evidence of a change, adjusted p = 0.001.'"""
     label = " vs ".join(str(x) for x in followup.levels)
-    return f"{label}: {_comparison(followup, parent, context)}."
+    word, detail = _comparison(followup, parent, context)
+    return f"{label}: {word + ' ' if word else ''}{detail}."
 
 
 def trend_evidence(result: Result, settings: Settings, n_family: int | None) -> str:
     """The p-value text a sheet puts beside a trend ('p = 0.006 after allowing for the 3 questions in this run')."""
     p, _ = p_used(result)
     return fmt_p(p) + _family_tail(result, settings, n_family)
+
+
+# --------------------------------------------------------------------------- what changed since the last run
+
+
+def _subject(result: Result) -> str:
+    extra = _extra(result)
+    outcome = result.outcome or "the outcome"
+    subject = (f"{outcome} = {extra.get('level', '')}" if _shares(result)
+               else f"{extra.get('centre', 'mean')} {outcome}")
+    group = extra.get("group")
+    return f"{subject} ({result.exposure} = {group})" if group is not None and result.exposure else subject
+
+
+def change_label(result: Result | None, part: str | None, key: str) -> str:
+    """How the top of the results sheet names an analysis (or one part of it) whose result changed.
+
+    ``part`` is None for the analysis itself, ``trend`` for its trend test, or a
+    latest-period comparison (``PeriodComparison``); ``key`` is the history's
+    identifier, used when the analysis is no longer run.
+    """
+    if result is None:
+        designs = {d.value for d in Design}
+        pieces = [p for p in key.split(" | ") if p not in designs and p != "trend"
+                  and p not in {c.value for c in PeriodComparison}]
+        return " ".join(pieces)
+    if result.design in OVER_TIME:
+        subject = _subject(result)
+        comparisons = dict(zip(_extra(result).get("comparisons") or [], result.followups, strict=False))
+        followup = comparisons.get(part) if part is not None else None
+        if followup is not None and len(followup.levels) == 2:
+            tail = ", a year earlier" if part == PeriodComparison.YEAR_EARLIER.value else ""
+            return f"{subject}, {followup.levels[0]} against {followup.levels[1]}{tail}"
+        return f"{subject}, trend across {_grain(result)}s"
+    outcome = result.outcome or "the outcome"
+    if result.exposure:
+        return f"{outcome} by {result.exposure}"
+    if result.pairing:
+        return f"{outcome} with {result.pairing}"
+    return f"{outcome} against {against_text(result.against)}"
+
+
+def run_time_text(stamp: str) -> str:
+    """A history time stamp as the sheets show it: '2026-07-02 08:00 UTC'."""
+    import datetime as dt
+
+    try:
+        moment = dt.datetime.fromisoformat(stamp)
+    except ValueError:
+        return stamp
+    return moment.strftime("%Y-%m-%d %H:%M") + (" UTC" if moment.utcoffset() is not None else "")
 
 
 # --------------------------------------------------------------------------- code templates

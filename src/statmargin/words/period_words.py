@@ -301,8 +301,8 @@ def since_last_run_lines(
     if previous_run is None:
         return ["First run: the next refresh will say what changed since this one."]
     if not changes:
-        return [f"Nothing changed since the last run ({previous_run})."]
-    lines = [f"Since the last run ({previous_run}):"]
+        return [f"Nothing changed since the last run on {previous_run}."]
+    lines = [f"What changed since the last run on {previous_run}:"]
     for flag, questions in changes:
         lines.append(f"{capitalized(SINCE_LAST_RUN_WORDS[flag])}: {'; '.join(questions)}.")
     return lines

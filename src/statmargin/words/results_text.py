@@ -26,12 +26,14 @@ def run_line(*, workbook: str, sheet: str, rows_read: int, when: str, version: s
     """
     if family <= 1:
         adjusted = "one question"
-    elif adjust == "no adjustment" or across == "none":
-        adjusted = "p-values not adjusted (adjust across: none)" if across == "none" else "p-values not adjusted"
+    elif across == "none":
+        adjusted = "p-values not adjusted (adjust across: none)"
+    elif adjust == "no adjustment":
+        adjusted = "p-values not adjusted"
     elif across == "each outcome":
-        adjusted = f"p-values adjusted within each outcome's questions ({adjust}; adjust across: each outcome)"
+        adjusted = f"p-values adjusted within each outcome's questions ({adjust})"
     else:
-        adjusted = f"p-values adjusted across the {family} questions of this run ({adjust}; adjust across: this run)"
+        adjusted = f"p-values adjusted across the {family} questions of this run ({adjust})"
     return (
         f"{workbook}, sheet {sheet}: {rows_read:,} rows read{hidden_rows}. Run {when} with statmargin "
         f"{version}; {fmt_percent(confidence, 0)} intervals, {sides}, {adjusted}."

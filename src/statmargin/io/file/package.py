@@ -461,7 +461,8 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
     edited: dict[str, bytes] = {}
     titles = [print_titles(m, name) for m, (name, _, _) in zip(models, new_sheets, strict=True)]
     edited[workbook_part] = _edit_workbook(
-        workbook_text, sheets, removed_idx, new_sheets, [m.kind for m in models], set(unmark_idx), titles
+        workbook_text, sheets, removed_idx, new_sheets, [m.kind for m in models], set(unmark_idx), titles,
+        hidden={k for k, m in enumerate(models) if m.hidden},
     )
     edited[wb_rels_part] = _edit_rels(parts[wb_rels_part].data(), drop_rel_ids, new_wb_rels)
     edited[CONTENT_TYPES_PART] = _edit_content_types(
@@ -510,11 +511,14 @@ def _edit_workbook(
     kinds: list[str],
     unmark: AbstractSet[int] = frozenset(),
     titles: list[str | None] | None = None,
+    hidden: AbstractSet[int] = frozenset(),
 ) -> bytes:
     """Cut removed <sheet> elements and their names, renumber, append new sheets and markers.
 
     ``titles`` holds each new sheet's print-titles reference (or None); it becomes the
     sheet-scoped ``_xlnm.Print_Titles`` name, removed with the sheet on the next run.
+    ``hidden`` holds the positions (in ``new_sheets``) of sheets written hidden
+    (``state="hidden"``, ECMA-376 Part 1, 18.2.19).
     """
     prefix = _main_prefix(text)
     removed = set(removed_idx)
@@ -599,9 +603,11 @@ def _edit_workbook(
     close = re.search(rf"</{prefix}sheets>", text)
     if close is None:
         raise WriteError("The workbook part has no sheet list; the file was left as it was.")
+    state = ' state="hidden"'
     added = "".join(
-        f'<{prefix}sheet name="{sheetxml.escape(name)}" sheetId="{sheet_id}" {r_prefix}:id="{rel_id}"/>'
-        for name, rel_id, sheet_id in new_sheets
+        f'<{prefix}sheet name="{sheetxml.escape(name)}" sheetId="{sheet_id}"'
+        f'{state if k in hidden else ""} {r_prefix}:id="{rel_id}"/>'
+        for k, (name, rel_id, sheet_id) in enumerate(new_sheets)
     )
     text = text[: close.start()] + added + text[close.start() :]
 
