@@ -131,6 +131,7 @@ def analyze(
     period: str | None = None,
     period_length: str | None = None,
     adjust_across: str | None = None,
+    series_by_group: bool = False,
     paired_by: str | None = None,
 ) -> list[Result]:
     """Run the tests that fit the data and return one Result per question.
@@ -179,7 +180,11 @@ def analyze(
         A frequency weight: each row stands for that many records.
     period, period_length : str, optional
         The date or period column, and the length of a period (week, month,
-        quarter, year; month by default).
+        quarter, year; month by default). Each outcome is then also followed
+        over time: a series by period with its trend, unusual periods, and the
+        latest period against the previous one and a year earlier.
+    series_by_group : bool
+        With ``period``: also a series for each group of each ``by`` column.
     adjust_across : {"this run", "each outcome", "none"}, optional
         Which results share one p-value adjustment (default: all of them).
 
@@ -264,7 +269,8 @@ def analyze(
         treat=parse_treat(treat),
         shape=shape,
         settings=make_settings(alternative=alternative, confidence=confidence, adjust=adjust,
-                               family=adjust_across, grain=period_length, per_unit=per_unit),
+                               family=adjust_across, grain=period_length, per_unit=per_unit,
+                               series_by_group=series_by_group),
         event=parse_col_values(event, "--event", outcomes),
         events=event_columns,
         out_of=parse_col_values(out_of, "--out-of", event_columns),

@@ -42,6 +42,7 @@ KIND = "history"  # tool-sheet kind of the hidden history sheet
 SHEET_NAME = "statmargin history"
 KEEP_RUNS = 24  # runs kept in the history sheet (two years of monthly refreshes)
 TREND_PART = "trend"  # key suffix of a result's trend test
+HIDDEN = "hidden"  # the test of a record whose numbers sharing mode hid
 
 # Estimates whose value is a signed difference, slope or correlation: direction = sign(value).
 _SIGNED = frozenset(
@@ -207,6 +208,7 @@ def comparison_parts(result: Result) -> list[tuple[str, Followup]]:
 def _comparison_records(result: Result, run: str, alpha: float) -> list[KeyResult]:
     """One record per latest-period comparison, so a change that reverses is seen next run."""
     out = []
+    hidden = bool(result.extra.get("suppressed")) if isinstance(result.extra, Mapping) else False
     for part, followup in comparison_parts(result):
         estimate = followup.estimate
         value = _finite(estimate.value) if estimate is not None else None
@@ -215,7 +217,7 @@ def _comparison_records(result: Result, run: str, alpha: float) -> list[KeyResul
             KeyResult(
                 run=run,
                 analysis=analysis_key(result, part),
-                test=str(followup.test),
+                test=HIDDEN if hidden and followup.p_value is None else str(followup.test),
                 p_value=_finite(followup.p_value),
                 p_adjusted=_finite(followup.p_adjusted),
                 estimate_kind=str(estimate.kind) if estimate is not None else None,
@@ -305,7 +307,8 @@ def compare_runs(
     if not previous:
         return {}
     now = {record.analysis: record for record in current}
-    flags = {key: since_last_run(previous.get(key), record) for key, record in now.items()}
+    flags = {key: since_last_run(previous.get(key), record) for key, record in now.items()
+             if record.test != HIDDEN}  # hidden in sharing mode: nothing to compare
     for key, record in previous.items():
         if key not in now:
             flags[key] = since_last_run(record, None)

@@ -367,10 +367,11 @@ def run_workbook(
     explain_results(results, plan.settings, context, n_comparisons=family)
     previous_log = _previous_log_rows(source)
     earlier = _previous_history(source)
+    had_periods = "periods" in source.tool_sheets().values()
     if opened is not None:
         opened.close()  # everything is read; the write does not need the source
     history_model = _since_last_run(results, earlier, now, context)
-    models = report.build_sheets(results, table, context, previous_log=previous_log)
+    models = report.build_sheets(results, table, context, previous_log=previous_log, keep_periods=had_periods)
     if share:
         models = suppress(models, context.share_min_count)
     models.append(history_model)

@@ -222,9 +222,15 @@ def periods_sheet(results: Sequence[Result], context: ReportContext) -> SheetMod
             continue
         model.anchors[f"analysis_{index}"] = f"A{row + 1}"
         row = _block(model, row, result, context, family)
+    if not model.anchors:
+        model.put(row, 0, periods_sheet_words.NOTHING_OVER_TIME, "muted")
     return model
 
 
-def sheet_if_any(results: Sequence[Result], context: ReportContext) -> list[Any]:
-    """The periods sheet in a list when the run has results over time, else an empty list."""
-    return [periods_sheet(results, context)] if has_periods(results) else []
+def sheet_if_any(results: Sequence[Result], context: ReportContext, *, always: bool = False) -> list[Any]:
+    """The periods sheet in a list when the run has results over time (or ``always``), else an empty list.
+
+    ``always`` replaces a periods sheet an earlier run wrote, so it never shows
+    an old series after the period role was taken away.
+    """
+    return [periods_sheet(results, context)] if always or has_periods(results) else []

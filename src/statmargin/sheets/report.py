@@ -55,6 +55,7 @@ def build_sheets(
     *,
     previous_log: Sequence[Sequence[Any] | Mapping[str, Any]] = (),
     extra_notes: Sequence[str] = (),
+    keep_periods: bool = False,
 ) -> list[SheetModel]:
     """All four tool sheets for one run, with results linked to their shape blocks.
 
@@ -70,6 +71,9 @@ def build_sheets(
         Earlier runs' log rows (``parse_log_rows``).
     extra_notes : sequence of str
         Plain sentences for the data-notes sheet (e.g. incomplete pairs).
+    keep_periods : bool
+        Write the periods sheet even without results over time (the workbook
+        has one from an earlier run, which must not keep an old series).
 
     Returns
     -------
@@ -96,9 +100,10 @@ def build_sheets(
         results = suppress(list(results), context.share_min_count)
         explain.apply(results, context.settings, context, n_comparisons=family)
     shape = shape_sheet(results, context)
+    periods = sheet_if_any(results, context, always=keep_periods)
     models = [
-        results_sheet(results, context, shape.anchors),
-        *sheet_if_any(results, context),
+        results_sheet(results, context, shape.anchors, periods[0].anchors if periods else None),
+        *periods,
         shape,
         notes_sheet(notes, extra, context),
         log_sheet(previous_log, run_info(context, results)),

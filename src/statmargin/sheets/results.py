@@ -241,6 +241,7 @@ def results_sheet(
     results: Sequence[Result],
     context: ReportContext,
     shape_anchors: Mapping[str, str] | None = None,
+    periods_anchors: Mapping[str, str] | None = None,
 ) -> SheetModel:
     """The results sheet: run line, answers, run-wide cautions, then one row per analysis.
 
@@ -253,6 +254,9 @@ def results_sheet(
     shape_anchors : mapping, optional
         ``"analysis_<i>"`` -> cell of each analysis block on the shape sheet
         (``shape_sheet(...).anchors``); computed when not given.
+    periods_anchors : mapping, optional
+        The same for the periods sheet: a result over time links to its series
+        and chart there instead.
 
     Returns
     -------
@@ -305,8 +309,11 @@ def results_sheet(
             model.put(row, COL["Since last run"], SINCE_LAST_RUN_WORDS[result.since_last_run],
                       "caution" if result.since_last_run in ALERTS else "wrap")
         _technical(model, row, result, context)
+        series = (periods_anchors or {}).get(f"analysis_{index}")
         anchor = shape_anchors.get(f"analysis_{index}")
-        if anchor:
+        if series:
+            model.put(row, COL["Details"], results_text.SERIES_LINK, "link", link=f"{{periods}}!{series}")
+        elif anchor:
             model.put(row, COL["Details"], "shape checks", "link", link=f"{{shape}}!{anchor}")
         row += 1
         for followup in result.followups:

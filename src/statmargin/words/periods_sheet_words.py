@@ -22,6 +22,7 @@ NO_ROWS = "no rows"
 FEW_ROWS = f"fewer than {MIN_ROWS_PER_PERIOD} rows: read with care"
 NO_LIMITS = "No control limits: too few periods before the latest to set them."
 HIDDEN = "suppressed"
+NOTHING_OVER_TIME = "No outcome was followed over time in this run: mark a date or period column 'period' on the roles sheet."
 
 
 def limits_line(chart: str, periods: int, latest: str) -> str:

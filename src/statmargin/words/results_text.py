@@ -15,6 +15,7 @@ NOT_RUN = "Not run: {reason}"
 NO_ANALYSES = "No analyses were run: no column has the role 'outcome'."
 NO_ROW_CAUTIONS = "None beyond those above."
 FOLLOWUP_PREFIX = "  "
+SERIES_LINK = "series and chart"
 
 
 def run_line(*, workbook: str, sheet: str, rows_read: int, when: str, version: str, confidence: float,
