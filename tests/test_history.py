@@ -167,3 +167,48 @@ def test_infinite_one_sided_bounds_are_stored_blank() -> None:
                     estimate=Estimate(EstimateKind.MEAN_DIFFERENCE, 1.0, 0.1, math.inf))
     (rec,) = key_results([result], "r", 0.05)
     assert rec.ci_low == 0.1 and rec.ci_high is None
+
+
+def period_result(change: float, p: float, *, hidden: bool = False) -> Result:
+    """A result over time with one latest-period comparison (a difference in shares of ``change``)."""
+    from statmargin.results import Followup
+
+    followup = Followup(Test.CHI_SQUARE_INDEPENDENCE, ("2026-07", "2026-06"),
+                        Estimate(EstimateKind.SHARE_DIFFERENCE, None if hidden else change, None, None,
+                                 ("2026-07", "2026-06"), "Yes"),
+                        None if hidden else p, None if hidden else p)
+    result = Result("Seen", None, Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, p_value=0.2, p_adjusted=0.2,
+                    estimate=Estimate(EstimateKind.SHARE_CHANGE_PER_PERIOD, -0.01, -0.03, 0.01, ("month",), "Yes"))
+    result.followups = [followup]
+    result.extra = {"comparisons": ["latest_vs_previous"], **({"suppressed": ["periods"]} if hidden else {})}
+    return result
+
+
+def test_latest_period_comparison_is_kept_and_can_reverse() -> None:
+    """The comparison is its own record (key part 'latest_vs_previous'); a sign flip below the level reverses it."""
+    june = key_results([period_result(+0.065, 0.20)], "r1", 0.05)
+    july = key_results([period_result(-0.166, 0.001)], "r2", 0.05)
+    key = "Seen | period_shares | latest_vs_previous"
+    assert [r.analysis for r in july] == ["Seen | period_shares", key]
+    assert {r.analysis: r.direction for r in july}[key] == -1
+    flags = compare_runs(last_run(june), july)
+    assert flags[key] is SinceLastRun.DIRECTION_REVERSED and flags["Seen | period_shares"] is SinceLastRun.UNCHANGED
+    result = period_result(-0.166, 0.001)
+    apply_since_last_run([result], flags)
+    assert result.since_last_run is SinceLastRun.DIRECTION_REVERSED
+
+
+def test_comparison_hidden_in_sharing_mode_is_not_flagged() -> None:
+    """A comparison whose numbers sharing mode hid is recorded as hidden and gets no flag (not 'no longer run')."""
+    before = key_results([period_result(+0.065, 0.20)], "r1", 0.05)
+    now = key_results([period_result(-0.166, 0.001, hidden=True)], "r2", 0.05)
+    assert now[1].test == "hidden"
+    flags = compare_runs(last_run(before), now)
+    assert "Seen | period_shares | latest_vs_previous" not in flags
+
+
+def test_a_groups_series_has_its_own_key() -> None:
+    """Series of two groups of one compare-by column are told apart by the group."""
+    heron = Result("Seen", "Team", Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, extra={"group": "Heron"})
+    otter = Result("Seen", "Team", Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, extra={"group": "Otter"})
+    assert analysis_key(heron) == "Seen | by Team = Heron | period_shares" != analysis_key(otter)

@@ -157,7 +157,7 @@ def _refuse_periods_as_groups(column: Column, choice: ColumnChoice) -> None:
     distinct = pd.unique(present)
     if distinct.size < 2:
         return
-    examples = []
+    examples: list[str] = []
     for label in distinct:
         read = read_period_text(str(label))
         if read is None or read.precision is Precision.YEAR:

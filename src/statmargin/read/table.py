@@ -146,7 +146,7 @@ def column_index(letter: str) -> int:
     return index - 1
 
 
-def _dates_column(series, name: str, letter: str) -> Column:  # type: ignore[no-untyped-def]
+def _dates_column(series: Any, name: str, letter: str) -> Column:
     """A pandas column of datetimes as the reader stores dates: day numbers from 1899-12-30."""
     import pandas as pd
 

@@ -148,6 +148,7 @@ def _chart(result: Result, value_name: str, first: int, last: int, header: int, 
             ChartSeries(titles["lower"], span("lower"), "limit"),
             ChartSeries(titles["upper"], span("upper"), "limit"),
         ]
+    bounds = axis_bounds(result.periods or [], shares=style == "percent")
     return Chart(
         kind="line",
         title=periods_sheet_words.chart_title(result, value_name),
@@ -158,7 +159,8 @@ def _chart(result: Result, value_name: str, first: int, last: int, header: int, 
         height_rows=max(CHART_MIN_ROWS, last - header + 1),
         y_title=periods_sheet_words.axis_title(result, context),
         y_format="0%" if style == "percent" else None,
-        **axis_bounds(result.periods or [], shares=style == "percent"),
+        y_min=bounds.get("y_min"),
+        y_max=bounds.get("y_max"),
     )
 
 

@@ -25,8 +25,8 @@ from typing import Any
 from ..read.table import column_letter
 from ..results import Result
 from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, SinceLastRun
-from ..words.period_words import SINCE_LAST_RUN_WORDS
 from ..words import explain, results_text
+from ..words.period_words import SINCE_LAST_RUN_WORDS
 from ..words.sentences import say, say_all
 from .context import (
     SHEET_NAMES,
@@ -148,7 +148,7 @@ def _top_block(model: SheetModel, context: ReportContext, results: Sequence[Resu
         sides=str(settings.alternative), hidden_rows=results_text.hidden_rows_note(context.hidden_rows, settings.rows),
         across=str(settings.family),
     )
-    model.put(1, 0, run_line, "muted")
+    model.put(1, 0, run_line, "wrap")  # wrapped across the plain columns: it is longer than a page is wide
     _merge_plain(model, 1)
     not_run = sum(1 for r in results if r.skipped)
     model.put(2, 0, results_text.status_line(len(results) - not_run, not_run), "subtitle")
@@ -189,8 +189,10 @@ def _answer_block(model: SheetModel, row: int, results: Sequence[Result], contex
 
 def changed_first(results: Sequence[Result]) -> list[Result]:
     """The results with those that changed since the last run first (most important change first)."""
-    order = {flag: i for i, flag in enumerate(SINCE_LAST_RUN_ORDER) if flag is not SinceLastRun.UNCHANGED}
-    return sorted(results, key=lambda r: order.get(r.since_last_run, len(order)) if r.since_last_run else len(order))
+    order: dict[SinceLastRun | None, int] = {
+        flag: i for i, flag in enumerate(SINCE_LAST_RUN_ORDER) if flag is not SinceLastRun.UNCHANGED
+    }
+    return sorted(results, key=lambda r: order.get(r.since_last_run, len(order)))
 
 
 def _cautions_block(model: SheetModel, row: int, run_wide: Sequence[str]) -> int:

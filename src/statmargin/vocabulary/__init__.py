@@ -8,7 +8,15 @@ and the identifiers written to JSON; display text is made from them in
 from .columns import MeasureType, Role, ShapeHandling
 from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
 from .effects import EffectKind, EstimateKind
-from .periods import SINCE_LAST_RUN_ORDER, ChartKind, ControlRule, Grain, PeriodComparison, Precision, SinceLastRun
+from .periods import (
+    SINCE_LAST_RUN_ORDER,
+    ChartKind,
+    ControlRule,
+    Grain,
+    PeriodComparison,
+    Precision,
+    SinceLastRun,
+)
 from .run import AdjustFamily, AdjustMethod, Alternative, RowsToUse, YesNo
 
 __all__ = [

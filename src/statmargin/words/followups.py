@@ -11,7 +11,6 @@ from ..vocabulary import Design, EstimateKind, Test
 from . import context as ctx
 from .numbers import ci_label, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
 
-
 FollowupReader = Callable[..., str]
 # Designs whose follow-ups are worded in their own module (``register_followup_reading``).
 READINGS_BY_DESIGN: dict[Design, FollowupReader] = {}

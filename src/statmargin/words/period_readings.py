@@ -17,6 +17,7 @@ and evidence beside it. Wording for the designs' codes, their follow-ups
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
 from typing import Any
 
 from ..plan.model import Settings
@@ -95,16 +96,33 @@ def _what(result: Result) -> str:
     return f"{str(extra.get('centre', 'mean')).capitalize()} {outcome}"
 
 
-def _comparison(followup: Followup, result: Result, context: Any) -> tuple[str, str]:
-    """('down', '16.6 points, 95% CI 7.1 to 26.1; strong evidence of a change, p = 0.001') for one comparison."""
+@dataclass(frozen=True)
+class _Change:
+    """One latest-period comparison in words: its direction, size, interval and verdict."""
+
+    word: str  # "up", "down" or "" (no change, or no estimate)
+    size: str  # "16.6 points", "typically 1.0", "mean 0.4 minutes"
+    interval: str  # "95% CI 7.1 to 26.1" (turned round with the direction), or ""
+    verdict: str  # "strong evidence of a change, p = 0.001"
+
+    def detail(self, *, with_word: bool) -> str:
+        """'16.6 points lower, 95% CI 7.1 to 26.1; strong evidence ...' (the word as higher/lower)."""
+        than = {"up": " higher", "down": " lower"}.get(self.word, "") if with_word else ""
+        size = f"{self.size}{than}" if self.size else ""
+        head = ", ".join(part for part in (size, self.interval) if part)
+        return f"{head}; {self.verdict}" if head else self.verdict
+
+
+def _comparison(followup: Followup, result: Result, context: Any) -> _Change:
+    """One latest-period comparison in words (the direction taken from the estimate's sign)."""
     est = followup.estimate
     p = followup.p_adjusted if is_number(followup.p_adjusted) else followup.p_value
     adjusted = is_number(followup.p_adjusted) and len(result.followups) > 1  # two comparisons, adjusted together
     p_text = fmt_p(p).replace("p ", "adjusted p " if adjusted else "p ", 1)
     clear = is_number(p) and followup.flagged
-    verdict = f"{evidence_words(p)} of a change" if clear else "not a clear change"
+    verdict = f"{evidence_words(p)} of a change, {p_text}" if clear else f"not a clear change, {p_text}"
     if est is None or not is_number(est.value):
-        return "", f"{verdict}, {p_text}"
+        return _Change("", "", "", verdict)
     value, low, high = float(est.value), est.ci_low, est.ci_high
     word = "up" if value > 0 else "down" if value < 0 else ""
     if value < 0:
@@ -112,26 +130,24 @@ def _comparison(followup: Followup, result: Result, context: Any) -> tuple[str, 
     label = ci_label(result.confidence)
     if est.kind is EstimateKind.SHARE_DIFFERENCE:
         size = f"{value * 100:.1f} points"
-        interval = (f", {label} {low * 100:.1f} to {high * 100:.1f}" if is_number(low) and is_number(high) else "")
+        interval = f"{label} {low * 100:.1f} to {high * 100:.1f}" if is_number(low) and is_number(high) else ""
     else:
         decimals = _decimals(result, context, value, low, high)
         units = ctx.display_units(context, result.outcome)
-        typical = "typically " if est.kind is EstimateKind.LOCATION_SHIFT else ""
-        size = f"{typical}{fmt_number(value, decimals)}{' ' + units if units else ''}"
-        interval = (
-            f", {label} {fmt_number(low, decimals)} to {fmt_number(high, decimals)}"
-            if is_number(low) and is_number(high) else ""
-        )
-    if not word:
-        return "", f"no change; {verdict}, {p_text}"
-    return word, f"{size}{interval}; {verdict}, {p_text}"
+        kind = "typically " if est.kind is EstimateKind.LOCATION_SHIFT else "mean "
+        size = f"{kind}{fmt_number(value, decimals)}{' ' + units if units else ''}"
+        interval = (f"{label} {fmt_number(low, decimals)} to {fmt_number(high, decimals)}"
+                    if is_number(low) and is_number(high) else "")
+    return _Change(word, size, interval, verdict)
 
 
 def latest_line(result: Result, context: Any = None) -> str:
     """The latest period against the previous one (and a year earlier), with how clear each change is.
 
     'Share with X = Yes: 64.7% in 2026-07, down from 81.3% in 2026-06 (16.6 points, 95% CI
-    7.1 to 26.1; strong evidence of a change, p = 0.001).'
+    7.1 to 26.1; strong evidence of a change, p = 0.001).' A mean or median is set
+    against the earlier one and the comparison's own estimate (a mean difference or
+    a typical shift) says which way it went.
     """
     extra = _extra(result)
     latest = extra.get("latest")
@@ -144,11 +160,13 @@ def latest_line(result: Result, context: Any = None) -> str:
         other = followup.levels[1] if len(followup.levels) > 1 else None
         if other is None or other not in points:
             continue
-        word, detail = _comparison(followup, result, context)
+        change = _comparison(followup, result, context)
         before = _value(result, points[other].value, context)
         when = f"a year earlier ({other})" if kind == PeriodComparison.YEAR_EARLIER.value else f"in {other}"
-        lead = f"{word} from {before} {when}" if word else f"against {before} {when}"
-        shown.append(f"{lead} ({detail})")
+        if _shares(result) and change.word:
+            shown.append(f"{change.word} from {before} {when} ({change.detail(with_word=False)})")
+        else:
+            shown.append(f"against {before} {when} ({change.detail(with_word=True)})")
     previous = extra.get("previous")
     if previous is not None and previous in points and PeriodComparison.PREVIOUS.value not in kinds:
         shown.append(f"against {_value(result, points[previous].value, context)} in {previous}")
@@ -171,8 +189,9 @@ def unusual_line(result: Result) -> str:
 
 
 def _slope_decimals(result: Result, context: Any, *values: Any) -> int:
-    """Decimals for a change per period: the outcome's precision plus one, and at least three digits."""
-    return min(max(_decimals(result, context, *values), decimals_for(*values)), 4)
+    """Decimals for a change per period: the outcome's precision plus two (a month's change is small)."""
+    own = ctx.column_decimals(context, result.outcome)
+    return min(own + 2, 4) if own is not None else decimals_for(*values)
 
 
 def _trend_size(result: Result, context: Any, *, signed: bool = False) -> tuple[str, str, float | None]:
@@ -249,8 +268,7 @@ def period_parts(result: Result, settings: Settings, context: Any, n_family: int
 def period_followup_reading(followup: Followup, parent: Result, *, settings: Settings, context: Any = None) -> str:
     """'2026-07 vs 2026-06: down 16.6 points, 95% CI 7.1 to 26.1; strong evidence of a change, adjusted p = 0.001.'"""
     label = " vs ".join(str(x) for x in followup.levels)
-    word, detail = _comparison(followup, parent, context)
-    return f"{label}: {word + ' ' if word else ''}{detail}."
+    return f"{label}: {_comparison(followup, parent, context).detail(with_word=True)}."
 
 
 def trend_evidence(result: Result, settings: Settings, n_family: int | None) -> str:

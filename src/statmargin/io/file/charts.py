@@ -192,8 +192,8 @@ def _cached_numbers(ref: str, sheet_name: str, model: SheetModel) -> tuple[list[
     for rc in cells:
         cell = model.cells.get(rc)
         value = None if cell is None else cell.value
-        ok = isinstance(value, int | float) and not isinstance(value, bool) and value == value
-        values.append(float(value) if ok else None)
+        number = value if isinstance(value, int | float) and not isinstance(value, bool) else None
+        values.append(float(number) if number is not None and number == number else None)
     points = "".join(f'<c:pt idx="{n}"><c:v>{v!r}</c:v></c:pt>' for n, v in enumerate(values) if v is not None)
     cache = f'<c:numCache><c:formatCode>General</c:formatCode><c:ptCount val="{len(cells)}"/>{points}</c:numCache>'
     return values, cache
