@@ -604,8 +604,12 @@ def _edit_workbook(
     if close is None:
         raise WriteError("The workbook part has no sheet list; the file was left as it was.")
     state = ' state="hidden"'
+    # Some writers (openpyxl) declare the relationships prefix on each <sheet>, not on the root.
+    root = re.search(r"<[^?!][^>]*>", text)
+    declared = root is not None and f"xmlns:{r_prefix}=" in root.group(0)
+    declare = "" if declared else f' xmlns:{r_prefix}="{DOC_REL_NS}"'
     added = "".join(
-        f'<{prefix}sheet name="{sheetxml.escape(name)}" sheetId="{sheet_id}"'
+        f'<{prefix}sheet{declare} name="{sheetxml.escape(name)}" sheetId="{sheet_id}"'
         f'{state if k in hidden else ""} {r_prefix}:id="{rel_id}"/>'
         for k, (name, rel_id, sheet_id) in enumerate(new_sheets)
     )
