@@ -39,7 +39,7 @@ COLUMNS: tuple[tuple[str, float], ...] = (
     ("centre", 11),
     ("lower", 11),
     ("upper", 11),
-    ("flag", 46),
+    ("flag", 58),
 )
 COL = {key: i for i, (key, _) in enumerate(COLUMNS)}
 CHART_COL = len(COLUMNS) + 1  # one empty column between the table and its chart
@@ -211,7 +211,8 @@ def periods_sheet(results: Sequence[Result], context: ReportContext) -> SheetMod
     """
     model = SheetModel(name=SHEET_NAMES[KIND], kind=KIND)
     model.put(0, 0, periods_sheet_words.TITLE, "title")
-    model.put(1, 0, periods_sheet_words.INTRO, "muted")
+    model.put(1, 0, periods_sheet_words.INTRO, "wrap")
+    model.merged.append(f"A2:{column_letter(len(COLUMNS) - 1)}2")  # wrapped over the table, not the chart
     model.widths = {i: width for i, (_, width) in enumerate(COLUMNS)}
     model.widths[len(COLUMNS)] = 2
     model.landscape = True
