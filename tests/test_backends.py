@@ -423,7 +423,7 @@ def _mask_times(value: Any) -> Any:
         return [_mask_times(v) for v in value]
     if isinstance(value, str):
         value = re.sub(r"\d{4}-\d\d-\d\d \d\d:\d\d UTC", "<run time>", value)  # as the sheets show it
-        return re.sub(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\dZ", "<run time>", value)
+        return re.sub(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d(?:\.\d+)?Z", "<run time>", value)
     if isinstance(value, float) and math.isnan(value):
         return "NaN"
     if isinstance(value, (int, float)):

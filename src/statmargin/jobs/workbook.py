@@ -432,7 +432,7 @@ def _since_last_run(results: list[Any], earlier: list[Any], now: datetime, conte
         from ..sheets.share import suppress
 
         kept = suppress(list(results), context.share_min_count)
-    stamp = now.strftime("%Y-%m-%dT%H:%M:%SZ")  # as the run log writes it
+    stamp = now.strftime("%Y-%m-%dT%H:%M:%S.%fZ")  # to the microsecond: two runs in one second stay apart
     changes, rows = history.track(kept, earlier, stamp, context.settings.alpha)
     for result, shown in zip(results, kept, strict=True):
         result.since_last_run = shown.since_last_run
