@@ -422,21 +422,14 @@ def _previous_history(source: WorkbookSource) -> list[Any]:
 def _since_last_run(results: list[Any], earlier: list[Any], now: datetime, context: Any) -> Any:
     """Flag each result against the last run, put the changes at the top of the sheet; the new history sheet.
 
-    In sharing mode the history keeps the numbers as the sheets show them (small
-    counts and what reveals them left out), and the flags are worked out from those.
+    In sharing mode the results arrive suppressed, so the history keeps the
+    numbers as the sheets show them and the flags are worked out from those.
     """
     from . import history
 
-    kept = results
-    if context.share_mode:
-        from ..sheets.share import suppress
-
-        kept = suppress(list(results), context.share_min_count)
     stamp = now.strftime("%Y-%m-%dT%H:%M:%S.%fZ")  # to the microsecond: two runs in one second stay apart
-    changes, rows = history.track(kept, earlier, stamp, context.settings.alpha)
-    for result, shown in zip(results, kept, strict=True):
-        result.since_last_run = shown.since_last_run
-    context.changes = history.change_lines(kept, changes)
+    changes, rows = history.track(results, earlier, stamp, context.settings.alpha)
+    context.changes = history.change_lines(results, changes)
     return history.history_sheet(rows)
 
 

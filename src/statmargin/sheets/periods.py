@@ -22,6 +22,7 @@ from typing import Any
 from ..read.table import column_letter
 from ..results import PeriodPoint, Result
 from ..vocabulary import ChartKind, Design
+from ..vocabulary.codes import Hidden
 from ..words import explain, period_readings, periods_sheet_words
 from ..words.period_words import CHART_NAMES, RULE_NAMES
 from .context import SHEET_NAMES, ReportContext
@@ -59,6 +60,11 @@ def _style(result: Result, context: ReportContext) -> str:
     return "number" if own is None else f"fixed{max(0, min(4, own + 1))}"
 
 
+def _has_rows(point: PeriodPoint) -> bool:
+    """Whether a period has rows (a count hidden by sharing mode is at least one)."""
+    return isinstance(point.n, Hidden) or point.n > 0
+
+
 def _flag(result: Result, point: PeriodPoint) -> str:
     """Why a period stands out: the rules it met, or partial, small, empty."""
     words = []
@@ -68,7 +74,7 @@ def _flag(result: Result, point: PeriodPoint) -> str:
             words.append(f"{side}{RULE_NAMES[flag.rule]}")
     if point.partial:
         words.append(periods_sheet_words.PARTIAL)
-    if point.n == 0:
+    if not _has_rows(point):
         words.append(periods_sheet_words.NO_ROWS)
     elif point.few:
         words.append(periods_sheet_words.FEW_ROWS)
@@ -80,7 +86,7 @@ def _baseline_line(result: Result) -> str:
     kind = result.extra.get("chart") if isinstance(result.extra, dict) else None
     latest = result.extra.get("latest")
     points = result.periods or []
-    before = sum(1 for p in points if p.period < str(latest) and p.n > 0) if latest else 0
+    before = sum(1 for p in points if p.period < str(latest) and _has_rows(p)) if latest else 0
     if kind is None:
         return periods_sheet_words.NO_LIMITS
     return periods_sheet_words.limits_line(CHART_NAMES[ChartKind(kind)], before, str(latest))
@@ -109,14 +115,14 @@ def _block(model: SheetModel, row: int, result: Result, context: ReportContext, 
     for i, point in enumerate(points):
         r = first + i
         model.put(r, COL["period"], point.period)
-        model.put(r, COL["n"], int(point.n), "integer", is_count=True)
+        model.put(r, COL["n"], point.n if isinstance(point.n, Hidden) else int(point.n), "integer", is_count=True)
         dependents = []
         for key, value in (("value", point.value), ("ci_low", point.ci_low), ("ci_high", point.ci_high),
                            ("centre", point.centre), ("lower", point.lower_limit), ("upper", point.upper_limit)):
             if value is not None:
                 model.put(r, COL[key], float(value), style)
                 dependents.append((r, COL[key]))
-            elif key == "value" and point.n > 0:
+            elif key == "value" and _has_rows(point):
                 model.put(r, COL[key], periods_sheet_words.HIDDEN, "suppressed")
         model.count_dependents[(r, COL["n"])] = dependents
         flag = _flag(result, point)

@@ -333,7 +333,8 @@ def _suppress_periods(result: Result, min_count: int) -> bool:
     if not small:
         return False
     result.periods = [
-        replace(p, value=None, ci_low=None, ci_high=None, lower_limit=None, upper_limit=None)
+        replace(p, n=_hidden_count(p.n, min_count), value=None, ci_low=None, ci_high=None, lower_limit=None,
+                upper_limit=None)
         if p.period in small else p
         for p in result.periods or []
     ]
