@@ -101,34 +101,23 @@ def write_workbook(path: str | Path, months: int = 6) -> Path:
 
     Dates are written as real dates; the second sheet says the data are invented.
     """
-    import xlsxwriter
-
-    path = Path(path)
-    workbook = xlsxwriter.Workbook(str(path))
-    workbook.set_properties(
-        {"title": path.stem, "author": "statmargin demo generator", "comments": INVENTED_LINE,
-         "created": dt.datetime(2026, 1, 1)}
+    return _write_visits(
+        path, SHEET, period_demo_rows(months),
+        "An invented outreach service's visit log, one row per visit; append each month's rows below.",
     )
-    sheet = workbook.add_worksheet(SHEET)
-    bold = workbook.add_format({"bold": True})
-    date = workbook.add_format({"num_format": "yyyy-mm-dd"})
-    sheet.write_row(0, 0, COLUMNS, bold)
-    for r, row in enumerate(period_demo_rows(months), start=1):
-        for c, name in enumerate(COLUMNS):
-            value = row[name]
-            if isinstance(value, dt.date):
-                sheet.write_datetime(r, c, dt.datetime(value.year, value.month, value.day), date)
-            else:
-                sheet.write(r, c, value)
-    about = workbook.add_worksheet("About")
-    about.write(0, 0, INVENTED_LINE, bold)
-    about.write(1, 0, "An invented outreach service's visit log, one row per visit; append each month's rows below.")
-    workbook.close()
-    return path
 
 
 def write_rows_workbook(path: str | Path, month: int = 7) -> Path:
     """Write one month's visits alone (header and rows), for pasting under the demo's data at a refresh."""
+    return _write_visits(
+        path, f"{dt.date(YEAR, month, 1):%B} rows", month_rows(month),
+        "Copy the rows below the header on the first sheet and paste them under the last row of "
+        "the Visits sheet of the demo workbook, then run statmargin again.",
+    )
+
+
+def _write_visits(path: str | Path, sheet_name: str, rows: list[dict[str, Any]], about: str) -> Path:
+    """A new workbook: the visits on ``sheet_name`` (dates as real dates) and an About sheet."""
     import xlsxwriter
 
     path = Path(path)
@@ -137,11 +126,11 @@ def write_rows_workbook(path: str | Path, month: int = 7) -> Path:
         {"title": path.stem, "author": "statmargin demo generator", "comments": INVENTED_LINE,
          "created": dt.datetime(2026, 1, 1)}
     )
-    sheet = workbook.add_worksheet(f"{dt.date(YEAR, month, 1):%B} rows")
+    sheet = workbook.add_worksheet(sheet_name)
     bold = workbook.add_format({"bold": True})
     date = workbook.add_format({"num_format": "yyyy-mm-dd"})
     sheet.write_row(0, 0, COLUMNS, bold)
-    for r, row in enumerate(month_rows(month), start=1):
+    for r, row in enumerate(rows, start=1):
         for c, name in enumerate(COLUMNS):
             value = row[name]
             if isinstance(value, dt.date):
@@ -150,7 +139,6 @@ def write_rows_workbook(path: str | Path, month: int = 7) -> Path:
                 sheet.write(r, c, value)
     note = workbook.add_worksheet("About")
     note.write(0, 0, INVENTED_LINE, bold)
-    note.write(1, 0, "Copy the rows below the header on the first sheet and paste them under the last row of "
-                     "the Visits sheet of the demo workbook, then run statmargin again.")
+    note.write(1, 0, about)
     workbook.close()
     return path

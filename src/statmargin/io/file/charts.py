@@ -150,39 +150,14 @@ def chart_xml(chart: Chart, sheet_name: str, model: SheetModel) -> bytes:
         if len(chart.series) > 1 or not histogram
         else ""
     )
-    xml = (
-        '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
-        f'<c:chartSpace xmlns:c="{C_NS}" xmlns:a="{A_NS}" xmlns:r="{R_NS}">'
-        '<c:roundedCorners val="0"/>'
-        "<c:chart>"
-        f"{_title(chart.title, 1200)}"
-        '<c:autoTitleDeleted val="0"/>'
-        "<c:plotArea><c:layout/>"
+    plot = (
         f'<c:barChart><c:barDir val="{bar_dir}"/><c:grouping val="{grouping}"/><c:varyColors val="0"/>'
         f"{''.join(series_xml)}"
         f'<c:gapWidth val="{gap}"/>{overlap}'
         '<c:axId val="50010"/><c:axId val="50020"/></c:barChart>'
-        '<c:catAx><c:axId val="50010"/><c:scaling><c:orientation val="minMax"/></c:scaling>'
-        f'<c:delete val="0"/><c:axPos val="{cat_pos}"/>'
-        f"{_title(chart.x_title, 1000) if chart.x_title else ''}"
-        '<c:numFmt formatCode="General" sourceLinked="1"/><c:majorTickMark val="none"/>'
-        '<c:minorTickMark val="none"/><c:tickLblPos val="nextTo"/>'
-        '<c:crossAx val="50020"/><c:crosses val="autoZero"/><c:auto val="1"/>'
-        '<c:lblAlgn val="ctr"/><c:lblOffset val="100"/><c:noMultiLvlLbl val="0"/></c:catAx>'
-        '<c:valAx><c:axId val="50020"/><c:scaling><c:orientation val="minMax"/></c:scaling>'
-        f'<c:delete val="0"/><c:axPos val="{val_pos}"/>'
-        '<c:majorGridlines><c:spPr><a:ln w="6350"><a:solidFill><a:srgbClr val="E3DFD8"/></a:solidFill></a:ln></c:spPr></c:majorGridlines>'
-        f"{_title(chart.y_title, 1000) if chart.y_title else ''}"
-        f'<c:numFmt formatCode="{val_format}" sourceLinked="0"/><c:majorTickMark val="none"/>'
-        '<c:minorTickMark val="none"/><c:tickLblPos val="nextTo"/>'
-        '<c:crossAx val="50010"/><c:crosses val="autoZero"/><c:crossBetween val="between"/></c:valAx>'
-        "</c:plotArea>"
-        f"{legend}"
-        '<c:plotVisOnly val="1"/><c:dispBlanksAs val="gap"/>'
-        "</c:chart>"
-        "</c:chartSpace>"
+        f"{_axes(chart, cat_pos=cat_pos, val_pos=val_pos, val_format=val_format)}"
     )
-    return xml.encode("utf-8")
+    return _chart_space(chart, plot, legend)
 
 
 def _cached_numbers(ref: str, sheet_name: str, model: SheetModel) -> tuple[list[float | None], str]:
@@ -237,6 +212,38 @@ def _line_chart_xml(chart: Chart, sheet_name: str, model: SheetModel, prefix: st
     # CT_Scaling: orientation, then max, then min (ECMA-376 Part 1, 21.2.2.195).
     bounds = (f'<c:max val="{float(chart.y_max)!r}"/>' if chart.y_max is not None else "") + (
         f'<c:min val="{float(chart.y_min)!r}"/>' if chart.y_min is not None else "")
+    plot = (
+        '<c:lineChart><c:grouping val="standard"/><c:varyColors val="0"/>'
+        f"{''.join(series_xml)}"
+        '<c:marker val="1"/><c:axId val="50010"/><c:axId val="50020"/></c:lineChart>'
+        f"{_axes(chart, cat_pos='b', val_pos='l', val_format=val_format, bounds=bounds, labels='low')}"
+    )
+    return _chart_space(chart, plot, '<c:legend><c:legendPos val="b"/><c:overlay val="0"/></c:legend>')
+
+
+def _axes(chart: Chart, *, cat_pos: str, val_pos: str, val_format: str, bounds: str = "",
+          labels: str = "nextTo") -> str:
+    """The category and value axes (ids 50010 and 50020) every chart here has."""
+    return (
+        '<c:catAx><c:axId val="50010"/><c:scaling><c:orientation val="minMax"/></c:scaling>'
+        f'<c:delete val="0"/><c:axPos val="{cat_pos}"/>'
+        f"{_title(chart.x_title, 1000) if chart.x_title else ''}"
+        '<c:numFmt formatCode="General" sourceLinked="1"/><c:majorTickMark val="none"/>'
+        f'<c:minorTickMark val="none"/><c:tickLblPos val="{labels}"/>'
+        '<c:crossAx val="50020"/><c:crosses val="autoZero"/><c:auto val="1"/>'
+        '<c:lblAlgn val="ctr"/><c:lblOffset val="100"/><c:noMultiLvlLbl val="0"/></c:catAx>'
+        f'<c:valAx><c:axId val="50020"/><c:scaling><c:orientation val="minMax"/>{bounds}</c:scaling>'
+        f'<c:delete val="0"/><c:axPos val="{val_pos}"/>'
+        '<c:majorGridlines><c:spPr><a:ln w="6350"><a:solidFill><a:srgbClr val="E3DFD8"/></a:solidFill></a:ln></c:spPr></c:majorGridlines>'
+        f"{_title(chart.y_title, 1000) if chart.y_title else ''}"
+        f'<c:numFmt formatCode="{val_format}" sourceLinked="0"/><c:majorTickMark val="none"/>'
+        '<c:minorTickMark val="none"/><c:tickLblPos val="nextTo"/>'
+        '<c:crossAx val="50010"/><c:crosses val="autoZero"/><c:crossBetween val="between"/></c:valAx>'
+    )
+
+
+def _chart_space(chart: Chart, plot: str, legend: str) -> bytes:
+    """A whole chart part around its plot area (chart and axes) and legend."""
     xml = (
         '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
         f'<c:chartSpace xmlns:c="{C_NS}" xmlns:a="{A_NS}" xmlns:r="{R_NS}">'
@@ -244,26 +251,8 @@ def _line_chart_xml(chart: Chart, sheet_name: str, model: SheetModel, prefix: st
         "<c:chart>"
         f"{_title(chart.title, 1200)}"
         '<c:autoTitleDeleted val="0"/>'
-        "<c:plotArea><c:layout/>"
-        '<c:lineChart><c:grouping val="standard"/><c:varyColors val="0"/>'
-        f"{''.join(series_xml)}"
-        '<c:marker val="1"/><c:axId val="50010"/><c:axId val="50020"/></c:lineChart>'
-        '<c:catAx><c:axId val="50010"/><c:scaling><c:orientation val="minMax"/></c:scaling>'
-        '<c:delete val="0"/><c:axPos val="b"/>'
-        f"{_title(chart.x_title, 1000) if chart.x_title else ''}"
-        '<c:numFmt formatCode="General" sourceLinked="1"/><c:majorTickMark val="none"/>'
-        '<c:minorTickMark val="none"/><c:tickLblPos val="low"/>'
-        '<c:crossAx val="50020"/><c:crosses val="autoZero"/><c:auto val="1"/>'
-        '<c:lblAlgn val="ctr"/><c:lblOffset val="100"/><c:noMultiLvlLbl val="0"/></c:catAx>'
-        f'<c:valAx><c:axId val="50020"/><c:scaling><c:orientation val="minMax"/>{bounds}</c:scaling>'
-        '<c:delete val="0"/><c:axPos val="l"/>'
-        '<c:majorGridlines><c:spPr><a:ln w="6350"><a:solidFill><a:srgbClr val="E3DFD8"/></a:solidFill></a:ln></c:spPr></c:majorGridlines>'
-        f"{_title(chart.y_title, 1000) if chart.y_title else ''}"
-        f'<c:numFmt formatCode="{val_format}" sourceLinked="0"/><c:majorTickMark val="none"/>'
-        '<c:minorTickMark val="none"/><c:tickLblPos val="nextTo"/>'
-        '<c:crossAx val="50010"/><c:crosses val="autoZero"/><c:crossBetween val="between"/></c:valAx>'
-        "</c:plotArea>"
-        '<c:legend><c:legendPos val="b"/><c:overlay val="0"/></c:legend>'
+        f"<c:plotArea><c:layout/>{plot}</c:plotArea>"
+        f"{legend}"
         '<c:plotVisOnly val="1"/><c:dispBlanksAs val="gap"/>'
         "</c:chart>"
         "</c:chartSpace>"
