@@ -146,6 +146,8 @@ def test_since_last_run_column_and_json(refreshed: dict[str, Any]) -> None:
     }
     column = [row["Since last run"] for row in results_records(refreshed["july"]) if row["Since last run"]]
     assert column == ["direction reversed", "unchanged", "unchanged", "unchanged"]
+    details = [row["Details"] for row in results_records(refreshed["july"]) if row["Since last run"]]
+    assert details == ["series and chart", "shape checks", "series and chart", "shape checks"]
 
 
 def test_answers_name_the_changed_question_first(refreshed: dict[str, Any]) -> None:
