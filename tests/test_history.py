@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 import pytest
 
 from statmargin.jobs.history import (
@@ -212,3 +214,57 @@ def test_a_groups_series_has_its_own_key() -> None:
     heron = Result("Seen", "Team", Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, extra={"group": "Heron"})
     otter = Result("Seen", "Team", Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, extra={"group": "Otter"})
     assert analysis_key(heron) == "Seen | by Team = Heron | period_shares" != analysis_key(otter)
+
+
+@pytest.mark.parametrize(
+    ("before", "now", "flag"),
+    [
+        ((+0.06, 0.17), (-0.17, 0.001), SinceLastRun.DIRECTION_REVERSED),  # June up (unclear), July clearly down
+        ((-0.15, 0.002), (+0.12, 0.01), SinceLastRun.DIRECTION_REVERSED),  # both clear, opposite ways
+        ((+0.03, 0.40), (+0.15, 0.004), SinceLastRun.NOW_BELOW_LEVEL),  # the same way, clear only now
+        ((+0.15, 0.004), (+0.14, 0.006), SinceLastRun.UNCHANGED),  # clear both times, the same way
+        ((-0.15, 0.002), (-0.02, 0.70), SinceLastRun.UNCHANGED),  # last month's clear change is not news now
+        ((+0.01, 0.90), (-0.09, 0.09), SinceLastRun.UNCHANGED),  # outside the old interval, clear neither time
+    ],
+)
+def test_latest_period_comparison_flags(before: tuple[float, float], now: tuple[float, float],
+                                        flag: SinceLastRun) -> None:
+    """A comparison of the latest period is flagged only when its change is clear now (worked out by hand)."""
+    from statmargin.jobs.history import since_last_comparison
+
+    def rec(change: float, p: float) -> KeyResult:
+        return KeyResult("r", "a", "chi_square_independence", p, p, "share_difference", change,
+                         change - 0.02, change + 0.02, 1 if change > 0 else -1, 0.05)
+
+    assert since_last_comparison(rec(*before), rec(*now)) is flag
+
+
+def test_comparison_flags_of_a_stable_program_stay_near_the_level() -> None:
+    """Simulated stable months (78% of 150 each): July-vs-June is flagged about as often as one test's level.
+
+    Flagged as any other analysis (moved outside the interval, no longer below the level)
+    the same comparisons would be flagged at about one refresh in four; p-values from
+    SciPy's chi-square test of the 2 x 2 table (no continuity correction). Seeded; 4,000 refreshes.
+    """
+    from scipy import stats
+
+    from statmargin.jobs.history import since_last_comparison
+
+    rng = np.random.default_rng(20261205)
+
+    def comparison(later: int, earlier: int) -> KeyResult:
+        p1, p2 = float(later) / 150, float(earlier) / 150
+        change = p1 - p2
+        half = 1.96 * math.sqrt(p1 * (1 - p1) / 150 + p2 * (1 - p2) / 150)
+        p = stats.chi2_contingency([[later, 150 - later], [earlier, 150 - earlier]], correction=False)[1]
+        return KeyResult("r", "a", "chi_square_independence", p, p, "share_difference", change,
+                         change - half, change + half, int(change > 0) - int(change < 0), 0.05)
+
+    ours, plain = 0, 0
+    for _ in range(4000):
+        may, june, july = rng.binomial(150, 0.78, size=3)
+        before, now = comparison(june, may), comparison(july, june)
+        ours += since_last_comparison(before, now) is not SinceLastRun.UNCHANGED
+        plain += since_last_run(before, now) is not SinceLastRun.UNCHANGED
+    assert 0.035 < ours / 4000 < 0.075  # about the 5% level of the one test (Monte Carlo SE 0.0035)
+    assert plain / 4000 > 0.2

@@ -36,13 +36,14 @@ from dataclasses import astuple, dataclass, fields
 from typing import Any
 
 from ..results import Followup, Result
-from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, SinceLastRun
+from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, PeriodComparison, SinceLastRun
 
 KIND = "history"  # tool-sheet kind of the hidden history sheet
 SHEET_NAME = "statmargin history"
 KEEP_RUNS = 24  # runs kept in the history sheet (two years of monthly refreshes)
 TREND_PART = "trend"  # key suffix of a result's trend test
 HIDDEN = "hidden"  # the test of a record whose numbers sharing mode hid
+_COMPARISON_PARTS = frozenset(kind.value for kind in PeriodComparison)
 
 # Estimates whose value is a signed difference, slope or correlation: direction = sign(value).
 _SIGNED = frozenset(
@@ -296,6 +297,48 @@ def since_last_run(previous: KeyResult | None, current: KeyResult | None) -> Sin
     return SinceLastRun.UNCHANGED
 
 
+def since_last_comparison(previous: KeyResult | None, current: KeyResult | None) -> SinceLastRun:
+    """How a latest-period comparison changed: each refresh compares a new pair of periods.
+
+    July against June is not the same quantity as June against May, so its
+    estimate moving outside the previous interval, or a change that was clear
+    last month and is not this month, says nothing new (by simulation of a
+    stable program, these flagged about one refresh in four; see the README).
+    The flag says only whether this month's change is clear: ``direction
+    reversed`` when it is clear and points the other way from the last
+    comparison's estimate, ``now below the significance level`` when it is
+    clear and the last one was not (or pointed the same way but was not clear),
+    else ``unchanged``. A comparison that was not run before, or is not run now,
+    is ``new`` or ``no longer run`` as any analysis.
+
+    Examples
+    --------
+    >>> june = KeyResult("r1", "a", "chi_square_independence", 0.17, 0.17, "share_difference", 0.065,
+    ...                  -0.03, 0.16, 1, 0.05)
+    >>> july = KeyResult("r2", "a", "chi_square_independence", 0.001, 0.001, "share_difference", -0.167,
+    ...                  -0.26, -0.07, -1, 0.05)
+    >>> since_last_comparison(june, july), since_last_comparison(july, june)
+    ('direction_reversed', 'unchanged')
+    """
+    ran_before = previous is not None and previous.p is not None
+    runs_now = current is not None and current.p is not None
+    if not (ran_before and runs_now):
+        return since_last_run(previous, current)
+    assert previous is not None and current is not None  # narrowed by the checks above
+    if not current.below:
+        return SinceLastRun.UNCHANGED
+    if previous.direction and current.direction and previous.direction != current.direction:
+        return SinceLastRun.DIRECTION_REVERSED
+    return SinceLastRun.UNCHANGED if previous.below else SinceLastRun.NOW_BELOW_LEVEL
+
+
+def _flag(key: str, previous: KeyResult | None, current: KeyResult | None) -> SinceLastRun:
+    """The flag of one analysis key: comparisons of the latest period by their own rule."""
+    if key.rsplit(" | ", 1)[-1] in _COMPARISON_PARTS:
+        return since_last_comparison(previous, current)
+    return since_last_run(previous, current)
+
+
 def compare_runs(
     previous: Mapping[str, KeyResult], current: Sequence[KeyResult]
 ) -> dict[str, SinceLastRun]:
@@ -307,11 +350,11 @@ def compare_runs(
     if not previous:
         return {}
     now = {record.analysis: record for record in current}
-    flags = {key: since_last_run(previous.get(key), record) for key, record in now.items()
+    flags = {key: _flag(key, previous.get(key), record) for key, record in now.items()
              if record.test != HIDDEN}  # hidden in sharing mode: nothing to compare
     for key, record in previous.items():
         if key not in now:
-            flags[key] = since_last_run(record, None)
+            flags[key] = _flag(key, record, None)
     return flags
 
 
