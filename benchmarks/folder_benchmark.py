@@ -70,6 +70,8 @@ def main() -> None:
     parser.add_argument("--workbooks", type=int, default=20)
     parser.add_argument("--rows", type=int, default=50_000)
     parser.add_argument("--jobs", type=int, default=2)
+    parser.add_argument("--no-period", action="store_true",
+                        help="plan without the period role (each outcome then has no series over time)")
     args = parser.parse_args()
 
     import warnings
@@ -82,9 +84,10 @@ def main() -> None:
         root = Path(tmp)
         template = root / "template.xlsx"
         write_log(template, args.rows)
-        plan_workbook(template, outcome=["Vaccinated same day", "Wait (minutes)"], by=["Team"])
+        plan_workbook(template, outcome=["Vaccinated same day", "Wait (minutes)"], by=["Team"],
+                      period=None if args.no_period else "Visit date")
         print(f"{args.workbooks} workbooks x {args.rows:,} rows, {os.path.getsize(template) / 1e6:.1f} MB each, "
-              f"{os.cpu_count()} CPUs")
+              f"{os.cpu_count()} CPUs, {'no period role' if args.no_period else 'period role: Visit date by month'}")
 
         print(f"load average before: {os.getloadavg()[0]:.1f} (other work on the machine slows both runs)")
 

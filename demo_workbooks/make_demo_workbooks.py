@@ -14,8 +14,10 @@ Run from the repository root::
 It writes ``demo_workbooks/*.xlsx`` and ``templates/statmargin_template.xlsx``,
 then asks ``statmargin.jobs.workbook.plan_workbook`` to add a roles sheet with preset
 choices to each demo (skipped with a printed line if that step is unavailable),
-and finally copies all three workbooks into ``src/statmargin/data/`` so they
-ship with the package.
+and finally copies every workbook into ``src/statmargin/data/`` so they ship
+with the package. The monthly-refresh demo (an invented outreach service's visit
+log, January to June, and July's rows to paste under it) comes from
+``period_demo_data.py``.
 """
 
 from __future__ import annotations
@@ -36,6 +38,8 @@ INVENTED_LINE = "All data in this workbook are invented for demonstration."
 
 INSPECTIONS_FILE = "inspections_demo.xlsx"
 OUTREACH_FILE = "outreach_demo.xlsx"
+VISITS_FILE = "riverbend_visits_demo.xlsx"  # the monthly refresh: January to June
+JULY_FILE = "riverbend_july_rows.xlsx"  # July's rows, to paste under them at the refresh
 TEMPLATE_FILE = "statmargin_template.xlsx"
 
 REPO_ROOT = Path(__file__).resolve().parent.parent
@@ -553,11 +557,25 @@ def build_all(folder: Path | str, template_folder: Path | str | None = None) -> 
     folder.mkdir(parents=True, exist_ok=True)
     template_folder.mkdir(parents=True, exist_ok=True)
     rng = np.random.default_rng(SEED)
+    periods = _period_demo_data()
     return {
         INSPECTIONS_FILE: build_inspections(folder / INSPECTIONS_FILE, rng),
         OUTREACH_FILE: build_outreach(folder / OUTREACH_FILE, rng),
+        VISITS_FILE: periods.write_workbook(folder / VISITS_FILE, months=6),
+        JULY_FILE: periods.write_rows_workbook(folder / JULY_FILE, month=7),
         TEMPLATE_FILE: build_template(template_folder / TEMPLATE_FILE),
     }
+
+
+def _period_demo_data() -> Any:
+    """The monthly-refresh demo's generator (``period_demo_data.py`` beside this script; seeded by month)."""
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("period_demo_data", Path(__file__).with_name("period_demo_data.py"))
+    assert spec is not None and spec.loader is not None
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
 
 
 def add_preset_roles(paths: dict[str, Path]) -> bool:
@@ -571,7 +589,7 @@ def add_preset_roles(paths: dict[str, Path]) -> bool:
     Returns
     -------
     bool
-        True if both roles sheets were added; False (after printing why) otherwise.
+        True if every roles sheet was added; False (after printing why) otherwise.
     """
     try:
         from statmargin.jobs.workbook import plan_workbook
@@ -601,11 +619,18 @@ def add_preset_roles(paths: dict[str, Path]) -> bool:
             },
             treat={"Satisfaction": "ordinal:" + ",".join(SATISFACTION_LEVELS)},
         )
+        plan_workbook(
+            paths[VISITS_FILE],
+            sheet="Visits",
+            outcome=("Vaccinated same day", "Wait (minutes)"),
+            by=("Team",),
+            period="Visit date",
+        )
     except Exception as error:  # the lead reruns the script; the raw files are already written
         print(f"Roles sheets not added: plan_workbook failed ({type(error).__name__}: {error}). "
               "The raw demo workbooks were written; rerun this script after fixing it.")
         return False
-    print("Roles sheets added to both demo workbooks.")
+    print("Roles sheets added to the three demo workbooks.")
     return True
 
 

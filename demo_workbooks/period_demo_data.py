@@ -20,8 +20,11 @@ same story on every machine:
   (direction reversed), and July is beyond the p chart's lower 3-sigma limit.
 
 Waiting times are lognormal (right-skewed), a little longer for one team, with
-no trend. ``write_workbook`` writes the data sheet the lead's demo build turns
-into a demo workbook (roles sheet added there).
+no trend and no clear change from one month to the next. ``write_workbook``
+writes the data sheet that ``make_demo_workbooks.py`` turns into the shipped
+demo workbook (January to June, roles sheet added there), and
+``write_rows_workbook`` a workbook holding only July's rows for a newcomer to
+paste under them.
 """
 
 from __future__ import annotations
@@ -71,7 +74,9 @@ def month_rows(month: int) -> list[dict[str, Any]]:
     rng.shuffle(same_day)
     teams = rng.choice(np.array(TEAMS, dtype=object), size=n, p=TEAM_SHARES)
     ages = rng.integers(2, 60, size=n)
-    waits = np.exp(np.log(25.0) + rng.normal(0.0, 0.45, size=n))
+    # Waits come from their own stream, so the story of the shares above is untouched by them; this
+    # stream gives waits with no trend and no clear month-to-month change (checked in the tests).
+    waits = np.exp(np.log(25.0) + np.random.default_rng([SEED, month, 1]).normal(0.0, 0.45, size=n))
     waits = np.where(teams == SLOW_TEAM, waits * 1.2, waits)
     return [
         {
@@ -96,6 +101,23 @@ def write_workbook(path: str | Path, months: int = 6) -> Path:
 
     Dates are written as real dates; the second sheet says the data are invented.
     """
+    return _write_visits(
+        path, SHEET, period_demo_rows(months),
+        "An invented outreach service's visit log, one row per visit; append each month's rows below.",
+    )
+
+
+def write_rows_workbook(path: str | Path, month: int = 7) -> Path:
+    """Write one month's visits alone (header and rows), for pasting under the demo's data at a refresh."""
+    return _write_visits(
+        path, f"{dt.date(YEAR, month, 1):%B} rows", month_rows(month),
+        "Copy the rows below the header on the first sheet and paste them under the last row of "
+        "the Visits sheet of the demo workbook, then run statmargin again.",
+    )
+
+
+def _write_visits(path: str | Path, sheet_name: str, rows: list[dict[str, Any]], about: str) -> Path:
+    """A new workbook: the visits on ``sheet_name`` (dates as real dates) and an About sheet."""
     import xlsxwriter
 
     path = Path(path)
@@ -104,19 +126,19 @@ def write_workbook(path: str | Path, months: int = 6) -> Path:
         {"title": path.stem, "author": "statmargin demo generator", "comments": INVENTED_LINE,
          "created": dt.datetime(2026, 1, 1)}
     )
-    sheet = workbook.add_worksheet(SHEET)
+    sheet = workbook.add_worksheet(sheet_name)
     bold = workbook.add_format({"bold": True})
     date = workbook.add_format({"num_format": "yyyy-mm-dd"})
     sheet.write_row(0, 0, COLUMNS, bold)
-    for r, row in enumerate(period_demo_rows(months), start=1):
+    for r, row in enumerate(rows, start=1):
         for c, name in enumerate(COLUMNS):
             value = row[name]
             if isinstance(value, dt.date):
                 sheet.write_datetime(r, c, dt.datetime(value.year, value.month, value.day), date)
             else:
                 sheet.write(r, c, value)
-    about = workbook.add_worksheet("About")
-    about.write(0, 0, INVENTED_LINE, bold)
-    about.write(1, 0, "An invented outreach service's visit log, one row per visit; append each month's rows below.")
+    note = workbook.add_worksheet("About")
+    note.write(0, 0, INVENTED_LINE, bold)
+    note.write(1, 0, about)
     workbook.close()
     return path

@@ -21,11 +21,19 @@ from scipy.stats import skew
 REPO_ROOT = Path(__file__).resolve().parent.parent
 SCRIPT = REPO_ROOT / "demo_workbooks" / "make_demo_workbooks.py"
 PACKAGE_DATA = REPO_ROOT / "src" / "statmargin" / "data"
-WORKBOOK_FILES = ["inspections_demo.xlsx", "outreach_demo.xlsx", "statmargin_template.xlsx"]
+WORKBOOK_FILES = [
+    "inspections_demo.xlsx",
+    "outreach_demo.xlsx",
+    "riverbend_visits_demo.xlsx",
+    "riverbend_july_rows.xlsx",
+    "statmargin_template.xlsx",
+]
 # Sheets the generator writes itself (a roles sheet may be added later by the pipeline).
 DATA_SHEETS = {
     "inspections_demo.xlsx": ["Inspections", "Notes"],
     "outreach_demo.xlsx": ["Participants", "About"],
+    "riverbend_visits_demo.xlsx": ["Visits", "About"],
+    "riverbend_july_rows.xlsx": ["July rows", "About"],
     "statmargin_template.xlsx": ["Data"],
 }
 
@@ -96,7 +104,9 @@ class TestReproducible:
         """The template goes to its own folder when one is given, and the demos do not."""
         paths = generator.build_all(tmp_path / "demos", tmp_path / "templates")
         assert paths["statmargin_template.xlsx"] == tmp_path / "templates" / "statmargin_template.xlsx"
-        assert sorted(p.name for p in (tmp_path / "demos").iterdir()) == ["inspections_demo.xlsx", "outreach_demo.xlsx"]
+        assert sorted(p.name for p in (tmp_path / "demos").iterdir()) == [
+            "inspections_demo.xlsx", "outreach_demo.xlsx", "riverbend_july_rows.xlsx", "riverbend_visits_demo.xlsx"
+        ]
 
 
 class TestShippedCopies:

@@ -48,7 +48,7 @@ ALLOWED_TO_CHANGE = {
     "docProps/app.xml",
     "xl/styles.xml",
 }
-TOOL_KINDS = ("roles", "results", "shape", "notes", "log")
+TOOL_KINDS = ("roles", "results", "shape", "notes", "log", "history")
 # Every step runs through the file back end and again through the in-memory one (conftest).
 pytestmark = pytest.mark.usefixtures("pipeline_backend")
 ROLE_EDITS = {"Wait minutes": {"Role": "outcome"}, "Site": {"Role": "compare by"}}

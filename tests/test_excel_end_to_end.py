@@ -36,7 +36,7 @@ from workbook_edit import NEWCOMER_SHEET, make_newcomer_workbook, set_roles
 
 ROLE_EDITS = {"Wait minutes": {"Role": "outcome"}, "Site": {"Role": "compare by"}}
 FIXED_START = dt.datetime(2026, 3, 2, 9, 30, tzinfo=dt.timezone.utc)
-TOOL_KINDS = ("roles", "results", "shape", "notes", "log")
+TOOL_KINDS = ("roles", "results", "shape", "notes", "log", "history")
 C_NS = "{http://schemas.openxmlformats.org/drawingml/2006/chart}"
 A_NS = "{http://schemas.openxmlformats.org/drawingml/2006/main}"
 

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 import pytest
 
 from statmargin.jobs.history import (
@@ -167,3 +168,102 @@ def test_infinite_one_sided_bounds_are_stored_blank() -> None:
                     estimate=Estimate(EstimateKind.MEAN_DIFFERENCE, 1.0, 0.1, math.inf))
     (rec,) = key_results([result], "r", 0.05)
     assert rec.ci_low == 0.1 and rec.ci_high is None
+
+
+def period_result(change: float, p: float, *, hidden: bool = False) -> Result:
+    """A result over time with one latest-period comparison (a difference in shares of ``change``)."""
+    from statmargin.results import Followup
+
+    followup = Followup(Test.CHI_SQUARE_INDEPENDENCE, ("2026-07", "2026-06"),
+                        Estimate(EstimateKind.SHARE_DIFFERENCE, None if hidden else change, None, None,
+                                 ("2026-07", "2026-06"), "Yes"),
+                        None if hidden else p, None if hidden else p)
+    result = Result("Seen", None, Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, p_value=0.2, p_adjusted=0.2,
+                    estimate=Estimate(EstimateKind.SHARE_CHANGE_PER_PERIOD, -0.01, -0.03, 0.01, ("month",), "Yes"))
+    result.followups = [followup]
+    result.extra = {"comparisons": ["latest_vs_previous"], **({"suppressed": ["periods"]} if hidden else {})}
+    return result
+
+
+def test_latest_period_comparison_is_kept_and_can_reverse() -> None:
+    """The comparison is its own record (key part 'latest_vs_previous'); a sign flip below the level reverses it."""
+    june = key_results([period_result(+0.065, 0.20)], "r1", 0.05)
+    july = key_results([period_result(-0.166, 0.001)], "r2", 0.05)
+    key = "Seen | period_shares | latest_vs_previous"
+    assert [r.analysis for r in july] == ["Seen | period_shares", key]
+    assert {r.analysis: r.direction for r in july}[key] == -1
+    flags = compare_runs(last_run(june), july)
+    assert flags[key] is SinceLastRun.DIRECTION_REVERSED and flags["Seen | period_shares"] is SinceLastRun.UNCHANGED
+    result = period_result(-0.166, 0.001)
+    apply_since_last_run([result], flags)
+    assert result.since_last_run is SinceLastRun.DIRECTION_REVERSED
+
+
+def test_comparison_hidden_in_sharing_mode_is_not_flagged() -> None:
+    """A comparison whose numbers sharing mode hid is recorded as hidden and gets no flag (not 'no longer run')."""
+    before = key_results([period_result(+0.065, 0.20)], "r1", 0.05)
+    now = key_results([period_result(-0.166, 0.001, hidden=True)], "r2", 0.05)
+    assert now[1].test == "hidden"
+    flags = compare_runs(last_run(before), now)
+    assert "Seen | period_shares | latest_vs_previous" not in flags
+
+
+def test_a_groups_series_has_its_own_key() -> None:
+    """Series of two groups of one compare-by column are told apart by the group."""
+    heron = Result("Seen", "Team", Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, extra={"group": "Heron"})
+    otter = Result("Seen", "Team", Design.PERIOD_SHARES, Test.COCHRAN_ARMITAGE, extra={"group": "Otter"})
+    assert analysis_key(heron) == "Seen | by Team = Heron | period_shares" != analysis_key(otter)
+
+
+@pytest.mark.parametrize(
+    ("before", "now", "flag"),
+    [
+        ((+0.06, 0.17), (-0.17, 0.001), SinceLastRun.DIRECTION_REVERSED),  # June up (unclear), July clearly down
+        ((-0.15, 0.002), (+0.12, 0.01), SinceLastRun.DIRECTION_REVERSED),  # both clear, opposite ways
+        ((+0.03, 0.40), (+0.15, 0.004), SinceLastRun.NOW_BELOW_LEVEL),  # the same way, clear only now
+        ((+0.15, 0.004), (+0.14, 0.006), SinceLastRun.UNCHANGED),  # clear both times, the same way
+        ((-0.15, 0.002), (-0.02, 0.70), SinceLastRun.UNCHANGED),  # last month's clear change is not news now
+        ((+0.01, 0.90), (-0.09, 0.09), SinceLastRun.UNCHANGED),  # outside the old interval, clear neither time
+    ],
+)
+def test_latest_period_comparison_flags(before: tuple[float, float], now: tuple[float, float],
+                                        flag: SinceLastRun) -> None:
+    """A comparison of the latest period is flagged only when its change is clear now (worked out by hand)."""
+    from statmargin.jobs.history import since_last_comparison
+
+    def rec(change: float, p: float) -> KeyResult:
+        return KeyResult("r", "a", "chi_square_independence", p, p, "share_difference", change,
+                         change - 0.02, change + 0.02, 1 if change > 0 else -1, 0.05)
+
+    assert since_last_comparison(rec(*before), rec(*now)) is flag
+
+
+def test_comparison_flags_of_a_stable_program_stay_near_the_level() -> None:
+    """Simulated stable months (78% of 150 each): July-vs-June is flagged about as often as one test's level.
+
+    Flagged as any other analysis (moved outside the interval, no longer below the level)
+    the same comparisons would be flagged at about one refresh in four; p-values from
+    SciPy's chi-square test of the 2 x 2 table (no continuity correction). Seeded; 4,000 refreshes.
+    """
+    from scipy import stats
+
+    from statmargin.jobs.history import since_last_comparison
+
+    rng = np.random.default_rng(20261205)
+
+    def comparison(later: int, earlier: int) -> KeyResult:
+        p1, p2 = float(later) / 150, float(earlier) / 150
+        change = p1 - p2
+        half = 1.96 * math.sqrt(p1 * (1 - p1) / 150 + p2 * (1 - p2) / 150)
+        p = stats.chi2_contingency([[later, 150 - later], [earlier, 150 - earlier]], correction=False)[1]
+        return KeyResult("r", "a", "chi_square_independence", p, p, "share_difference", change,
+                         change - half, change + half, int(change > 0) - int(change < 0), 0.05)
+
+    ours, plain = 0, 0
+    for _ in range(4000):
+        may, june, july = rng.binomial(150, 0.78, size=3)
+        before, now = comparison(june, may), comparison(july, june)
+        ours += since_last_comparison(before, now) is not SinceLastRun.UNCHANGED
+        plain += since_last_run(before, now) is not SinceLastRun.UNCHANGED
+    assert 0.035 < ours / 4000 < 0.075  # about the 5% level of the one test (Monte Carlo SE 0.0035)
+    assert plain / 4000 > 0.2

@@ -88,7 +88,7 @@ def test_refusals_are_one_line_that_says_what_to_do(message: str) -> None:
 def test_since_last_run_lines() -> None:
     """The top of the sheet says nothing changed in one line, or lists the changes most important first."""
     assert period_words.since_last_run_lines([], "2026-07-02 08:00") == [
-        "Nothing changed since the last run (2026-07-02 08:00)."
+        "Nothing changed since the last run on 2026-07-02 08:00."
     ]
     lines = period_words.since_last_run_lines(
         [(SinceLastRun.DIRECTION_REVERSED, ["Same-day vaccination, latest month against the one before"]),
@@ -96,7 +96,7 @@ def test_since_last_run_lines() -> None:
         "2026-07-02 08:00",
     )
     assert lines == [
-        "Since the last run (2026-07-02 08:00):",
+        "What changed since the last run on 2026-07-02 08:00:",
         "Direction reversed: Same-day vaccination, latest month against the one before.",
         "Now below the significance level: Same-day vaccination, trend across months.",
     ]

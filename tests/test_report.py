@@ -141,7 +141,7 @@ def test_results_header_block_lists_the_run() -> None:
                  "statmargin 0.1.0", "95% intervals", "two-sided"):
         assert part in run_line
     assert model.cells[(2, 0)].value == "The question was answered."
-    assert "A2:C2" in model.merged and "A3:C3" in model.merged
+    assert "A2:D2" in model.merged and "A3:D3" in model.merged
     assert "Sharing mode" not in " ".join(str(c.value) for c in model.cells.values())
     assert model.kind == "results"
 
@@ -153,10 +153,11 @@ def test_results_table_has_one_row_per_analysis_and_followup() -> None:
     # Only the header row is frozen, and only when the rows above it fit well on a screen.
     assert model.freeze == ((top + 1, 1) if top + 1 <= results_layout.FREEZE_MAX_ROW else None)
     headers = [model.cells[(top, c)].value for c in range(len(report.RESULT_COLUMNS))]
-    assert headers[:9] == [
+    assert headers[:10] == [
         "Question",
         "Reading",
         "Cautions",
+        "Since last run",
         "Outcome",
         "Compared by / against",
         "n used",
@@ -638,10 +639,10 @@ def test_sheets_from_the_engine_on_r_data() -> None:
 
 
 def test_results_columns_put_plain_words_first() -> None:
-    """Question, Reading and Cautions come first; every technical column follows, none dropped."""
+    """Question, Reading, Cautions and Since last run come first; every technical column follows, none dropped."""
     names = [name for name, _ in report.RESULT_COLUMNS]
-    assert names[:3] == ["Question", "Reading", "Cautions"]
-    assert set(names[3:]) == {
+    assert names[:4] == ["Question", "Reading", "Cautions", "Since last run"]
+    assert set(names[4:]) == {
         "Outcome",
         "Compared by / against",
         "n used",
@@ -668,11 +669,11 @@ def test_results_columns_put_plain_words_first() -> None:
 
 
 def test_results_sheet_prints_plain_columns_on_their_own_pages() -> None:
-    """The results sheet prints landscape with a column break right after Cautions."""
+    """The results sheet prints landscape with a column break right after Since last run."""
     model = report.results_sheet([anova_result(), welch_result()], context())
     assert model.landscape and not model.fit_to_width and model.page_numbers
     assert model.print_scale == report.RESULT_PRINT_SCALE
-    assert model.column_breaks[0] == report.COL["Cautions"] + 1
+    assert model.column_breaks[0] == report.COL["Since last run"] + 1
     assert model.column_breaks == list(report.RESULT_PAGE_BREAKS)
     assert model.column_breaks == sorted(model.column_breaks)
     # Each printed page holds at most 122 width units: at the print scale that fits a
@@ -701,7 +702,7 @@ def test_run_wide_cautions_are_stated_once_above_the_table() -> None:
     ]
     assert all(cell.style == "caution" for cell in above)
     for r in range(heading, heading + 4):
-        assert f"A{r + 1}:C{r + 1}" in model.merged
+        assert f"A{r + 1}:D{r + 1}" in model.merged
     # Not repeated on any row, but every Result keeps its full list.
     row_texts = [
         cell.value

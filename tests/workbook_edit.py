@@ -251,3 +251,51 @@ def table_records(rows: list[list[Any]], first_header: str) -> list[dict[str, An
 def results_records(path: str | Path) -> list[dict[str, Any]]:
     """The results sheet's analysis and follow-up rows, found by header text ("Question")."""
     return table_records(sheet_rows(path, tool_sheet_name(path, "results")), "Question")
+
+
+def append_rows(path: str | Path, sheet: str, rows: list[list[Any]], *, style_from_row: int = 2) -> int:
+    """Append rows of values below a sheet's last row, as a user pastes next month's records.
+
+    Numbers are written as numbers and text as inline strings; ``datetime.date``
+    values become day serials. Each new cell takes the style of the cell in the
+    same column of ``style_from_row`` (so a date column stays formatted as dates).
+    Only the one worksheet part is rewritten (its dimension updated); every other
+    zip part keeps its bytes. Returns the sheet row number of the first new row.
+    """
+    path = Path(path)
+    part = sheet_part(path, sheet)
+    entries = read_zip(path.read_bytes())
+    out: list[ZipEntry] = []
+    first = 0
+    for entry in entries:
+        if entry.name == part:
+            xml = entry.data().decode("utf-8")
+            numbers = [int(n) for n in re.findall(r'<row r="(\d+)"', xml)]
+            first = max(numbers) + 1
+            template = re.search(rf'<row r="{style_from_row}"[^>]*>(.*?)</row>', xml, re.S)
+            styles = {}
+            if template:
+                for cell in re.finditer(r'<c r="([A-Z]+)\d+"([^>]*?)(?:/>|>)', template.group(1)):
+                    found = re.search(r'\bs="(\d+)"', cell.group(2))
+                    styles[cell.group(1)] = found.group(1) if found else None
+            body = []
+            for offset, values in enumerate(rows):
+                number = first + offset
+                cells = []
+                for col, value in enumerate(values):
+                    letters = ""
+                    index = col + 1
+                    while index:
+                        index, rem = divmod(index - 1, 26)
+                        letters = chr(65 + rem) + letters
+                    if isinstance(value, dt.date):
+                        value = (value - dt.date(1899, 12, 30)).days
+                    cells.append(_cell_xml(f"{letters}{number}", value, styles.get(letters)))
+                body.append(f'<row r="{number}">{"".join(cells)}</row>')
+            xml = xml.replace("</sheetData>", "".join(body) + "</sheetData>", 1)
+            last = first + len(rows) - 1
+            xml = re.sub(r'(<dimension ref="[A-Z]+\d+:[A-Z]+)\d+(")', rf"\g<1>{last}\g<2>", xml, count=1)
+            entry = new_entry(entry.name, xml.encode("utf-8"))
+        out.append(entry)
+    path.write_bytes(write_zip(out))
+    return first

@@ -18,7 +18,7 @@ from ..plan.expand import Analysis, expand
 from ..plan.model import Plan, Settings
 from ..read.table import Table
 from ..results import Result
-from ..stats.adjust import adjust_results
+from ..stats.adjust import adjust_by_family
 from ..words import refusals
 from .base import DesignSpec, Prepared, clean_numbers
 from .question import ColumnTypes, build_question
@@ -57,9 +57,12 @@ def run_answers(
     -----
     Look-alike labels of the used columns are merged first (``plan.clean``), and
     the cells each column's type leaves out are added to ``table.notes``.
-    The adjustment family is every non-skipped result of the run
-    (``stats.adjust.adjust_results``). Follow-ups run only when the adjusted p is
-    below ``settings.alpha``; which ones is up to each design module.
+    The adjustment family is set by ``settings.family``
+    (``stats.adjust.adjust_by_family``): every non-skipped result of the run
+    (default), the results of each outcome, or none. A period analysis joins it
+    with its trend test's p-value. Follow-ups run only when the adjusted p is
+    below ``settings.alpha``; which ones is up to each design module (the latest-
+    period comparisons of a period analysis always run, adjusted within it).
     """
     settings = plan.settings
     analyses = expand(plan, table)
@@ -73,7 +76,7 @@ def run_answers(
         answers.append(Answer(result, prepared, spec))
         if progress is not None:
             progress(len(answers), len(analyses))
-    adjust_results([a.result for a in answers], settings.adjust)
+    adjust_by_family([a.result for a in answers], settings.adjust, settings.family)
     for answer in answers:
         _follow_up(answer, settings)
     return answers
@@ -128,6 +131,7 @@ def analyze(
     period: str | None = None,
     period_length: str | None = None,
     adjust_across: str | None = None,
+    series_by_group: bool = False,
     paired_by: str | None = None,
 ) -> list[Result]:
     """Run the tests that fit the data and return one Result per question.
@@ -176,7 +180,11 @@ def analyze(
         A frequency weight: each row stands for that many records.
     period, period_length : str, optional
         The date or period column, and the length of a period (week, month,
-        quarter, year; month by default).
+        quarter, year; month by default). Each outcome is then also followed
+        over time: a series by period with its trend, unusual periods, and the
+        latest period against the previous one and a year earlier.
+    series_by_group : bool
+        With ``period``: also a series for each group of each ``by`` column.
     adjust_across : {"this run", "each outcome", "none"}, optional
         Which results share one p-value adjustment (default: all of them).
 
@@ -261,7 +269,8 @@ def analyze(
         treat=parse_treat(treat),
         shape=shape,
         settings=make_settings(alternative=alternative, confidence=confidence, adjust=adjust,
-                               family=adjust_across, grain=period_length, per_unit=per_unit),
+                               family=adjust_across, grain=period_length, per_unit=per_unit,
+                               series_by_group=series_by_group),
         event=parse_col_values(event, "--event", outcomes),
         events=event_columns,
         out_of=parse_col_values(out_of, "--out-of", event_columns),

@@ -31,6 +31,16 @@ class ColumnTypes:
     _types: dict[tuple[str, object, tuple[str, ...] | None], TypeInfo] = field(default_factory=dict)
     _values: dict[tuple[str, TypeInfo], ColumnValues] = field(default_factory=dict)
     _masks: dict[str, np.ndarray] = field(default_factory=dict)
+    _periods: dict[tuple[str, str], object] = field(default_factory=dict)
+
+    def periods(self, name: str, grain: str) -> object:
+        """The column read as periods at ``grain`` (``plan.periods.read_periods``), once per run."""
+        key = (name, str(grain))
+        if key not in self._periods:
+            from ..plan.periods import read_periods
+
+            self._periods[key] = read_periods(self.table.column(name), grain, rows=self.table.rows)
+        return self._periods[key]
 
     def info(self, name: str, choice: ColumnChoice | None) -> TypeInfo:
         """The column's type under the user's choice (treat-as and level order)."""
@@ -81,6 +91,7 @@ class Question:
     partner: Column | None = None
     partner_info: TypeInfo | None = None
     key: Column | None = None
+    period: Column | None = None  # the period column of a question over time
     cache: dict[str, object] = field(default_factory=dict)  # data shared by a design's steps
 
     @property
@@ -170,6 +181,12 @@ def build_question(analysis: Analysis, table: Table, settings: Settings, types: 
         out_info = types.usable_info(outcome.name, analysis.outcome_choice, refusals.ROLE_OUTCOME)
     question = Question(analysis, table, settings, types, outcome, out_info)
     if analysis.against is not None:
+        return question
+    if analysis.period is not None:
+        question.period = table.column(analysis.period)
+        if analysis.by is not None:
+            question.by = table.column(analysis.by)
+            question.by_info = types.info(question.by.name, analysis.by_choice)
         return question
     if analysis.paired_with:
         other = table.column(analysis.paired_with)

@@ -18,6 +18,8 @@ from .one_sample_pooled_share import OneSamplePooledShare
 from .one_sample_rate import OneSampleRate
 from .paired_categorical import PairedCategorical
 from .paired_continuous import PairedContinuous
+from .period_centre import PeriodCentre
+from .period_shares import PeriodShares
 from .question import Question
 from .two_categorical import TwoCategorical
 from .two_continuous import TwoContinuous
@@ -30,6 +32,8 @@ REGISTRY: list[DesignSpec] = [
     GroupPooledShares(),
     OneSampleRate(),
     GroupRates(),
+    PeriodShares(),  # questions over time come first: a group's series also has a compare-by column
+    PeriodCentre(),
     OneSampleCategorical(),
     OneSampleContinuous(),
     PairedCategorical(),

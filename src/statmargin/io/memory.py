@@ -389,7 +389,7 @@ def _written_sheet(model: SheetModel, name: str, kind_to_name: dict[str, str]) -
         first, _, last = ref.partition(":")
         (r1, c1), (r2, c2) = parse_cell_ref(first), parse_cell_ref(last or first)
         merged.append((r1, c1, r2, c2))
-    return MemorySheet(name=name, rows=rows, merged=merged, tool_kind=model.kind, model=model)
+    return MemorySheet(name=name, rows=rows, hidden=model.hidden, merged=merged, tool_kind=model.kind, model=model)
 
 
 def read_back(cell: Cell) -> Any:

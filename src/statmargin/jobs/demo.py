@@ -14,8 +14,12 @@ from ..errors import WorkbookError
 from ..words import refusals
 from .workbook import Progress, RunSummary, run_workbook
 
-DEMO_WORKBOOKS = ("inspections_demo.xlsx", "outreach_demo.xlsx", "screening_demo.xlsx")
+DEMO_WORKBOOKS = ("inspections_demo.xlsx", "outreach_demo.xlsx", "screening_demo.xlsx",
+                  "riverbend_visits_demo.xlsx")
 TEMPLATE = "statmargin_template.xlsx"
+# Copied beside the demos but not run: July's rows of the monthly-refresh demo, to paste
+# under its Visits sheet before running it again.
+EXTRAS = ("riverbend_july_rows.xlsx",)
 
 
 def packaged_file(name: str) -> Path:
@@ -27,7 +31,7 @@ def packaged_file(name: str) -> Path:
 
 
 def run_demo(folder: str | Path = "statmargin-demo", *, progress: Progress | None = None) -> list[RunSummary]:
-    """Copy the demo workbooks (and the empty template) into ``folder`` and run each demo.
+    """Copy the demo workbooks (the empty template, and July's rows for the monthly-refresh demo) into ``folder`` and run each demo.
 
     A demo workbook already in the folder is run again as it is (its results
     sheets are replaced), so edits made to try the tool out are kept.
@@ -38,7 +42,7 @@ def run_demo(folder: str | Path = "statmargin-demo", *, progress: Progress | Non
     except OSError as exc:
         raise WorkbookError(refusals.demo_folder(repr(str(target)), str(exc.strerror))) from None
     summaries = []
-    for name in (*DEMO_WORKBOOKS, TEMPLATE):
+    for name in (*DEMO_WORKBOOKS, *EXTRAS, TEMPLATE):
         dest = target / name
         if not dest.exists():
             shutil.copyfile(packaged_file(name), dest)

@@ -35,13 +35,15 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import astuple, dataclass, fields
 from typing import Any
 
-from ..results import Result
-from ..vocabulary import EstimateKind, SinceLastRun
+from ..results import Followup, Result
+from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, PeriodComparison, SinceLastRun
 
 KIND = "history"  # tool-sheet kind of the hidden history sheet
 SHEET_NAME = "statmargin history"
 KEEP_RUNS = 24  # runs kept in the history sheet (two years of monthly refreshes)
 TREND_PART = "trend"  # key suffix of a result's trend test
+HIDDEN = "hidden"  # the test of a record whose numbers sharing mode hid
+_COMPARISON_PARTS = frozenset(kind.value for kind in PeriodComparison)
 
 # Estimates whose value is a signed difference, slope or correlation: direction = sign(value).
 _SIGNED = frozenset(
@@ -62,15 +64,7 @@ _SIGNED = frozenset(
 # Estimates compared with the question's fixed value: direction = sign(value - against).
 _AGAINST = frozenset({EstimateKind.PSEUDO_MEDIAN, EstimateKind.SHARE})
 
-PRECEDENCE: tuple[SinceLastRun, ...] = (
-    SinceLastRun.NO_LONGER_RUN,
-    SinceLastRun.NEW,
-    SinceLastRun.DIRECTION_REVERSED,
-    SinceLastRun.NOW_BELOW_LEVEL,
-    SinceLastRun.NO_LONGER_BELOW_LEVEL,
-    SinceLastRun.MOVED_OUTSIDE_INTERVAL,
-    SinceLastRun.UNCHANGED,
-)
+PRECEDENCE: tuple[SinceLastRun, ...] = SINCE_LAST_RUN_ORDER
 
 
 @dataclass(frozen=True)
@@ -117,8 +111,9 @@ def analysis_key(result: Result, part: str | None = None) -> str:
     'Wait | by Site | two_group_continuous'
     """
     pieces = [result.outcome]
+    group = result.extra.get("group") if isinstance(result.extra, Mapping) else None
     if result.exposure:
-        pieces.append(f"by {result.exposure}")
+        pieces.append(f"by {result.exposure}" + (f" = {group}" if group is not None else ""))
     if result.pairing:
         pieces.append(f"with {result.pairing}")
     if result.against is not None:
@@ -180,6 +175,7 @@ def key_results(results: Iterable[Result], run: str, alpha: float) -> list[KeyRe
                 alpha=alpha,
             )
         )
+        out.extend(_comparison_records(result, run, alpha))
         trend = result.trend
         if trend is not None:
             slope = trend.estimate
@@ -199,6 +195,49 @@ def key_results(results: Iterable[Result], run: str, alpha: float) -> list[KeyRe
                     alpha=alpha,
                 )
             )
+    return out
+
+
+def comparison_parts(result: Result) -> list[tuple[str, Followup]]:
+    """A period result's latest-period comparisons as (part name, follow-up), e.g. ('latest_vs_previous', ...)."""
+    kinds = result.extra.get("comparisons") if isinstance(result.extra, Mapping) else None
+    if not isinstance(kinds, (list, tuple)):
+        return []
+    return [(str(kind), followup) for kind, followup in zip(kinds, result.followups, strict=False)]
+
+
+def _comparison_records(result: Result, run: str, alpha: float) -> list[KeyResult]:
+    """One record per latest-period comparison, so a change that reverses is seen next run."""
+    out = []
+    hidden = bool(result.extra.get("suppressed")) if isinstance(result.extra, Mapping) else False
+    for part, followup in comparison_parts(result):
+        estimate = followup.estimate
+        value = _finite(estimate.value) if estimate is not None else None
+        signed = estimate is not None and estimate.kind in _SIGNED
+        out.append(
+            KeyResult(
+                run=run,
+                analysis=analysis_key(result, part),
+                test=HIDDEN if hidden and followup.p_value is None else str(followup.test),
+                p_value=_finite(followup.p_value),
+                p_adjusted=_finite(followup.p_adjusted),
+                estimate_kind=str(estimate.kind) if estimate is not None else None,
+                estimate=value,
+                ci_low=_finite(estimate.ci_low) if estimate is not None else None,
+                ci_high=_finite(estimate.ci_high) if estimate is not None else None,
+                direction=_sign(value) if signed and value is not None else None,
+                alpha=alpha,
+            )
+        )
+    return out
+
+
+def parts(result: Result) -> list[str | None]:
+    """The parts of a result the history keeps: the result itself (None), its comparisons and its trend."""
+    out: list[str | None] = [None]
+    out.extend(part for part, _ in comparison_parts(result))
+    if result.trend is not None:
+        out.append(TREND_PART)
     return out
 
 
@@ -258,6 +297,48 @@ def since_last_run(previous: KeyResult | None, current: KeyResult | None) -> Sin
     return SinceLastRun.UNCHANGED
 
 
+def since_last_comparison(previous: KeyResult | None, current: KeyResult | None) -> SinceLastRun:
+    """How a latest-period comparison changed: each refresh compares a new pair of periods.
+
+    July against June is not the same quantity as June against May, so its
+    estimate moving outside the previous interval, or a change that was clear
+    last month and is not this month, says nothing new (by simulation of a
+    stable program, these flagged about one refresh in four; see the README).
+    The flag says only whether this month's change is clear: ``direction
+    reversed`` when it is clear and points the other way from the last
+    comparison's estimate, ``now below the significance level`` when it is
+    clear and the last one was not (or pointed the same way but was not clear),
+    else ``unchanged``. A comparison that was not run before, or is not run now,
+    is ``new`` or ``no longer run`` as any analysis.
+
+    Examples
+    --------
+    >>> june = KeyResult("r1", "a", "chi_square_independence", 0.17, 0.17, "share_difference", 0.065,
+    ...                  -0.03, 0.16, 1, 0.05)
+    >>> july = KeyResult("r2", "a", "chi_square_independence", 0.001, 0.001, "share_difference", -0.167,
+    ...                  -0.26, -0.07, -1, 0.05)
+    >>> since_last_comparison(june, july), since_last_comparison(july, june)
+    ('direction_reversed', 'unchanged')
+    """
+    ran_before = previous is not None and previous.p is not None
+    runs_now = current is not None and current.p is not None
+    if not (ran_before and runs_now):
+        return since_last_run(previous, current)
+    assert previous is not None and current is not None  # narrowed by the checks above
+    if not current.below:
+        return SinceLastRun.UNCHANGED
+    if previous.direction and current.direction and previous.direction != current.direction:
+        return SinceLastRun.DIRECTION_REVERSED
+    return SinceLastRun.UNCHANGED if previous.below else SinceLastRun.NOW_BELOW_LEVEL
+
+
+def _flag(key: str, previous: KeyResult | None, current: KeyResult | None) -> SinceLastRun:
+    """The flag of one analysis key: comparisons of the latest period by their own rule."""
+    if key.rsplit(" | ", 1)[-1] in _COMPARISON_PARTS:
+        return since_last_comparison(previous, current)
+    return since_last_run(previous, current)
+
+
 def compare_runs(
     previous: Mapping[str, KeyResult], current: Sequence[KeyResult]
 ) -> dict[str, SinceLastRun]:
@@ -269,10 +350,11 @@ def compare_runs(
     if not previous:
         return {}
     now = {record.analysis: record for record in current}
-    flags = {key: since_last_run(previous.get(key), record) for key, record in now.items()}
+    flags = {key: _flag(key, previous.get(key), record) for key, record in now.items()
+             if record.test != HIDDEN}  # hidden in sharing mode: nothing to compare
     for key, record in previous.items():
         if key not in now:
-            flags[key] = since_last_run(record, None)
+            flags[key] = _flag(key, record, None)
     return flags
 
 
@@ -285,11 +367,8 @@ def most_important(flags: Iterable[SinceLastRun]) -> SinceLastRun | None:
 def apply_since_last_run(results: Sequence[Result], flags: Mapping[str, SinceLastRun]) -> None:
     """Set ``since_last_run`` on each result: the more important of its own flag and its trend's."""
     for result in results:
-        found = [
-            flags[key]
-            for key in (analysis_key(result), analysis_key(result, TREND_PART))
-            if key in flags
-        ]
+        keys = {analysis_key(result, part) for part in [*parts(result), TREND_PART]}
+        found = [flags[key] for key in keys if key in flags]
         result.since_last_run = most_important(found)
 
 
@@ -380,3 +459,88 @@ def last_run(records: Sequence[KeyResult]) -> dict[str, KeyResult]:
         return {}
     newest = records[-1].run
     return {r.analysis: r for r in records if r.run == newest}
+
+
+# --------------------------------------------------------------------------- one run's bookkeeping
+
+
+@dataclass(frozen=True)
+class RunChanges:
+    """What the sheets need to say what changed: when the last run was, and each analysis's flag.
+
+    ``previous_run`` is the last run's time stamp (None on a first run, when
+    ``flags`` is empty); ``flags`` maps analysis keys (parts included) to flags,
+    analyses of the last run that are gone included.
+    """
+
+    previous_run: str | None
+    flags: Mapping[str, SinceLastRun]
+
+
+def track(results: Sequence[Result], earlier: Sequence[KeyResult], run: str, alpha: float,
+          keep: int = KEEP_RUNS) -> tuple[RunChanges, list[list[Any]]]:
+    """Compare a run with the last one in the history, set each result's flag, and give the new history rows.
+
+    Parameters
+    ----------
+    results : sequence of Result
+        This run's results (flags are set on them in place).
+    earlier : sequence of KeyResult
+        The history as read back before the run (``parse_history_rows``).
+    run : str
+        This run's time stamp (ISO 8601, UTC).
+    alpha : float
+        This run's significance level.
+    keep : int
+        Runs the history keeps, this one included.
+
+    Returns
+    -------
+    (RunChanges, list of rows)
+        The changes for the sheets, and the history sheet's rows (``history_rows``).
+    """
+    previous = last_run(earlier)
+    current = key_results(results, run, alpha)
+    flags = compare_runs(previous, current)
+    apply_since_last_run(results, flags)
+    previous_run = earlier[-1].run if earlier else None
+    return RunChanges(previous_run, flags), history_rows(earlier, current, keep)
+
+
+def history_sheet(rows: Sequence[Sequence[Any]]) -> Any:
+    """The hidden history sheet (kind ``history``): the rows as plain values, header first."""
+    from ..sheets.model import SheetModel
+
+    model = SheetModel(name=SHEET_NAME, kind=KIND, hidden=True)
+    for r, row in enumerate(rows):
+        for c, value in enumerate(row):
+            if value is None:
+                continue
+            style = "text" if isinstance(value, str) else "integer" if isinstance(value, int) else "number"
+            model.put(r, c, value, style)
+    model.widths = {0: 34.0, 1: 48.0}
+    return model
+
+
+def change_lines(results: Sequence[Result], changes: RunChanges) -> list[str]:
+    """The lines at the top of the results sheet: what changed, most important first (in the run's order).
+
+    One line "Nothing changed since the last run on ..." when nothing did; one
+    line saying it is the first run when there is no history.
+    """
+    from ..words.period_readings import change_label, run_time_text
+    from ..words.period_words import since_last_run_lines
+
+    labels: dict[str, str] = {}
+    for result in results:
+        for part in [*parts(result), TREND_PART]:
+            key = analysis_key(result, part)
+            labels.setdefault(key, change_label(result, part, key))
+    order = {key: i for i, key in enumerate(labels)}
+    grouped = []
+    for flag, keys in headline(changes.flags):
+        ranked = sorted(keys, key=lambda k: (order.get(k, len(order)), k))
+        texts = [labels.get(k) or change_label(None, None, k) for k in ranked]
+        grouped.append((flag, list(dict.fromkeys(texts))))
+    when = run_time_text(changes.previous_run) if changes.previous_run else None
+    return since_last_run_lines(grouped, when)

@@ -359,6 +359,7 @@ def run_workbook(
 
     say = progress or (lambda message, done=None, total=None: None)
     started = time.perf_counter()
+    now = datetime.now(timezone.utc)
     with stages.stage("open"):
         source, sink, opened = _backends(path, source, sink)
         sink.check(str(out) if out else None)  # a locked or unwritable target is refused before the work
@@ -403,17 +404,21 @@ def run_workbook(
         samples=[answer.prepared.samples for answer in answers],
         settings=plan.settings,
         version=__version__,
-        started=datetime.now(timezone.utc),
+        started=now,
         seconds=time.perf_counter() - started,
         share_min_count=(min_count or DEFAULT_MIN_COUNT) if share else None,
     )
     explain_results(results, plan.settings, context, n_comparisons=family)
     previous_log = _previous_log_rows(source)
+    earlier = _previous_history(source)
+    had_periods = "periods" in source.tool_sheets().values()
     if opened is not None:
         opened.close()  # everything is read; the write does not need the source
-    models = report.build_sheets(results, table, context, previous_log=previous_log)
+    history_model = _since_last_run(results, earlier, now, context)
+    models = report.build_sheets(results, table, context, previous_log=previous_log, keep_periods=had_periods)
     if share:
         models = suppress(models, context.share_min_count)
+    models.append(history_model)
     stages.add("report", time.perf_counter() - report_start)
     say(console.WRITING)
     with stages.stage("write"):
@@ -448,6 +453,30 @@ def _used_columns(plan: Plan) -> list[str]:
         if c.role is Role.EVENTS:
             names.extend(t for t in (c.out_of, c.per) if t and t not in names)
     return list(dict.fromkeys(names))
+
+
+def _previous_history(source: WorkbookSource) -> list[Any]:
+    """The key results of earlier runs, from the hidden history sheet (none on a first run)."""
+    from . import history
+
+    for name, kind in source.tool_sheets().items():
+        if kind == history.KIND:
+            return history.parse_history_rows(source.iter_rows(name))
+    return []
+
+
+def _since_last_run(results: list[Any], earlier: list[Any], now: datetime, context: Any) -> Any:
+    """Flag each result against the last run, put the changes at the top of the sheet; the new history sheet.
+
+    In sharing mode the results arrive suppressed, so the history keeps the
+    numbers as the sheets show them and the flags are worked out from those.
+    """
+    from . import history
+
+    stamp = now.strftime("%Y-%m-%dT%H:%M:%S.%fZ")  # to the microsecond: two runs in one second stay apart
+    changes, rows = history.track(results, earlier, stamp, context.settings.alpha)
+    context.changes = history.change_lines(results, changes)
+    return history.history_sheet(rows)
 
 
 def _previous_log_rows(source: WorkbookSource) -> list[list[Any]]:

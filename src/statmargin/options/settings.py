@@ -20,6 +20,7 @@ def make_settings(
     family: str | None = None,
     grain: str | None = None,
     per_unit: str | float | None = None,
+    series_by_group: bool = False,
 ) -> Settings:
     """Settings from plain option values, with one-line errors for values that do not fit.
 
@@ -38,7 +39,7 @@ def make_settings(
         raise OptionError(refusals.unknown_word("--adjust", adjust, [a.value for a in AdjustMethod])) from None
     if isinstance(confidence, bool) or not isinstance(confidence, (int, float)) or not 0.0 < float(confidence) < 1.0:
         raise OptionError(refusals.bad_confidence(confidence))
-    extra: dict[str, Any] = {}
+    extra: dict[str, Any] = {"series_by_group": bool(series_by_group)}
     if family is not None:
         extra["family"] = _word(AdjustFamily, family, "--adjust-across")
     if grain is not None:

@@ -4,6 +4,8 @@ Each outcome is analysed:
 
 - against its comparison value, when one is given (``ColumnChoice.against``);
 - with its wide-form partner, when ``paired_with`` names another column;
+- over time, when a column has the role ``period`` (the whole data; and, with
+  the "Series by group" setting, each group of each compare-by column);
 - by each compare-by column; with a pairing key and a two-level compare-by
   column this becomes a paired (long-form) analysis.
 
@@ -11,25 +13,32 @@ Each events column (rows of events out of a total, or per person-time) is
 analysed the same way: against its target, then by each compare-by column. A
 count column weights every analysis (each row stands for that many records).
 Impossible event rows and counts are refused here, once, in one line.
+
+A period column is never a compare-by column: a compare-by column whose text
+cells all read as periods (``2026-03``, ``Mar 2026``, ``2026 Q1``) is refused
+with a one-line message pointing at the period role, unless its type was set
+on the roles sheet.
 """
 
 from __future__ import annotations
 
+from collections import Counter
 from dataclasses import dataclass
 
 import numpy as np
 
 from ..errors import NotEnoughDataError, RoleError
 from ..options.against import parse_against
-from ..read.table import Table
-from ..vocabulary import Role
+from ..read.table import Column, Table
+from ..vocabulary import MeasureType, Precision, Role
 from ..vocabulary.codes import Skip, coded
 from ..words import rates_words, refusals
 from ..words.sentences import say
 from .clean import NUMBERS
+from .levels import look_alikes
 from .model import ColumnChoice, Plan, Settings
 from .rates_units import parse_per_unit, parse_target, rate_target, share_target
-from .types import infer_type, usable_values
+from .types import category_labels, infer_type, usable_values
 
 
 @dataclass
@@ -53,6 +62,8 @@ class Analysis:
     def events(self) -> bool:
         """An analysis of rows of events (the outcome is a count of events with its total)."""
         return bool(self.out_of or self.per)
+    period: str | None = None  # the period column: the outcome over time (with ``by``: one group's series)
+    group: str | None = None  # the level of ``by`` whose series this is
 
 
 def expand(plan: Plan, table: Table) -> list[Analysis]:
@@ -101,6 +112,14 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
     if key and not bys:
         raise RoleError(refusals.key_needs_by(key))
     count = _count_column(plan, table, events, key)
+    period = _period_column(plan)
+    if period is not None and (count or events):
+        from ..words.period_words import period_with_aggregated
+
+        other = (Role.COUNT, count) if count else (Role.EVENTS, events[0].name)
+        raise RoleError(period_with_aggregated(period, other[1], other[0].value))
+    for by in bys:
+        _refuse_periods_as_groups(table.column(by.name), by)
 
     analyses: list[Analysis] = []
     for out in outcomes:
@@ -117,11 +136,18 @@ def expand(plan: Plan, table: Table) -> list[Analysis]:
             analyses.append(
                 Analysis(out.name, paired_with=out.paired_with, outcome_choice=out, by_choice=partner, count=count)
             )
+        if period is not None:
+            analyses.append(Analysis(out.name, period=period, outcome_choice=out))
         for by in bys:
             if by.name == out.name:
                 continue
             analyses.append(Analysis(out.name, by=by.name, pairing_key=key, outcome_choice=out, by_choice=by,
                                      count=count))
+            if period is not None and plan.settings.series_by_group and not key:
+                analyses.extend(
+                    Analysis(out.name, by=by.name, outcome_choice=out, by_choice=by, period=period, group=level)
+                    for level in _group_levels(table.column(by.name), by, plan.settings.merge_look_alikes)
+                )
         if len(analyses) == before:
             raise RoleError(refusals.outcome_alone(out.name))
     for choice in events:
@@ -219,3 +245,59 @@ def check_rows_of(table: Table, events: str, total: str, *, binomial: bool) -> N
 
     check_rows(_numbers(table, events), _numbers(table, total), binomial=binomial, events_name=events,
                totals_name=total, row_numbers=table.rows)
+
+
+# --------------------------------------------------------------------------- the period role
+
+
+def _period_column(plan: Plan) -> str | None:
+    """The one column marked ``period`` (None without one); refuse two."""
+    from ..words.period_words import several_periods
+
+    marked = [c.name for c in plan.columns if c.role is Role.PERIOD]
+    if len(marked) > 1:
+        raise RoleError(several_periods(marked))
+    return marked[0] if marked else None
+
+
+def _refuse_periods_as_groups(column: Column, choice: ColumnChoice) -> None:
+    """Refuse a compare-by column whose text cells are all periods, unless the user set its type.
+
+    A month column compared as unordered categories gives a chi-square with no
+    trend; the period role gives the series, the trend and the flags instead.
+    Years alone (``2025``, ``2026``) are left as groups: two years are a plain
+    two-group comparison as often as a series.
+    """
+    from ..words.period_words import compare_by_holds_periods
+    from .periods import read_period_text
+
+    if choice.treat_as is not None:
+        return
+    if not bool(np.all(np.isnan(column.numbers))):
+        return  # numbers (or dates) among the cells: not a column of period labels
+    present = column.labels[column.labels != np.array(None)]  # elementwise: the cells holding text
+    import pandas as pd
+
+    distinct = pd.unique(present)
+    if distinct.size < 2:
+        return
+    examples: list[str] = []
+    for label in distinct:
+        read = read_period_text(str(label))
+        if read is None or read.precision is Precision.YEAR:
+            return
+        if len(examples) < 3:
+            examples.append(str(label))
+    raise RoleError(compare_by_holds_periods(column.name, examples))
+
+
+def _group_levels(column: Column, choice: ColumnChoice, merge: bool) -> list[str]:
+    """The groups of a compare-by column, in its level order, look-alike spellings merged as the run will."""
+    info = infer_type(column, choice)
+    if info.type not in (MeasureType.CATEGORICAL, MeasureType.ORDINAL) or not info.levels:
+        return []
+    kept: dict[str, str] = {}
+    if merge:
+        counts = Counter(label for label in category_labels(column) if label is not None)
+        kept = {label: group.kept for group in look_alikes(counts) for label in group.labels}
+    return list(dict.fromkeys(kept.get(level, level) for level in info.levels))

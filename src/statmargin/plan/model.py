@@ -31,6 +31,7 @@ class Settings:
     rows: RowsToUse = RowsToUse.ALL  # hidden and filtered rows used (and said so) or left out
     grain: Grain = Grain.MONTH  # the length of a period for the period role
     latest_period: str | None = None  # the latest period to report, as typed (None: last complete)
+    series_by_group: bool = False  # with a period column: also a series for each group of each compare-by column
     per_unit: str | None = None  # the unit rates are given in, as typed ("per 1,000 person-years")
 
 

@@ -59,6 +59,7 @@ _CHOICES: dict[str, tuple[str, ...]] = {
     "rows": tuple(r.value for r in RowsToUse),
     "merge_look_alikes": tuple(y.value for y in YesNo),
     "grain": tuple(g.value for g in Grain),
+    "series_by_group": tuple(y.value for y in YesNo),
 }
 SETTINGS: tuple[SettingRow, ...] = tuple(
     SettingRow(label, key, _CHOICES.get(key, ())) for key, label in roles_words.SETTING_LABELS.items()
@@ -141,8 +142,8 @@ def _setting_value(plan: Plan, data_sheet: str, header_row: int, key: str) -> An
         return data_sheet
     if key == "header_row":
         return header_row
-    if key == "merge_look_alikes":
-        return (YesNo.YES if settings.merge_look_alikes else YesNo.NO).value
+    if key in ("merge_look_alikes", "series_by_group"):
+        return (YesNo.YES if getattr(settings, key) else YesNo.NO).value
     value = getattr(settings, key)
     return value.value if isinstance(value, Enum) else ("" if value is None else value)
 
@@ -335,6 +336,8 @@ def _parse_settings(values: dict[str, tuple[Any, str]], sheet_name: str) -> Sett
         is YesNo.YES,
         "grain": lambda word, cell: _pick(Grain, word, roles_words.cell_of(cell, sheet_name)),
         "latest_period": lambda word, cell: word,
+        "series_by_group": lambda word, cell: _pick(YesNo, word, roles_words.cell_of(cell, sheet_name))
+        is YesNo.YES,
         "per_unit": lambda word, cell: word,
     }
     for key, parse in parsers.items():

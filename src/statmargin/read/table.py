@@ -108,6 +108,9 @@ class Table:
         columns: dict[str, Column] = {}
         for i, name in enumerate(frame.columns):
             series = frame[name]
+            if pd.api.types.is_datetime64_any_dtype(series):
+                columns[str(name)] = _dates_column(series, str(name), column_letter(i))
+                continue
             numeric = pd.to_numeric(series, errors="coerce")
             numbers = numeric.to_numpy(dtype="float64", na_value=np.nan)
             is_text = series.notna().to_numpy() & np.isnan(numbers)
@@ -141,3 +144,17 @@ def column_index(letter: str) -> int:
     for ch in letter.upper():
         index = index * 26 + (ord(ch) - 64)
     return index - 1
+
+
+def _dates_column(series: Any, name: str, letter: str) -> Column:
+    """A pandas column of datetimes as the reader stores dates: day numbers from 1899-12-30."""
+    import pandas as pd
+
+    stamps = pd.to_datetime(series)
+    if getattr(stamps.dt, "tz", None) is not None:
+        stamps = stamps.dt.tz_localize(None)
+    days = (stamps - pd.Timestamp("1899-12-30")) / pd.Timedelta(days=1)
+    numbers = days.to_numpy(dtype="float64", na_value=np.nan)
+    present = ~np.isnan(numbers)
+    return Column(name=name, letter=letter, numbers=numbers, labels=np.full(len(series), None, dtype=object),
+                  header=name, n_blank=int((~present).sum()), n_dates=int(present.sum()))

@@ -24,6 +24,7 @@ SHEET_NAMES = {
     "shape": "statmargin shape checks",
     "notes": "statmargin data notes",
     "log": "statmargin run log",
+    "periods": "statmargin periods",
 }
 
 MAX_DECIMALS = 4  # the most decimals a column's own values are shown with
@@ -58,6 +59,7 @@ class ReportContext:
     fingerprint: str = ""
     decimals: dict[str, int] = field(default_factory=dict)  # each numeric column's own precision
     hidden_rows: int | None = 0  # data rows a filter or the user hid (None: the workbook cannot tell)
+    changes: list[str] = field(default_factory=list)  # what changed since the last run (lines; none: not tracked)
 
     @classmethod
     def from_run(

@@ -63,15 +63,24 @@ class Cell:
 
 @dataclass
 class ChartSeries:
+    """One series of a chart. Line charts also say how the line is drawn and where its interval is.
+
+    ``line`` is "main" (a line with markers), "band" (a light dotted line
+    without markers: one edge of an interval band), "limit" (a dashed line
+    without markers) or "centre" (a thin line without markers); bar charts
+    ignore it.
+    """
+
     name: str
     values: str  # range on the chart's own sheet, without a sheet name: "$C$5:$C$14"
+    line: str = "main"
 
 
 @dataclass
 class Chart:
     """A native, editable chart over ranges of a tool sheet."""
 
-    kind: str  # "column" (histogram over computed bins) or "percent_bar" (stacked 100% bars)
+    kind: str  # "column" (histogram over computed bins), "percent_bar" (stacked 100% bars) or "line"
     title: str
     categories: str  # range on the chart's own sheet holding the labels, e.g. "$B$5:$B$14"
     series: list[ChartSeries]
@@ -80,6 +89,9 @@ class Chart:
     height_rows: int = 15
     x_title: str | None = None
     y_title: str | None = None
+    y_format: str | None = None  # number format of the value axis, e.g. "0%" (default: General)
+    y_min: float | None = None  # value axis bounds (default: the program's automatic scale)
+    y_max: float | None = None
 
 
 @dataclass
@@ -96,7 +108,7 @@ class SheetModel:
     """A whole tool sheet. ``kind`` is the marker that identifies it on re-runs."""
 
     name: str  # preferred sheet name; the writer picks another if a user sheet has it
-    kind: str  # "roles", "results", "shape", "notes", "log", "charts"
+    kind: str  # "roles", "results", "shape", "notes", "log", "periods", "history", ...
     cells: dict[tuple[int, int], Cell] = field(default_factory=dict)  # (row, col), 0-based
     widths: dict[int, float] = field(default_factory=dict)  # column index -> width in characters
     freeze: tuple[int, int] | None = None  # (rows, cols) frozen above/left
@@ -124,6 +136,8 @@ class SheetModel:
     # every printed page, so each page keeps its header row and question column.
     print_title_rows: tuple[int, int] | None = None
     print_title_cols: int = 0
+    # A sheet the tool keeps for itself (the run history): written hidden, read back on the next run.
+    hidden: bool = False
 
     def put(
         self,

@@ -21,6 +21,7 @@ from .context import SHEET_NAMES, ReportContext, analysis_key, quote_sheet
 from .log import LOG_COLUMNS, log_sheet, parse_log_rows, run_info
 from .model import SheetModel
 from .notes import NOTE_COLUMNS, notes_sheet
+from .periods import sheet_if_any
 from .results import COL, RESULT_COLUMNS, RESULT_PAGE_BREAKS, RESULT_PRINT_SCALE, results_sheet
 from .shapes import bin_edges, shape_sheet
 from .share import suppress
@@ -54,6 +55,7 @@ def build_sheets(
     *,
     previous_log: Sequence[Sequence[Any] | Mapping[str, Any]] = (),
     extra_notes: Sequence[str] = (),
+    keep_periods: bool = False,
 ) -> list[SheetModel]:
     """All four tool sheets for one run, with results linked to their shape blocks.
 
@@ -69,11 +71,15 @@ def build_sheets(
         Earlier runs' log rows (``parse_log_rows``).
     extra_notes : sequence of str
         Plain sentences for the data-notes sheet (e.g. incomplete pairs).
+    keep_periods : bool
+        Write the periods sheet even without results over time (the workbook
+        has one from an earlier run, which must not keep an old series).
 
     Returns
     -------
     list of SheetModel
-        Results, shape checks, data notes and run log, in that order.
+        Results, the periods sheet (when any result is over time), shape checks,
+        data notes and run log, in that order.
 
     Notes
     -----
@@ -94,8 +100,10 @@ def build_sheets(
         results = suppress(list(results), context.share_min_count)
         explain.apply(results, context.settings, context, n_comparisons=family)
     shape = shape_sheet(results, context)
+    periods = sheet_if_any(results, context, always=keep_periods)
     models = [
-        results_sheet(results, context, shape.anchors),
+        results_sheet(results, context, shape.anchors, periods[0].anchors if periods else None),
+        *periods,
         shape,
         notes_sheet(notes, extra, context),
         log_sheet(previous_log, run_info(context, results)),

@@ -24,8 +24,9 @@ from typing import Any
 
 from ..read.table import column_letter
 from ..results import Result
-from ..vocabulary import EstimateKind
+from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, SinceLastRun
 from ..words import explain, results_text
+from ..words.period_words import SINCE_LAST_RUN_WORDS
 from ..words.sentences import say, say_all
 from .context import (
     SHEET_NAMES,
@@ -42,9 +43,10 @@ from .shapes import shape_sheet
 # Printed landscape at RESULT_PRINT_SCALE; each printed page's columns (split by
 # RESULT_PAGE_BREAKS) fit a Letter or A4 page inside the default margins.
 RESULT_COLUMNS: tuple[tuple[str, float], ...] = (
-    ("Question", 28),
-    ("Reading", 58),
-    ("Cautions", 40),
+    ("Question", 26),
+    ("Reading", 54),
+    ("Cautions", 32),
+    ("Since last run", 14),
     ("Outcome", 16),
     ("Compared by / against", 20),
     ("n used", 9),
@@ -70,15 +72,19 @@ RESULT_COLUMNS: tuple[tuple[str, float], ...] = (
 COL = {name: i for i, (name, _) in enumerate(RESULT_COLUMNS)}
 RESULT_PAGE_BREAKS = (COL["Outcome"], COL["Statistic"], COL["Estimate"])
 RESULT_PRINT_SCALE = 75
+# Changes since the last run shown in the caution colour.
+ALERTS = frozenset({SinceLastRun.DIRECTION_REVERSED, SinceLastRun.NOW_BELOW_LEVEL,
+                    SinceLastRun.NO_LONGER_BELOW_LEVEL, SinceLastRun.MOVED_OUTSIDE_INTERVAL})
 # Freeze the table's header row only when the rows above it leave most of a laptop screen free
 # (about 35 rows show at 100%; common practice, our own measure).
 FREEZE_MAX_ROW = 20
-PLAIN_SPAN = f"A{{row}}:{column_letter(COL['Cautions'])}{{row}}"
+PLAIN_SPAN = f"A{{row}}:{column_letter(COL['Since last run'])}{{row}}"
 SHARE_KINDS = (
     EstimateKind.SHARE,
     EstimateKind.SHARE_FURTHEST,
     EstimateKind.SHARE_DIFFERENCE,
     EstimateKind.PAIRED_SHARE_DIFFERENCE,
+    EstimateKind.SHARE_CHANGE_PER_PERIOD,
 )
 RATE_KINDS = (
     EstimateKind.RATE,
@@ -151,13 +157,18 @@ def _top_block(model: SheetModel, context: ReportContext, results: Sequence[Resu
         when=_run_time_text(context), version=context.version, confidence=settings.confidence,
         adjust=explain.ADJUST_NAMES.get(str(settings.adjust), str(settings.adjust)), family=family,
         sides=str(settings.alternative), hidden_rows=results_text.hidden_rows_note(context.hidden_rows, settings.rows),
+        across=str(settings.family),
     )
-    model.put(1, 0, run_line, "muted")
+    model.put(1, 0, run_line, "wrap")  # wrapped across the plain columns: it is longer than a page is wide
     _merge_plain(model, 1)
     not_run = sum(1 for r in results if r.skipped)
     model.put(2, 0, results_text.status_line(len(results) - not_run, not_run), "subtitle")
     _merge_plain(model, 2)
     row = 3
+    for n, line in enumerate(context.changes):  # what changed since the last run, most important first
+        model.put(row, 0, line, "subtitle" if n == 0 else "wrap")
+        _merge_plain(model, row)
+        row += 1
     model.anchors["share_note"] = f"A{row + 1}"
     if context.share_mode:
         model.put(row, 0, explain.SHARE_NOTE.format(floor=context.share_min_count), "caution")
@@ -175,7 +186,7 @@ def _answer_block(model: SheetModel, row: int, results: Sequence[Result], contex
     row += 1
     model.put_row(row, list(results_text.ANSWER_HEADERS), "header")
     row += 1
-    for result in results:
+    for result in changed_first(results):
         line = explain.headline(result, settings=context.settings, context=context, n_comparisons=family)
         model.put(row, 0, line.question, "wrap")
         if line.not_run:
@@ -185,6 +196,14 @@ def _answer_block(model: SheetModel, row: int, results: Sequence[Result], contex
             model.put(row, 2, results_text.size_and_evidence(line.size, line.evidence), "wrap")
         row += 1
     return row + 1
+
+
+def changed_first(results: Sequence[Result]) -> list[Result]:
+    """The results with those that changed since the last run first (most important change first)."""
+    order: dict[SinceLastRun | None, int] = {
+        flag: i for i, flag in enumerate(SINCE_LAST_RUN_ORDER) if flag is not SinceLastRun.UNCHANGED
+    }
+    return sorted(results, key=lambda r: order.get(r.since_last_run, len(order)))
 
 
 def _cautions_block(model: SheetModel, row: int, run_wide: Sequence[str]) -> int:
@@ -235,6 +254,7 @@ def results_sheet(
     results: Sequence[Result],
     context: ReportContext,
     shape_anchors: Mapping[str, str] | None = None,
+    periods_anchors: Mapping[str, str] | None = None,
 ) -> SheetModel:
     """The results sheet: run line, answers, run-wide cautions, then one row per analysis.
 
@@ -247,6 +267,9 @@ def results_sheet(
     shape_anchors : mapping, optional
         ``"analysis_<i>"`` -> cell of each analysis block on the shape sheet
         (``shape_sheet(...).anchors``); computed when not given.
+    periods_anchors : mapping, optional
+        The same for the periods sheet: a result over time links to its series
+        and chart there instead.
 
     Returns
     -------
@@ -295,9 +318,15 @@ def results_sheet(
             model.put(row, COL["Cautions"], "\n".join(own), "wrap")
         else:
             model.put(row, COL["Cautions"], results_text.NO_ROW_CAUTIONS, "muted")
+        if result.since_last_run is not None:
+            model.put(row, COL["Since last run"], SINCE_LAST_RUN_WORDS[result.since_last_run],
+                      "caution" if result.since_last_run in ALERTS else "wrap")
         _technical(model, row, result, context)
+        series = (periods_anchors or {}).get(f"analysis_{index}")
         anchor = shape_anchors.get(f"analysis_{index}")
-        if anchor:
+        if series:
+            model.put(row, COL["Details"], results_text.SERIES_LINK, "link", link=f"{{periods}}!{series}")
+        elif anchor:
             model.put(row, COL["Details"], "shape checks", "link", link=f"{{shape}}!{anchor}")
         row += 1
         for followup in result.followups:
@@ -309,7 +338,8 @@ def results_sheet(
             if followup.estimate is not None:
                 fe = followup.estimate
                 style = (
-                    _fixed(context.decimals[result.outcome] + 1)
+                    "percent" if fe.kind in SHARE_KINDS
+                    else _fixed(context.decimals[result.outcome] + 1)
                     if result.outcome in context.decimals and fe.kind not in RATE_KINDS
                     else "number"
                 )

@@ -28,7 +28,10 @@ What is hidden (decisions):
   shares) of a categorical analysis with a small cell; and for a 2 x 2 table
   with a small cell also its effect, statistic and p-values (with the margins,
   any of them would give the cell back); adjusted-residual follow-ups of
-  tables with a small cell are dropped. Standardized effects, statistics and
+  tables with a small cell are dropped; in a series over time, each period with
+  a small n (or, for shares, a small count of either level) loses its value,
+  interval and limits, and a latest-period comparison with it its estimate
+  (and, for shares, its statistic and p-values). Standardized effects, statistics and
   p-values of larger tables and of continuous comparisons are kept: they are
   functions of the whole data that do not single out a cell or a group mean.
 
@@ -65,6 +68,7 @@ SUPPRESSED_TEXT = "suppressed"
 
 _CATEGORICAL = (Design.ONE_SAMPLE_CATEGORICAL, Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL)
 _GROUPED_CONTINUOUS = (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS, Design.PAIRED_CONTINUOUS)
+_OVER_TIME = (Design.PERIOD_SHARES, Design.PERIOD_CENTRE)
 
 
 def is_small_count(value: Any, min_count: int = DEFAULT_MIN_COUNT) -> bool:
@@ -256,6 +260,8 @@ def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Resul
         # estimate and its effect with the other groups' figures.
         hidden |= {"estimate", "effect"}
         out.followups = []
+    elif out.design in _OVER_TIME and _suppress_periods(out, min_count):
+        hidden.add("periods")
     if "estimate" in hidden and out.estimate is not None:
         out.estimate = replace(out.estimate, value=None, ci_low=None, ci_high=None)
     if "effect" in hidden and out.effect is not None:
@@ -320,6 +326,51 @@ def _hide_counts(result: Result, min_count: int) -> None:
     result.notes = [_hide_facts(n, min_count) for n in result.notes]
     if result.skipped is not None:
         result.skipped = _hide_facts(result.skipped, min_count)
+
+
+def _small_period(point: Any, design: Design, min_count: int) -> bool:
+    """A period whose n, or (for shares) whose count of either level, is a small count."""
+    if is_small_count(point.n, min_count):
+        return True
+    if design is Design.PERIOD_SHARES and point.value is not None and point.n:
+        count = round(point.value * point.n)
+        return is_small_count(count, min_count) or is_small_count(point.n - count, min_count)
+    return False
+
+
+def _suppress_periods(result: Result, min_count: int) -> bool:
+    """Hide what reveals a small count in a series over time; True when anything was hidden.
+
+    A period's share (or mean) and interval are hidden with its n, and so are its
+    p-chart limits (computed from n); for shares, a period with a small count of
+    either level is hidden too, as a small cell of a table is. A latest-period
+    comparison that involves such a period loses its estimate and, for shares
+    (a 2 x 2 table), its statistic and p-values. The trend and the flags are kept:
+    they are functions of the whole series.
+    """
+    small = {p.period for p in result.periods or [] if _small_period(p, result.design, min_count)}
+    if not small:
+        return False
+    result.periods = [
+        replace(p, n=_hidden_count(p.n, min_count), value=None, ci_low=None, ci_high=None, lower_limit=None,
+                upper_limit=None)
+        if p.period in small else p
+        for p in result.periods or []
+    ]
+    for g in result.groups:
+        if isinstance(g, dict) and str(g.get("label")) in small:
+            for key in list(g):
+                if key not in ("label", "n"):
+                    g[key] = None
+            g["suppressed"] = True
+    shares = result.design is Design.PERIOD_SHARES
+    result.followups = [
+        replace(f, estimate=None, statistic=None if shares else f.statistic,
+                p_value=None if shares else f.p_value, p_adjusted=None if shares else f.p_adjusted)
+        if any(level in small for level in f.levels) else f
+        for f in result.followups
+    ]
+    return True
 
 
 # ---------------------------------------------------------------- entry point

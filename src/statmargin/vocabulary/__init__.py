@@ -8,11 +8,20 @@ and the identifiers written to JSON; display text is made from them in
 from .columns import MeasureType, Role, ShapeHandling
 from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
 from .effects import EffectKind, EstimateKind
-from .periods import ChartKind, ControlRule, Grain, Precision, SinceLastRun
+from .periods import (
+    SINCE_LAST_RUN_ORDER,
+    ChartKind,
+    ControlRule,
+    Grain,
+    PeriodComparison,
+    Precision,
+    SinceLastRun,
+)
 from .run import AdjustFamily, AdjustMethod, Alternative, RowsToUse, YesNo
 
 __all__ = [
     "FOLLOWUP_TESTS",
+    "SINCE_LAST_RUN_ORDER",
     "AdjustFamily",
     "AdjustMethod",
     "Alternative",
@@ -24,6 +33,7 @@ __all__ = [
     "Grain",
     "MeasureType",
     "PMethod",
+    "PeriodComparison",
     "Precision",
     "Role",
     "RowsToUse",

@@ -109,6 +109,8 @@ class Skip(Word):
     NO_P_VALUE = "no_p_value"
     TOO_FEW_PERIODS = "too_few_periods"  # n, minimum (periods with data)
     NO_BASELINE = "no_baseline"  # n, minimum (baseline periods for control limits)
+    PERIOD_MANY_LEVELS = "period_many_levels"  # outcome, n: a series by period counts one level of two
+    PERIOD_LATEST_MISSING = "period_latest_missing"  # period, group: a group without rows in the latest period
     # aggregated rows (events out of totals, events per person-time, count weights)
     NOT_WHOLE_COUNT = "not_whole_count"  # what, row, value
     NEGATIVE_VALUE = "negative_value"  # what, row, value
@@ -176,6 +178,8 @@ class Reason(Word):
     FOLLOWUP_RESIDUALS = "followup_residuals"  # threshold
     TREND_SHARES = "trend_shares"  # outcome, level: Cochran-Armitage on the share of level
     TREND_SERIES = "trend_series"  # outcome, centre ("mean"/"median"): Mann-Kendall on the series
+    PERIOD_CENTRE = "period_centre"  # outcome, centre, cause ("ordinal", "user", "shape"), shape facts
+    PERIOD_COMPARISONS = "period_comparisons"  # comparisons: the latest period against which periods
     ONE_RATE_EXACT = "one_rate_exact"  # outcome
     RATE_EXACT_SMALL = "rate_exact_small"  # smallest
     RATE_SCORE = "rate_score"  # smallest

@@ -26,6 +26,8 @@ class Design(Word):
     GROUP_RATES = "group_rates"  # events per person-time compared across two or more groups
     ONE_SAMPLE_POOLED_SHARE = "one_sample_pooled_share"  # events out of totals, pooled, against a target share
     GROUP_POOLED_SHARES = "group_pooled_shares"  # events out of totals, pooled per group, compared across groups
+    PERIOD_SHARES = "period_shares"  # a two-level outcome over periods: share per period, trend, flags
+    PERIOD_CENTRE = "period_centre"  # a continuous outcome over periods: mean or median per period, trend, flags
 
 
 class Test(Word):

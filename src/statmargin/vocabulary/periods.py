@@ -57,3 +57,22 @@ class SinceLastRun(Word):
     DIRECTION_REVERSED = "direction_reversed"
     MOVED_OUTSIDE_INTERVAL = "moved_outside_interval"
     NO_LONGER_RUN = "no_longer_run"
+
+
+# Most important first: the first that applies is an analysis's flag, and changes are named in this order.
+SINCE_LAST_RUN_ORDER: tuple[SinceLastRun, ...] = (
+    SinceLastRun.NO_LONGER_RUN,
+    SinceLastRun.NEW,
+    SinceLastRun.DIRECTION_REVERSED,
+    SinceLastRun.NOW_BELOW_LEVEL,
+    SinceLastRun.NO_LONGER_BELOW_LEVEL,
+    SinceLastRun.MOVED_OUTSIDE_INTERVAL,
+    SinceLastRun.UNCHANGED,
+)
+
+
+class PeriodComparison(Word):
+    """A comparison of the latest period that a period analysis reports beside its trend."""
+
+    PREVIOUS = "latest_vs_previous"  # the latest period against the nearest earlier one with rows
+    YEAR_EARLIER = "latest_vs_year_earlier"  # against the same period a year earlier

@@ -13,7 +13,7 @@ from typing import Any
 
 from ..plan.model import Settings
 from ..results import Result
-from ..vocabulary import AdjustMethod, Design, PMethod, Test
+from ..vocabulary import AdjustFamily, AdjustMethod, Design, PMethod, Test
 from ..vocabulary.codes import Note
 from . import context as ctx
 from .magnitude import NEGLIGIBLE
@@ -61,12 +61,29 @@ UNADJUSTED_LINE = (
 )
 
 
+OUTCOME_FAMILY_LINE = (
+    "This run made {count} comparisons; the adjusted p-value ({method}) allows for the other "
+    "comparisons of the same outcome only, so read each result alongside the others."
+)
+# Designs that replace the line about groups differing with their own (``register_lines``).
+DESIGN_LINES: dict[Design, tuple[str, ...]] = {}
+
+
+def register_lines(design: Design, lines: Sequence[str]) -> None:
+    """Cautions a design's own words module states instead of the line about groups differing."""
+    DESIGN_LINES[design] = tuple(lines)
+
+
 def multiple_line(count: int, settings: Any) -> str:
-    """The several-comparisons caution, worded for the adjustment method in use."""
+    """The several-comparisons caution, worded for the adjustment method and family in use."""
     key = getattr(settings.adjust, "value", str(settings.adjust))
-    if key == AdjustMethod.NONE.value:
+    family = getattr(getattr(settings, "family", None), "value", None)
+    if key == AdjustMethod.NONE.value or family == AdjustFamily.NONE.value:
         return UNADJUSTED_LINE.format(count=count)
-    return MULTIPLE_LINE.format(count=count, method=ADJUST_NAMES.get(key, str(settings.adjust)))
+    method = ADJUST_NAMES.get(key, str(settings.adjust))
+    if family == AdjustFamily.OUTCOME.value:
+        return OUTCOME_FAMILY_LINE.format(count=count, method=method)
+    return MULTIPLE_LINE.format(count=count, method=method)
 EXCLUDED_LINE = (
     "{count} {records} left out (blank, unreadable or incomplete values; see the data "
     "notes); if they differ from the others, the result may be biased."
@@ -160,6 +177,8 @@ def cautions(
         return out
     if result.design in PAIRED:
         out.extend((BEFORE_AFTER_LINE, REGRESSION_LINE))
+    elif result.design in DESIGN_LINES:
+        out.extend(DESIGN_LINES[result.design])
     elif result.design not in ONE_SAMPLE:
         out.append(CAUSATION_LINE)
     if ctx.observational(context):

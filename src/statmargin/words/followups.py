@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from typing import Any
 
 from ..plan.model import Settings
@@ -9,6 +10,15 @@ from ..results import Followup, Result
 from ..vocabulary import Design, EstimateKind, Test
 from . import context as ctx
 from .numbers import ci_label, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
+
+FollowupReader = Callable[..., str]
+# Designs whose follow-ups are worded in their own module (``register_followup_reading``).
+READINGS_BY_DESIGN: dict[Design, FollowupReader] = {}
+
+
+def register_followup_reading(design: Design, reader: FollowupReader) -> None:
+    """Let a design's own words module word its follow-ups: ``reader(followup, parent, settings=, context=)``."""
+    READINGS_BY_DESIGN[design] = reader
 
 
 def followup_label(followup: Followup) -> str:
@@ -37,6 +47,8 @@ def followup_reading(
     -------
     str
     """
+    if parent.design in READINGS_BY_DESIGN:
+        return READINGS_BY_DESIGN[parent.design](followup, parent, settings=settings, context=context)
     outcome = parent.outcome or "the outcome"
     if followup.test == Test.PAIRWISE_RATE_RATIO:
         from .rate_readings import pair_reading

@@ -301,8 +301,35 @@ def since_last_run_lines(
     if previous_run is None:
         return ["First run: the next refresh will say what changed since this one."]
     if not changes:
-        return [f"Nothing changed since the last run ({previous_run})."]
-    lines = [f"Since the last run ({previous_run}):"]
+        return [f"Nothing changed since the last run on {previous_run}."]
+    lines = [f"What changed since the last run on {previous_run}:"]
     for flag, questions in changes:
         lines.append(f"{capitalized(SINCE_LAST_RUN_WORDS[flag])}: {'; '.join(questions)}.")
     return lines
+
+
+# --------------------------------------------------------------------------- the period role in a plan
+
+
+def several_periods(names: Sequence[str]) -> str:
+    """One line: more than one column is marked as the period."""
+    listed = ", ".join(repr(n) for n in names)
+    return f"Only one period column is allowed, but {listed} are marked 'period'; keep one."
+
+
+def compare_by_holds_periods(column: str, examples: Sequence[str]) -> str:
+    """One line: a compare-by column holds periods, which the period role reads in order."""
+    shown = ", ".join(examples)
+    return (
+        f"{column} holds periods ({shown}), which a compare-by column would treat as unordered groups; "
+        "give it the role 'period' for a series with its trend, or set its type to categorical to "
+        "compare the periods as groups."
+    )
+
+
+def period_with_aggregated(period: str, column: str, role: str) -> str:
+    """One line: a period series is not yet made from rows that stand for many records."""
+    return (
+        f"The period column {period!r} cannot yet be combined with the {role} column {column!r} "
+        "(series are made from one row per record); set one of the two roles to 'ignore' and run again."
+    )

@@ -23,6 +23,27 @@ EVENT_DESIGNS = (
     Design.ONE_SAMPLE_RATE,
     Design.GROUP_RATES,
 )
+OVER_TIME = (Design.PERIOD_SHARES, Design.PERIOD_CENTRE)
+STEP_WORDS = {"week": "week to week", "month": "month to month", "quarter": "quarter to quarter",
+              "year": "year to year"}
+
+
+def period_question(result: Result) -> str:
+    """'How has the share of Vaccinated = Yes changed month to month?' (for one group: 'in Team Heron')."""
+    extra = result.extra if isinstance(result.extra, Mapping) else {}
+    outcome = result.outcome or "the outcome"
+    step = STEP_WORDS.get(str(extra.get("grain") or "month"), "period to period")
+    if result.design == Design.PERIOD_SHARES and extra.get("level"):
+        what = f"the share of {outcome} = {extra['level']}"
+    elif extra.get("centre"):
+        what = f"the {extra['centre']} {outcome}"
+    else:
+        what = outcome
+    group = extra.get("group")
+    where = f" in {named(result, str(group))}" if group is not None and result.exposure else ""
+    if group is not None and result.exposure and named(result, str(group)) == str(group):
+        where = f" for {result.exposure} = {group}"
+    return f"How has {what} changed {step}{where}?"
 
 
 def group_labels(result: Result) -> list[str]:
@@ -131,6 +152,8 @@ def question(result: Result) -> str:
     design = result.design
     if design in EVENT_DESIGNS:
         return _events_question(result)
+    if design in OVER_TIME:
+        return period_question(result)
     if design == Design.ONE_SAMPLE_CONTINUOUS:
         return f"Does {outcome} differ from {against_text(result.against)}?"
     if design == Design.ONE_SAMPLE_CATEGORICAL:

@@ -22,7 +22,7 @@ from typing import Any
 
 from ..plan.model import Settings
 from ..results import Result
-from ..vocabulary import AdjustMethod, Design, EstimateKind, Test
+from ..vocabulary import AdjustFamily, AdjustMethod, Design, EstimateKind, Test
 from . import context as ctx
 from .magnitude import NEGLIGIBLE, Magnitude, magnitude
 from .numbers import ci_label, evidence_words, fmt_number, fmt_p, is_number
@@ -92,8 +92,12 @@ def _share_decimals(*shares: Any) -> int:
 
 def _family_tail(result: Result, settings: Settings, n_family: int | None) -> str:
     _, adjusted = p_used(result)
-    if not adjusted or settings.adjust is AdjustMethod.NONE:
+    if not adjusted or settings.adjust is AdjustMethod.NONE or settings.family is AdjustFamily.NONE:
         return ""
+    if settings.family is AdjustFamily.OUTCOME:
+        if result.p_adjusted == result.p_value:
+            return ""  # the only question about its outcome, or one at p = 1
+        return f" after allowing for the other questions about {result.outcome or 'this outcome'}"
     if n_family and n_family > 1:
         return f" after allowing for the {n_family} questions in this run"
     if n_family is None:

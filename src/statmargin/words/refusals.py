@@ -24,6 +24,11 @@ def empty_column(name: str, role: str) -> str:
 
 
 def unusable_type(name: str, kind: str, reason: str, role: str) -> str:
+    if kind == "date":
+        return (
+            f"Column {name!r} holds dates ({reason.rstrip('.')}), so it cannot be {role}; give it the role "
+            "'period' for a series by week, month, quarter or year, or change its role."
+        )
     return (
         f"Column {name!r} looks like {_article(kind)} ({reason.rstrip('.')}), so it cannot be {role}; "
         "set its type to continuous, categorical or ordinal, or change its role."

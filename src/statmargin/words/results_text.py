@@ -15,16 +15,26 @@ NOT_RUN = "Not run: {reason}"
 NO_ANALYSES = "No analyses were run: no column has the role 'outcome'."
 NO_ROW_CAUTIONS = "None beyond those above."
 FOLLOWUP_PREFIX = "  "
+SERIES_LINK = "series and chart"
 
 
 def run_line(*, workbook: str, sheet: str, rows_read: int, when: str, version: str, confidence: float,
-             adjust: str, family: int, sides: str, hidden_rows: str) -> str:
-    """One line saying what was read and how the run was set."""
-    adjusted = (
-        f"p-values adjusted across the {family} questions of this run ({adjust})"
-        if family > 1 and adjust != "no adjustment"
-        else "p-values not adjusted" if family > 1 else "one question"
-    )
+             adjust: str, family: int, sides: str, hidden_rows: str, across: str = "this run") -> str:
+    """One line saying what was read and how the run was set.
+
+    ``across`` is the adjustment family the run used (the roles sheet's "Adjust
+    across": ``this run``, ``each outcome`` or ``none``), stated in the line.
+    """
+    if family <= 1:
+        adjusted = "one question"
+    elif across == "none":
+        adjusted = "p-values not adjusted (adjust across: none)"
+    elif adjust == "no adjustment":
+        adjusted = "p-values not adjusted"
+    elif across == "each outcome":
+        adjusted = f"p-values adjusted within each outcome's questions ({adjust})"
+    else:
+        adjusted = f"p-values adjusted across the {family} questions of this run ({adjust})"
     return (
         f"{workbook}, sheet {sheet}: {rows_read:,} rows read{hidden_rows}. Run {when} with statmargin "
         f"{version}; {fmt_percent(confidence, 0)} intervals, {sides}, {adjusted}."

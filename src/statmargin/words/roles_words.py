@@ -25,6 +25,7 @@ SETTING_LABELS = {
     "merge_look_alikes": "Merge look-alike labels",
     "grain": "Period length",
     "latest_period": "Latest period",
+    "series_by_group": "Series by group",
     "per_unit": "Rates per",
 }
 STATUS_MISSING = "not in the data any more"

@@ -36,3 +36,4 @@ def link_to_missing_sheet(kind: str) -> str:
         f"A link points to the '{kind}' sheet, which is not being written and not in the "
         "workbook; the file was left as it was."
     )
+

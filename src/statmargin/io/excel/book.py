@@ -345,7 +345,11 @@ class ExcelBook:
                 titles = print_titles(model, final)
                 if titles:
                     new.names.add(PRINT_TITLES_NAME, "=" + titles)
-            created[0].activate()
+            shown = [new for model, new in zip(models, created, strict=True) if not model.hidden]
+            (shown or created)[0].activate()
+            for model, new in zip(models, created, strict=True):
+                if model.hidden:
+                    new.visible = False  # a sheet the tool reads back on the next run, out of the user's way
         except Exception as exc:  # noqa: BLE001
             raise WriteError(excel_messages.finish_refused(_brief(exc))) from None
         finally:

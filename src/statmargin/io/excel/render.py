@@ -32,7 +32,7 @@ from .cells import Rect, cell_grid, rectangles
 CELLS_PER_CALL = 250_000
 
 # xlwings' own words for the attributes set below (checked against xlwings by the tests).
-CHART_TYPES = {"column": "column_clustered", "percent_bar": "bar_stacked_100"}
+CHART_TYPES = {"column": "column_clustered", "percent_bar": "bar_stacked_100", "line": "line_markers"}
 PLOT_BY = "columns"
 LEGEND_POSITION = "bottom"
 LINE_STYLE = "continuous"
@@ -248,7 +248,9 @@ def add_chart(sheet: Any, chart: Chart, model: SheetModel, note: Callable[[str],
     -----
     The chart is made from the block of series values plotted by columns, and
     the category labels are set separately, so Excel never guesses which row or
-    column holds names. A chart whose series are not side by side on the same
+    column holds names. A line chart's lines take Excel's own styles (xlwings'
+    open-source core sets a series' name and fill only), and its value axis
+    Excel's automatic scale. A chart whose series are not side by side on the same
     rows is left out with a note (the sheet models always place them so).
     """
     block = _series_block(chart)
@@ -276,6 +278,8 @@ def add_chart(sheet: Any, chart: Chart, model: SheetModel, note: Callable[[str],
         made.value_axis.title = chart.y_title
     if chart.kind == "percent_bar":
         made.value_axis.number_format = "0%"
+    elif chart.y_format:
+        made.value_axis.number_format = chart.y_format
     histogram = chart.kind == "column"
     made.legend.visible = len(chart.series) > 1 or not histogram
     if len(chart.series) > 1 or not histogram:

@@ -21,7 +21,17 @@ A_NS = "http://schemas.openxmlformats.org/drawingml/2006/main"
 R_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
 XDR_NS = "http://schemas.openxmlformats.org/drawingml/2006/spreadsheetDrawing"
 
-CHART_KINDS = ("column", "percent_bar")
+CHART_KINDS = ("column", "percent_bar", "line")
+# How each line of a line chart is drawn: (width in EMU, dash, marker symbol).
+LINE_STYLES = {
+    "main": (22225, None, "circle"),
+    "band": (12700, "sysDot", None),
+    "limit": (12700, "dash", None),
+    "centre": (9525, None, None),
+}
+LIMIT_COLOUR = "B07156"
+CENTRE_COLOUR = "9A9A8E"
+BAND_COLOUR = "7D93A6"
 
 _RANGE = re.compile(r"^\$?([A-Za-z]{1,3})\$?(\d+):\$?([A-Za-z]{1,3})\$?(\d+)$")
 
@@ -91,6 +101,8 @@ def chart_xml(chart: Chart, sheet_name: str, model: SheetModel) -> bytes:
         else str(model.cells[rc].value)
         for rc in cat_cells
     ]
+    if chart.kind == "line":
+        return _line_chart_xml(chart, sheet_name, model, prefix, labels)
     histogram = chart.kind == "column"
     bar_dir = "col" if histogram else "bar"
     grouping = "clustered" if histogram else "percentStacked"
@@ -131,6 +143,100 @@ def chart_xml(chart: Chart, sheet_name: str, model: SheetModel) -> bytes:
         if len(chart.series) > 1 or not histogram
         else ""
     )
+    plot = (
+        f'<c:barChart><c:barDir val="{bar_dir}"/><c:grouping val="{grouping}"/><c:varyColors val="0"/>'
+        f"{''.join(series_xml)}"
+        f'<c:gapWidth val="{gap}"/>{overlap}'
+        '<c:axId val="50010"/><c:axId val="50020"/></c:barChart>'
+        f"{_axes(chart, cat_pos=cat_pos, val_pos=val_pos, val_format=val_format)}"
+    )
+    return _chart_space(chart, plot, legend)
+
+
+def _cached_numbers(ref: str, sheet_name: str, model: SheetModel) -> tuple[list[float | None], str]:
+    """The values a range holds on the model (None where a cell holds no number) and their numCache."""
+    cells = _range_cells(ref, sheet_name)
+    values: list[float | None] = []
+    for rc in cells:
+        cell = model.cells.get(rc)
+        value = None if cell is None else cell.value
+        number = value if isinstance(value, int | float) and not isinstance(value, bool) else None
+        values.append(float(number) if number is not None and number == number else None)
+    points = "".join(f'<c:pt idx="{n}"><c:v>{v!r}</c:v></c:pt>' for n, v in enumerate(values) if v is not None)
+    cache = f'<c:numCache><c:formatCode>General</c:formatCode><c:ptCount val="{len(cells)}"/>{points}</c:numCache>'
+    return values, cache
+
+
+def _line_chart_xml(chart: Chart, sheet_name: str, model: SheetModel, prefix: str, labels: list[str]) -> bytes:
+    """A line chart: the main series with markers (and its interval as error bars), limits dashed."""
+    str_pts = "".join(f'<c:pt idx="{n}"><c:v>{escape(t)}</c:v></c:pt>' for n, t in enumerate(labels))
+    series_xml = []
+    main_n = 0
+    for i, series in enumerate(chart.series):
+        _, cache = _cached_numbers(series.values, sheet_name, model)
+        width, dash, symbol = LINE_STYLES.get(series.line, LINE_STYLES["main"])
+        if series.line == "limit":
+            colour = LIMIT_COLOUR
+        elif series.line == "centre":
+            colour = CENTRE_COLOUR
+        elif series.line == "band":
+            colour = BAND_COLOUR
+        else:
+            colour = SERIES_COLOURS[main_n % len(SERIES_COLOURS)]
+            main_n += 1
+        dash_xml = f'<a:prstDash val="{dash}"/>' if dash else ""
+        marker = (
+            f'<c:marker><c:symbol val="{symbol}"/><c:size val="6"/><c:spPr><a:solidFill><a:srgbClr val="{colour}"/>'
+            f'</a:solidFill><a:ln w="9525"><a:solidFill><a:srgbClr val="{colour}"/></a:solidFill></a:ln></c:spPr></c:marker>'
+            if symbol else '<c:marker><c:symbol val="none"/></c:marker>'
+        )
+        series_xml.append(
+            f'<c:ser><c:idx val="{i}"/><c:order val="{i}"/>'
+            f"<c:tx><c:v>{escape(series.name)}</c:v></c:tx>"
+            f'<c:spPr><a:ln w="{width}" cap="rnd"><a:solidFill><a:srgbClr val="{colour}"/></a:solidFill>'
+            f"{dash_xml}<a:round/></a:ln></c:spPr>"
+            f"{marker}"
+            f"<c:cat><c:strRef><c:f>{escape(prefix + absolute(chart.categories))}</c:f>"
+            f'<c:strCache><c:ptCount val="{len(labels)}"/>{str_pts}</c:strCache></c:strRef></c:cat>'
+            f"<c:val><c:numRef><c:f>{escape(prefix + absolute(series.values))}</c:f>{cache}</c:numRef></c:val>"
+            '<c:smooth val="0"/></c:ser>'
+        )
+    val_format = escape(chart.y_format or "General")
+    # CT_Scaling: orientation, then max, then min (ECMA-376 Part 1, 21.2.2.195).
+    bounds = (f'<c:max val="{float(chart.y_max)!r}"/>' if chart.y_max is not None else "") + (
+        f'<c:min val="{float(chart.y_min)!r}"/>' if chart.y_min is not None else "")
+    plot = (
+        '<c:lineChart><c:grouping val="standard"/><c:varyColors val="0"/>'
+        f"{''.join(series_xml)}"
+        '<c:marker val="1"/><c:axId val="50010"/><c:axId val="50020"/></c:lineChart>'
+        f"{_axes(chart, cat_pos='b', val_pos='l', val_format=val_format, bounds=bounds, labels='low')}"
+    )
+    return _chart_space(chart, plot, '<c:legend><c:legendPos val="b"/><c:overlay val="0"/></c:legend>')
+
+
+def _axes(chart: Chart, *, cat_pos: str, val_pos: str, val_format: str, bounds: str = "",
+          labels: str = "nextTo") -> str:
+    """The category and value axes (ids 50010 and 50020) every chart here has."""
+    return (
+        '<c:catAx><c:axId val="50010"/><c:scaling><c:orientation val="minMax"/></c:scaling>'
+        f'<c:delete val="0"/><c:axPos val="{cat_pos}"/>'
+        f"{_title(chart.x_title, 1000) if chart.x_title else ''}"
+        '<c:numFmt formatCode="General" sourceLinked="1"/><c:majorTickMark val="none"/>'
+        f'<c:minorTickMark val="none"/><c:tickLblPos val="{labels}"/>'
+        '<c:crossAx val="50020"/><c:crosses val="autoZero"/><c:auto val="1"/>'
+        '<c:lblAlgn val="ctr"/><c:lblOffset val="100"/><c:noMultiLvlLbl val="0"/></c:catAx>'
+        f'<c:valAx><c:axId val="50020"/><c:scaling><c:orientation val="minMax"/>{bounds}</c:scaling>'
+        f'<c:delete val="0"/><c:axPos val="{val_pos}"/>'
+        '<c:majorGridlines><c:spPr><a:ln w="6350"><a:solidFill><a:srgbClr val="E3DFD8"/></a:solidFill></a:ln></c:spPr></c:majorGridlines>'
+        f"{_title(chart.y_title, 1000) if chart.y_title else ''}"
+        f'<c:numFmt formatCode="{val_format}" sourceLinked="0"/><c:majorTickMark val="none"/>'
+        '<c:minorTickMark val="none"/><c:tickLblPos val="nextTo"/>'
+        '<c:crossAx val="50010"/><c:crosses val="autoZero"/><c:crossBetween val="between"/></c:valAx>'
+    )
+
+
+def _chart_space(chart: Chart, plot: str, legend: str) -> bytes:
+    """A whole chart part around its plot area (chart and axes) and legend."""
     xml = (
         '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
         f'<c:chartSpace xmlns:c="{C_NS}" xmlns:a="{A_NS}" xmlns:r="{R_NS}">'
@@ -138,26 +244,7 @@ def chart_xml(chart: Chart, sheet_name: str, model: SheetModel) -> bytes:
         "<c:chart>"
         f"{_title(chart.title, 1200)}"
         '<c:autoTitleDeleted val="0"/>'
-        "<c:plotArea><c:layout/>"
-        f'<c:barChart><c:barDir val="{bar_dir}"/><c:grouping val="{grouping}"/><c:varyColors val="0"/>'
-        f"{''.join(series_xml)}"
-        f'<c:gapWidth val="{gap}"/>{overlap}'
-        '<c:axId val="50010"/><c:axId val="50020"/></c:barChart>'
-        '<c:catAx><c:axId val="50010"/><c:scaling><c:orientation val="minMax"/></c:scaling>'
-        f'<c:delete val="0"/><c:axPos val="{cat_pos}"/>'
-        f"{_title(chart.x_title, 1000) if chart.x_title else ''}"
-        '<c:numFmt formatCode="General" sourceLinked="1"/><c:majorTickMark val="none"/>'
-        '<c:minorTickMark val="none"/><c:tickLblPos val="nextTo"/>'
-        '<c:crossAx val="50020"/><c:crosses val="autoZero"/><c:auto val="1"/>'
-        '<c:lblAlgn val="ctr"/><c:lblOffset val="100"/><c:noMultiLvlLbl val="0"/></c:catAx>'
-        '<c:valAx><c:axId val="50020"/><c:scaling><c:orientation val="minMax"/></c:scaling>'
-        f'<c:delete val="0"/><c:axPos val="{val_pos}"/>'
-        '<c:majorGridlines><c:spPr><a:ln w="6350"><a:solidFill><a:srgbClr val="E3DFD8"/></a:solidFill></a:ln></c:spPr></c:majorGridlines>'
-        f"{_title(chart.y_title, 1000) if chart.y_title else ''}"
-        f'<c:numFmt formatCode="{val_format}" sourceLinked="0"/><c:majorTickMark val="none"/>'
-        '<c:minorTickMark val="none"/><c:tickLblPos val="nextTo"/>'
-        '<c:crossAx val="50010"/><c:crosses val="autoZero"/><c:crossBetween val="between"/></c:valAx>'
-        "</c:plotArea>"
+        f"<c:plotArea><c:layout/>{plot}</c:plotArea>"
         f"{legend}"
         '<c:plotVisOnly val="1"/><c:dispBlanksAs val="gap"/>'
         "</c:chart>"

@@ -454,7 +454,8 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
     edited: dict[str, bytes] = {}
     titles = [print_titles(m, name) for m, (name, _, _) in zip(models, new_sheets, strict=True)]
     edited[workbook_part] = _edit_workbook(
-        workbook_text, sheets, removed_idx, new_sheets, [m.kind for m in models], set(unmark_idx), titles
+        workbook_text, sheets, removed_idx, new_sheets, [m.kind for m in models], set(unmark_idx), titles,
+        hidden={k for k, m in enumerate(models) if m.hidden},
     )
     edited[wb_rels_part] = _edit_rels(parts[wb_rels_part].data(), drop_rel_ids, new_wb_rels)
     edited[CONTENT_TYPES_PART] = _edit_content_types(
@@ -504,6 +505,7 @@ def _edit_workbook(
     kinds: list[str],
     unmark: AbstractSet[int] = frozenset(),
     titles: list[str | None] | None = None,
+    hidden: AbstractSet[int] = frozenset(),
 ) -> bytes:
     """Swap replaced <sheet> elements for new ones in place, append new kinds, add markers.
 
@@ -514,6 +516,8 @@ def _edit_workbook(
     appended after the last sheet. Names scoped to a replaced sheet go with it.
     ``titles`` holds each new sheet's print-titles reference (or None); it becomes
     the sheet-scoped ``_xlnm.Print_Titles`` name, removed with the sheet on the next run.
+    ``hidden`` holds the positions (in ``new_sheets``) of sheets written hidden
+    (``state="hidden"``, ECMA-376 Part 1, 18.2.19) when the workbook did not have them yet.
     """
     prefix = _main_prefix(text)
     removed = set(removed_idx)
@@ -589,8 +593,8 @@ def _edit_workbook(
         raise WriteError(messages.no_sheet_list())
     replaced_kinds = {sheets[i].tool_kind for i in removed}
     added = "".join(
-        _sheet_element(prefix, r_prefix, *by_kind[kind], None)
-        for kind in kinds
+        _sheet_element(prefix, r_prefix, *by_kind[kind], "hidden" if k in hidden else None)
+        for k, kind in enumerate(kinds)
         if kind not in replaced_kinds
     )
     text = text[: close.start()] + added + text[close.start() :]
