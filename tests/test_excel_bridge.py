@@ -196,7 +196,24 @@ def test_copy_of_a_tool_sheet_becomes_the_users() -> None:
     copy.names.add("statmargin_sheet", '="roles"')
     assert statmargin.excel.plan(book) == 0
     assert xs.markers(book) == {"statmargin roles": '="roles"'}
-    assert xs.sheet_names(book) == ["Log", "my copy", "statmargin roles"]
+    assert xs.sheet_names(book) == ["Log", "statmargin roles", "my copy"]
+
+
+def test_a_replaced_tool_sheet_keeps_its_place_and_visibility(ran_book) -> None:
+    """Moved first and hidden by the user, the results and shape-check sheets are rewritten where they were, as they were."""
+    results, shapes = xs.sheet(ran_book, "statmargin results"), xs.sheet(ran_book, "statmargin shape checks")
+    first = ran_book.sheets.add(name="scratch", before=xs.sheet(ran_book, "Log"))
+    moved = ran_book.sheets.add(name="statmargin results moved", before=first)
+    moved.names.add("statmargin_sheet", '="results"')
+    results.delete()  # the stand-in cannot move a sheet: a marked copy placed first stands for the moved one
+    moved.name = "statmargin results"
+    shapes.visible = 2  # very hidden
+    before = xs.sheet_names(ran_book)
+    assert statmargin.excel.run(ran_book) == 0
+    assert xs.sheet_names(ran_book) == before
+    assert xs.sheet(ran_book, "statmargin shape checks").visible == 2
+    assert xs.sheet(ran_book, "statmargin results").visible == -1
+    assert xs.rows(xs.sheet(ran_book, "statmargin results"))[0][0] == "statmargin results"
 
 
 def test_out_file_is_refused() -> None:

@@ -6,7 +6,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from ..results import Result
-from .numbers import ci_label, decimals_for, fmt_ci, fmt_df, fmt_number, fmt_p, is_number
+from .numbers import ci_label, counted, decimals_for, fmt_ci, fmt_df, fmt_number, fmt_p, is_number
 from .sentences import say
 
 INTERNAL_ERROR = (
@@ -142,8 +142,8 @@ def run_summary(summary: Any) -> str:
     skipped = sum(1 for r in results if r.skipped)
     flagged = sum(1 for r in results if r.p_adjusted is not None and r.p_adjusted < 1 - r.confidence)
     lines = [
-        f"{summary.path}: {len(results)} analyses of sheet {summary.data_sheet!r} "
-        f"({summary.rows_read:,} rows read, {summary.notes} data notes).",
+        f"{summary.path}: {counted(len(results), 'analysis', 'analyses')} of sheet {summary.data_sheet!r} "
+        f"({counted(summary.rows_read, 'row')} read, {counted(summary.notes, 'data note')}).",
         f"  {flagged} with adjusted p below {1 - results[0].confidence:.2g}, {skipped} could not be run."
         if results
         else "  No analyses were run.",

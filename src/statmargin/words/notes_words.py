@@ -4,7 +4,9 @@ from __future__ import annotations
 
 
 def cells_noted(count: str) -> str:
-    return f"{count} cells were skipped, converted or merged while reading; each cell address links to the cell."
+    """The notes sheet's first line; ``count`` is the number as shown (hidden in sharing mode)."""
+    cells = "1 cell was" if count == "1" else f"{count} cells were"
+    return f"{cells} skipped, converted or merged while reading; each cell address links to the cell."
 
 
 def merged_into(kept: str) -> str:

@@ -93,3 +93,15 @@ def fmt_df(df: Any) -> str:
     if is_number(df):
         return fmt_number(df, 2 if not float(df).is_integer() else 0)
     return ""
+
+
+def counted(n: int, noun: str, plural: str | None = None) -> str:
+    """A count with its noun in the right number: '1 data note', '3 data notes', '1,200 rows'.
+
+    Examples
+    --------
+    >>> counted(1, "data note"), counted(3, "analysis", "analyses"), counted(1200, "row")
+    ('1 data note', '3 analyses', '1,200 rows')
+    """
+    word = noun if n == 1 else (plural or noun + "s")
+    return f"{n:,} {word}"

@@ -9,7 +9,9 @@ Reading: each sheet's used range is fetched in blocks of rows, one
 per cell); Excel error values arrive as their text (``#N/A``) so the reader
 notes them as it does for files.
 
-Writing: new tool sheets are added after the last sheet and filled completely
+Writing: each new tool sheet is added in the place of the tool sheet it
+replaces (and later takes its visibility, hidden or very hidden), or after the
+last sheet for a kind the workbook does not have yet, and filled completely
 (``render``) before any earlier tool sheet is touched; only then are the
 replaced sheets deleted and the new ones given their final names and markers.
 If Excel refuses anything while the new sheets are filled, they are deleted
@@ -310,6 +312,8 @@ class ExcelBook:
         names = list(sheets)
         marks = self.tool_sheets()
         placement = place([(n, marks.get(n)) for n in names], models)
+        predecessors = {marks[names[i]]: sheets[names[i]] for i in placement.removed if names[i] in marks}
+        states = {kind: sheet.visible for kind, sheet in predecessors.items()}
         app = self.book.app
         settings = _pause(app)
         created: list[Any] = []
@@ -319,9 +323,16 @@ class ExcelBook:
             temp_taken = {n.casefold() for n in names}
             for model in models:
                 temp = _temporary_name(temp_taken)
-                new = self.book.sheets.add(name=temp, after=last) if last is not None else self.book.sheets.add(name=temp)
+                old = predecessors.get(model.kind)
+                if old is not None:  # in the replaced sheet's place, so no sheet changes position
+                    new = self.book.sheets.add(name=temp, before=old)
+                elif last is not None:
+                    new = self.book.sheets.add(name=temp, after=last)
+                    last = new
+                else:
+                    new = self.book.sheets.add(name=temp)
+                    last = new
                 created.append(new)
-                last = new
                 render.render(new, model, placement.kind_to_name, base_font_size=base_size, on_note=self.notes.append)
         except StatmarginError:
             self._undo(created)
@@ -348,7 +359,10 @@ class ExcelBook:
             shown = [new for model, new in zip(models, created, strict=True) if not model.hidden]
             (shown or created)[0].activate()
             for model, new in zip(models, created, strict=True):
-                if model.hidden:
+                if model.kind in states:
+                    if not _visible(states[model.kind]):
+                        new.visible = states[model.kind]  # hidden (0) or very hidden (2), as the user left it
+                elif model.hidden:
                     new.visible = False  # a sheet the tool reads back on the next run, out of the user's way
         except Exception as exc:  # noqa: BLE001
             raise WriteError(excel_messages.finish_refused(_brief(exc))) from None
