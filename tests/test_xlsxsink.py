@@ -405,3 +405,27 @@ def test_results_print_plain_columns_first_in_libreoffice(tmp_path: Path) -> Non
     later = "".join(pages[first + 1 :])
     assert "Why this test" in later and "Effect size" in later
     assert "sleep.xlsx" in pages[first]  # the header value is shown whole
+
+
+def test_leftovers_of_a_killed_run_are_removed_by_the_next_write(tmp_path: Path) -> None:
+    """A temporary file whose writer is gone (or that is a day old) goes; one of a running writer stays."""
+    import os
+    import subprocess
+    import sys
+    import time
+
+    gone = subprocess.run([sys.executable, "-c", "import os; print(os.getpid())"], capture_output=True, text=True,
+                          check=True)
+    dead_pid = int(gone.stdout)
+    leftover = tmp_path / f"{xlsxsink.TEMP_PREFIX}{dead_pid}-abc.xlsx"
+    day_old = tmp_path / f"{xlsxsink.TEMP_PREFIX}{os.getpid()}-old.xlsx"
+    running = tmp_path / f"{xlsxsink.TEMP_PREFIX}{os.getpid()}-now.xlsx"
+    fresh_dead = tmp_path / f"{xlsxsink.TEMP_PREFIX}{dead_pid}-fresh.xlsx"
+    for path in (leftover, day_old, running, fresh_dead):
+        path.write_bytes(b"partial")
+    now = time.time()
+    os.utime(leftover, (now - 120, now - 120))
+    os.utime(day_old, (now - 2 * 24 * 3600, now - 2 * 24 * 3600))
+    removed = xlsxsink.remove_stale_temporaries(tmp_path, now=now)
+    assert sorted(p.name for p in removed) == sorted([leftover.name, day_old.name])
+    assert running.exists() and fresh_dead.exists()

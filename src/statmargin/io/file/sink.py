@@ -16,6 +16,7 @@ import os
 import signal
 import tempfile
 import threading
+import time
 import xml.etree.ElementTree as ET
 import zipfile
 from collections.abc import Iterator
@@ -186,9 +187,11 @@ class FileSink:
         expected: list[str],
     ) -> None:
         folder = _folder(target)
+        remove_stale_temporaries(folder)
         with signals_held():
             try:
-                fd, temp_name = tempfile.mkstemp(prefix=TEMP_PREFIX, suffix=target.suffix, dir=folder)
+                fd, temp_name = tempfile.mkstemp(prefix=f"{TEMP_PREFIX}{os.getpid()}-", suffix=target.suffix,
+                                                 dir=folder)
             except OSError as exc:
                 raise WriteError(messages.cannot_create_in(str(folder), exc)) from exc
             temp = Path(temp_name)
@@ -244,6 +247,59 @@ def signals_held() -> Iterator[None]:
             signal.signal(sig, handler)
         if caught:
             signal.raise_signal(caught[0])
+
+
+STALE_AFTER_SECONDS = 24 * 3600  # a write takes seconds; a day-old temporary file is a leftover wherever it came from
+
+
+def remove_stale_temporaries(folder: Path, *, now: float | None = None) -> list[Path]:
+    """Remove temporary files that a killed run (power cut, SIGKILL) left in ``folder``.
+
+    A temporary file's name holds the id of the process writing it. It is removed
+    when that process no longer runs on this machine and the file is over a minute
+    old, or when it is over a day old (a writer on another machine sharing the
+    folder cannot be asked whether it still runs). Files it cannot remove are left.
+
+    Returns
+    -------
+    list of Path
+        The files removed.
+    """
+    now = time.time() if now is None else now
+    removed: list[Path] = []
+    try:
+        candidates = [p for p in folder.iterdir() if p.name.startswith(TEMP_PREFIX)]
+    except OSError:
+        return removed
+    for path in candidates:
+        try:
+            age = now - path.stat().st_mtime
+        except OSError:
+            continue
+        pid_text = path.name[len(TEMP_PREFIX):].split("-", 1)[0]
+        dead = pid_text.isdigit() and not _process_alive(int(pid_text))
+        if age > STALE_AFTER_SECONDS or (dead and age > 60):
+            try:
+                path.unlink()
+                removed.append(path)
+            except OSError:
+                continue
+    return removed
+
+
+def _process_alive(pid: int) -> bool:
+    """Whether a process with this id runs here (a process of another user counts as running)."""
+    if os.name == "nt":  # os.kill there ends the process; only the age rule applies
+        return True
+    if pid <= 0:
+        return False
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except (PermissionError, OSError):
+        return True
+    return True
 
 
 def _folder(target: Path) -> Path:
