@@ -150,7 +150,19 @@ def test_sites_compared_on_rate_per_1000(book, rows):
     assert all(close(p["p_value"], q) for p, q in zip(pairs, plain, strict=True))
     assert all(close(p["p_adjusted"], q) for p, q in zip(pairs, multipletests(plain, method="holm")[1], strict=True))
     assert record["reading"].startswith("Positive per 1,000 person-years: 3.71 in Ashgrove, 5.08 in Bellmoor, ")
-    assert "the highest rate, Dunlow, is 1.67 times the lowest, Ashgrove" in record["reading"]
+    assert "the widest gap is Dunlow over Ashgrove, a rate 1.67 times as high (95% CI 1.10 to 2.55, allowing for the 6 pairs" in record["reading"]
+    # The widest pair's intervals hold for all 6 pairs together: statsmodels' score intervals at 0.05 / 6 (Bonferroni).
+    high, low = totals.loc["Dunlow"], totals.loc["Ashgrove"]
+    ratio = sm_rates.confint_poisson_2indep(*high, *low, method="score", compare="ratio", alpha=0.05 / 6)
+    diff = sm_rates.confint_poisson_2indep(*high, *low, method="score", compare="diff", alpha=0.05 / 6)
+    ours = (record["effect"]["ci_low"], record["effect"]["ci_high"], record["estimate"]["ci_low"] / 1000,
+            record["estimate"]["ci_high"] / 1000)
+    assert all(math.isclose(a, b, rel_tol=1e-5) for a, b in zip(ours, (*ratio, *diff), strict=True))
+    # statsmodels finds its difference limits to a loose tolerance; at ours its own score statistic is the quantile.
+    z = stats.norm.ppf(1 - 0.05 / 12)
+    for value, compare, sign in zip(ours, ("ratio", "ratio", "diff", "diff"), (1, -1, 1, -1), strict=True):
+        statistic = sm_rates.test_poisson_2indep(*high, *low, value=value, method="score", compare=compare).statistic
+        assert math.isclose(statistic, sign * z, rel_tol=1e-7)
 
 
 # ---------------------------------------------------------------- statmargin run

@@ -23,7 +23,7 @@ from ..vocabulary.codes import Coded, Reason, Skip, coded
 from .base import Choice, DesignSpec, Prepared, Skipped
 from .event_rows import decorate_events, independence_caution, shell
 from .question import Question
-from .two_categorical import RESIDUAL_FLAG
+from .two_categorical import RESIDUAL_FLAG, with_widest_gap
 from .two_categorical import decide as decide_table
 
 
@@ -69,10 +69,11 @@ class GroupPooledShares(DesignSpec):
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
         rows = prepared.extra["rows"]
         settings = question.settings
-        return proportions.compare_shares(
+        result = proportions.compare_shares(
             rows.groups, label=prepared.col_labels[0], other_label=prepared.col_labels[1], test=choice.test,
             alternative=settings.alternative.value, confidence=settings.confidence, seed=settings.seed,
             resamples=settings.monte_carlo_resamples)
+        return with_widest_gap(result, prepared.table, prepared.row_labels, prepared.col_labels, settings.confidence)
 
     def decorate(self, result: Result, question: Question, prepared: Prepared) -> None:
         decorate_events(result, question, prepared)

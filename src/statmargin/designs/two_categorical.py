@@ -6,12 +6,14 @@ standardized residual as a follow-up.
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..plan.levels import event_first
 from ..plan.model import Settings
 from ..results import Followup, Result
-from ..stats import categorical, followup
+from ..stats import categorical, followup, proportions
 from ..stats.shape import count_check, expected_counts
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Coded, Derived, Reason, Skip, coded
@@ -93,8 +95,9 @@ class TwoCategorical(DesignSpec):
         table, rows, cols = prepared.table, prepared.row_labels, prepared.col_labels
         if choice.test is Test.FISHER_EXACT:
             return categorical.fisher_exact(table, rows, cols, **method_options(settings))
-        return categorical.chi_square_independence(table, rows, cols, confidence=settings.confidence,
-                                                   seed=settings.seed, resamples=settings.monte_carlo_resamples)
+        result = categorical.chi_square_independence(table, rows, cols, confidence=settings.confidence,
+                                                     seed=settings.seed, resamples=settings.monte_carlo_resamples)
+        return with_widest_gap(result, table, rows, cols, settings.confidence)
 
     def follow_up(self, result: Result, prepared: Prepared, settings: Settings) -> tuple[list[Followup], list[Coded]]:
         if prepared.table is None or prepared.table.size <= 4:
@@ -102,3 +105,18 @@ class TwoCategorical(DesignSpec):
         cells = followup.adjusted_residuals(prepared.table, prepared.row_labels, prepared.col_labels,
                                             threshold=RESIDUAL_FLAG)
         return list(cells), [coded(Reason.FOLLOWUP_RESIDUALS, threshold=RESIDUAL_FLAG)]
+
+
+def with_widest_gap(result: Result, table: Any, rows: list[str], cols: list[str], confidence: float) -> Result:
+    """Three or more groups and a two-level outcome: the widest gap in shares, as the estimate a reading states.
+
+    Rows that vary more than binomial sampling allows count as fewer records (the
+    counts divided by the dispersion, as the quasi-binomial test does); the shares stay the same.
+    """
+    if result.estimate is None and len(cols) == 2:
+        dispersion = result.extra.get("dispersion") if isinstance(result.extra, dict) else None
+        counts = np.asarray(table, dtype=float)
+        if isinstance(dispersion, dict) and dispersion.get("overdispersed"):
+            counts = counts / float(dispersion["dispersion"])
+        result.estimate = proportions.widest_share_gap(counts, rows, cols[0], confidence=confidence)
+    return result

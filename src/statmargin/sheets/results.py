@@ -85,6 +85,7 @@ SHARE_KINDS = (
     EstimateKind.SHARE_DIFFERENCE,
     EstimateKind.PAIRED_SHARE_DIFFERENCE,
     EstimateKind.SHARE_CHANGE_PER_PERIOD,
+    EstimateKind.LARGEST_SHARE_GAP,
 )
 RATE_KINDS = (
     EstimateKind.RATE,

@@ -460,3 +460,19 @@ def extras(pooled: Pooled, dispersion: Dispersion, per: float) -> dict[str, Any]
     """The numbers every aggregated result keeps in ``extra``: unit, dispersion, rows used and left out."""
     return {"per": per, "dispersion": dispersion.to_record(), "rows_used": int(pooled.rows.sum()),
             "rows_excluded": pooled.n_excluded}
+
+
+def pairs_level(confidence: float, n_groups: int) -> float:
+    """The level of each pair's interval so that all k(k-1)/2 pairs hold together (Bonferroni).
+
+    The widest gap is picked after looking at the data, so its interval must hold
+    for every pair it could have been: Bonferroni's inequality gives that.
+
+    Examples
+    --------
+    >>> round(pairs_level(0.95, 4), 6)  # 6 pairs, 0.05 / 6 each
+    0.991667
+    """
+    pairs = n_groups * (n_groups - 1) / 2
+    return 1.0 - (1.0 - confidence) / max(pairs, 1.0)
+

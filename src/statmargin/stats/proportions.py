@@ -24,6 +24,7 @@ from statmargin.stats.aggregated import (
     Dispersion,
     Pooled,
     extras,
+    pairs_level,
     pearson_dispersion,
     pool,
     scale_for,
@@ -352,3 +353,55 @@ def rows_dispersion(groups: Mapping[str, tuple[Any, Any]], *, seed: int = DEFAUL
 
 __all__ = ["compare_shares", "one_share", "pooled_table", "rows_dispersion", "share_summaries"]
 
+
+
+def widest_share_gap(table: Any, labels: Sequence[str], level: str, *, confidence: float = 0.95) -> Estimate | None:
+    """The highest group share of the table's first column minus the lowest, with a simultaneous interval.
+
+    Parameters
+    ----------
+    table : array of shape (k, 2)
+        Counts: one row per group, the counted level first (k of 3 or more).
+    labels : sequence of str
+        The groups, in the table's row order.
+    level : str
+        The counted level (the first column).
+    confidence : float
+        Level the interval holds at over all k(k-1)/2 pairs.
+
+    Returns
+    -------
+    Estimate or None
+        Kind LARGEST_SHARE_GAP with levels (highest, lowest) and Newcombe's method-10
+        interval at :func:`~statmargin.stats.aggregated.pairs_level`; None for fewer than 3 groups, another
+        number of columns, or fewer than two groups with records.
+
+    Examples
+    --------
+    Three invented sites; the gap is 12/20 - 5/20, and its interval equals
+    statsmodels' Newcombe interval at the level for 3 pairs:
+
+    >>> from statsmodels.stats.proportion import confint_proportions_2indep
+    >>> gap = widest_share_gap([[12, 8], [5, 15], [9, 11]], ["A", "B", "C"], "yes")
+    >>> gap.levels, round(gap.value, 4)
+    (('A', 'B'), 0.35)
+    >>> low, high = confint_proportions_2indep(12, 20, 5, 20, method="newcomb", alpha=0.05 / 3)
+    >>> bool(abs(gap.ci_low - low) < 1e-12 and abs(gap.ci_high - high) < 1e-12)
+    True
+    """
+    counts = np.asarray(table, dtype=float)
+    if counts.ndim != 2 or counts.shape[0] < 3 or counts.shape[1] != 2:
+        return None
+    totals = counts.sum(axis=1)
+    present = np.flatnonzero(totals > 0)
+    if present.size < 2:
+        return None
+    shares = counts[present, 0] / totals[present]
+    high, low = int(present[np.argmax(shares)]), int(present[np.argmin(shares)])
+    if high == low:
+        high, low = int(present[0]), int(present[1])
+    value = counts[high, 0] / totals[high] - counts[low, 0] / totals[low]
+    ci_low, ci_high = newcombe_difference_interval(counts[high, 0], totals[high], counts[low, 0], totals[low],
+                                                   confidence=pairs_level(confidence, counts.shape[0]))
+    return Estimate(EstimateKind.LARGEST_SHARE_GAP, float(value), float(ci_low), float(ci_high),
+                    levels=(str(labels[high]), str(labels[low])), level=level)

@@ -26,6 +26,7 @@ from statmargin.stats.aggregated import (
     Dispersion,
     Pooled,
     extras,
+    pairs_level,
     pearson_dispersion,
     pool,
     scale_for,
@@ -710,8 +711,10 @@ def rate_homogeneity(
     Result
         design GROUP_RATES, test RATE_HOMOGENEITY (QUASI_POISSON when rows vary
         more than Poisson sampling allows); ``estimate``: the largest difference
-        between group rates (highest - lowest) per ``per``, no interval; ``effect``:
-        the ratio of the highest to the lowest rate, no interval.
+        between group rates (highest - lowest) per ``per``; ``effect``: the ratio of
+        the highest to the lowest rate; both with the intervals of
+        :func:`compare_rates` at :func:`~statmargin.stats.aggregated.pairs_level`,
+        so they hold for all pairs of groups together.
 
     Notes
     -----
@@ -787,6 +790,11 @@ def rate_homogeneity(
     high = max(summaries, key=lambda g: g["rate"])
     low = min(summaries, key=lambda g: g["rate"])
     ratio = high["rate"] / low["rate"] if low["rate"] > 0 else math.inf
+    # The widest gap is picked after looking, so its intervals hold for all pairs together (Bonferroni).
+    i, j = pooled.labels.index(high["label"]), pooled.labels.index(low["label"])
+    widest = compare_rates(int(pooled.events[i]), float(pooled.totals[i]), int(pooled.events[j]),
+                           float(pooled.totals[j]), confidence=pairs_level(confidence, k), dispersion=phi,
+                           df=float(dispersion.df))
     return Result(
         outcome="",
         exposure=None,
@@ -802,8 +810,10 @@ def rate_homogeneity(
         n=int(pooled.events.sum()),
         n_excluded=pooled.n_excluded,
         estimate=Estimate(EstimateKind.LARGEST_RATE_GAP, high["rate"] - low["rate"],
+                          widest.difference_ci[0] * per, widest.difference_ci[1] * per,
                           levels=(high["label"], low["label"]), per=per),
-        effect=Effect(EffectKind.RATE_RATIO, ratio, levels=(high["label"], low["label"])),
+        effect=Effect(EffectKind.RATE_RATIO, ratio, widest.ratio_ci[0], widest.ratio_ci[1],
+                      levels=(high["label"], low["label"])),
         groups=summaries,
         reasons=reasons,
         notes=notes,

@@ -33,7 +33,8 @@ class EstimateKind(Word):
     RATE = "rate"  # events per ``per`` units of person-time; level: the group; reference: a target
     RATE_DIFFERENCE = "rate_difference"  # per ``per`` units, levels (first, second)
     RATE_RATIO = "rate_ratio"  # levels (first, second): first / second (pairwise follow-ups)
-    LARGEST_RATE_GAP = "largest_rate_gap"  # levels (highest, lowest), per ``per`` units, no interval
+    LARGEST_RATE_GAP = "largest_rate_gap"  # levels (highest, lowest), per ``per`` units; Bonferroni interval over the pairs
+    LARGEST_SHARE_GAP = "largest_share_gap"  # level; levels (highest, lowest); Bonferroni interval over the pairs
 
 
 class EffectKind(Word):

@@ -70,6 +70,9 @@ def estimate_name(estimate: Estimate) -> str:
     if kind is EstimateKind.SHARE_DIFFERENCE:
         first, second = (list(estimate.levels) + ["first", "second"])[:2]
         return f"difference in share of '{estimate.level}' ('{first}' - '{second}')"
+    if kind is EstimateKind.LARGEST_SHARE_GAP:
+        first, second = (list(estimate.levels) + ["highest", "lowest"])[:2]
+        return f"largest difference in share of '{estimate.level}' ('{first}' - '{second}')"
     if kind is EstimateKind.PAIRED_SHARE_DIFFERENCE:
         return f"difference in share of '{estimate.level}' (first - second measurement)"
     if kind in _RATE_NAMES:

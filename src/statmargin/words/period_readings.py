@@ -234,7 +234,7 @@ def trend_answer(result: Result, settings: Settings, context: Any, n_family: int
     trend = result.trend
     ev = _evidence(result, settings, n_family)
     if trend is None:
-        return "", "", ev.words
+        return "", "", f"{ev.words} ({ev.p_text})"
     size, interval, slope = _trend_size(result, context)
     subject = "the share" if _shares(result) else f"the {_extra(result).get('centre', 'mean')}"
     plural = f"{trend.periods} {_grain(result)}s"

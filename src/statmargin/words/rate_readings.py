@@ -33,6 +33,7 @@ from .readings import (
     _table_answer,
     _verdict,
     register_parts,
+    widest_gap_clause,
 )
 
 
@@ -123,7 +124,7 @@ def _against_target(result: Result, settings: Settings, context: Any, n_family: 
     ev = _evidence(result, settings, n_family)
     est = result.estimate
     if est is None or not is_number(est.value) or target is None:
-        return figures, f"{ev.words.capitalize()} ({ev.p_text}).", size, ev.words
+        return figures, f"{ev.words.capitalize()} ({ev.p_text}).", size, f"{ev.words} ({ev.p_text})"
     gap = float(est.value) - target
     side = "above" if gap >= 0 else "below"
     if _binomial(result):
@@ -133,7 +134,7 @@ def _against_target(result: Result, settings: Settings, context: Any, n_family: 
     low, high = est.ci_low, est.ci_high
     outside = is_number(low) and is_number(high) and not (float(low) <= target <= float(high))
     verdict = _verdict(ev, "a difference", interval_excludes=outside)
-    return figures, f"That is {amount} {side} the target: {verdict}.", size, ev.words
+    return figures, f"That is {amount} {side} the target: {verdict}.", size, f"{ev.words} ({ev.p_text})"
 
 
 def _flipped(result: Result, value: float, low: Any, high: Any, *, ratio: bool) -> tuple[float, Any, Any, bool]:
@@ -190,24 +191,16 @@ def _groups_answer(result: Result, settings: Settings, n_family: int | None) -> 
     """Three or more groups: the evidence of a difference, the widest gap, the pairs that stand out."""
     ev = _evidence(result, settings, n_family)
     by = result.exposure or "the groups"
-    known = [g for g in _groups(result) if is_number(g.get("rate"))]
     gap = size = ""
-    if len(known) >= 2:
-        high = max(known, key=lambda g: g["rate"])
-        low = min(known, key=lambda g: g["rate"])
-        decimals = _decimals(result, high["rate"], low["rate"])
-        hi_name, lo_name = named(result, str(high["label"])), named(result, str(low["label"]))
-        if _binomial(result):
-            points = f"{_n((high['rate'] - low['rate']) * 100, 1)} percentage points"
-            size = f"widest gap {points}"
-            gap = f"; the widest gap is {hi_name} over {lo_name}, {points}"
-        elif low["rate"] > 0:
-            times = f"{_n(high['rate'] / low['rate'], 2)} times"
-            size = f"highest rate {times} the lowest"
-            gap = (
-                f"; the highest rate, {hi_name}, is {times} the lowest, {lo_name} "
-                f"({_n(high['rate'], decimals)} against {_n(low['rate'], decimals)} {rate_unit(result)})"
-            )
+    est, eff = result.estimate, result.effect
+    if _binomial(result) and est is not None and est.kind is EstimateKind.LARGEST_SHARE_GAP and is_number(est.value):
+        low = _n(float(est.ci_low) * 100, 1) if is_number(est.ci_low) else ""
+        high = _n(float(est.ci_high) * 100, 1) if is_number(est.ci_high) else ""
+        size, gap = widest_gap_clause(result, low, high, f"{_n(float(est.value) * 100, 1)} percentage points")
+    elif not _binomial(result) and eff is not None and is_number(eff.value) and len(eff.levels) == 2:
+        low = _n(eff.ci_low, 2) if is_number(eff.ci_low) else ""
+        high = _n(eff.ci_high, 2) if is_number(eff.ci_high) else ""
+        size, gap = widest_gap_clause(result, low, high, f"a rate {_n(eff.value, 2)} times as high")
     what = events_subject(result) if _binomial(result) else f"the rate of {events_subject(result)}"
     if ev.significant:
         flagged = [f for f in result.followups if f.flagged]

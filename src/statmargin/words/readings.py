@@ -381,6 +381,41 @@ def _share_difference_answer(result: Result, settings: Settings, n_family: int |
     return f"{answer}: {verdict}.", size, f"{ev.words} ({ev.p_text})"
 
 
+def widest_gap_clause(result: Result, low: Any, high: Any, gap: str) -> tuple[str, str]:
+    """(size, clause) of a widest gap between groups: '8.0 percentage points (95% CI ...)' and its sentence part.
+
+    The interval holds for all pairs of groups together (the widest is picked after
+    looking), and the clause says so in words.
+    """
+    est = result.estimate
+    assert est is not None and len(est.levels) == 2
+    high_name, low_name = (named(result, label) for label in est.levels)
+    pairs = len(result.groups) * (len(result.groups) - 1) // 2 if result.groups else 0
+    allowing = f", allowing for the {pairs} pairs of groups" if pairs > 1 else ""
+    interval = f"{low} to {high}" if low and high else ""
+    label = ci_label(result.confidence)
+    stated = f"{gap} ({label} {interval}{allowing})" if interval else gap
+    clause = f"; the widest gap is {high_name} over {low_name}, {stated}"
+    return f"{gap}, {high_name} over {low_name}" + (f" ({label} {interval})" if interval else ""), clause
+
+
+def _widest_share_answer(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
+    """Three or more groups, a two-level outcome: the evidence and the widest gap in points with its interval."""
+    est = result.estimate
+    assert est is not None and is_number(est.value)
+    scale = 100.0
+    low = _n(float(est.ci_low) * scale, 1) if is_number(est.ci_low) else ""
+    high = _n(float(est.ci_high) * scale, 1) if is_number(est.ci_high) else ""
+    size, clause = widest_gap_clause(result, low, high, f"{_n(float(est.value) * scale, 1)} percentage points")
+    ev = _evidence(result, settings, n_family)
+    outcome, by = result.outcome or "the outcome", result.exposure or "the groups"
+    if ev.significant:
+        text = f"{ev.words.capitalize()} that {outcome} differs by {by} ({ev.p_text}){clause}."
+    else:
+        text = f"With {ev.words} ({ev.p_text}) the data are compatible with no difference by {by}{clause}."
+    return text, size, f"{ev.words} ({ev.p_text})"
+
+
 def _table_answer(result: Result, settings: Settings, n_family: int | None) -> tuple[str, str, str]:
     ev = _evidence(result, settings, n_family)
     outcome, by = result.outcome or "the outcome", result.exposure or "the groups"
@@ -412,14 +447,14 @@ def _one_share(result: Result, settings: Settings, n_family: int | None) -> tupl
             f"records ({interval})."
         )
     if target is None:
-        return figures, f"{ev.words.capitalize()} ({ev.p_text}).", _percent(est.value, decimals), ev.words
+        return figures, f"{ev.words.capitalize()} ({ev.p_text}).", _percent(est.value, decimals), f"{ev.words} ({ev.p_text})"
     gap = float(est.value) - target
     side = "above" if gap >= 0 else "below"
     points = f"{_n(abs(gap) * 100, 1)} points {side} the stated {_percent(target, decimals)}"
     low, high = est.ci_low, est.ci_high
     outside = is_number(low) and is_number(high) and not (float(low) <= target <= float(high))
     verdict = _verdict(ev, "a difference", interval_excludes=outside)
-    return figures, f"That is {points}: {verdict}.", f"{_percent(est.value, decimals)} ({interval})", ev.words
+    return figures, f"That is {points}: {verdict}.", f"{_percent(est.value, decimals)} ({interval})", f"{ev.words} ({ev.p_text})"
 
 
 def _one_value(result: Result, settings: Settings, context: Any, n_family: int | None) -> tuple[str, str, str, str]:
@@ -429,7 +464,7 @@ def _one_value(result: Result, settings: Settings, context: Any, n_family: int |
     ev = _evidence(result, settings, n_family)
     mu = float(result.against) if is_number(result.against) else None
     if est is None or not is_number(est.value) or mu is None:
-        return "", f"{ev.words.capitalize()} ({ev.p_text}).", "", ev.words
+        return "", f"{ev.words.capitalize()} ({ev.p_text}).", "", f"{ev.words} ({ev.p_text})"
     if est.kind is EstimateKind.MEAN_DIFFERENCE_FROM_VALUE:
         centre, low, high, word = mu + float(est.value), _shift(est.ci_low, mu), _shift(est.ci_high, mu), "Mean"
     else:
@@ -442,7 +477,7 @@ def _one_value(result: Result, settings: Settings, context: Any, n_family: int |
     outside = is_number(low) and is_number(high) and not (float(low) <= mu <= float(high))
     verdict = _verdict(ev, "a difference", interval_excludes=outside)
     answer = f"That is {_n(abs(gap), decimals)}{units} {side} the stated value: {verdict}."
-    return figures, answer, f"{_n(centre, decimals)}{units} ({interval})", ev.words
+    return figures, answer, f"{_n(centre, decimals)}{units} ({interval})", f"{ev.words} ({ev.p_text})"
 
 
 def _shift(value: Any, mu: float) -> float | None:
@@ -454,7 +489,7 @@ def _correlation(result: Result, settings: Settings, n_family: int | None) -> tu
     outcome, by = result.outcome or "the outcome", result.exposure or "the other measure"
     ev = _evidence(result, settings, n_family)
     if est is None or not is_number(est.value):
-        return "", "", ev.words
+        return "", "", f"{ev.words} ({ev.p_text})"
     kind = "rank correlation" if result.test == Test.SPEARMAN_RHO else "correlation"
     decimals = 2
     interval = _interval(result, est.ci_low, est.ci_high, decimals)
@@ -579,6 +614,9 @@ def _parts(result: Result, settings: Settings, context: Any, n_family: int | Non
             EstimateKind.SHARE_DIFFERENCE, EstimateKind.PAIRED_SHARE_DIFFERENCE
         ):
             answer, size, evidence = _share_difference_answer(result, settings, n_family)
+        elif (result.estimate is not None and result.estimate.kind is EstimateKind.LARGEST_SHARE_GAP
+              and is_number(result.estimate.value)):
+            answer, size, evidence = _widest_share_answer(result, settings, n_family)
         else:
             answer, size, evidence = _table_answer(result, settings, n_family)
         return figures, answer, size, evidence
@@ -588,9 +626,10 @@ def _parts(result: Result, settings: Settings, context: Any, n_family: int | Non
         return _one_value(result, settings, context, n_family)
     if design == Design.TWO_CONTINUOUS:
         figures, answer, size = _correlation(result, settings, n_family)
-        return figures, answer, size, _evidence(result, settings, n_family).words
+        ev = _evidence(result, settings, n_family)
+        return figures, answer, size, f"{ev.words} ({ev.p_text})"
     ev = _evidence(result, settings, n_family)
-    return "", f"{ev.words.capitalize()} ({ev.p_text}).", "", ev.words
+    return "", f"{ev.words.capitalize()} ({ev.p_text}).", "", f"{ev.words} ({ev.p_text})"
 
 
 def _hidden(result: Result) -> bool:
