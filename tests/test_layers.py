@@ -9,7 +9,10 @@
 from __future__ import annotations
 
 import ast
+import re
 from pathlib import Path
+
+import pytest
 
 from statmargin.vocabulary import Design, EffectKind, Test
 
@@ -79,3 +82,98 @@ def test_vocabulary_imports_nothing_of_the_pipeline() -> None:
         if _imported_packages(path) - {"vocabulary", "errors"}
     }
     assert hits == {}
+
+
+# ---------------------------------------------------------------- sentences live in words/
+
+WORD = re.compile(r"[A-Za-z]+(?:['’-][A-Za-z]+)*")
+# Markup the file back end writes: a tag, a closing "/>", or an attribute (name="...").
+MARKUP = re.compile(r"<[A-Za-z/?!]|/>|\w=\"")
+# Regular-expression syntax no sentence holds: a group "(?", or an escape such as \d, \s, \b, \u.
+REGEX = re.compile(r"\(\?|\\[dDsSwWbBuU.()\[\]{}+*?|^$]")
+# Packages whose text is not scanned: words/ makes the sentences and vocabulary/ holds the words
+# users type; stats/ is checked once its messages become reason codes (see the test's docstring).
+NOT_SCANNED = ("vocabulary", "words", "stats")
+
+
+def _is_sentence(text: str) -> bool:
+    """Four or more words with a space between: what a person reads, not an identifier or a key."""
+    return len(WORD.findall(text)) >= 4 and " " in text.strip()
+
+
+def _not_shown(tree: ast.AST) -> set[int]:
+    """Strings that never reach a user as text: documentation, assert messages, texts matched against."""
+    found = set()
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Expr) and isinstance(node.value, ast.Constant):
+            found.add(id(node.value))  # a docstring, or a string standing alone as a note
+        elif isinstance(node, ast.Assert) and node.msg is not None:
+            found.update(id(n) for n in ast.walk(node.msg))  # for developers: an assert never fires for a user
+        elif isinstance(node, ast.Compare):  # "... in detail": a library's text matched, not ours shown
+            found.update(id(n) for operand in (node.left, *node.comparators) for n in ast.walk(operand)
+                         if isinstance(n, ast.Constant))
+    return found
+
+
+def sentences_in(source: str) -> list[tuple[int, str]]:
+    """Sentence-like string literals of one module: ``(line, text)`` for each.
+
+    An f-string is judged as a whole (its literal parts joined). Markup (XML the
+    file back end writes) and regular expressions are not sentences, whatever
+    their words; neither is a string that is never shown (see ``_not_shown``).
+    """
+    tree = ast.parse(source)
+    skip = _not_shown(tree)
+    for node in ast.walk(tree):
+        if isinstance(node, ast.JoinedStr):
+            skip.update(id(part) for part in node.values)
+    hits = []
+    for node in ast.walk(tree):
+        if id(node) in skip:
+            continue
+        if isinstance(node, ast.Constant) and isinstance(node.value, str):
+            text = node.value
+        elif isinstance(node, ast.JoinedStr):
+            text = "".join(p.value for p in node.values if isinstance(p, ast.Constant) and isinstance(p.value, str))
+        else:
+            continue
+        if _is_sentence(text) and not MARKUP.search(text) and not REGEX.search(text):
+            hits.append((node.lineno, text))
+    return hits
+
+
+def test_no_sentence_outside_words() -> None:
+    """Every sentence a user reads is made in words/: no other package holds a sentence-like string literal.
+
+    The allow-list is by kind of text, never by file: docstrings and lone strings,
+    assert messages, texts compared against (a library's message searched for a
+    phrase), XML markup and regular expressions. ``stats/`` is not scanned yet: it
+    is checked once its messages become reason codes.
+    """
+    hits = [
+        f"{path.relative_to(SRC)}:{line}: {text[:80]!r}"
+        for path in _modules(skip=NOT_SCANNED)
+        for line, text in sentences_in(path.read_text(encoding="utf-8"))
+    ]
+    assert hits == []
+
+
+@pytest.mark.parametrize(
+    ("source", "found"),
+    [
+        ('raise RoleError("This column has no values at all here")', True),
+        ('raise RoleError(f"Column {name!r} has no values at all here")', True),
+        ('model.put(0, 0, "Every cell used was read as it stood.", "muted")', True),
+        ('raise ValueError(f"not an A1 range: {ref!r}")', True),
+        ('x = "three words only"', False),
+        ('x = f\'<sheet name="{n}" sheetId="{i}" r:id="{r}"/>\'', False),
+        ('x = \' t="inlineStr"><is><t xml:space="preserve">\'', False),
+        ('x = re.compile(r"^(?P<m>\\d{1,2}) of the (?P<d>\\d+) in this$")', False),
+        ('if "larger than its declared size" in detail: pass', False),
+        ('assert ok, "every style key needs a look"', False),
+        ('def f():\n    """A docstring of many words is documentation."""', False),
+    ],
+)
+def test_sentence_scan_finds_sentences_and_passes_other_text(source: str, found: bool) -> None:
+    """The scan flags a sentence raised or shown from code, and passes markup, patterns and unshown text."""
+    assert bool(sentences_in(source)) is found

@@ -34,7 +34,7 @@ from statmargin.sheets.model import STYLES, SheetModel
 from statmargin.sheets.report import ReportContext
 from statmargin.vocabulary import EstimateKind, MeasureType
 from statmargin.vocabulary.codes import Reason, Skip, coded
-from statmargin.words import cautions, explain, results_text
+from statmargin.words import cautions, explain, notes_words, results_text
 
 DATA = Path(__file__).parent / "reference" / "data"
 RUN_TIME = datetime(2026, 12, 2, 3, 0, 0, tzinfo=timezone.utc)
@@ -388,6 +388,16 @@ def test_notes_sheet_links_each_note_to_its_cell() -> None:
     assert model.cells[(find_row(model, 1, "D4"), 1)].link == "'O''Brien data'!D4"
     assert find_row(model, 0, "2 pairs were incomplete and left out.") > row
     assert model.kind == "notes"
+
+
+@pytest.mark.parametrize("kind", list(NoteKind))
+def test_every_kind_of_note_has_its_own_words(kind: NoteKind) -> None:
+    """Each kind of data note shows words of its own in the notes sheet's "What was wrong" column."""
+    note = DataNote("Site visits", "C17", "Wait (minutes)", "x", kind, "skipped")
+    model = report.notes_sheet([note], [], context())
+    shown = model.cells[(find_row(model, 1, "C17"), 4)].value
+    others = {notes_words.kind_words(k) for k in NoteKind if k is not kind}
+    assert shown == notes_words.kind_words(kind) and shown not in others
 
 
 def test_log_sheet_keeps_previous_runs_and_adds_this_one() -> None:

@@ -48,7 +48,9 @@ _LAZY = {
 def __getattr__(name: str) -> Any:
     module = _LAZY.get(name)
     if module is None:
-        raise AttributeError(f"module 'statmargin' has no attribute {name!r}")
+        from .words.refusals import no_such_name
+
+        raise AttributeError(no_such_name(__name__, name))
     value = getattr(importlib.import_module(module, __name__), name)
     globals()[name] = value
     return value

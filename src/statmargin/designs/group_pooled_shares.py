@@ -20,6 +20,7 @@ from ..stats.adjust import adjust_p
 from ..stats.shape import count_check, expected_counts
 from ..vocabulary import AdjustMethod, Design, Test
 from ..vocabulary.codes import Coded, Reason, Skip, coded
+from ..words import refusals
 from .base import Choice, DesignSpec, Prepared, Skipped
 from .event_rows import decorate_events, independence_caution, shell
 from .question import Question
@@ -46,7 +47,7 @@ class GroupPooledShares(DesignSpec):
         if len(pooled.labels) == 2:
             question.require_order(question.by, question.by_info, list(pooled.labels))
         else:
-            question.refuse_one_sided("a chi-square test of three or more groups")
+            question.refuse_one_sided(refusals.UNDIRECTED_GROUP_SHARES)
         if int(table[:, 0].sum()) in (0, int(table.sum())):
             which = columns[1] if int(table[:, 0].sum()) == 0 else columns[0]
             raise Skipped(coded(Skip.ONE_LEVEL, column=rows.events, level=which), prepared)

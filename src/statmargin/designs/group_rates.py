@@ -15,6 +15,7 @@ from ..results import Followup, Result
 from ..stats import rates
 from ..vocabulary import AdjustMethod, Design, Test
 from ..vocabulary.codes import Coded, Reason, Skip, coded
+from ..words import refusals
 from .base import Choice, DesignSpec, Prepared, Skipped
 from .event_rows import decorate_events, independence_caution, shell
 from .question import Question
@@ -36,7 +37,7 @@ class GroupRates(DesignSpec):
         if len(pooled.labels) == 2:
             question.require_order(question.by, question.by_info, list(pooled.labels))
         else:
-            question.refuse_one_sided("a test of three or more groups' rates")
+            question.refuse_one_sided(refusals.UNDIRECTED_GROUP_RATES)
         if int(pooled.events.sum()) == 0:
             raise Skipped(coded(Skip.NO_EVENTS), prepared)
         return prepared

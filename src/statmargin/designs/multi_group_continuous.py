@@ -16,6 +16,7 @@ from ..stats import followup, multigroup, weighted, weighted_followup
 from ..stats.shape import ShapeAssessment, SpreadCheck
 from ..vocabulary import Design, MeasureType, ShapeHandling, Test
 from ..vocabulary.codes import Coded, Reason, coded
+from ..words import refusals
 from .base import Choice, DesignSpec, Prepared, method_options
 from .continuous import choose_family
 from .groups import group_data, is_grouped, prepare_groups
@@ -53,7 +54,7 @@ class MultiGroupContinuous(DesignSpec):
         return is_grouped(question) and len(group_data(question).levels) >= 3
 
     def prepare(self, question: Question) -> Prepared:
-        question.refuse_one_sided("a comparison of three or more groups")
+        question.refuse_one_sided(refusals.UNDIRECTED_GROUP_CENTRES)
         return prepare_groups(question, self.design, TESTS)
 
     def choose(self, question: Question, prepared: Prepared) -> Choice:

@@ -12,6 +12,7 @@ from ..stats import categorical
 from ..stats.shape import count_check
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Derived, Reason, Skip, coded
+from ..words import refusals
 from .base import Choice, DesignSpec, Prepared, Skipped, tally
 from .question import Question
 
@@ -58,7 +59,7 @@ class OneSampleCategorical(DesignSpec):
         if n == 0:
             raise Skipped(coded(Skip.NO_USABLE_VALUES, name=name), prepared)
         if len(shares) > 1:
-            question.refuse_one_sided("a chi-square goodness-of-fit test of several shares")
+            question.refuse_one_sided(refusals.UNDIRECTED_SEVERAL_SHARES)
         if len(shares) == 1:
             share = next(iter(shares.values()))
             expected = np.array([n * share, n * (1 - share)])

@@ -17,6 +17,7 @@ from ..stats import categorical, followup, proportions
 from ..stats.shape import count_check, expected_counts
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Coded, Derived, Reason, Skip, coded
+from ..words import refusals
 from .base import Choice, DesignSpec, Prepared, Skipped, method_options, tally
 from .groups import MAX_GROUPS, levels_present
 from .question import Question
@@ -80,7 +81,7 @@ class TwoCategorical(DesignSpec):
         if observed.shape == (2, 2):
             question.require_order(question.by, question.by_info, rows)
         else:
-            question.refuse_one_sided("a chi-square test of a table larger than 2x2")
+            question.refuse_one_sided(refusals.UNDIRECTED_LARGE_TABLE)
         check = count_check(expected_counts(observed))
         prepared.shape = {"counts": {**check, "observed": observed.tolist(), "row_labels": rows, "col_labels": cols}}
         return prepared

@@ -16,14 +16,14 @@ import numpy as np
 from ..read.reader import NOTE_CAP
 from ..read.table import Column, DataNote, NoteKind, Table
 from ..vocabulary import MeasureType, Role
-from ..words import notes_words, roles_words
+from ..words import notes_words, roles_words, type_words
 from .levels import infer_event, look_alikes
 from .model import Plan
 from .types import TypeInfo, category_labels, infer_type, usable_values
 
 # Counts of events, totals, person-time and count weights are read as numbers whatever
 # their inferred type (a column of small whole numbers would otherwise be categories).
-NUMBERS = TypeInfo(MeasureType.CONTINUOUS, reason="counts and totals", inferred=False)
+NUMBERS = TypeInfo(MeasureType.CONTINUOUS, reason=type_words.COUNTS_AND_TOTALS, inferred=False)
 
 
 def merge_look_alikes(table: Table, names: Iterable[str]) -> list[DataNote]:
@@ -71,7 +71,7 @@ def left_out_notes(table: Table, name: str, info: TypeInfo) -> list[DataNote]:
     for i in left_out[:NOTE_CAP]:
         shown = column.labels[i] if column.labels[i] is not None else column.numbers[i]
         notes.append(DataNote(table.sheet, f"{column.letter}{int(table.rows[i])}", name, str(shown), kind,
-                              notes_words.left_out_as(kind.value)))
+                              notes_words.left_out_as(kind)))
     if left_out.size > NOTE_CAP:
         first = int(table.rows[left_out[NOTE_CAP]])
         notes.append(DataNote(table.sheet, f"{column.letter}{first}", name, "", kind,

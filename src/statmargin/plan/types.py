@@ -32,6 +32,7 @@ from .. import stages
 from ..errors import RoleError
 from ..read.table import Column
 from ..vocabulary import MeasureType
+from ..words import type_words as why
 from .model import ColumnChoice
 
 # Thresholds of the rules above, kept together so the docs and the code agree.
@@ -229,9 +230,9 @@ def _infer(column: Column, treat: MeasureType | None, order: tuple[str, ...] | N
     if treat is not None:
         return _user_type(column, treat, order)
     if n_filled == 0:
-        return TypeInfo(MeasureType.EMPTY, reason=f"{name} has no values.")
+        return TypeInfo(MeasureType.EMPTY, reason=why.no_values(name))
     if column.n_dates * 2 >= n_filled:
-        return TypeInfo(MeasureType.DATE, reason=f"{name} holds dates in {column.n_dates} of {n_filled} cells.")
+        return TypeInfo(MeasureType.DATE, reason=why.dates(name, column.n_dates, n_filled))
 
     if _is_numeric(column):
         numbers = column.numbers[has_number]
@@ -243,17 +244,14 @@ def _infer(column: Column, treat: MeasureType | None, order: tuple[str, ...] | N
                 MeasureType.CATEGORICAL,
                 n_levels=len(levels),
                 levels=levels,
-                reason=(
-                    f"{name} holds only {n_distinct} distinct whole numbers, so it is read as"
-                    f" categories (at most {MAX_CATEGORICAL_CODES}; set its type to continuous if they are amounts)."
-                ),
+                reason=why.few_whole_numbers(name, n_distinct, MAX_CATEGORICAL_CODES),
             )
         if whole and n_distinct == len(numbers) and len(numbers) > IDENTIFIER_MIN_N:
             return TypeInfo(
                 MeasureType.IDENTIFIER,
-                reason=f"{name} holds a different whole number in every row, so it is read as an identifier.",
+                reason=why.whole_number_identifier(name),
             )
-        return TypeInfo(MeasureType.CONTINUOUS, reason=f"{name} holds numbers with {n_distinct} distinct values.")
+        return TypeInfo(MeasureType.CONTINUOUS, reason=why.numbers(name, n_distinct))
 
     import pandas as pd
 
@@ -263,21 +261,21 @@ def _infer(column: Column, treat: MeasureType | None, order: tuple[str, ...] | N
     if len(texts) > IDENTIFIER_MIN_N and n_distinct > IDENTIFIER_MIN_UNIQUE_SHARE * len(texts):
         return TypeInfo(
             MeasureType.IDENTIFIER,
-            reason=f"{name} holds {n_distinct} different texts in {len(texts)} rows, so it is read as an identifier.",
+            reason=why.text_identifier(name, n_distinct, len(texts)),
         )
     levels = order or sorted_levels(labels)
     return TypeInfo(
         MeasureType.CATEGORICAL,
         n_levels=len(levels),
         levels=levels,
-        reason=f"{name} holds text with {len(levels)} distinct labels.",
+        reason=why.labels(name, len(levels)),
     )
 
 
 def _user_type(column: Column, treat: MeasureType, order: tuple[str, ...] | None) -> TypeInfo:
     """The TypeInfo for a type the user chose."""
     name = column.name
-    reason = f"{name} is treated as {treat.value}, as chosen."
+    reason = why.as_chosen(name, treat.value)
     if treat is MeasureType.CATEGORICAL:
         levels = order or sorted_levels(category_labels(column))
         return TypeInfo(treat, n_levels=len(levels), levels=levels, reason=reason, inferred=False)
@@ -286,10 +284,7 @@ def _user_type(column: Column, treat: MeasureType, order: tuple[str, ...] | None
             levels = sorted_levels(category_labels(column)) if order is None else order
         else:
             if order is None:
-                raise RoleError(
-                    f"Column {name!r} is set to ordinal but holds text; give the order of its"
-                    " labels, lowest first (e.g. low,medium,high)."
-                )
+                raise RoleError(why.ordinal_needs_order(name))
             levels = order
         return TypeInfo(treat, n_levels=len(levels), levels=levels, reason=reason, inferred=False)
     return TypeInfo(treat, reason=reason, inferred=False)
@@ -326,7 +321,7 @@ def usable_values(column: Column, info: TypeInfo) -> ColumnValues:
     if kind in (MeasureType.CONTINUOUS, MeasureType.DATE):
         values = np.where(has_number, column.numbers, np.nan)
         if has_text.any():
-            excluded["text in a numeric column"] = int(has_text.sum())
+            excluded[why.TEXT_IN_NUMBERS] = int(has_text.sum())
         return ColumnValues(values, has_number.copy(), present, excluded)
     if kind is MeasureType.CATEGORICAL:
         labels = category_labels(column)
@@ -336,7 +331,7 @@ def usable_values(column: Column, info: TypeInfo) -> ColumnValues:
             allowed = set(info.levels)
             outside = np.array([lab is not None and lab not in allowed for lab in labels], dtype=bool)
             if outside.any():
-                excluded["not one of the listed levels"] = int(outside.sum())
+                excluded[why.NOT_LISTED] = int(outside.sum())
                 usable &= ~outside
                 # numpy's stubs reject None as a fill value; at run time it fills an object array.
                 labels = np.where(usable, labels, None)  # type: ignore[call-overload]
@@ -345,7 +340,7 @@ def usable_values(column: Column, info: TypeInfo) -> ColumnValues:
         if _is_numeric(column) and not (info.levels and not _levels_are_numbers(info.levels)):
             values = np.where(has_number, column.numbers, np.nan)
             if has_text.any():
-                excluded["text in a numeric column"] = int(has_text.sum())
+                excluded[why.TEXT_IN_NUMBERS] = int(has_text.sum())
             return ColumnValues(values, has_number.copy(), present, excluded)
         rank = {lab: float(i + 1) for i, lab in enumerate(info.levels)}
         labels = category_labels(column)
@@ -353,7 +348,7 @@ def usable_values(column: Column, info: TypeInfo) -> ColumnValues:
         usable = ~np.isnan(values)
         outside = present & ~usable
         if outside.any():
-            excluded["not one of the ordered levels"] = int(outside.sum())
+            excluded[why.NOT_ORDERED] = int(outside.sum())
         return ColumnValues(values, usable, present, excluded)
     # Identifiers and empty columns: labels are kept (pairing keys use them) but no test uses them.
     labels = category_labels(column)

@@ -57,6 +57,8 @@ from .. import stages
 from ..errors import ColumnNotFoundError, NotEnoughDataError, OptionError, WorkbookError
 from ..io.protocol import ERROR_ISSUE, CellIssues, TableRange, WorkbookSource
 from ..vocabulary import RowsToUse
+from ..words import notes_words, read_messages
+from ..words.file_messages import damaged_part_way
 from ..words.workbook_messages import no_workbook_given
 from .table import Column, DataNote, NoteKind, Table, column_letter
 
@@ -303,13 +305,13 @@ def unique_names(
         if index in merged_from:
             origin = merged_from[index]
             merge_count[origin] = merge_count.get(origin, 1) + 1
-            base = texts.get(origin, "") or f"Column {column_letter(origin)}"
+            base = texts.get(origin, "") or notes_words.blank_header_column(column_letter(origin))
             name = f"{base} ({merge_count[origin]})"
-            action = f"part of a merged header; named {name!r}"
+            action = notes_words.merged_header(name)
             header = texts.get(origin, "")
         elif not text:
-            name = f"Column {letter}"
-            action = f"blank header; named {name!r}"
+            name = notes_words.blank_header_column(letter)
+            action = notes_words.blank_header(name)
         else:
             name = text
             action = ""
@@ -318,11 +320,7 @@ def unique_names(
             while f"{base} ({k})".casefold() in seen:
                 k += 1
             name = f"{base} ({k})"
-            action = (
-                f"duplicate header; named {name!r}"
-                if not action
-                else f"{action}, then {name!r} as a duplicate"
-            )
+            action = notes_words.duplicate_header(name, action)
         seen.add(name.casefold())
         if action:
             notes.append(DataNote(sheet, address, name, text, NoteKind.HEADER, action))
@@ -400,9 +398,7 @@ def _first_data_sheet(source: WorkbookSource, display: str) -> str:
         _, rows = _rows_at(source, name)
         if any(not _is_blank(v) for row in _guard(rows, display) for v in row):
             return name
-    raise NotEnoughDataError(
-        f"No sheet in {display!r} holds data. Put the data on a sheet with a header row, then run again."
-    )
+    raise NotEnoughDataError(read_messages.no_data_sheet(display))
 
 
 def _pick_table(
@@ -413,18 +409,13 @@ def _pick_table(
         for candidate in tables:
             if candidate.name.casefold() == table.strip().casefold():
                 return candidate, None
-        listed = ", ".join(repr(t.name) for t in tables) or "none"
-        raise OptionError(f"Table {table!r} is not on sheet {sheet!r}. Tables there: {listed}.")
+        raise OptionError(read_messages.table_not_on_sheet(table, sheet, [t.name for t in tables]))
     if not tables:
         return None, None
     ordered = sorted(tables, key=lambda t: (t.first_row, t.first_col))
     if len(ordered) == 1:
         return ordered[0], None
-    others = ", ".join(repr(t.name) for t in ordered[1:])
-    return ordered[0], (
-        f"sheet has {len(ordered)} tables; read the first, {ordered[0].name!r}; "
-        f"the others ({others}) were not read. Name a table to read another."
-    )
+    return ordered[0], notes_words.several_tables(ordered[0].name, [t.name for t in ordered[1:]])
 
 
 def _locate(
@@ -436,7 +427,7 @@ def _locate(
 ) -> _Layout:
     """Find the header row and the columns, leaving the row iterator just past the header."""
     if header_row is not None and (not isinstance(header_row, int) or header_row < 1):
-        raise OptionError(f"Header row must be a whole number from 1 up; got {header_row!r}.")
+        raise OptionError(read_messages.bad_header_row(header_row))
     tables = list(source.tables(sheet)) if header_row is None or table is not None else []
     chosen, several = _pick_table(tables, table, sheet)
     notes: list[DataNote] = []
@@ -453,19 +444,14 @@ def _locate(
                 break
         if header_cells is None:
             if row_number == 0:
-                raise NotEnoughDataError(_empty_sheet(sheet, display))
-            raise OptionError(
-                f"Header row {header_row} is below the last row with data (row {row_number}) "
-                f"on sheet {sheet!r}. Give the row that holds the column headers."
-            )
+                raise NotEnoughDataError(read_messages.empty_sheet(sheet, display))
+            raise OptionError(read_messages.header_row_below_data(header_row, row_number, sheet))
         if chosen is None and all(_is_blank(v) for v in header_cells):
-            raise OptionError(
-                f"Row {header_row} on sheet {sheet!r} is blank. Give the row that holds the column headers."
-            )
+            raise OptionError(read_messages.blank_header_row(header_row, sheet))
     else:
         header_row, header_cells, rows, title_note = _find_header(rows, sheet, first_col, display)
         if header_cells is None:
-            raise NotEnoughDataError(_empty_sheet(sheet, display))
+            raise NotEnoughDataError(read_messages.empty_sheet(sheet, display))
         if title_note is not None:
             notes.append(title_note)
 
@@ -506,10 +492,6 @@ def _locate(
         first_col=first_col,
         rows=rows,
     )
-
-
-def _empty_sheet(sheet: str, display: str) -> str:
-    return f"Sheet {sheet!r} in {display!r} has no data. Choose the sheet that holds the data."
 
 
 def _header_text(value: Any) -> str:
@@ -560,8 +542,7 @@ def _find_header(
             "",
             cell_text(first_cells[offset]),
             NoteKind.HEADER,
-            f"taken as a title, not headers; headers read from row {header_number}. "
-            "Give the header row to choose another.",
+            notes_words.title_skipped(header_number),
         )
     rest = chain(consumed[header_number:], rows)
     return header_number, header_cells, rest, note
@@ -610,16 +591,16 @@ class _NoteBook:
                     self.column,
                     "",
                     kind,
-                    f"and {more} more like this from this cell down (not listed one by one)",
+                    notes_words.more_like_this(more),
                 )
             )
         return out
 
 
 _ACTIONS = {
-    _MARKER: (NoteKind.MISSING_MARKER, "counted as missing"),
-    _ERROR: (NoteKind.ERROR_VALUE, "skipped: an error value"),
-    _SUPP: (NoteKind.SUPPRESSED, "not used: a suppressed small count"),
+    _MARKER: (NoteKind.MISSING_MARKER, notes_words.COUNTED_AS_MISSING),
+    _ERROR: (NoteKind.ERROR_VALUE, notes_words.ERROR_SKIPPED),
+    _SUPP: (NoteKind.SUPPRESSED, notes_words.SUPPRESSED_NOT_USED),
 }
 
 
@@ -787,8 +768,7 @@ def _note_cells(state: _ColumnState, kind: int, rows: np.ndarray, codes: np.ndar
 
 
 def _converted(text: str, number: float) -> str:
-    shown = " (the % sign dropped; value kept in percent)" if text.rstrip().endswith("%") else ""
-    return f"converted to {format_number(number)}{shown}"
+    return notes_words.converted_to(format_number(number), text.rstrip().endswith("%"))
 
 
 def read_table(
@@ -945,17 +925,12 @@ def _read(
         n_seen += beyond
     n_errors, n_no_value = _apply_issues(states, issues, first_data_row, content_all)
     if not had_values and n_no_value and not n_errors:
-        raise WorkbookError(
-            f"Every value read from sheet {sheet!r} in {display!r} comes from a formula with no saved value. "
-            "The file must be recalculated and saved by a spreadsheet program first."
-        )
+        raise WorkbookError(read_messages.formulas_without_values(sheet, display))
     filled = np.flatnonzero(content_all)
     n_rows = int(filled[-1]) + 1 if filled.size else 0
     if states and not n_rows:
         raise NotEnoughDataError(
-            f"Sheet {sheet!r} has headers in row {layout.header_row} but no data below them"
-            + (" in the columns asked for." if columns is not None else ".")
-            + " Check the sheet and the header row."
+            read_messages.no_data_below_headers(sheet, layout.header_row, columns_named=columns is not None)
         )
 
     # Rows left out are counted wherever they were read (a filter often hides the last
@@ -1095,10 +1070,7 @@ def _next_batch(rows: Iterator[list[Any]], size: int, display: str) -> list[list
         return list(islice(rows, size))
     except Exception as exc:  # noqa: BLE001 - any reader library failure is a damaged file
         detail = " ".join(str(exc).split())[:200] or type(exc).__name__
-        raise WorkbookError(
-            f"File {display!r} is damaged part-way through ({detail}). "
-            "Open it in a spreadsheet program and save it again."
-        ) from None
+        raise WorkbookError(damaged_part_way(display, detail)) from None
 
 
 def _select(layout: _Layout, columns: Sequence[str] | None) -> list[HeaderColumn]:
@@ -1119,11 +1091,7 @@ def _select(layout: _Layout, columns: Sequence[str] | None) -> list[HeaderColumn
             head = matches[0] if len(matches) == 1 else None
         if head is None:
             close = difflib.get_close_matches(str(name), list(by_name), n=3, cutoff=0.5)
-            hint = f" Did you mean {', '.join(repr(c) for c in close)}?" if close else ""
-            raise ColumnNotFoundError(
-                f"Column {name!r} is not a header on sheet {layout.sheet!r}.{hint}"
-                f" Headers are read from row {layout.header_row}."
-            )
+            raise ColumnNotFoundError(read_messages.not_a_header(name, layout.sheet, layout.header_row, close))
         wanted.add(head.index)
     return [h for h in layout.columns if h.index in wanted]
 
@@ -1156,10 +1124,10 @@ def _stray_notes(sheet: str, stray: dict[int, list[Any]]) -> list[DataNote]:
             DataNote(
                 sheet,
                 f"{letter}{first}",
-                f"Column {letter}",
+                notes_words.blank_header_column(letter),
                 text,
                 NoteKind.HEADER,
-                f"{count} value(s) in a column with no header were not read; give the column a header to use them",
+                notes_words.values_without_header(count),
             )
         )
     return notes
@@ -1185,14 +1153,14 @@ def _apply_issues(
         state.n_unreadable += 1
         content[k] = True  # a formula or error is an entry in that row, not a blank
         if kind == ERROR_ISSUE:
-            state.notes.add(row, NoteKind.ERROR_VALUE, text, "skipped: an error value")
+            state.notes.add(row, NoteKind.ERROR_VALUE, text, notes_words.ERROR_SKIPPED)
             n_errors += 1
         else:
             state.notes.add(
                 row,
                 NoteKind.NO_CACHED_VALUE,
                 text,
-                "skipped: the file must be recalculated and saved by a spreadsheet program first",
+                notes_words.NO_SAVED_VALUE,
             )
             n_no_value += 1
     if issues:

@@ -11,29 +11,11 @@ to its cell for the data notes.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from enum import Enum
 from typing import Any
 
 import numpy as np
 
-
-class NoteKind(str, Enum):
-    """Why a cell was skipped or converted. Values are the words shown on the data-notes sheet."""
-
-    MISSING_MARKER = "missing marker"  # NA, N/A, n/a, -, .
-    ERROR_VALUE = "error value"  # #N/A, #DIV/0!, ...
-    SUPPRESSED = "suppressed count"  # "<5" and the like
-    TEXT_NUMBER = "number stored as text"  # converted
-    NOT_A_NUMBER = "not a number"  # text in a numeric column, skipped
-    NOT_A_LABEL = "number in a text column"  # kept as a label
-    NO_CACHED_VALUE = "formula without a saved value"
-    DATE = "date"  # converted to a number of days
-    HEADER = "header"  # blank, duplicate or merged header made unique
-    BLANK = "blank"  # blank cell in a used column
-    INCOMPLETE_PAIR = "incomplete pair"
-    MERGED_LABEL = "label merged with a look-alike"  # case, spacing or trailing punctuation
-    NOT_A_LEVEL = "not one of the listed levels"
-    OTHER = "other"
+from ..vocabulary import NoteKind
 
 
 @dataclass(frozen=True)
@@ -93,12 +75,10 @@ class Table:
             return self.columns[name]
         import difflib
 
+        from ..words.read_messages import not_a_header
+
         close = difflib.get_close_matches(name, list(self.columns), n=3, cutoff=0.5)
-        hint = f" Did you mean {', '.join(repr(c) for c in close)}?" if close else ""
-        raise ColumnNotFoundError(
-            f"Column {name!r} is not a header on sheet {self.sheet!r}.{hint}"
-            f" Headers are read from row {self.header_row}."
-        )
+        raise ColumnNotFoundError(not_a_header(name, self.sheet, self.header_row, close))
 
     @classmethod
     def from_frame(cls, frame, sheet: str = "data") -> Table:

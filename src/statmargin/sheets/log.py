@@ -8,6 +8,7 @@ from typing import Any
 
 from ..plan.model import Settings
 from ..results import Result
+from ..words import sheet_texts
 from .context import SHEET_NAMES, ReportContext, _finite, _run_time_text
 from .model import SheetModel
 
@@ -76,7 +77,7 @@ def log_sheet(
     model.fit_to_width = True
     model.page_numbers = True
     model.put(0, 0, "statmargin run log", "title")
-    model.put(1, 0, f"One row per run, oldest first; the last {LOG_KEEP_RUNS} runs are kept.", "muted")
+    model.put(1, 0, sheet_texts.log_intro(LOG_KEEP_RUNS), "muted")
     header = 3
     model.put_row(header, [h for h, _, _ in LOG_COLUMNS], "header")
     model.freeze = (header + 1, 0)

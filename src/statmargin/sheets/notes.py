@@ -59,16 +59,15 @@ def notes_sheet(
     model.widths = {i: width for i, (_, width) in enumerate(NOTE_COLUMNS)}
     row = header + 1
     for note in table_notes:
-        kind = getattr(note.kind, "value", str(note.kind))
         model.put(row, 0, note.sheet, "wrap")
         model.put(row, 1, note.cell, "link", link=f"{quote_sheet(note.sheet)}!{note.cell}")
         model.put(row, 2, note.column, "wrap")
         model.put(row, 3, note.value)
-        model.put(row, 4, kind, "wrap")
+        model.put(row, 4, notes_words.kind_words(note.kind), "wrap")
         model.put(row, 5, note.action, "wrap")
         row += 1
     if not table_notes:
-        model.put(row, 0, "Every cell used was read as it stood.", "muted")
+        model.put(row, 0, notes_words.NO_NOTES, "muted")
         row += 1
     if extra_notes:
         row += 1

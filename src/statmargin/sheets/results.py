@@ -58,7 +58,7 @@ RESULT_COLUMNS: tuple[tuple[str, float], ...] = (
     ("df", 9),
     ("p", 9),
     ("Adjusted p", 10),
-    ("How p was found", 18),
+    (results_text.HOW_P_FOUND, 18),
     ("Estimate", 26),
     ("Estimate value", 11),
     ("CI low", 10),
@@ -236,7 +236,7 @@ def _technical(model: SheetModel, row: int, result: Result, context: ReportConte
     model.cells[(row, COL["df"])] = _df_cell(result.df)
     _number(model, row, COL["p"], result.p_value, "p_value", hidden="p_value" in hidden)
     _number(model, row, COL["Adjusted p"], result.p_adjusted, "p_value", hidden="p_adjusted" in hidden)
-    put(row, COL["How p was found"], str(result.p_method).replace("_", " ") if result.p_method else "")
+    put(row, COL[results_text.HOW_P_FOUND], str(result.p_method).replace("_", " ") if result.p_method else "")
     est, eff = result.estimate, result.effect
     if est is not None:
         style = _estimate_style(result, context)

@@ -12,7 +12,7 @@ from ..read.table import column_letter
 from ..results import Result
 from ..vocabulary import Design
 from ..words import context as words_context
-from ..words import explain, technical
+from ..words import explain, sheet_texts, technical
 from ..words.questions import EVENT_DESIGNS
 from .context import SHEET_NAMES, ReportContext, _a1, _finite, _num, _value, analysis_key
 from .event_tables import put_event_table
@@ -192,7 +192,7 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
         )
     chart = Chart(
         kind="percent_bar",
-        title=f"{result.outcome}: observed and stated shares",
+        title=sheet_texts.shares_chart_title(result.outcome),
         categories=f"{_a1(bar_top + 1, 0, True)}:{_a1(bar_top + 2, 0, True)}",
         series=series,
         anchor="",
@@ -284,7 +284,7 @@ def _put_crosstab(model: SheetModel, row: int, result: Result) -> tuple[int, Cha
     if isinstance(expected, Mapping):
         expected = expected.get("values")
     if isinstance(expected, Sequence) and len(expected) == len(row_labels):
-        model.put(row, 0, "Expected counts if the two were unrelated", "subtitle")
+        model.put(row, 0, sheet_texts.EXPECTED_IF_UNRELATED, "subtitle")
         row += 1
         model.put_row(row, [""] + col_labels, "header")
         for i, label in enumerate(row_labels):
@@ -480,9 +480,7 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
     """
     model = SheetModel(name=SHEET_NAMES["shape"], kind="shape")
     model.put(0, 0, "statmargin shape checks", "title")
-    model.put(
-        1, 0, "How each test was chosen: the data's shape, spread and counts, with charts.", "muted"
-    )
+    model.put(1, 0, sheet_texts.SHAPE_INTRO, "muted")
     model.widths = dict(SHAPE_WIDTHS)
     model.fit_to_width = True
     model.page_numbers = True
@@ -553,7 +551,7 @@ def shape_sheet(results: Sequence[Result], context: ReportContext) -> SheetModel
         model.charts.extend(charts)
         row += 1
     if not results:
-        model.put(row, 0, "No analyses were run.", "muted")
+        model.put(row, 0, sheet_texts.SHAPE_NO_ANALYSES, "muted")
     return model
 
 

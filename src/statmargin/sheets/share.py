@@ -59,7 +59,7 @@ from ..read.table import column_index
 from ..results import Result
 from ..vocabulary import Design, Test
 from ..vocabulary.codes import Coded, Count, Derived, Hidden, Note, coded
-from ..words import explain
+from ..words import explain, refusals
 from ..words.questions import EVENT_DESIGNS
 from .model import Cell, SheetModel
 
@@ -84,10 +84,7 @@ def _check_min_count(min_count: int) -> None:
     from ..errors import OptionError
 
     if isinstance(min_count, bool) or not isinstance(min_count, int) or min_count < 2:
-        raise OptionError(
-            f"The sharing threshold must be a whole number of at least 2 (got {min_count!r}); "
-            f"the default is {DEFAULT_MIN_COUNT}."
-        )
+        raise OptionError(refusals.bad_share_threshold(min_count, DEFAULT_MIN_COUNT))
 
 
 # ---------------------------------------------------------------- sheet models
@@ -420,9 +417,7 @@ def suppress(items: Any, min_count: int = DEFAULT_MIN_COUNT) -> Any:
         else:
             from ..errors import OptionError
 
-            raise OptionError(
-                f"Sharing mode can only hide counts in sheets or results, not in {type(item).__name__}."
-            )
+            raise OptionError(refusals.cannot_share(type(item).__name__))
     return out
 
 

@@ -8,6 +8,7 @@ and the identifiers written to JSON; display text is made from them in
 from .columns import MeasureType, Role, ShapeHandling
 from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
 from .effects import EffectKind, EstimateKind
+from .notes import NoteKind
 from .periods import (
     SINCE_LAST_RUN_ORDER,
     ChartKind,
@@ -32,6 +33,7 @@ __all__ = [
     "EstimateKind",
     "Grain",
     "MeasureType",
+    "NoteKind",
     "PMethod",
     "PeriodComparison",
     "Precision",

@@ -263,3 +263,24 @@ def not_a_frame(kind: str | None = None) -> str:
     if kind is None:
         return "data must be a pandas DataFrame or a statmargin Table."
     return f"data must be a pandas DataFrame or a statmargin Table, not {kind}."
+
+
+def bad_share_threshold(min_count: object, default: int) -> str:
+    return f"The sharing threshold must be a whole number of at least 2 (got {min_count!r}); the default is {default}."
+
+
+def cannot_share(kind: str) -> str:
+    return f"Sharing mode can only hide counts in sheets or results, not in {kind}."
+
+
+def no_such_name(module: str, name: str) -> str:
+    """Python's own wording for a name a module does not have."""
+    return f"module {module!r} has no attribute {name!r}"
+
+
+# A one-sided question has no direction for these tests (``one_sided_not_applicable``).
+UNDIRECTED_GROUP_CENTRES = "a comparison of three or more groups"
+UNDIRECTED_GROUP_SHARES = "a chi-square test of three or more groups"
+UNDIRECTED_GROUP_RATES = "a test of three or more groups' rates"
+UNDIRECTED_SEVERAL_SHARES = "a chi-square goodness-of-fit test of several shares"
+UNDIRECTED_LARGE_TABLE = "a chi-square test of a table larger than 2x2"

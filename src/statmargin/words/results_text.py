@@ -16,6 +16,7 @@ NO_ANALYSES = "No analyses were run: no column has the role 'outcome'."
 NO_ROW_CAUTIONS = "None beyond those above."
 FOLLOWUP_PREFIX = "  "
 SERIES_LINK = "series and chart"
+HOW_P_FOUND = "How p was found"  # a technical column's header
 
 
 def run_line(*, workbook: str, sheet: str, rows_read: int, when: str, version: str, confidence: float,

@@ -96,7 +96,7 @@ def parse_ref(ref: str) -> tuple[int, int, int, int]:
     """
     match = _REF.match(ref.strip())
     if not match:
-        raise ValueError(f"not an A1 range: {ref!r}")
+        raise ValueError(ref)  # callers skip a table whose range cannot be read
     c1, r1, c2, r2 = match.groups()
     c2 = c2 or c1
     r2 = r2 or r1
