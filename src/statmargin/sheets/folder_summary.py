@@ -9,6 +9,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Any
 
+from ..read.table import column_letter
 from ..results import Result
 from ..words import cautions, technical
 from ..words.period_words import RULE_NAMES, SINCE_LAST_RUN_WORDS, summary_title
@@ -24,6 +25,7 @@ COLUMNS: tuple[tuple[str, float, str], ...] = (
     ("Since last run", 22.0, "text"),
     ("Outcome", 20.0, "text"),
     ("Compared by", 18.0, "text"),
+    ("Reading", 70.0, "wrap"),
     ("Test", 24.0, "text"),
     ("n", 9.0, "integer"),
     ("p-value", 10.0, "p_value"),
@@ -36,7 +38,7 @@ COLUMNS: tuple[tuple[str, float, str], ...] = (
     ("Trend p", 10.0, "p_value"),
     ("Change per period", 12.0, "number"),
     ("Unusual periods", 40.0, "wrap"),
-    ("Message", 60.0, "wrap"),
+    ("Message", 50.0, "wrap"),
 )
 COL = {name: i for i, (name, _, _) in enumerate(COLUMNS)}
 HEADER_ROW = 4
@@ -64,6 +66,7 @@ def _row(result: Result) -> dict[str, Any]:
         "Since last run": SINCE_LAST_RUN_WORDS[result.since_last_run] if result.since_last_run else "",
         "Outcome": result.outcome,
         "Compared by": _compared_by(result),
+        "Reading": result.reading or "",
         "Test": technical.TEST_NAMES.get(result.test or "", str(result.test or "")),
         "n": result.n,
         "p-value": None if skipped else result.p_value,
@@ -95,6 +98,8 @@ def summary_sheet(folder: str, outcomes: Sequence[Any]) -> SheetModel:
     model.put(0, 0, summary_title(folder, len(outcomes) - failed, failed), "title")
     model.put(1, 0, cautions.REVIEW_LINE, "caution")
     model.put(2, 0, cautions.OBSERVATIONAL_LINE, "caution")
+    # The title and cautions span the columns up to the reading, so they read as lines, not narrow cells.
+    model.merged.extend(f"A{r}:{column_letter(COL['Reading'])}{r}" for r in (1, 2, 3))
     model.put_row(HEADER_ROW, [name for name, _, _ in COLUMNS], "header")
     model.widths = {i: width for i, (_, width, _) in enumerate(COLUMNS)}
     model.freeze = (HEADER_ROW + 1, 1)

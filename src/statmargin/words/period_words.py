@@ -243,7 +243,8 @@ sentences.register(TEMPLATES)
 def summary_title(folder: str, refreshed: int, failed: int) -> str:
     """The folder summary's title line."""
     failures = f"; {failed} could not be refreshed" if failed else ""
-    return f"Folder summary of {folder}: {refreshed} workbook(s) refreshed{failures}."
+    workbooks = "1 workbook" if refreshed == 1 else f"{refreshed} workbooks"
+    return f"Folder summary of {folder}: {workbooks} refreshed{failures}."
 
 
 STATUS_REFRESHED = "refreshed"
