@@ -788,3 +788,17 @@ def test_notes_and_log_sheets_fit_the_page_width() -> None:
     assert notes.cells[(other, 0)].style == "wrap"
     log = report.log_sheet([], report.run_info(context(), []))
     assert log.fit_to_width and log.landscape
+
+
+def test_results_print_the_answer_block_apart_from_the_technical_columns() -> None:
+    """The plain columns print from the top (answer block first); the technical ones from the table header only."""
+    from statmargin.sheets.layout import print_area
+
+    model = report.results_sheet([anova_result(), welch_result()], context())
+    header = model.print_title_rows[0]
+    plain, technical = model.print_areas
+    col = results_layout.COL
+    assert plain[:2] == (0, 0) and plain[3] == col["Outcome"] - 1
+    assert technical[:2] == (header, col["Outcome"]) and technical[3] == len(results_layout.RESULT_COLUMNS) - 1
+    assert plain[2] == technical[2] >= header + 2  # both end at the last row of the table
+    assert print_area(model, "r").startswith("'r'!$A$1:$D$")

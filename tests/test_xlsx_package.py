@@ -680,11 +680,15 @@ def test_print_titles_are_written_and_replaced_on_rerun(tmp_path):
     model.put_row(1, ["Does wait differ by site?", "Waits were longer at North."])
     model.print_title_rows = (0, 0)
     model.print_title_cols = 1
+    model.print_areas = [(0, 0, 1, 0), (0, 1, 1, 1)]
     for _ in range(2):
         report = FileSink(path).write_sheets([model])
     with zipfile.ZipFile(path) as archive:
         workbook = archive.read("xl/workbook.xml").decode()
     name = report.sheets["results"]
     quoted = f"'{name}'"  # the writer always quotes sheet names in references
-    assert workbook.count("_xlnm.Print_Titles") == 1
-    assert f">{quoted}!$A:$A,{quoted}!$1:$1</definedName>" in workbook.replace("&apos;", "'")
+    assert workbook.count("_xlnm.Print_Titles") == 1 and workbook.count("_xlnm.Print_Area") == 1
+    shown = workbook.replace("&apos;", "'")
+    assert f">{quoted}!$A:$A,{quoted}!$1:$1</definedName>" in shown
+    assert f">{quoted}!$A$1:$A$2,{quoted}!$B$1:$B$2</definedName>" in shown
+

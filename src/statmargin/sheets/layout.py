@@ -164,3 +164,19 @@ def print_titles(model: SheetModel, sheet_name: str) -> str | None:
         first, last_row = model.print_title_rows
         parts.append(f"{quoted}!${first + 1}:${last_row + 1}")
     return ",".join(parts) or None
+
+
+def print_area(model: SheetModel, sheet_name: str) -> str | None:
+    """The print-area reference of a sheet model (e.g. ``'results'!$A$1:$D$30,'results'!$E$12:$X$30``), or None."""
+    quoted = quote_sheet(sheet_name)
+    parts = [
+        f"{quoted}!${column_letter(c0)}${r0 + 1}:${column_letter(c1)}${r1 + 1}"
+        for r0, c0, r1, c1 in model.print_areas
+    ]
+    return ",".join(parts) or None
+
+
+def print_names(model: SheetModel, sheet_name: str) -> list[tuple[str, str]]:
+    """The built-in sheet-scoped names a sheet's printing needs: (name without ``_xlnm.``, reference)."""
+    named = (("Print_Titles", print_titles(model, sheet_name)), ("Print_Area", print_area(model, sheet_name)))
+    return [(name, ref) for name, ref in named if ref]

@@ -136,6 +136,9 @@ class SheetModel:
     # every printed page, so each page keeps its header row and question column.
     print_title_rows: tuple[int, int] | None = None
     print_title_cols: int = 0
+    # Blocks printed, each (first row, first col, last row, last col), 0-based and
+    # inclusive, each starting on a new page; empty prints the whole sheet.
+    print_areas: list[tuple[int, int, int, int]] = field(default_factory=list)
     # A sheet the tool keeps for itself (the run history): written hidden, read back on the next run.
     hidden: bool = False
 

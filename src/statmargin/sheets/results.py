@@ -354,4 +354,10 @@ def results_sheet(
             row += 1
     if not results:
         model.put(row, 0, results_text.NO_ANALYSES, "muted")
+    # The answer block and plain columns print first; the technical columns follow
+    # with the table only, so their pages do not repeat a cut-off answer block.
+    last = max(row, header + 1)
+    first_technical = COL["Outcome"]
+    model.print_areas = [(0, 0, last, first_technical - 1),
+                         (header, first_technical, last, len(RESULT_COLUMNS) - 1)]
     return model

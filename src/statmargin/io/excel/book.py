@@ -31,7 +31,7 @@ from collections.abc import Iterable, Iterator
 from typing import TYPE_CHECKING, Any
 
 from ...errors import OptionError, StatmarginError, WorkbookError, WriteError
-from ...sheets.layout import print_titles
+from ...sheets.layout import print_names
 from ...sheets.model import SheetModel
 from ...words import excel_messages
 from ..placement import place
@@ -48,7 +48,6 @@ from ..protocol import (
 from . import hidden, render
 from .render import CELLS_PER_CALL
 
-PRINT_TITLES_NAME = "Print_Titles"  # Excel's built-in sheet-scoped name for repeated rows/columns
 _TEMP_PREFIX = "~statmargin "
 
 
@@ -353,9 +352,8 @@ class ExcelBook:
                 final = placement.final[model.kind]
                 new.name = final
                 new.names.add(TOOL_SHEET_MARKER, f'="{model.kind}"')
-                titles = print_titles(model, final)
-                if titles:
-                    new.names.add(PRINT_TITLES_NAME, "=" + titles)
+                for name, ref in print_names(model, final):  # Print_Titles, Print_Area: Excel's own names
+                    new.names.add(name, "=" + ref)
             shown = [new for model, new in zip(models, created, strict=True) if not model.hidden]
             (shown or created)[0].activate()
             for model, new in zip(models, created, strict=True):

@@ -24,7 +24,7 @@ from collections.abc import Set as AbstractSet
 from dataclasses import dataclass, field
 
 from ...errors import WorkbookError, WriteError
-from ...sheets.layout import print_titles
+from ...sheets.layout import print_names
 from ...sheets.model import SheetModel
 from ...words import file_messages as messages
 from ..placement import place
@@ -452,7 +452,7 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
 
     # Edited parts.
     edited: dict[str, bytes] = {}
-    titles = [print_titles(m, name) for m, (name, _, _) in zip(models, new_sheets, strict=True)]
+    titles = [print_names(m, name) for m, (name, _, _) in zip(models, new_sheets, strict=True)]
     edited[workbook_part] = _edit_workbook(
         workbook_text, sheets, removed_idx, new_sheets, [m.kind for m in models], set(unmark_idx), titles,
         hidden={k for k, m in enumerate(models) if m.hidden},
@@ -504,7 +504,7 @@ def _edit_workbook(
     new_sheets: list[tuple[str, str, int]],
     kinds: list[str],
     unmark: AbstractSet[int] = frozenset(),
-    titles: list[str | None] | None = None,
+    titles: list[list[tuple[str, str]]] | None = None,
     hidden: AbstractSet[int] = frozenset(),
 ) -> bytes:
     """Swap replaced <sheet> elements for new ones in place, append new kinds, add markers.
@@ -514,8 +514,9 @@ def _edit_workbook(
     position and sheet-scoped names, the active tab and the first visible tab
     keep pointing where they did. Kinds the workbook did not have yet are
     appended after the last sheet. Names scoped to a replaced sheet go with it.
-    ``titles`` holds each new sheet's print-titles reference (or None); it becomes
-    the sheet-scoped ``_xlnm.Print_Titles`` name, removed with the sheet on the next run.
+    ``titles`` holds each new sheet's printing names (``Print_Titles``, ``Print_Area``)
+    with their references; each becomes a sheet-scoped ``_xlnm.`` name, removed with
+    the sheet on the next run.
     ``hidden`` holds the positions (in ``new_sheets``) of sheets written hidden
     (``state="hidden"``, ECMA-376 Part 1, 18.2.19) when the workbook did not have them yet.
     """
@@ -548,9 +549,9 @@ def _edit_workbook(
         f'<{prefix}definedName name="{TOOL_SHEET_MARKER}" localSheetId="{positions[k]}" hidden="1">"{sheetxml.escape(kind)}"</{prefix}definedName>'
         for k, kind in enumerate(kinds)
     ) + "".join(
-        f'<{prefix}definedName name="_xlnm.Print_Titles" localSheetId="{positions[k]}">{sheetxml.escape(ref)}</{prefix}definedName>'
-        for k, ref in enumerate(titles or [])
-        if ref
+        f'<{prefix}definedName name="_xlnm.{name}" localSheetId="{positions[k]}">{sheetxml.escape(ref)}</{prefix}definedName>'
+        for k, named in enumerate(titles or [])
+        for name, ref in named
     )
     block = re.search(rf"<{prefix}definedNames\b[^>]*>(.*?)</{prefix}definedNames>", text, re.S)
     if block:
