@@ -218,3 +218,30 @@ def test_version_option():
     result = run("--version")
     assert result.exit_code == 0 and __version__ in result.stdout
     assert isinstance(main, click.Group)
+
+
+def test_test_reports_progress_and_can_be_quiet(tmp_workbook):
+    """test_workbook says when rows are read and analyses run; --quiet prints no progress line."""
+    from statmargin.jobs.question import test_workbook
+    from statmargin.words import console
+    from statmargin.words import progress as progress_words
+
+    frame = frame_of("plantgrowth_weight_by_group.csv").assign(note="free text", other=1.0)
+    book = tmp_workbook({c: frame[c].tolist() for c in frame.columns})
+    said: list[tuple] = []
+    summary = test_workbook(book, outcome="weight", by="group",
+                            progress=lambda message, done=None, total=None: said.append((message, done, total)))
+    assert [r.test for r in summary.results] == ["one_way_anova"]
+    assert progress_words.READING_ROWS in {m for m, _, _ in said}
+    assert (console.RUNNING, 1, 1) in said
+    quiet = run("test", book, "--outcome", "weight", "--by", "group", "--quiet")
+    assert quiet.exit_code == 0 and quiet.stderr == ""
+
+
+def test_an_unknown_column_lists_the_headers_when_none_is_close(tmp_workbook):
+    """With no header near the name typed, the one line lists the sheet's headers instead."""
+    frame = frame_of("plantgrowth_weight_by_group.csv")
+    book = tmp_workbook({c: frame[c].tolist() for c in frame.columns})
+    result = run("test", book, "--outcome", "weight", "--by", "District")
+    assert result.exit_code != 0
+    assert "Its headers are 'weight', 'group'." in result.stderr and len(result.stderr.splitlines()) == 1

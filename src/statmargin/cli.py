@@ -270,6 +270,7 @@ def main() -> None:
 @share_option
 @min_count_option
 @json_option
+@quiet_option
 @debug_option
 @handle_errors
 def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by: tuple[str, ...],
@@ -278,7 +279,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
                  per: tuple[str, ...], per_unit: str | None, count: str | None, period: str | None,
                  period_length: str | None, treat: tuple[str, ...], shape: str, alternative: str,
                  confidence: float, adjust: str, adjust_across: str | None, share: bool,
-                 min_count: int | None, json_path: str | None) -> None:
+                 min_count: int | None, json_path: str | None, quiet: bool) -> None:
     """Run the fitting test on a workbook and print the results.
 
     The workbook is only read, never changed.
@@ -291,14 +292,15 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
     if min_count is not None and not share:
         raise errors.OptionError(console.min_count_without_share())
     check_json_target(json_path, workbook)
-    summary = test_workbook(
-        workbook, sheet=sheet, outcome=outcome, by=by, against=against,
-        pairing_key=pairing_key or meta.get("old_pairing_key"), paired_with=paired_with, event=event,
-        events=events, out_of=out_of, per=per, per_unit=per_unit, count=count, period=period,
-        period_length=period_length, adjust_across=adjust_across,
-        treat=treat, shape=shape, alternative=alternative, confidence=confidence, adjust=adjust,
-        share=share, min_count=min_count,
-    )
+    with _progress(quiet or json_path == "-") as progress:
+        summary = test_workbook(
+            workbook, sheet=sheet, outcome=outcome, by=by, against=against,
+            pairing_key=pairing_key or meta.get("old_pairing_key"), paired_with=paired_with, event=event,
+            events=events, out_of=out_of, per=per, per_unit=per_unit, count=count, period=period,
+            period_length=period_length, adjust_across=adjust_across,
+            treat=treat, shape=shape, alternative=alternative, confidence=confidence, adjust=adjust,
+            share=share, min_count=min_count, progress=progress,
+        )
     if json_path != "-":
         click.echo(console.test_summary(summary.results, sheet=summary.sheet))
     if json_path:
@@ -328,13 +330,15 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @treat_option
 @out_option
 @json_option
+@quiet_option
 @debug_option
 @handle_errors
 def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outcome: tuple[str, ...],
                  by: tuple[str, ...], pairing_key: str | None, against: tuple[str, ...],
                  paired_with: tuple[str, ...], event: tuple[str, ...], events: tuple[str, ...],
                  out_of: tuple[str, ...], per: tuple[str, ...], per_unit: str | None, count: str | None,
-                 period: str | None, treat: tuple[str, ...], out: Path | None, json_path: str | None) -> None:
+                 period: str | None, treat: tuple[str, ...], out: Path | None, json_path: str | None,
+                 quiet: bool) -> None:
     """Add or refresh the roles sheet, keeping every choice already made; options preset roles.
 
     Example: statmargin plan clinics.xlsx --outcome wait_minutes --by site
@@ -343,7 +347,7 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
 
     meta = click.get_current_context().meta
     check_json_target(json_path, workbook, out)
-    with _progress(json_path == "-") as progress:
+    with _progress(quiet or json_path == "-") as progress:
         summary = plan_workbook(
             workbook, sheet=sheet, header_row=header_row, outcome=outcome, by=by, pairing_key=pairing_key,
             treat=treat, against=against, paired_with=paired_with + tuple(meta.get("old_paired_with", ())),

@@ -8,7 +8,7 @@ DataFrame, through the same option checks.
 from __future__ import annotations
 
 import warnings
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -59,6 +59,7 @@ def test_workbook(
     share: bool = False,
     min_count: int | None = None,
     source: WorkbookSource | None = None,
+    progress: Callable[..., None] | None = None,
 ) -> TestSummary:
     """Run the fitting tests on a workbook's data sheet; the workbook is only read.
 
@@ -78,6 +79,9 @@ def test_workbook(
     source
         An open workbook source to read instead of the file at ``path`` (the
         Excel bridge's worksheet functions pass the cells they were given).
+    progress
+        Called as ``progress(message, done=, total=)`` while rows are read and
+        analyses run, as for :func:`~statmargin.jobs.workbook.run_workbook`.
 
     Returns
     -------
@@ -88,8 +92,11 @@ def test_workbook(
     from ..options import build_plan, make_settings, parse_col_values, parse_treat
     from ..read.reader import read_table
     from ..sheets.share import DEFAULT_MIN_COUNT, suppress
+    from ..words import console
+    from ..words import progress as progress_words
     from ..words.cautions import count_comparisons
     from ..words.explain import apply as explain_results
+    from .workbook import used_columns
 
     outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
     bys = [by] if isinstance(by, str) else list(by)
@@ -115,8 +122,11 @@ def test_workbook(
     with warnings.catch_warnings():
         # Caveats are already in each result's notes; no Python warning lines.
         warnings.simplefilter("ignore")
-        table = read_table(path, sheet=sheet, source=source)
-        results = run_plan(table, plan)
+        say = progress or (lambda message, done=None, total=None: None)
+        # Only the columns the question names are read into memory.
+        table = read_table(path, sheet=sheet, source=source, columns=used_columns(plan),
+                           progress=lambda done, total: say(progress_words.READING_ROWS, done=done, total=total))
+        results = run_plan(table, plan, progress=lambda done, total: say(console.RUNNING, done=done, total=total))
         family = count_comparisons(results)
         if share:
             results = suppress(results, min_count or DEFAULT_MIN_COUNT)

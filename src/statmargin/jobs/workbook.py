@@ -368,7 +368,7 @@ def run_workbook(
         raise RoleError(refusals.no_roles_sheet(source.display_name))
     plan = roles.plan
     _check_roles(plan, roles)
-    used = _used_columns(plan)
+    used = used_columns(plan)
     say(console.reading_sheet(plan.sheet))
     table = read_table(
         path, sheet=plan.sheet, header_row=plan.header_row, columns=used, source=source,
@@ -443,7 +443,8 @@ def _check_roles(plan: Plan, roles: RolesSheet) -> None:
         raise RoleError(refusals.role_for_missing_column(gone[0]))
 
 
-def _used_columns(plan: Plan) -> list[str]:
+def used_columns(plan: Plan) -> list[str]:
+    """The columns a plan reads: every column with a role, and the partners and totals they name."""
     names: list[str] = []
     for c in plan.columns:
         if c.role is not Role.IGNORE:

@@ -1091,7 +1091,8 @@ def _select(layout: _Layout, columns: Sequence[str] | None) -> list[HeaderColumn
             head = matches[0] if len(matches) == 1 else None
         if head is None:
             close = difflib.get_close_matches(str(name), list(by_name), n=3, cutoff=0.5)
-            raise ColumnNotFoundError(read_messages.not_a_header(name, layout.sheet, layout.header_row, close))
+            raise ColumnNotFoundError(read_messages.not_a_header(name, layout.sheet, layout.header_row, close,
+                                                                 list(by_name)))
         wanted.add(head.index)
     return [h for h in layout.columns if h.index in wanted]
 

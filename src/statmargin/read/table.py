@@ -78,7 +78,7 @@ class Table:
         from ..words.read_messages import not_a_header
 
         close = difflib.get_close_matches(name, list(self.columns), n=3, cutoff=0.5)
-        raise ColumnNotFoundError(not_a_header(name, self.sheet, self.header_row, close))
+        raise ColumnNotFoundError(not_a_header(name, self.sheet, self.header_row, close, list(self.columns)))
 
     @classmethod
     def from_frame(cls, frame, sheet: str = "data") -> Table:

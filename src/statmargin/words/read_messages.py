@@ -50,7 +50,18 @@ def no_data_below_headers(sheet: str, header_row: int, *, columns_named: bool) -
     return f"Sheet {sheet!r} has headers in row {header_row} but no data below them{where} Check the sheet and the header row."
 
 
-def not_a_header(name: str, sheet: str, header_row: int, close: Sequence[str] = ()) -> str:
-    """A column name that is no header of the sheet, with the closest headers when some are near."""
-    hint = f" Did you mean {', '.join(repr(c) for c in close)}?" if close else ""
+def not_a_header(name: str, sheet: str, header_row: int, close: Sequence[str] = (),
+                 headers: Sequence[str] = ()) -> str:
+    """A column name that is no header of the sheet: the closest headers when some are near, else the first few."""
+    if close:
+        hint = f" Did you mean {', '.join(repr(c) for c in close)}?"
+    elif headers:
+        shown = ", ".join(repr(h) for h in list(headers)[:MAX_HEADERS_SHOWN])
+        more = f" and {len(headers) - MAX_HEADERS_SHOWN} more" if len(headers) > MAX_HEADERS_SHOWN else ""
+        hint = f" Its headers are {shown}{more}."
+    else:
+        hint = ""
     return f"Column {name!r} is not a header on sheet {sheet!r}.{hint} Headers are read from row {header_row}."
+
+
+MAX_HEADERS_SHOWN = 8  # enough to recognise the sheet, short enough for one line
