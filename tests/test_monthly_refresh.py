@@ -99,11 +99,11 @@ def refreshed(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Any]:
     june = folder / "june.xlsx"
     shutil.copyfile(book, june)
     first_new_row = append_rows(book, demo.SHEET, july_rows())
-    invoke("run", str(book), "--quiet", "--json", str(folder / "july.json"))
+    terminal = invoke("run", str(book), "--quiet", "--json", str(folder / "july.json")).stdout
     july = folder / "july.xlsx"
     shutil.copyfile(book, july)
     return {
-        "june": june, "july": july, "book": book, "first_new_row": first_new_row,
+        "june": june, "july": july, "book": book, "first_new_row": first_new_row, "terminal": terminal,
         "june_json": json.loads((folder / "june.json").read_text()),
         "july_json": json.loads((folder / "july.json").read_text()),
     }
@@ -133,6 +133,9 @@ def test_top_of_the_sheet_names_what_changed_most_important_first(refreshed: dic
         "Now below the significance level: Vaccinated same day = Yes, trend across months.",
     ]
     assert lines[at + 3] == ""  # nothing else changed: the waits and the team comparisons are as they were
+    # The terminal says the same, for a user who runs from a terminal or a scheduled task.
+    said = [line.strip() for line in refreshed["terminal"].splitlines()]
+    assert lines[at] in said and lines[at + 1] in said and lines[at + 2] in said
 
 
 def test_since_last_run_column_and_json(refreshed: dict[str, Any]) -> None:

@@ -73,6 +73,7 @@ class RunSummary:
     notes: int
     write: WriteReport
     messages: list[str] = field(default_factory=list)
+    changes: list[str] = field(default_factory=list)  # what changed since the last run, as the results sheet says it
 
     def to_record(self) -> dict[str, Any]:
         return {
@@ -431,6 +432,7 @@ def run_workbook(
         notes=len(table.notes),
         write=write,
         messages=list(write.renamed),
+        changes=list(context.changes or []),
     )
 
 

@@ -149,6 +149,7 @@ def run_summary(summary: Any) -> str:
         else "  No analyses were run.",
         "  Sheets written: " + ", ".join(summary.write.sheets.values()),
     ]
+    lines.extend(f"  {line}" for line in getattr(summary, "changes", ()))
     lines.extend(f"  {m}" for m in summary.messages)
     return "\n".join(lines)
 
