@@ -41,6 +41,8 @@ def kind_words(kind: NoteKind) -> str:
 
 def cells_noted(count: str) -> str:
     """The notes sheet's first line; ``count`` is the number as shown (hidden in sharing mode)."""
+    if count == "0":
+        return "No cell was skipped, converted or merged while reading."
     cells = "1 cell was" if count == "1" else f"{count} cells were"
     return f"{cells} skipped, converted or merged while reading; each cell address links to the cell."
 
