@@ -10,8 +10,8 @@ defines one ``DesignSpec`` subclass with:
 - ``run(question, prepared, choice)``: call the method from ``stats``;
 - ``follow_up(result, prepared, settings)``: pairwise comparisons after a
   clear overall result (after adjustment across the run);
-- ``samples(prepared)``: the values the sheets draw (histograms, tables), so
-  the sheets never regroup the data themselves.
+- ``prepare`` also fills ``Prepared.samples``: the values the sheets draw
+  (histograms, tables), so the sheets never regroup the data themselves.
 
 ``DesignSpec.answer`` runs prepare, choose and run, turning data that cannot
 support a test into a skipped Result with its reason code.
