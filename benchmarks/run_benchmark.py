@@ -187,7 +187,10 @@ def prepare(rows: int, work: Path, src: str) -> tuple[Path, Path]:
     roles = work / f"visits-{rows}-{generate.SEED}-roles.xlsx"
     if not data.exists():
         start = time.perf_counter()
-        generate.write_workbook(data, rows)
+        # In a child process: Linux counts a parent's resident memory at fork in each
+        # later child's peak, so the harness itself must stay small.
+        subprocess.run([sys.executable, str(Path(__file__).with_name("generate.py")), str(rows), str(data)],
+                       check=True, stdout=subprocess.DEVNULL)
         print(f"generated {data.name} ({data.stat().st_size / 2**20:.1f} MiB) in "
               f"{time.perf_counter() - start:.1f} s", flush=True)
     if not roles.exists():

@@ -7,9 +7,9 @@ Prints both times and their ratio.
 
 from __future__ import annotations
 
+import argparse
 import random
 import shutil
-import sys
 import tempfile
 import time
 from pathlib import Path
@@ -56,7 +56,10 @@ def results_model() -> SheetModel:
 
 
 def main() -> None:
-    target_mb = float(sys.argv[1]) if len(sys.argv) > 1 else 20.0
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("target_megabytes", nargs="?", type=float, default=20.0,
+                        help="size of the generated workbook (default 20)")
+    target_mb = parser.parse_args().target_megabytes
     folder = Path(tempfile.mkdtemp(prefix="statmargin-bench-"))
     try:
         source = folder / "large.xlsx"

@@ -6,7 +6,7 @@ Attribute VB_Name = "statmargin_buttons"
 ' for you, so save the workbook afterwards as usual.
 '
 ' Needs, once per computer (see templates/README.md for the exact steps):
-'   - Python with statmargin and xlwings:   pip install "statmargin[excel]"
+'   - Python with statmargin and xlwings:   pip install ".[excel]"  (in the statmargin folder)
 '   - the xlwings add-in:                   xlwings addin install
 '   - macOS only:                           xlwings runpython install
 '   - in this VBA editor: Tools > References > tick "xlwings"

@@ -80,6 +80,8 @@ def install(stage: str, action: str) -> None:
 def main(argv: list[str]) -> None:
     """Install the stage's action, then run the command line (which exits with its code)."""
     stage, action, *args = argv[1:]
+    # A suite started with Ctrl+C ignored (nohup, some CI runners) passes that on; a user's terminal does not.
+    signal.signal(signal.SIGINT, signal.default_int_handler)
     install(stage, action)
     from statmargin.cli import main as cli
 

@@ -254,7 +254,7 @@ class TestDegenerateData:
         r = only(analyze(frame, outcome="y", by="when", paired_by="id", shape="normal"))
         assert r.extra["incomplete_pairs"] == ["3", "6"]
         assert r.n == 4 and r.n_excluded == 3
-        assert any("2 id value(s)" in say(n) for n in r.notes)
+        assert any("2 id values" in say(n) for n in r.notes)
 
     def test_duplicate_key_rows(self):
         """Two rows for the same key and condition are skipped with what to fix."""

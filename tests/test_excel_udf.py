@@ -72,7 +72,7 @@ def test_shape_equals_the_command_lines_shape_check(newcomer) -> None:
     got = _as_dict(statmargin.excel.SM_SHAPE(newcomer["column"]["Wait minutes"]))
     [want] = newcomer["one"]["shape"]["assessment"]["groups"]
     assert got["n"] == want["n"] == 31
-    assert got["Check"] == want["check"] == "shapiro_wilk"
+    assert want["check"] == "shapiro_wilk" and got["Check"] == "Shapiro-Wilk"  # the JSON keeps the identifier, the cell its name
     assert got["Check statistic"] == want["check_statistic"]
     assert got["Check p"] == want["check_p"]
     assert got["Skewness"] == want["skewness"]
@@ -95,7 +95,7 @@ def test_shape_without_header_matches_scipy_shapiro() -> None:
     """SM_SHAPE on bare numbers uses Shapiro-Wilk for n = 10, with W and p equal to scipy.stats.shapiro."""
     block = _as_dict(statmargin.excel.SM_SHAPE([[v] for v in DRUG2], False))
     reference = stats.shapiro(DRUG2)
-    assert block["n"] == 10 and block["Check"] == "shapiro_wilk"
+    assert block["n"] == 10 and block["Check"] == "Shapiro-Wilk"
     assert block["Check statistic"] == pytest.approx(reference.statistic, rel=1e-12)
     assert block["Check p"] == pytest.approx(reference.pvalue, rel=1e-12)
 
@@ -103,7 +103,7 @@ def test_shape_without_header_matches_scipy_shapiro() -> None:
 @pytest.mark.parametrize(
     ("args", "start"),
     [
-        (([1.0, 2.0, 3.0], ["a", "b"]), "The outcome range has 3 cell(s) and the group range 2"),
+        (([1.0, 2.0, 3.0], ["a", "b"]), "The outcome range has 3 cells and the group range 2"),
         (([1.0, 2.0, 3.0], ["a", "b", "c"]), "The first cell of the outcome range holds a number"),
         ((["w", 1.0, 2.0], ["g", "a", "b"], True, 1.5), "The confidence 1.5 is not a level"),
     ],

@@ -143,6 +143,13 @@ def test_run_uses_hidden_rows_by_default_and_says_so(tmp_path: Path) -> None:
     text = " ".join(str(v) for row in sheet_rows(path, results) for v in row)
     assert "2 of them hidden or filtered in the sheet and used" in text
     assert summary.results[0].n == 12
+    # The terminal says it too, even with progress lines off (--quiet, or output to a log).
+    from click.testing import CliRunner
+
+    from statmargin.cli import main
+
+    said = CliRunner().invoke(main, ["run", str(path), "--quiet"]).stdout
+    assert "2 rows hidden or filtered in the sheet were used like the others" in said
 
 
 def test_run_with_visible_rows_only_leaves_them_out(tmp_path: Path) -> None:
@@ -154,6 +161,7 @@ def test_run_with_visible_rows_only_leaves_them_out(tmp_path: Path) -> None:
     text = " ".join(str(v) for row in sheet_rows(path, results) for v in row)
     assert "2 hidden or filtered rows left out" in text
     assert summary.results[0].n == 10
+    assert "2 hidden or filtered rows left out (Rows to use: visible rows only)." in summary.messages
     # Direct count: the hidden rows 7 and 9 hold Mill 90 and Mill 95, so Mill keeps 4 waits.
     visible = [(p, w) for row, (p, w) in enumerate(zip(POINTS, WAITS, strict=True), start=2) if row not in HIDDEN]
     groups = _groups(summary)

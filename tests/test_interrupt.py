@@ -167,7 +167,8 @@ def test_ctrl_c_at_a_random_moment(planned_big: Path, tmp_path: Path, run_second
     path = fresh_copy(planned_big, tmp_path)
     before = sha(path)
     process = subprocess.Popen([sys.executable, "-m", "statmargin", "run", str(path), "--quiet"],
-                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                               preexec_fn=_ctrl_c_as_on_a_terminal)
     time.sleep(fraction * run_seconds)
     process.send_signal(signal.SIGINT)
     _, stderr = process.communicate(timeout=TIMEOUT)
@@ -178,6 +179,11 @@ def test_ctrl_c_at_a_random_moment(planned_big: Path, tmp_path: Path, run_second
     assert sha(path) == before or fully_written(path)
     only_the_workbook(path)
     rerun_succeeds(path)
+
+
+def _ctrl_c_as_on_a_terminal() -> None:
+    """In the child: Ctrl+C acts, even when the suite itself was started with it ignored (nohup)."""
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
 
 
 def test_a_command_leaves_the_stop_signal_handler_as_it_found_it(tmp_path: Path) -> None:

@@ -13,9 +13,11 @@ from statmargin.words.sentences import Hidden, say
 
 CASES = [
     (coded(Skip.TOO_FEW_PERIODS, n=2, minimum=3),
-     "Only 2 period(s) have rows; a trend across periods needs at least 3."),
+     "Only 2 periods have rows; a trend across periods needs at least 3."),
     (coded(Skip.NO_BASELINE, n=4, minimum=5),
-     "Only 4 period(s) before the latest have rows; control limits need at least 5."),
+     "Only 4 periods before the latest have rows; control limits need at least 5."),
+    (coded(Skip.TOO_FEW_PERIODS, n=Count(1), minimum=3),
+     "Only 1 period has rows; a trend across periods needs at least 3."),
     (coded(Note.PERIOD_PARTIAL, period="2026-07", last_date=dt.date(2026, 7, 14), period_end=dt.date(2026, 7, 31)),
      "2026-07 is partial (rows up to 2026-07-14, the period ends 2026-07-31), so the last complete period is "
      "read as the latest; 2026-07 is shown in the series but not compared or flagged."),
@@ -23,7 +25,7 @@ CASES = [
      "2026-07 is partial, so the last complete period is read as the latest; 2026-07 is shown in the series "
      "but not compared or flagged."),
     (coded(Note.PERIOD_UNREADABLE, column="Month", n=Count(7), grain=Grain.MONTH, examples=[(4, "soon")]),
-     "7 cell(s) of Month could not be read as a period by month (row 4: 'soon', ...); their rows were left "
+     "7 cells of Month could not be read as a period by month (row 4: 'soon', ...); their rows were left "
      "out of the period series."),
     (coded(Note.PERIOD_GAPS, column="Month", periods=["2026-02", "2026-03"]),
      "Month has no rows in 2026-02, 2026-03; those periods are shown with n = 0."),

@@ -210,7 +210,7 @@ class TestLayout:
         (note,) = [n for n in table.notes if n.cell == "E3"]
         assert note.kind == NoteKind.HEADER
         assert note.value == "checked"
-        assert note.action.startswith("1 value(s) in a column with no header were not read")
+        assert note.action.startswith("1 value in a column with no header was not read")
 
     def test_columns_option_keeps_only_those_in_sheet_order(self, tmp_path):
         """columns= reads only the named columns, in sheet order, matching names without case."""

@@ -429,3 +429,16 @@ def test_leftovers_of_a_killed_run_are_removed_by_the_next_write(tmp_path: Path)
     removed = xlsxsink.remove_stale_temporaries(tmp_path, now=now)
     assert sorted(p.name for p in removed) == sorted([leftover.name, day_old.name])
     assert running.exists() and fresh_dead.exists()
+
+
+def test_out_over_a_file_that_is_not_a_workbook_is_refused(tmp_path: Path) -> None:
+    """--out naming an existing non-workbook (someone's notes saved as .xlsx) is refused; both files stay as they were."""
+    source = make_rich_workbook(tmp_path / "book.xlsx")
+    notes = tmp_path / "notes.xlsx"
+    notes.write_text("meeting notes, not a workbook")
+    before = (hashlib.sha256(source.read_bytes()).hexdigest(), notes.read_bytes())
+    model = SheetModel(name="results", kind="results")
+    model.put_row(0, ["Question"], "header")
+    with pytest.raises(WriteError, match="exists and is not a workbook"):
+        FileSink(source).write_sheets([model], out=str(notes))
+    assert (hashlib.sha256(source.read_bytes()).hexdigest(), notes.read_bytes()) == before

@@ -28,7 +28,7 @@ from ..vocabulary import MeasureType, Role
 from ..words import console, refusals, roles_words
 from ..words import progress as words
 from ..words.cautions import count_comparisons
-from ..words.results_text import hidden_rows_note
+from ..words.results_text import hidden_rows_line, hidden_rows_note
 
 # Called as each step starts; during the analyses also with (done, total) so a
 # front end can draw a progress bar.
@@ -431,7 +431,8 @@ def run_workbook(
         results=results,
         notes=len(table.notes),
         write=write,
-        messages=list(write.renamed),
+        messages=[line for line in (hidden_rows_line(table.n_hidden, plan.settings.rows),) if line]
+        + list(write.renamed),
         changes=list(context.changes or []),
     )
 

@@ -6,7 +6,17 @@ from collections.abc import Sequence
 from typing import Any
 
 from ..results import Result
-from .numbers import ci_label, counted, decimals_for, fmt_ci, fmt_df, fmt_number, fmt_p, is_number
+from .numbers import (
+    ci_label,
+    counted,
+    decimals_for,
+    fmt_ci,
+    fmt_df,
+    fmt_number,
+    fmt_p,
+    is_number,
+    noun,
+)
 from .sentences import say
 
 INTERNAL_ERROR = (
@@ -93,7 +103,7 @@ def test_summary(results: Sequence[Result], *, sheet: str | None = None) -> str:
             adjusted = f", adjusted {fmt_p(r.p_adjusted)}" if r.p_adjusted is not None else ""
             parts = [part for part in (stat + df, fmt_p(r.p_value)) if part]
             lines.append("  " + ", ".join(parts) + adjusted)
-            lines.append(f"  n = {r.n} ({r.n_excluded} row(s) left out)")
+            lines.append(f"  n = {r.n} ({r.n_excluded} {noun(r.n_excluded, 'row')} left out)")
             if r.estimate is not None:
                 lines.append(f"  {r.estimate.name} = {_number(r.estimate.value)}{_interval(r.estimate, r.confidence)}")
             if r.effect is not None:
@@ -149,8 +159,8 @@ def run_summary(summary: Any) -> str:
         else "  No analyses were run.",
         "  Sheets written: " + ", ".join(summary.write.sheets.values()),
     ]
-    lines.extend(f"  {line}" for line in getattr(summary, "changes", ()))
     lines.extend(f"  {m}" for m in summary.messages)
+    lines.extend(f"  {line}" for line in getattr(summary, "changes", ()))
     return "\n".join(lines)
 
 

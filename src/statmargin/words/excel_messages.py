@@ -6,6 +6,8 @@ working in Excel (buttons and menus, not command lines).
 
 from __future__ import annotations
 
+from .numbers import noun
+
 TITLE = "statmargin"
 STATUS_PREFIX = "statmargin: "
 
@@ -15,7 +17,8 @@ STATUS_PREFIX = "statmargin: "
 def no_xlwings() -> str:
     return (
         "The Excel bridge needs xlwings, which is not installed; install it with "
-        "'pip install \"statmargin[excel]\"' and try again, or use the command line (statmargin run)."
+        "'pip install xlwings' in the Python that has statmargin and try again, "
+        "or use the command line (statmargin run)."
     )
 
 
@@ -92,7 +95,7 @@ def no_roles_sheet() -> str:
 
 def planned(sheet: str, n_columns: int) -> str:
     return (
-        f"the roles sheet '{sheet}' lists {n_columns} column(s); pick a role for each in the "
+        f"the roles sheet '{sheet}' lists {n_columns} {noun(n_columns, 'column')}; pick a role for each in the "
         "shaded cells, then press Run."
     )
 
@@ -158,7 +161,7 @@ def header_is_a_number(which: str) -> str:
 
 def lengths_differ(n_outcome: int, n_groups: int) -> str:
     return (
-        f"The outcome range has {n_outcome} cell(s) and the group range {n_groups}; "
+        f"The outcome range has {n_outcome} {noun(n_outcome, 'cell')} and the group range {n_groups}; "
         "select the same rows in both."
     )
 

@@ -373,6 +373,11 @@ def out_folder_missing(folder: str) -> str:
     return _left(f"The folder {folder} for --out does not exist; create it first or choose another path")
 
 
+def out_not_a_workbook(name: str) -> str:
+    """--out names an existing file that is not a workbook: replacing it could lose someone's work."""
+    return _left(f"--out names {name}, which exists and is not a workbook; choose another name or move that file")
+
+
 def locked(name: str, lock: str) -> str:
     """The workbook is open in a spreadsheet program."""
     return (

@@ -5,6 +5,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from ..vocabulary import NoteKind
+from .numbers import noun
 
 NO_NOTES = "Every cell used was read as it stood."
 NOT_A_LEVEL = "not one of the listed levels"  # also why plan.types leaves such a label out
@@ -100,4 +101,6 @@ def several_tables(first: str, others: Sequence[str]) -> str:
 
 
 def values_without_header(count: int) -> str:
-    return f"{count} value(s) in a column with no header were not read; give the column a header to use them"
+    were = "was" if count == 1 else "were"
+    return (f"{count} {noun(count, 'value')} in a column with no header {were} not read; "
+            "give the column a header to use them")

@@ -105,3 +105,15 @@ def counted(n: int, noun: str, plural: str | None = None) -> str:
     """
     word = noun if n == 1 else (plural or noun + "s")
     return f"{n:,} {word}"
+
+
+def noun(n: Any, singular: str, plural: str | None = None) -> str:
+    """The noun in the number that ``n`` asks for; a count shown as text (hidden: '<11') takes the plural.
+
+    Examples
+    --------
+    >>> noun(1, "cell"), noun(3, "cell"), noun("<11", "period"), noun(1.0, "pair")
+    ('cell', 'cells', 'periods', 'pair')
+    """
+    one = not isinstance(n, bool) and isinstance(n, (int, float)) and n == 1
+    return singular if one else (plural or singular + "s")

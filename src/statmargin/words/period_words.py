@@ -14,6 +14,7 @@ from typing import Any
 from ..vocabulary import ChartKind, ControlRule, Grain, SinceLastRun
 from ..vocabulary.codes import Caution, Note, Reason, Skip
 from . import sentences
+from .numbers import noun
 from .sentences import Facts, capitalized
 
 # --------------------------------------------------------------------------- names
@@ -155,7 +156,7 @@ def _unreadable(f: Facts) -> str:
     grain = f.get("grain")
     at = f" by {grain}" if grain is not None else ""
     return (
-        f"{f['n']} cell(s) of {f['column']} could not be read as a period{at}{more}; their rows were "
+        f"{f['n']} {noun(f['n'], 'cell')} of {f['column']} could not be read as a period{at}{more}; their rows were "
         "left out of the period series."
     )
 
@@ -209,12 +210,18 @@ def _overdispersed(f: Facts) -> str:
     )
 
 
+def _periods_have(n: Any, where: str = "") -> str:
+    """'1 period has' / '2 periods before the latest have'."""
+    word = noun(n, "period")
+    return f"{n} {word}{where} {'has' if word == 'period' else 'have'}"
+
+
 TEMPLATES: dict[Skip | Note | Reason | Caution, Any] = {
-    Skip.TOO_FEW_PERIODS: (
-        "Only {n} period(s) have rows; a trend across periods needs at least {minimum}."
+    Skip.TOO_FEW_PERIODS: lambda f: (
+        f"Only {_periods_have(f['n'])} rows; a trend across periods needs at least {f['minimum']}."
     ),
-    Skip.NO_BASELINE: (
-        "Only {n} period(s) before the latest have rows; control limits need at least {minimum}."
+    Skip.NO_BASELINE: lambda f: (
+        f"Only {_periods_have(f['n'], ' before the latest')} rows; control limits need at least {f['minimum']}."
     ),
     Note.SHORT_SERIES: _short_series,
     Note.AUTOCORRELATED: _autocorrelated,

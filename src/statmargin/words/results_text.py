@@ -56,6 +56,23 @@ def hidden_rows_note(hidden: int | None, rows: RowsToUse) -> str:
     )
 
 
+def hidden_rows_line(hidden: int | None, rows: RowsToUse) -> str:
+    """The same as :func:`hidden_rows_note`, as a sentence of its own for the terminal ("" when there is nothing to say)."""
+    if rows is RowsToUse.VISIBLE:
+        if hidden is None:
+            return "This file does not record which rows are hidden, so all rows were used."
+        if not hidden:
+            return ""
+        return f"{hidden:,} hidden or filtered {_rows(hidden)} left out ({SETTING_LABELS['rows']}: {rows})."
+    if not hidden:
+        return ""
+    were = "was" if hidden == 1 else "were"
+    return (
+        f"{hidden:,} {_rows(hidden)} hidden or filtered in the sheet {were} used like the others"
+        f" ({SETTING_LABELS['rows']} on the roles sheet can leave them out)."
+    )
+
+
 def _rows(n: int) -> str:
     return "row" if n == 1 else "rows"
 

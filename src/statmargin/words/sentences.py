@@ -16,7 +16,7 @@ from collections.abc import Callable, Mapping
 from typing import Any
 
 from ..vocabulary.codes import Caution, Coded, Hidden, Note, Reason, Skip
-from .numbers import fmt_p
+from .numbers import fmt_p, noun
 
 Facts = Mapping[str, Any]
 
@@ -105,7 +105,7 @@ def _too_many_conditions(f: Facts) -> str:
 
 def _incomplete_pairs(f: Facts) -> str:
     return (
-        f"{f['n']} {f['key']} value(s) lacked a usable {f['outcome']} for both {f['first']} and "
+        f"{f['n']} {f['key']} {noun(f['n'], 'value')} lacked a usable {f['outcome']} for both {f['first']} and "
         f"{f['second']} and were left out."
     )
 
@@ -136,10 +136,10 @@ def _normal_approximation(f: Facts) -> str:
 def _too_few_pairs(f: Facts) -> str:
     if f.get("first") is not None:
         return (
-            f"Only {f['n']} complete pair(s) of {f['first']} and {f['second']}; at least "
+            f"Only {f['n']} complete {noun(f['n'], 'pair')} of {f['first']} and {f['second']}; at least "
             f"{f['minimum']} are needed."
         )
-    return f"Only {f['n']} complete pair(s) of values; a correlation needs at least {f['minimum']}."
+    return f"Only {f['n']} complete {noun(f['n'], 'pair')} of values; a correlation needs at least {f['minimum']}."
 
 
 TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = {
@@ -172,9 +172,9 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
         "cannot be run."
     ),
     Skip.TOO_FEW_PAIRS: _too_few_pairs,
-    Skip.PAIRWISE_TOO_FEW: (
-        "Group '{label}' has {n} usable value(s); pairwise comparisons need at least {minimum} per "
-        "group, so merge or drop that group."
+    Skip.PAIRWISE_TOO_FEW: lambda f: (
+        f"Group '{f['label']}' has {f['n']} usable {noun(f['n'], 'value')}; pairwise comparisons need at "
+        f"least {f['minimum']} per group, so merge or drop that group."
     ),
     Skip.PAIRWISE_ONE_GROUP: "Pairwise comparisons need at least two groups; only one was given.",
     Skip.NO_WITHIN_SPREAD: (
@@ -186,7 +186,10 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
         "compared this way."
     ),
     Skip.ALL_RANKS_EQUAL: "Every value is the same in all groups, so there are no rank differences to compare.",
-    Skip.TOO_FEW_GROUPS: "Only {n} group(s) have data; at least two groups are needed to compare.",
+    Skip.TOO_FEW_GROUPS: lambda f: (
+        f"Only {f['n']} {noun(f['n'], 'group')} {'has' if noun(f['n'], 'group') == 'group' else 'have'} data; "
+        "at least two groups are needed to compare."
+    ),
     Skip.GROUP_CONSTANT_WELCH: lambda f: (
         f"Every value in group {f['label']} is the same ({number(f['value'])}), so Welch's ANOVA cannot "
         "weight it; use the classic ANOVA or check the data."
@@ -237,7 +240,8 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
     Note.NORMAL_APPROXIMATION: _normal_approximation,
     Note.EXACT_RULED_OUT: _exact_ruled_out,
     Note.ZEROS_DROPPED: lambda f: (
-        f"{f['n']} value(s) equal to {number(f['value'])} were left out of the ranking and of the "
+        f"{f['n']} {noun(f['n'], 'value')} equal to {number(f['value'])} "
+        f"{'was' if noun(f['n'], 'value') == 'value' else 'were'} left out of the ranking and of the "
         "pseudo-median, as the test requires."
     ),
     Note.MONTE_CARLO_P: _monte_carlo,

@@ -173,6 +173,7 @@ def shape_cells(values: Any, headers: bool = True) -> list[list[Any]]:
         shows them (``stats.shape.summarize``).
     """
     from ...stats.shape import summarize
+    from ...words.technical import CHECK_NAMES
 
     try:
         name, cells = _split(column_values(values), bool(headers), excel_messages.DEFAULT_VALUES, "values")
@@ -183,7 +184,7 @@ def shape_cells(values: Any, headers: bool = True) -> list[list[Any]]:
         return [[" ".join(str(exc).split())]]
     row_values = [
         summary.n,
-        summary.check,
+        CHECK_NAMES.get(summary.check, summary.check),  # the name the shape-check sheet shows
         _number(summary.check_statistic),
         _number(summary.check_p),
         _number(summary.skewness),

@@ -110,6 +110,8 @@ class FileSink:
             raise WriteError(messages.xlsx_not_as_xlsm())
         if out and not _folder(target).is_dir():
             raise WriteError(messages.out_folder_missing(str(_folder(target))))
+        if out and target.is_file() and not zipfile.is_zipfile(target):
+            raise WriteError(messages.out_not_a_workbook(target.name))
         locks = lock_files(target)
         if locks and not out:
             raise WorkbookLockedError(messages.locked(target.name, locks[0].name))
