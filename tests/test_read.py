@@ -556,6 +556,12 @@ class TestHelpers:
         assert sample_values(table.column("Wait"), k=4) == ["3", "2.5", "7", "8"]
         assert sample_values(table.column("Site")) == ["North", "South"]
 
+    def test_sample_values_show_six_significant_digits(self, tmp_path):
+        """A computed score shows as a spreadsheet's General format would, not with 16 digits."""
+        cells = {"A1": "Score", "A2": 77.53999546945688, "A3": 0.000123456789, "A4": 1234567.891}
+        table = read_table(build(tmp_path / "s.xlsx", cells))
+        assert sample_values(table.column("Score")) == ["77.54", "0.000123457", "1234568"]
+
     def test_fingerprint_follows_the_values(self, tmp_path):
         """Equal data give equal fingerprints; one changed value changes it."""
         first = read_table(build(tmp_path / "a.xlsx", grid([["Wait"], [1.0], [2.0]])))

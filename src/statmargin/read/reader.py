@@ -206,6 +206,19 @@ def format_number(value: float) -> str:
     return repr(float(value))
 
 
+def _sample_number(value: float) -> str:
+    """A number for the roles sheet's sample: whole numbers as they are, others to 6 significant digits.
+
+    Six digits is about what a spreadsheet's General format shows in a normal-width
+    column; the full value stays in the data and in the data notes.
+    """
+    if math.isfinite(value) and value == int(value) and abs(value) < 1e15:
+        return str(int(value))
+    if math.isfinite(value) and 1e6 <= abs(value) < 1e15:
+        return str(round(value))  # no exponent for a large amount: whole units are enough in a sample
+    return f"{value:.6g}"
+
+
 def cell_text(value: Any) -> str:
     """A raw cell value as the text a person would see (for headers and notes)."""
     if value is None:
@@ -1240,14 +1253,15 @@ def sample_values(column: Column, k: int = 5) -> list[str]:
     Returns
     -------
     list of str
-        Numbers shown without a trailing ".0"; labels as read; in a column that
-        mostly holds dates, day serials shown as ISO dates (2026-03-01).
+        Numbers shown without a trailing ".0" and to 6 significant digits; labels
+        as read; in a column that mostly holds dates, day serials shown as ISO
+        dates (2026-03-01).
     """
     out: list[str] = []
     seen: set[str] = set()
     numbers, labels = column.numbers, column.labels
     filled = len(column) - column.n_blank - column.n_unreadable
-    show = _serial_date_text if column.n_dates * 2 >= max(filled, 1) else format_number
+    show = _serial_date_text if column.n_dates * 2 >= max(filled, 1) else _sample_number
     for i in range(len(column)):
         if len(out) >= k:
             break
