@@ -551,3 +551,18 @@ def median_walsh_average(x: np.ndarray, *, work_limit: int | None = None) -> flo
     lower = kth_walsh_average(x_sorted, total // 2 - 1, work_limit=limit)
     return _mean_with_next(lower, total // 2, lambda r, c: (x_sorted[r] + x_sorted[c]) / 2.0,
                            np.arange(n, dtype=np.int64), n)
+
+
+def open_at_null(low: float, high: float, null: float, rejected: bool) -> tuple[float, float]:
+    """Keep an inverted interval's verdict on the null value when a bound lands exactly on it.
+
+    An interval found by inverting a test on data with ties can end exactly at the null
+    value while the test rejects it (the set of values not rejected is open there). The
+    bound is then moved inward by the smallest representable step, so ``low > null`` (or
+    ``high < null``) agrees with the test; the printed number is unchanged.
+    """
+    if rejected and low == null:
+        low = math.nextafter(null, math.inf)
+    if rejected and high == null:
+        high = math.nextafter(null, -math.inf)
+    return low, high

@@ -117,10 +117,11 @@ def dunn(groups: Mapping[str, Weighted], *, adjust: AdjustMethod | str = "holm",
     def shift(a: str, b: str) -> float:
         return median_pairwise_difference_weighted(*by_label[a], *by_label[b])
 
-    def interval(a: str, b: str) -> tuple[float, float]:
-        return _rank_sum_interval(*by_label[a], *by_label[b], "two-sided", confidence, True)
+    def interval(a: str, b: str, level: float) -> tuple[float, float]:
+        return _rank_sum_interval(*by_label[a], *by_label[b], "two-sided", level, True)
 
-    return followup.dunn_of_mean_ranks(mean_ranks, ties, shift, interval, adjust=adjust, alpha=alpha)
+    return followup.dunn_of_mean_ranks(mean_ranks, ties, shift, interval, adjust=adjust, alpha=alpha,
+                                       confidence=confidence)
 
 
 def pairwise_mann_whitney(groups: Mapping[str, Weighted], *, adjust: AdjustMethod | str = "holm",

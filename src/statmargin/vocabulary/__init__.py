@@ -18,6 +18,7 @@ from .periods import (
     SinceLastRun,
 )
 from .run import AdjustFamily, AdjustMethod, Alternative, RowsToUse, YesNo
+from .shape import ShapeCriterion, ShapeDirection, SpreadCriterion
 
 __all__ = [
     "FOLLOWUP_TESTS",
@@ -37,8 +38,11 @@ __all__ = [
     "Precision",
     "Role",
     "RowsToUse",
+    "ShapeCriterion",
+    "ShapeDirection",
     "ShapeHandling",
     "SinceLastRun",
+    "SpreadCriterion",
     "Test",
     "YesNo",
 ]
