@@ -64,7 +64,7 @@ import numpy as np
 
 from ..stats.shape import ShapeJudgement, SpreadJudgement, judge_shape, judge_spread
 from ..vocabulary import Design, ShapeDirection, ShapeHandling, Test
-from ..vocabulary.codes import Coded, Note, Reason, coded
+from ..vocabulary.codes import Coded, Count, Note, Reason, coded
 
 SMALL_UNEQUAL = 15  # below this many values in the smallest group, unequal spreads take Welch's t
 # (in simulation Brunner-Munzel reached 0.07 at 5 vs 19 values with SDs 15 and 4; Welch 0.045)
@@ -204,7 +204,7 @@ def _shape_facts(design: Design, shape: ShapeJudgement, outcome: str | None, by:
         "p": shape.p_value,
         "skewness": shape.skewness,
         "excess_kurtosis": shape.excess_kurtosis,
-        "n_smallest": shape.n_smallest,
+        "n_smallest": Count(shape.n_smallest),
         "n_needed": shape.n_needed,
         "groups": len(shape.groups),
     }

@@ -443,7 +443,7 @@ class _DunnShift:
         span = float(max(self.a[-1], self.b[-1], self.others[-1]) - min(self.a[0], self.b[0], self.others[0]))
         low_end = float(self.a[0] - self.others[-1]) - span - 1.0
         high_end = float(self.a[-1] - self.others[0]) + span + 1.0
-        tolerance = 1e-12 * max(1.0, span)
+        tolerance = 1e-7 * max(span, 1e-300)  # the bound is then moved to the exact jump point
 
         def crossing(target: float, right_end: bool, unreachable: float) -> float:
             # z falls in steps as d grows. The left end of {d: z(d) <= target} is where

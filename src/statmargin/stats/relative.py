@@ -24,12 +24,12 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
 PERMUTATION_BELOW = 15  # "auto" draws permutations when the smallest group is smaller than this
 PERMUTATIONS = 4000  # permutation draws (p resolution 1 / 4001)
 PERMUTATION_SEED = 20240917  # fixed, so the same data always give the same p-value
-BATCH_LIMIT = 4_000_000  # most values held per batch of permutations (memory stays bounded)
+BATCH_LIMIT = 1_000_000  # most values held per batch of permutations (memory stays bounded)
 P_METHODS = ("auto", "permutation", "asymptotic")
 
 
@@ -42,41 +42,39 @@ def placement_counts(rows: np.ndarray, sizes: list[int]) -> list[np.ndarray]:
     Parameters
     ----------
     rows : numpy.ndarray, shape (B, N)
-        B arrangements of the N pooled mid-ranks (any exactly represented numbers with
-        the data's order and ties); groups lie side by side in the order of ``sizes``.
+        B arrangements of the N pooled mid-ranks (multiples of 1/2 from 1 to N, with the
+        data's ties); groups lie side by side in the order of ``sizes``.
     sizes : list of int
         Group sizes.
 
     Returns
     -------
     list of numpy.ndarray
-        Entry s has shape (B, n_s, k): for each value of group s, the number of values
-        of group j below it, ties counting one half. For j = s this is the value's
-        mid-rank within its own group minus one half.
+        Entry s has shape (B, k, n_s): for each value of group s, the number of values
+        of group j (axis 1) below it, ties counting one half. For j = s this is the
+        value's mid-rank within its own group minus one half.
 
     Notes
     -----
-    One sort per group and one ``searchsorted`` per group over all values, with the
-    rows made disjoint by adding a row offset above the range of the ranks (exact in
-    floating point, as ranks are multiples of 1/2 below N), so a batch costs
-    O(k B N log N) time and O(k B N) memory.
+    Mid-ranks doubled are whole numbers up to 2N, so each group's values are counted
+    into a histogram per arrangement (``bincount``), summed cumulatively, and read off
+    at every value: O(k B N) time and memory, without sorting.
     """
     batch, total = rows.shape
     starts = np.concatenate(([0], np.cumsum(sizes)))
-    low, high = float(np.min(rows)), float(np.max(rows))
-    step = (high - low) + 1.0
-    offset = (np.arange(batch, dtype=float) * step)[:, None]
-    shifted = (rows - low) + offset  # rows no longer overlap; order inside a row unchanged
-    flat = shifted.ravel()
-    counts = [np.empty((batch, size, len(sizes))) for size in sizes]
-    for j, size in enumerate(sizes):
-        block = np.sort(shifted[:, starts[j] : starts[j + 1]], axis=1).ravel()
-        below = np.searchsorted(block, flat, "left").reshape(batch, total)
-        upto = np.searchsorted(block, flat, "right").reshape(batch, total)
-        row_start = (np.arange(batch) * size)[:, None]
-        half = (below + upto) / 2.0 - row_start
+    slots = 2 * total + 2
+    index = np.rint(2.0 * rows).astype(np.int64)  # doubled mid-ranks: 2 .. 2N
+    row_base = (np.arange(batch, dtype=np.int64) * slots)[:, None]
+    counts = [np.empty((batch, len(sizes), size)) for size in sizes]
+    flat_index = (index + row_base).ravel()
+    for j in range(len(sizes)):
+        block = (index[:, starts[j] : starts[j + 1]] + row_base).ravel()
+        histogram = np.bincount(block, minlength=batch * slots).astype(float)
+        below = np.cumsum(histogram) - histogram  # rows are apart by ``slots``: strictly below, per row
+        below -= np.repeat(below[::slots], slots)  # start every row's running count at 0
+        half = (below + 0.5 * histogram)[flat_index].reshape(batch, total)
         for s in range(len(sizes)):
-            counts[s][:, :, j] = half[:, starts[s] : starts[s + 1]]
+            counts[s][:, j, :] = half[:, starts[s] : starts[s + 1]]
     return counts
 
 
@@ -104,17 +102,17 @@ def relative_effects(counts: list[np.ndarray], sizes: list[int]) -> RelativeEffe
     """
     k = len(sizes)
     weight = 1.0 / k
-    placements = [c / np.array(sizes, dtype=float) for c in counts]  # (B, n_s, k)
-    p = np.stack([placements[i].mean(axis=1).sum(axis=1) * weight for i in range(k)], axis=1)
+    scale = 1.0 / np.array(sizes, dtype=float)[None, :, None]
+    placements = [c * scale for c in counts]  # (B, k, n_s): placement of each value in group j
+    p = np.stack([placements[i].mean(axis=2).sum(axis=1) * weight for i in range(k)], axis=1)
     parts = []
     for s, size in enumerate(sizes):
         own = placements[s]
-        contribution = -weight * own  # (B, n_s, k): column i = contribution to p_i
-        others = np.delete(own, s, axis=2).sum(axis=2) * weight
-        contribution[:, :, s] = others
-        centred = contribution - contribution.mean(axis=1, keepdims=True)
+        contribution = -weight * own  # (B, k, n_s): row i = contribution to p_i
+        contribution[:, s, :] = (own.sum(axis=1) - own[:, s, :]) * weight
+        centred = contribution - contribution.mean(axis=2, keepdims=True)
         if size > 1:
-            part = np.einsum("bni,bnj->bij", centred, centred) / ((size - 1) * size)
+            part = np.matmul(centred, centred.transpose(0, 2, 1)) / ((size - 1) * size)
         else:
             part = np.zeros((p.shape[0], k, k))
         parts.append(part)
@@ -393,7 +391,7 @@ def brunner_munzel(
                                 for batch in _permuted_batches(rows[0], PERMUTATIONS, PERMUTATION_SEED)])
         p_value = _permutation_p_two_sample(t, draws, alternative)
         method = PMethod.PERMUTATION
-        notes.append(coded(Note.PERMUTATION_P, draws=PERMUTATIONS, smallest=min(sizes), below=PERMUTATION_BELOW))
+        notes.append(coded(Note.PERMUTATION_P, draws=PERMUTATIONS, smallest=Count(min(sizes)), below=PERMUTATION_BELOW))
     else:
         p_value = _t_p(t, df, alternative)
         method = PMethod.ASYMPTOTIC
@@ -623,7 +621,7 @@ def rank_anova_type(
         ])
         p_value = permutation_p(f, draws)
         method = PMethod.PERMUTATION
-        notes.append(coded(Note.PERMUTATION_P, draws=PERMUTATIONS, smallest=min(sizes), below=PERMUTATION_BELOW))
+        notes.append(coded(Note.PERMUTATION_P, draws=PERMUTATIONS, smallest=Count(min(sizes)), below=PERMUTATION_BELOW))
     else:
         p_value = 0.0 if math.isinf(f) else float(stats.f.sf(f, df1, df2))
         method = PMethod.ASYMPTOTIC

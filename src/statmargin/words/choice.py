@@ -13,7 +13,7 @@ from typing import Any
 
 from ..vocabulary import Design
 from ..vocabulary.codes import Caution, Note, Reason, Skip
-from .sentences import capitalized, number, register
+from .sentences import Hidden, capitalized, number, register
 
 Facts = Mapping[str, Any]
 
@@ -61,8 +61,13 @@ def _numbers(f: Facts) -> str:
     return f" ({inner})" if inner else ""
 
 
+def _few(n: Any) -> bool:
+    """A size below 20, or one hidden by sharing mode (hidden sizes are small)."""
+    return isinstance(n, Hidden) or (n or 0) < 20
+
+
 def _no_clear_departure(f: Facts) -> str:
-    if (f.get("n_smallest") or 0) < 20:
+    if _few(f.get("n_smallest")):
         return capitalized(
             f"{_what(f)}{_where(f)} shows no clear departure from a normal shape{_numbers(f)}, though "
             f"{_size(f)} only a large departure could be seen; the test that compares means was used."
