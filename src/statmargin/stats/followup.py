@@ -9,7 +9,7 @@ list of ``statmargin.results.Followup``.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Iterator, Mapping, Sequence
+from collections.abc import Iterator, Mapping, Sequence
 from typing import Any, TypeVar
 
 import numpy as np
@@ -17,13 +17,12 @@ from scipy import optimize, stats
 
 from statmargin.errors import NotEnoughDataError
 from statmargin.results import Estimate, Followup
-from statmargin.stats import twogroup
 from statmargin.stats._common import (
     accurate_mean,
-    open_at_null,
     check_confidence,
     clean,
     median_pairwise_difference,
+    open_at_null,
     sum_of_squares,
     tie_counts,
 )
@@ -386,63 +385,112 @@ def dunn(
     items = _clean_groups(groups)
     pooled = np.concatenate([v for _, v in items])
     ranks = stats.rankdata(pooled)
-    n_total = pooled.size
-    ties = tie_counts(pooled)
-    tie_term = float(np.sum(ties**3 - ties)) / (12.0 * (n_total - 1))
+    mean_ranks, start = [], 0
+    for label, values in items:
+        mean_ranks.append((label, float(ranks[start : start + values.size].mean()), float(values.size)))
+        start += values.size
+    weighted = {label: (values, np.ones(values.size)) for label, values in items}
+    return dunn_of_mean_ranks(mean_ranks, tie_counts(pooled), weighted, adjust=adjust, alpha=alpha,
+                              confidence=confidence)
+
+
+def dunn_of_mean_ranks(
+    mean_ranks: list[tuple[str, float, float]],
+    tie_sizes: np.ndarray,
+    groups: Mapping[str, tuple[np.ndarray, np.ndarray]],
+    *,
+    adjust: AdjustMethod | str = "holm",
+    alpha: float = DEFAULT_ALPHA,
+    confidence: float = 0.95,
+) -> list[Followup]:
+    """:func:`dunn` from each group's (label, mean rank, n), the pooled tie sizes and the (values, counts).
+
+    ``groups`` holds each group's distinct values and how many records each stands for
+    (counts of 1 for plain records), so rows that stand for several records get exactly
+    the result of their repeated records.
+    """
+    n_total = sum(n for *_, n in mean_ranks)
+    tie_term = float(np.sum(tie_sizes**3 - tie_sizes)) / (12.0 * (n_total - 1))
     variance = n_total * (n_total + 1) / 12.0 - tie_term
     if variance <= 0.0:
         raise NotEnoughDataError(coded(Skip.ALL_RANKS_EQUAL))
-    mean_rank, size, start = {}, {}, 0
-    for label, values in items:
-        mean_rank[label] = float(ranks[start : start + values.size].mean())
-        size[label] = values.size
-        start += values.size
-    values_of = dict(items)
-    rows, pairs = [], []
-    for (a, _), (b, _) in _pairs(items):
-        se = math.sqrt(variance * (1.0 / size[a] + 1.0 / size[b]))
-        z = (mean_rank[a] - mean_rank[b]) / se
-        rows.append((a, b, 0.0, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
-        pairs.append((a, b, se))
-    levels = _levels([r[4] for r in rows], adjust, alpha, confidence)
-    estimates, intervals = [], []
-    for (a, b, se), level in zip(pairs, levels, strict=True):
-        others = np.sort(np.concatenate([values_of[c] for c in values_of if c != a]))
-        rest = np.sort(np.concatenate([values_of[c] for c in values_of if c not in (a, b)] or [np.empty(0)]))
-        shift = _DunnShift(np.sort(values_of[a]), np.sort(values_of[b]), others, rest, se)
+    rows, errors = [], []
+    for (a, rank_a, n_a), (b, rank_b, n_b) in _pairs(mean_ranks):
+        se = math.sqrt(variance * (1.0 / n_a + 1.0 / n_b))
+        z = (rank_a - rank_b) / se
+        rows.append((a, b, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
+        errors.append(se)
+    levels = _levels([r[3] for r in rows], adjust, alpha, confidence)
+    out_rows, intervals = [], []
+    for (a, b, z, p), se, level in zip(rows, errors, levels, strict=True):
         critical = float(stats.norm.isf((level or 0.0) / 2.0))
-        estimate, low, high = shift.solve(critical)
-        z_at_zero = next(r[3] for r in rows if r[0] == a and r[1] == b)
-        estimates.append(estimate)
-        intervals.append(open_at_null(low, high, 0.0, abs(z_at_zero) > critical))
-    rows = [(a, b, est, z, p) for (a, b, _, z, p), est in zip(rows, estimates, strict=True)]
-    return _adjusted_followups(Test.DUNN, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha, intervals)
+        estimate, low, high = _DunnShift(groups, a, b, se).solve(critical)
+        out_rows.append((a, b, estimate, z, p))
+        intervals.append(open_at_null(low, high, 0.0, abs(z) > critical))
+    return _adjusted_followups(Test.DUNN, EstimateKind.LOCATION_SHIFT, out_rows, adjust, alpha, intervals)
+
+
+def _levels(raw: Sequence[float | None], adjust: AdjustMethod | str, alpha: float, confidence: float) -> list[float | None]:
+    """Each comparison's interval level: matched to the adjustment, or 1 - confidence without one."""
+    if str(getattr(adjust, "value", adjust)).strip().lower() == AdjustMethod.NONE.value:
+        return [1.0 - confidence] * len(raw)
+    return matched_levels(raw, adjust, alpha)
+
+
+class _Sorted:
+    """Values sorted with the cumulative counts of records they stand for."""
+
+    def __init__(self, values: np.ndarray, counts: np.ndarray) -> None:
+        order = np.argsort(values, kind="stable")
+        self.values = values[order]
+        self.cumulative = np.concatenate(([0.0], np.cumsum(counts[order])))
+
+    def below(self, points: np.ndarray) -> np.ndarray:
+        """Records below each point, ties counting one half."""
+        left = self.cumulative[np.searchsorted(self.values, points, "left")]
+        right = self.cumulative[np.searchsorted(self.values, points, "right")]
+        return (left + right) / 2.0
 
 
 class _DunnShift:
     """Dunn's z of group a shifted by d against group b, re-ranked among all values.
 
-    The pooled mid-rank of a value is its mid-rank within its own group plus the
-    number of other values below it (ties one half), so shifting group a changes only
+    The pooled mid-rank of a record is its mid-rank within its own group plus the
+    number of other records below it (ties one half), so shifting group a changes only
     the counts between a and the rest; each evaluation costs O((n_a + n_b) log N).
     """
 
-    def __init__(self, a: np.ndarray, b: np.ndarray, others: np.ndarray, rest: np.ndarray, se: float) -> None:
-        self.a, self.b, self.others, self.se = a, b, others, se
+    def __init__(self, groups: Mapping[str, tuple[np.ndarray, np.ndarray]], a: str, b: str, se: float) -> None:
+        values_a, counts_a = groups[a]
+        values_b, counts_b = groups[b]
+        others = [c for c in groups if c != a]
+        rest = [c for c in others if c != b]
+        self.a = np.sort(values_a)
+        self.counts_a = counts_a[np.argsort(values_a, kind="stable")]
+        self.n_a, self.n_b = float(counts_a.sum()), float(counts_b.sum())
+        self.values_b, self.counts_b = values_b, counts_b
+        self.others = _Sorted(np.concatenate([groups[c][0] for c in others]),
+                              np.concatenate([groups[c][1] for c in others]))
+        self.se = se
         # b's counts against groups other than a and b do not change with d
-        self.b_fixed = float(np.mean(_below(rest, b))) if rest.size else 0.0
+        self.b_fixed = 0.0
+        if rest:
+            against = _Sorted(np.concatenate([groups[c][0] for c in rest]), np.concatenate([groups[c][1] for c in rest]))
+            self.b_fixed = float(np.sum(counts_b * against.below(values_b))) / self.n_b
 
     def z(self, d: float) -> float:
-        shifted = self.a - d
-        mean_a = (self.a.size + 1) / 2.0 + float(np.mean(_below(self.others, shifted)))
-        mean_b = (self.b.size + 1) / 2.0 + self.b_fixed + float(np.mean(_below(shifted, self.b)))
+        shifted = _Sorted(self.a - d, self.counts_a)
+        mean_a = (self.n_a + 1) / 2.0 + float(np.sum(self.counts_a * self.others.below(self.a - d))) / self.n_a
+        mean_b = ((self.n_b + 1) / 2.0 + self.b_fixed
+                  + float(np.sum(self.counts_b * shifted.below(self.values_b))) / self.n_b)
         return (mean_a - mean_b) / self.se
 
     def solve(self, critical: float) -> tuple[float, float, float]:
         """(estimate, low, high): the sign change of z and where |z| reaches ``critical``."""
-        span = float(max(self.a[-1], self.b[-1], self.others[-1]) - min(self.a[0], self.b[0], self.others[0]))
-        low_end = float(self.a[0] - self.others[-1]) - span - 1.0
-        high_end = float(self.a[-1] - self.others[0]) + span + 1.0
+        others = self.others.values
+        span = float(max(self.a[-1], others[-1]) - min(self.a[0], others[0]))
+        low_end = float(self.a[0] - others[-1]) - span - 1.0
+        high_end = float(self.a[-1] - others[0]) + span + 1.0
         tolerance = 1e-7 * max(span, 1e-300)  # the bound is then moved to the exact jump point
 
         def crossing(target: float, right_end: bool, unreachable: float) -> float:
@@ -471,54 +519,11 @@ class _DunnShift:
         """The jump point nearest ``d``: z changes only where a value a_i - d meets another value."""
         if not math.isfinite(d):
             return d
-        targets = self.a - d
-        right = np.clip(np.searchsorted(self.others, targets), 0, self.others.size - 1)
-        left = np.clip(right - 1, 0, self.others.size - 1)
-        candidates = np.concatenate([self.a - self.others[left], self.a - self.others[right]])
+        others = self.others.values
+        right = np.clip(np.searchsorted(others, self.a - d), 0, others.size - 1)
+        left = np.clip(right - 1, 0, others.size - 1)
+        candidates = np.concatenate([self.a - others[left], self.a - others[right]])
         return float(candidates[np.argmin(np.abs(candidates - d))])
-
-
-def _below(sorted_values: np.ndarray, points: np.ndarray) -> np.ndarray:
-    """For each point, how many of ``sorted_values`` lie below it (ties one half)."""
-    return (np.searchsorted(sorted_values, points, "left") + np.searchsorted(sorted_values, points, "right")) / 2.0
-
-
-def dunn_of_mean_ranks(
-    mean_ranks: list[tuple[str, float, float]],
-    tie_sizes: np.ndarray,
-    shift: Callable[[str, str], float],
-    interval: Callable[[str, str, float], tuple[float, float]],
-    *,
-    adjust: AdjustMethod | str = "holm",
-    alpha: float = DEFAULT_ALPHA,
-    confidence: float = 0.95,
-) -> list[Followup]:
-    """Dunn's z from each group's (label, mean rank, n) and the pooled tie sizes; per-pair shift and interval.
-
-    ``interval(a, b, confidence)`` gives a pair's interval at the level matched to the
-    adjustment (``adjust.matched_levels``), so that level agrees with the adjusted p;
-    it is the pair's own rank-sum interval, which can still differ from Dunn's pooled
-    ranking at the margin (used for rows that stand for several records).
-    """
-    n_total = sum(n for *_, n in mean_ranks)
-    tie_term = float(np.sum(tie_sizes**3 - tie_sizes)) / (12.0 * (n_total - 1))
-    variance = n_total * (n_total + 1) / 12.0 - tie_term
-    if variance <= 0.0:
-        raise NotEnoughDataError(coded(Skip.ALL_RANKS_EQUAL))
-    rows = []
-    for (a, rank_a, n_a), (b, rank_b, n_b) in _pairs(mean_ranks):
-        z = (rank_a - rank_b) / math.sqrt(variance * (1.0 / n_a + 1.0 / n_b))
-        rows.append((a, b, shift(a, b), z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
-    levels = _levels([r[4] for r in rows], adjust, alpha, confidence)
-    intervals = [interval(a, b, 1.0 - (level or 0.0)) for (a, b, *_), level in zip(rows, levels, strict=True)]
-    return _adjusted_followups(Test.DUNN, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha, intervals)
-
-
-def _levels(raw: list[float], adjust: AdjustMethod | str, alpha: float, confidence: float) -> list[float | None]:
-    """Each comparison's interval level: matched to the adjustment, or 1 - confidence without one."""
-    if str(getattr(adjust, "value", adjust)).strip().lower() == AdjustMethod.NONE.value:
-        return [1.0 - confidence] * len(raw)
-    return matched_levels(raw, adjust, alpha)
 
 
 def pairwise_mann_whitney(

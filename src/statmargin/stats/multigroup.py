@@ -285,7 +285,6 @@ def welch_anova(
             raise common.NotEnoughDataError(
                 coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"])
             )
-    k = len(summaries)
     f, df1, df2 = welch_statistic(summaries)
     n_total = int(sum(summary["n"] for summary in summaries))
     effect = _weighted_share(f * df1, df1, df2, n_total, confidence)

@@ -569,7 +569,6 @@ def welch_anova(groups: Mapping[str, Weighted], *, alternative: str = "two-sided
     for summary in summaries:
         if summary["sd"] == 0.0:
             raise NotEnoughDataError(coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"]))
-    k = len(summaries)
     f, df1, df2 = multigroup.welch_statistic(summaries)
     n_total = int(sum(summary["n"] for summary in summaries))
     effect = multigroup._weighted_share(f * df1, df1, df2, n_total, confidence)
