@@ -35,6 +35,7 @@ import math
 import sys
 import time
 import warnings
+import zlib
 from collections import Counter
 from collections.abc import Callable, Mapping
 from concurrent.futures import ProcessPoolExecutor
@@ -357,7 +358,7 @@ def _tally(result: Result, truth: Mapping[str, float], covered: Counter, counted
 def run_cell(cell: Cell, reps: int, reps_alt: int, seed: int) -> dict[str, Any]:
     """Null and shifted runs of one cell; rates, coverage and choices."""
     design = _design_of(cell)
-    rng = np.random.default_rng([seed, hash(cell.label) % (2**31)])
+    rng = np.random.default_rng([seed, zlib.crc32(cell.label.encode())])  # str hash() varies by process
     _, _, sd = _population_cached(cell.shape)
     base_sd = group_plan(cell)[0][1] if cell.design == "groups" else 1.0
     out: dict[str, Any] = {"cell": cell.__dict__, "label": cell.label, "reps": reps, "reps_alt": reps_alt}

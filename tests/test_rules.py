@@ -96,14 +96,19 @@ def test_small_groups_with_different_spreads_take_welch() -> None:
     assert welch >= 80  # the rest: samples whose spreads happened to look alike
 
 
-def test_rank_tests_of_groups_use_permutations_only_when_spreads_are_similar() -> None:
-    """The p_method option: permutations assume exchangeable groups, so not when spreads differ."""
+def test_rank_tests_of_groups_take_studentized_permutations_whatever_the_spreads() -> None:
+    """The p_method option is "auto" with or without unequal spreads, so a rank test's p depends on ranks only."""
+    # Neubert & Brunner (2007): the studentized permutation test is asymptotically valid when
+    # spreads differ; "permutation" at any size only without spread or with fewer than 3 values.
     similar = choose_continuous(Design.TWO_GROUP_CONTINUOUS, {"a": np.array([1.0, 1, 2, 9, 30, 2, 1, 3]),
                                                             "b": np.array([2.0, 1, 3, 8, 25, 1, 2, 4])})
     assert similar.test == Test.BRUNNER_MUNZEL and similar.options == {"p_method": "auto"}
     spread = choose_continuous(Design.MULTI_GROUP_CONTINUOUS, {f"g{i}": (1 + 5 * i) * RNG.lognormal(size=30)
                                                               for i in range(3)})
-    assert spread.test == Test.RANK_ANOVA_TYPE and spread.options == {"p_method": "asymptotic"}
+    assert spread.spread is not None and spread.spread.differ
+    assert spread.test == Test.RANK_ANOVA_TYPE and spread.options == {"p_method": "auto"}
+    few = choose_continuous(Design.TWO_GROUP_CONTINUOUS, {"a": np.array([1.0, 4.0]), "b": np.array([2.0, 9.0])})
+    assert few.test == Test.BRUNNER_MUNZEL and few.options == {"p_method": "permutation"}
 
 
 def test_judge_shape_reports_direction_and_size_rule() -> None:

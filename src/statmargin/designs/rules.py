@@ -43,10 +43,11 @@ two measures                any departure / ordinal / too few     Spearman rho  
 "n large enough" is the size rule of ``judge_shape``: the smallest group has at least
 28 + 25 G1^2 values (Sugden, Smith & Jones 2000, refining Cochran 1977) and at least
 2 G2. Sources for the tests: Welch (1947); Brunner & Munzel (2000) with the
-studentized permutation p of Neubert & Brunner (2007) below 15 per group when
-spreads are similar; Alexander & Govern (1994); Brunner, Dette & Munk (1997) and
-Brunner, Konietschke, Pauly & Puri (2017) for the ANOVA-type rank test (its p uses
-permutations below 15 per group when spreads are similar); Dixon & Mood (1946) for
+studentized permutation p of Neubert & Brunner (2007) below 15 per group (valid
+when spreads differ; at most 2000 values in all); Alexander & Govern (1994); Brunner,
+Dette & Munk (1997) and Brunner, Konietschke, Pauly & Puri (2017) for the ANOVA-type
+rank test (its p uses the same studentized permutations below 15 per group);
+Dixon & Mood (1946) for
 the sign test; Wilcoxon (1945), valid for paired differences because under "no
 change" the two measurements of a unit are exchangeable, so their difference is
 symmetric about 0. Why these and not others is in each reason's facts and in
@@ -63,6 +64,7 @@ from typing import Any
 import numpy as np
 
 from ..stats.shape import ShapeJudgement, SpreadJudgement, judge_shape, judge_spread
+from ..stats.weighted_shape import judge_shape_weighted, judge_spread_weighted
 from ..vocabulary import Design, ShapeDirection, ShapeHandling, Test
 from ..vocabulary.codes import Coded, Count, Note, Reason, coded
 
@@ -187,15 +189,24 @@ class ContinuousChoice:
         return [self.reason]
 
 
-def _clean(groups: Mapping[str, Any]) -> dict[str, np.ndarray]:
-    out = {}
-    for label, values in groups.items():
-        x = np.asarray(values, dtype=float).ravel()
-        out[str(label)] = x[np.isfinite(x)]
-    return out
+def _clean(groups: Mapping[str, Any],
+           counts: Mapping[str, Any] | None) -> tuple[dict[str, np.ndarray], dict[str, np.ndarray] | None]:
+    """Finite values per group (with a count above 0), and their counts when given."""
+    values: dict[str, np.ndarray] = {}
+    kept_counts: dict[str, np.ndarray] = {}
+    for label, raw in groups.items():
+        x = np.asarray(raw, dtype=float).ravel()
+        keep = np.isfinite(x)
+        if counts is not None:
+            c = np.asarray(counts[label], dtype=float).ravel()
+            keep &= np.isfinite(c) & (c > 0)
+            kept_counts[str(label)] = c[keep].astype(np.int64)
+        values[str(label)] = x[keep]
+    return values, (kept_counts if counts is not None else None)
 
 
-def _shape_facts(design: Design, shape: ShapeJudgement, outcome: str | None, by: str | None) -> dict[str, Any]:
+def shape_facts(design: Design, shape: ShapeJudgement, outcome: str | None, by: str | None) -> dict[str, Any]:
+    """The facts a reason about the shape judgement is worded from."""
     return {
         "design": design,
         "outcome": outcome,
@@ -267,6 +278,8 @@ def choose_continuous(
     target: float | None = None,
     outcome: str | None = None,
     by: str | None = None,
+    counts: Mapping[str, Any] | None = None,
+    ordinal_column: str | None = None,
 ) -> ContinuousChoice:
     """Choose the test for a continuous question from the data's shape and spreads.
 
@@ -288,14 +301,21 @@ def choose_continuous(
         different from it is tested by the sign test).
     outcome, by : str, optional
         Column names, carried in the reason's facts for wording.
+    counts : mapping of str to array_like, optional
+        Records each value stands for (a count column), by the keys of ``groups``; the
+        judgements are those of the repeated records
+        (``stats.weighted_shape.judge_shape_weighted``).
+    ordinal_column : str, optional
+        The ordinal column the reason names (default ``outcome``).
 
     Returns
     -------
     ContinuousChoice
         The test, whether it is rank-based, the condition (a key of ``RULES``), the
         reason with its facts, both judgements, notes, and ``options`` to pass to the
-        method (``p_method`` for the rank tests of groups: permutations only when the
-        spreads are similar, as permutations assume the groups could be swapped).
+        method (``p_method`` for the rank tests of groups: "auto", studentized
+        permutations below 15 per group; "permutation" at any size when a group has
+        no spread or every group has fewer than 3 values).
 
     Examples
     --------
@@ -316,48 +336,75 @@ def choose_continuous(
     """
     if design not in MEAN_TEST:
         raise ValueError(f"not a continuous design: {design!r}")
-    values = _clean(groups)
-    shape = judge_shape(values)
+    values, kept = _clean(groups, counts)
     grouped = design in (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS)
-    spread = judge_spread(values) if grouped else None
+    if kept is None:
+        shape = judge_shape(values)
+        spread = judge_spread(values) if grouped else None
+    else:
+        counted = {label: (v, kept[label]) for label, v in values.items()}
+        shape = judge_shape_weighted(counted)
+        spread = judge_spread_weighted(counted) if grouped else None
     condition = _condition(design, values, shape, spread, handling, ordinal, target)
     rule = _LOOKUP.get((design, condition))
     if rule is None:
         raise ValueError(f"no rule for {design!r} under {condition!r}")
-    facts = _shape_facts(design, shape, outcome, by)
+    facts = shape_facts(design, shape, outcome, by)
     facts.update(_spread_facts(spread))
     if condition == "no_spread" and not grouped:
         every = np.concatenate(list(values.values()))
         facts.update(value=float(every[0]), target=0.0 if design == Design.PAIRED_CONTINUOUS else target)
     if condition == "ordinal":
-        facts["column"] = outcome
+        facts["column"] = ordinal_column or outcome
     notes: list[Coded] = []
     if condition == "user_normal" and shape.departs:
         notes.append(coded(Note.SHAPE_DEPARTS_ASSUMED_NORMAL, **facts))
     options: dict[str, Any] = {}
     if rule.test in (Test.BRUNNER_MUNZEL, Test.RANK_ANOVA_TYPE):
-        similar = spread is None or not spread.differ
-        options["p_method"] = "permutation" if condition == "no_spread" else "auto" if similar else "asymptotic"
+        # Studentized permutations (Neubert & Brunner 2007) below 15 per group whatever the spreads:
+        # they stay valid when spreads differ, and a rank test's p then depends on the ranks only.
+        # Too few values for any approximation, or a group without spread: permutations at any size.
+        exact = condition in ("no_spread", "too_few")
+        options["p_method"] = "permutation" if exact else "auto"
     return ContinuousChoice(design, rule.test, rule.rank_based, condition, coded(rule.reason, **facts),
                             shape, spread, tuple(notes), options)
 
 
-def method_for(test: Test, design: Design) -> Callable[..., Any]:
+def method_for(test: Test, design: Design, *, counted: bool = False) -> Callable[..., Any]:
     """The ``stats`` function that runs a chosen continuous test.
 
     One-sample functions take ``(values, mu=...)``, paired ones ``(first, second)``, two
     groups ``(x, y, labels=...)``, several groups ``(groups)``, correlations ``(x, y)``;
-    a choice's ``options`` are extra keyword arguments.
+    a choice's ``options`` are extra keyword arguments. With ``counted`` the functions
+    of rows that stand for several records: one sample ``(values, counts, mu=...)``,
+    paired ``(first, second, counts)``, groups as ``(values, counts)`` pairs,
+    correlations ``(x, y, counts)``.
     """
     from ..stats import correlation, multigroup, onesample, paired, relative, signtest, twogroup
+    from ..stats import weighted as w
+    from ..stats import weighted_relative as wr
 
     if design == Design.PAIRED_CONTINUOUS:
-        by_test: dict[Test, Callable[..., Any]] = {
-            Test.PAIRED_T: paired.paired_t,
-            Test.WILCOXON_SIGNED_RANK: paired.wilcoxon_paired,
-            Test.SIGN_TEST: signtest.sign_test_paired,
-        }
+        by_test: dict[Test, Callable[..., Any]] = (
+            {Test.PAIRED_T: w.paired_t, Test.WILCOXON_SIGNED_RANK: w.wilcoxon_paired,
+             Test.SIGN_TEST: wr.sign_test_paired} if counted else
+            {Test.PAIRED_T: paired.paired_t, Test.WILCOXON_SIGNED_RANK: paired.wilcoxon_paired,
+             Test.SIGN_TEST: signtest.sign_test_paired}
+        )
         return by_test[test]
+    if counted:
+        weighted_table: dict[Test, Callable[..., Any]] = {
+            Test.ONE_SAMPLE_T: w.one_sample_t,
+            Test.WILCOXON_SIGNED_RANK: w.wilcoxon_signed_rank,
+            Test.SIGN_TEST: wr.sign_test,
+            Test.WELCH_T: w.welch_t,
+            Test.BRUNNER_MUNZEL: wr.brunner_munzel,
+            Test.ALEXANDER_GOVERN: wr.alexander_govern,
+            Test.RANK_ANOVA_TYPE: wr.rank_anova_type,
+            Test.PEARSON_R: w.pearson_r,
+            Test.SPEARMAN_RHO: w.spearman_rho,
+        }
+        return weighted_table[test]
     table: dict[Test, Callable[..., Any]] = {
         Test.ONE_SAMPLE_T: onesample.one_sample_t,
         Test.WILCOXON_SIGNED_RANK: onesample.wilcoxon_signed_rank,

@@ -566,3 +566,29 @@ def open_at_null(low: float, high: float, null: float, rejected: bool) -> tuple[
     if rejected and high == null:
         high = math.nextafter(null, -math.inf)
     return low, high
+
+
+class SortedRecords:
+    """Values sorted with the cumulative counts of the records they stand for (1 each without counts).
+
+    ``below(points)`` counts the records below each point, ties counting one half: the
+    placement of a value among these records, in O(log n) per point.
+
+    Examples
+    --------
+    >>> records = SortedRecords(np.array([3.0, 1.0, 2.0]), np.array([1, 2, 1]))
+    >>> records.below(np.array([2.0, 3.0, 0.5])).tolist()
+    [2.5, 3.5, 0.0]
+    """
+
+    def __init__(self, values: np.ndarray, counts: np.ndarray | None = None) -> None:
+        order = np.argsort(values, kind="stable")
+        self.values = values[order]
+        weights = np.ones(values.size) if counts is None else np.asarray(counts, dtype=float)[order]
+        self.cumulative = np.concatenate(([0.0], np.cumsum(weights)))
+
+    def below(self, points: np.ndarray) -> np.ndarray:
+        """Records below each point, ties counting one half."""
+        left = self.cumulative[np.searchsorted(self.values, points, "left")]
+        right = self.cumulative[np.searchsorted(self.values, points, "right")]
+        return (left + right) / 2.0

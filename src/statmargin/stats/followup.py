@@ -9,15 +9,16 @@ list of ``statmargin.results.Followup``.
 from __future__ import annotations
 
 import math
-from collections.abc import Iterator, Mapping, Sequence
+from collections.abc import Callable, Iterator, Mapping, Sequence
 from typing import Any, TypeVar
 
 import numpy as np
 from scipy import optimize, stats
 
 from statmargin.errors import NotEnoughDataError
-from statmargin.results import Estimate, Followup
+from statmargin.results import Estimate, Followup, Result
 from statmargin.stats._common import (
+    SortedRecords,
     accurate_mean,
     check_confidence,
     clean,
@@ -437,21 +438,6 @@ def _levels(raw: Sequence[float | None], adjust: AdjustMethod | str, alpha: floa
     return matched_levels(raw, adjust, alpha)
 
 
-class _Sorted:
-    """Values sorted with the cumulative counts of records they stand for."""
-
-    def __init__(self, values: np.ndarray, counts: np.ndarray) -> None:
-        order = np.argsort(values, kind="stable")
-        self.values = values[order]
-        self.cumulative = np.concatenate(([0.0], np.cumsum(counts[order])))
-
-    def below(self, points: np.ndarray) -> np.ndarray:
-        """Records below each point, ties counting one half."""
-        left = self.cumulative[np.searchsorted(self.values, points, "left")]
-        right = self.cumulative[np.searchsorted(self.values, points, "right")]
-        return (left + right) / 2.0
-
-
 class _DunnShift:
     """Dunn's z of group a shifted by d against group b, re-ranked among all values.
 
@@ -469,17 +455,17 @@ class _DunnShift:
         self.counts_a = counts_a[np.argsort(values_a, kind="stable")]
         self.n_a, self.n_b = float(counts_a.sum()), float(counts_b.sum())
         self.values_b, self.counts_b = values_b, counts_b
-        self.others = _Sorted(np.concatenate([groups[c][0] for c in others]),
+        self.others = SortedRecords(np.concatenate([groups[c][0] for c in others]),
                               np.concatenate([groups[c][1] for c in others]))
         self.se = se
         # b's counts against groups other than a and b do not change with d
         self.b_fixed = 0.0
         if rest:
-            against = _Sorted(np.concatenate([groups[c][0] for c in rest]), np.concatenate([groups[c][1] for c in rest]))
+            against = SortedRecords(np.concatenate([groups[c][0] for c in rest]), np.concatenate([groups[c][1] for c in rest]))
             self.b_fixed = float(np.sum(counts_b * against.below(values_b))) / self.n_b
 
     def z(self, d: float) -> float:
-        shifted = _Sorted(self.a - d, self.counts_a)
+        shifted = SortedRecords(self.a - d, self.counts_a)
         mean_a = (self.n_a + 1) / 2.0 + float(np.sum(self.counts_a * self.others.below(self.a - d))) / self.n_a
         mean_b = ((self.n_b + 1) / 2.0 + self.b_fixed
                   + float(np.sum(self.counts_b * shifted.below(self.values_b))) / self.n_b)
@@ -665,17 +651,28 @@ def pairwise_brunner_munzel(
     """
     from statmargin.stats.relative import brunner_munzel
 
+    def run(xa: Any, xb: Any, labels: tuple[str, str], level: float) -> Result:
+        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method)
+
+    return pairwise_of(run, _clean_groups(groups), adjust=adjust, alpha=alpha, confidence=confidence)
+
+
+def pairwise_of(run: Callable[[Any, Any, tuple[str, str], float], Result], items: Sequence[tuple[str, Any]], *,
+                adjust: AdjustMethod | str, alpha: float, confidence: float) -> list[Followup]:
+    """Pairwise Brunner-Munzel follow-ups from ``run(a, b, labels, confidence)`` on each pair of ``items``.
+
+    Each pair is tested once at ``confidence`` for its p, then again at the level matched
+    to the adjustment for its interval.
+    """
     confidence = check_confidence(confidence)
-    items = _clean_groups(groups)
     tested = []
-    for (a, xa), (b, xb) in _pairs(items):
-        result = brunner_munzel(xa, xb, labels=(a, b), confidence=confidence, p_method=p_method)
-        tested.append((a, b, xa, xb, result))
+    for (a, xa), (b, xb) in _pairs(list(items)):
+        tested.append((a, b, xa, xb, run(xa, xb, (a, b), confidence)))
     raw = [r.p_value for *_, r in tested]
     levels = _levels(raw, adjust, alpha, confidence)
     rows, intervals = [], []
     for (a, b, xa, xb, result), level in zip(tested, levels, strict=True):
-        at_level = brunner_munzel(xa, xb, labels=(a, b), confidence=1.0 - (level or 0.0), p_method=p_method)
+        at_level = run(xa, xb, (a, b), 1.0 - (level or 0.0))
         assert at_level.estimate is not None
         rows.append((a, b, float(at_level.estimate.value or 0.0), float(result.statistic or 0.0), result.p_value))
         intervals.append((float(at_level.estimate.ci_low or 0.0), float(at_level.estimate.ci_high or 0.0)))

@@ -30,6 +30,8 @@ PERMUTATION_BELOW = 15  # "auto" draws permutations when the smallest group is s
 PERMUTATIONS = 4000  # permutation draws (p resolution 1 / 4001)
 PERMUTATION_SEED = 20240917  # fixed, so the same data always give the same p-value
 BATCH_LIMIT = 1_000_000  # most values held per batch of permutations (memory stays bounded)
+PERMUTATION_MAX_TOTAL = 2000  # permutations only up to this many values in all: beyond it the work
+# (draws x values x groups) takes minutes, while the smallest group alone sets the approximation's df
 P_METHODS = ("auto", "permutation", "asymptotic")
 
 
@@ -87,8 +89,13 @@ class RelativeEffects:
     covariance: np.ndarray  # (B, k, k): sum of parts
 
 
-def relative_effects(counts: list[np.ndarray], sizes: list[int]) -> RelativeEffects:
+def relative_effects(counts: list[np.ndarray], sizes: list[int] | list[float],
+                     weights: list[np.ndarray] | None = None) -> RelativeEffects:
     """Unweighted relative effects and their covariance from placement counts.
+
+    ``weights`` (one array per group) are the records each value stands for (a count
+    column); ``sizes`` are then the groups' record totals. Without them each value is
+    one record.
 
     Notes
     -----
@@ -104,15 +111,20 @@ def relative_effects(counts: list[np.ndarray], sizes: list[int]) -> RelativeEffe
     weight = 1.0 / k
     scale = 1.0 / np.array(sizes, dtype=float)[None, :, None]
     placements = [c * scale for c in counts]  # (B, k, n_s): placement of each value in group j
-    p = np.stack([placements[i].mean(axis=2).sum(axis=1) * weight for i in range(k)], axis=1)
+
+    def mean(values: np.ndarray, s: int) -> np.ndarray:  # over each group's records
+        return values.mean(axis=2) if weights is None else values @ weights[s] / float(sizes[s])
+
+    p = np.stack([mean(placements[i], i).sum(axis=1) * weight for i in range(k)], axis=1)
     parts = []
     for s, size in enumerate(sizes):
         own = placements[s]
         contribution = -weight * own  # (B, k, n_s): row i = contribution to p_i
         contribution[:, s, :] = (own.sum(axis=1) - own[:, s, :]) * weight
-        centred = contribution - contribution.mean(axis=2, keepdims=True)
+        centred = contribution - mean(contribution, s)[:, :, None]
         if size > 1:
-            part = np.matmul(centred, centred.transpose(0, 2, 1)) / ((size - 1) * size)
+            weighted = centred if weights is None else centred * weights[s]
+            part = np.matmul(weighted, centred.transpose(0, 2, 1)) / ((size - 1) * size)
         else:
             part = np.zeros((p.shape[0], k, k))
         parts.append(part)
@@ -206,7 +218,11 @@ def _check_p_method(p_method: str) -> None:
         raise common.OptionError(f"p_method must be one of {', '.join(P_METHODS)}, not {p_method!r}.")
 
 
-def _use_permutation(p_method: str, sizes: list[int]) -> bool:
+def use_permutation(p_method: str, sizes: list[int]) -> bool:
+    """Whether the p-value comes from permutations: asked for, or "auto" with a small group; never above
+    ``PERMUTATION_MAX_TOTAL`` values in all."""
+    if sum(sizes) > PERMUTATION_MAX_TOTAL:
+        return False
     return p_method == "permutation" or (p_method == "auto" and min(sizes) < PERMUTATION_BELOW)
 
 
@@ -228,9 +244,35 @@ def _two_sample_t(rows: np.ndarray, sizes: list[int]) -> tuple[np.ndarray, np.nd
     first, second = rows[:, :n1], rows[:, n1:]
     below1 = first - stats.rankdata(first, axis=1)  # values of the second group below each first value
     below2 = second - stats.rankdata(second, axis=1)
-    ps = below1.mean(axis=1) / n2
-    s1 = below1.var(axis=1, ddof=1)
-    s2 = below2.var(axis=1, ddof=1)
+    return _t_of_placements(below1.mean(axis=1) / n2, below1.var(axis=1, ddof=1), below2.var(axis=1, ddof=1),
+                            n1, n2)
+
+
+def two_sample_t_counted(a: np.ndarray, ca: np.ndarray, b: np.ndarray,
+                         cb: np.ndarray) -> tuple[float, float, float, float]:
+    """:func:`_two_sample_t` of the records of rows ``a`` and ``b`` standing for ``ca`` and ``cb`` records each.
+
+    A record's placement in the other group is the same for every record of its row,
+    so the mean and variance over records are the count-weighted ones over rows.
+    """
+    below1 = common.SortedRecords(b, cb).below(a)
+    below2 = common.SortedRecords(a, ca).below(b)
+    n1, n2 = float(ca.sum()), float(cb.sum())
+    (m1, v1), (_, v2) = _counted_moments(below1, ca), _counted_moments(below2, cb)
+    ps, se, t, df = _t_of_placements(np.array([m1 / n2]), np.array([v1]), np.array([v2]), n1, n2)
+    return float(ps[0]), float(se[0]), float(t[0]), float(df[0])
+
+
+def _counted_moments(values: np.ndarray, counts: np.ndarray) -> tuple[float, float]:
+    """Mean and variance (n - 1) of the records of rows ``values`` standing for ``counts`` records each."""
+    n = float(counts.sum())
+    mean = float(np.dot(counts, values)) / n
+    return mean, float(np.dot(counts, (values - mean) ** 2)) / (n - 1.0)
+
+
+def _t_of_placements(ps: np.ndarray, s1: np.ndarray, s2: np.ndarray, n1: float,
+                     n2: float) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Brunner-Munzel t and df from the probability of superiority and the placements' variances."""
     variance = s1 / (n1 * n2 * n2) + s2 / (n2 * n1 * n1)
     se = np.sqrt(variance)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -386,24 +428,57 @@ def brunner_munzel(
     ps, se, t, df = float(ps_arr[0]), float(se_arr[0]), float(t_arr[0]), float(df_arr[0])
     notes: list[Coded] = []
     draws = None
-    if _use_permutation(p_method, sizes):
+    if use_permutation(p_method, sizes):
         draws = np.concatenate([_two_sample_t(batch, sizes)[2]
                                 for batch in _permuted_batches(rows[0], PERMUTATIONS, PERMUTATION_SEED)])
         p_value = _permutation_p_two_sample(t, draws, alternative)
         method = PMethod.PERMUTATION
         notes.append(coded(Note.PERMUTATION_P, draws=PERMUTATIONS, smallest=Count(min(sizes)), below=PERMUTATION_BELOW))
     else:
-        p_value = _t_p(t, df, alternative)
+        p_value = asymptotic_p(t, df, alternative)
         method = PMethod.ASYMPTOTIC
-    critical = _critical_values(alternative, confidence, df, draws)
+    shift = common.median_pairwise_difference(a, b)
+    result = two_group_result(BrunnerMunzel(ps, se, t, df, p_value, method, draws), a, b, shift,
+                              (first, second), alternative, confidence)
+    result.n_excluded = dropped_a + dropped_b
+    result.groups = [common.describe(first, a), common.describe(second, b)]
+    result.notes = notes
+    return result
+
+
+@dataclass(frozen=True)
+class BrunnerMunzel:
+    """The observed Brunner-Munzel test: P(X > Y) + P(X = Y)/2, its SE, t, df, p and any permutation draws."""
+
+    ps: float
+    se: float
+    t: float
+    df: float
+    p_value: float
+    p_method: PMethod
+    draws: np.ndarray | None  # permuted t values, when the p-value came from permutations
+
+
+def two_group_result(test: BrunnerMunzel, a: np.ndarray, b: np.ndarray, shift: float, labels: tuple[str, str],
+                     alternative: str, confidence: float, ca: np.ndarray | None = None,
+                     cb: np.ndarray | None = None) -> Result:
+    """The Result of a Brunner-Munzel test: both intervals from the test's own critical values.
+
+    ``ca`` and ``cb`` are the records each value of ``a`` and ``b`` stands for (1 each
+    when not given); ``shift`` is the median of the pairwise differences of the records.
+    """
+    first, second = labels
+    ps, se, t = test.ps, test.se, test.t
+    n1 = int(a.size if ca is None else ca.sum())
+    n2 = int(b.size if cb is None else cb.sum())
+    critical = _critical_values(alternative, confidence, test.df, test.draws)
     if se > 0:
         low = ps - critical.lower_bound * se if math.isfinite(critical.lower_bound) else 0.0
         high = ps + critical.upper_bound * se if math.isfinite(critical.upper_bound) else 1.0
         ps_low, ps_high = max(0.0, min(low, ps)), min(1.0, max(high, ps))
     else:
-        ps_low, ps_high = _van_dantzig_interval(ps, min(sizes), alternative, confidence)
-    shift = common.median_pairwise_difference(a, b)
-    shift_low, shift_high = _shift_interval(a, b, shift, critical)
+        ps_low, ps_high = _van_dantzig_interval(ps, min(n1, n2), alternative, confidence)
+    shift_low, shift_high = _shift_interval(a, b, shift, critical, ca, cb)
     rejected = _rejects(t, alternative, critical)
     shift_low, shift_high = common.open_at_null(shift_low, shift_high, 0.0, rejected)
     return Result(
@@ -413,17 +488,14 @@ def brunner_munzel(
         test=Test.BRUNNER_MUNZEL,
         statistic_name="t",
         statistic=t,
-        df=df if math.isfinite(df) else None,
-        p_value=p_value,
-        p_method=method,
+        df=test.df if math.isfinite(test.df) else None,
+        p_value=test.p_value,
+        p_method=test.p_method,
         alternative=alternative,
         confidence=confidence,
-        n=int(a.size + b.size),
-        n_excluded=dropped_a + dropped_b,
+        n=n1 + n2,
         estimate=Estimate(EstimateKind.LOCATION_SHIFT, shift, shift_low, shift_high, levels=(first, second)),
         effect=Effect(EffectKind.PROBABILITY_OF_SUPERIORITY, ps, ps_low, ps_high, levels=(first, second)),
-        groups=[common.describe(first, a), common.describe(second, b)],
-        notes=notes,
         extra={"standard_error": se, "critical_value": critical.lower_bound if math.isfinite(critical.lower_bound)
                else critical.upper_bound},
     )
@@ -434,7 +506,7 @@ def _rejects(t: float, alternative: str, critical: _Critical) -> bool:
     return t > critical.lower_bound or -t > critical.upper_bound
 
 
-def _t_p(t: float, df: float, alternative: str) -> float:
+def asymptotic_p(t: float, df: float, alternative: str) -> float:
     """P of the Brunner-Munzel t on df (infinite t gives 0 or 1)."""
     if math.isnan(df) or df <= 0:
         df = math.inf
@@ -452,20 +524,24 @@ def _permutation_p_two_sample(t: float, draws: np.ndarray, alternative: str) -> 
     return permutation_p(observed, np.asarray(_tail_statistic(draws, alternative), dtype=float))
 
 
-def _shift_statistic(a_sorted: np.ndarray, b_sorted: np.ndarray, d: float) -> float:
-    """Brunner-Munzel t of ``a - d`` against ``b`` (both sorted), from placements only."""
+def _shift_statistic(a_sorted: np.ndarray, ca: np.ndarray, b_records: common.SortedRecords, d: float) -> float:
+    """Brunner-Munzel t of ``a - d`` against ``b`` (``a`` sorted, rows standing for ``ca`` records), from placements."""
     shifted = a_sorted - d
-    below_a = (np.searchsorted(b_sorted, shifted, "left") + np.searchsorted(b_sorted, shifted, "right")) / 2.0
-    below_b = (np.searchsorted(shifted, b_sorted, "left") + np.searchsorted(shifted, b_sorted, "right")) / 2.0
-    n1, n2 = a_sorted.size, b_sorted.size
-    ps = float(np.mean(below_a)) / n2
-    variance = float(np.var(below_a, ddof=1)) / (n1 * n2 * n2) + float(np.var(below_b, ddof=1)) / (n2 * n1 * n1)
+    below_a = b_records.below(shifted)
+    below_b = common.SortedRecords(shifted, ca).below(b_records.values)
+    counts_b = np.diff(b_records.cumulative)
+    n1, n2 = float(ca.sum()), float(b_records.cumulative[-1])
+    mean_a, var_a = _counted_moments(below_a, ca)
+    _, var_b = _counted_moments(below_b, counts_b)
+    ps = mean_a / n2
+    variance = var_a / (n1 * n2 * n2) + var_b / (n2 * n1 * n1)
     if variance <= 0:
         return 0.0 if abs(ps - 0.5) < 1e-15 else math.copysign(math.inf, ps - 0.5)
     return (ps - 0.5) / math.sqrt(variance)
 
 
-def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Critical) -> tuple[float, float]:
+def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Critical, ca: np.ndarray | None = None,
+                    cb: np.ndarray | None = None) -> tuple[float, float]:
     """Every shift d whose test of ``a - d`` against ``b`` stays within the critical values.
 
     Notes
@@ -477,13 +553,17 @@ def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Criti
     ``wilcox.test`` intervals. The estimate is kept inside the interval even when ties
     make the statistic at it non-zero.
     """
-    a_sorted, b_sorted = np.sort(a), np.sort(b)
+    order = np.argsort(a, kind="stable")
+    a_sorted = a[order]
+    counts_a = np.ones(a.size) if ca is None else np.asarray(ca, dtype=float)[order]
+    b_records = common.SortedRecords(b, cb)
+    b_sorted = b_records.values
     span = float(a_sorted[-1] - b_sorted[0]) - float(a_sorted[0] - b_sorted[-1])
     low_end = float(a_sorted[0] - b_sorted[-1]) - span - 1.0
     high_end = float(a_sorted[-1] - b_sorted[0]) + span + 1.0
 
     def statistic(d: float) -> float:
-        return _shift_statistic(a_sorted, b_sorted, d)
+        return _shift_statistic(a_sorted, counts_a, b_records, d)
 
     def snap(d: float) -> float:
         targets = a_sorted - d
@@ -614,7 +694,7 @@ def rank_anova_type(
     rel = relative_effects(placement_counts(rows, sizes), sizes)
     ats = anova_type(rel, sizes)
     f, df1, df2 = float(ats.statistic[0]), float(ats.df1[0]), float(ats.df2[0])
-    if _use_permutation(p_method, sizes):
+    if use_permutation(p_method, sizes):
         draws = np.concatenate([
             anova_type(relative_effects(placement_counts(batch, sizes), sizes), sizes).statistic
             for batch in _permuted_batches(rows[0], PERMUTATIONS, PERMUTATION_SEED)
@@ -623,10 +703,25 @@ def rank_anova_type(
         method = PMethod.PERMUTATION
         notes.append(coded(Note.PERMUTATION_P, draws=PERMUTATIONS, smallest=Count(min(sizes)), below=PERMUTATION_BELOW))
     else:
-        p_value = 0.0 if math.isinf(f) else float(stats.f.sf(f, df1, df2))
+        p_value = anova_type_p(f, df1, df2)
         method = PMethod.ASYMPTOTIC
-    effect = _equal_weight_epsilon(f, df1, df2, float(ats.scale[0]), len(sizes), confidence)
     summaries = [common.describe(label, values) for label, values in cleaned.items()]
+    result = anova_type_result(rel, ats, p_value, method, summaries, confidence)
+    result.n_excluded = dropped
+    result.notes = notes
+    return result
+
+
+def anova_type_p(f: float, df1: float, df2: float) -> float:
+    """The F approximation's p of the ANOVA-type statistic (0 for an infinite statistic)."""
+    return 0.0 if math.isinf(f) else float(stats.f.sf(f, df1, df2))
+
+
+def anova_type_result(rel: RelativeEffects, ats: AnovaType, p_value: float, method: PMethod,
+                      summaries: list[dict[str, Any]], confidence: float) -> Result:
+    """The Result of an ANOVA-type rank test from its relative effects and statistic (batch row 0)."""
+    f, df1, df2 = float(ats.statistic[0]), float(ats.df1[0]), float(ats.df2[0])
+    effect = _equal_weight_epsilon(f, df1, df2, float(ats.scale[0]), len(summaries), confidence)
     for summary, p_i in zip(summaries, rel.p[0], strict=True):
         summary["relative_effect"] = float(p_i)
     high = max(summaries, key=lambda g: g["median"])
@@ -643,13 +738,11 @@ def rank_anova_type(
         p_method=method,
         alternative="two-sided",
         confidence=confidence,
-        n=int(sum(sizes)),
-        n_excluded=dropped,
+        n=int(sum(int(g["n"]) for g in summaries)),
         estimate=Estimate(EstimateKind.LARGEST_MEDIAN_GAP, high["median"] - low["median"],
                           levels=(str(high["label"]), str(low["label"]))),
         effect=effect,
         groups=summaries,
-        notes=notes,
     )
 
 

@@ -1,24 +1,13 @@
-"""Shape checks: per-group summaries, a normal-shape verdict, spread equality, expected counts.
+"""Shape checks: per-group summaries, one shape judgement per analysis, spread equality, expected counts.
 
-The verdict rule lives in one table, ``SHAPE_RULES`` (by sample size):
-
-============  =====================================================================
-n             rule
-============  =====================================================================
-n < 3         cannot be checked: treated as not normal-shaped (rank-based test)
-3 <= n <= 50  Shapiro-Wilk p < 0.05 means not normal-shaped
-              (Shapiro & Wilk 1965, Biometrika 52:591-611, doi:10.1093/biomet/52.3-4.591;
-              Kim 2013 for the 50 cut-off)
-51..300       |z| > 3.29 for skewness or excess kurtosis (z = estimate / standard error)
-              means not normal-shaped (Kim 2013, Restor Dent Endod 38(1):52-54,
-              doi:10.5395/rde.2013.38.1.52)
-n > 300       |skewness| > 2 or |excess kurtosis| > 7 means not normal-shaped
-              (Kim 2013; West, Finch & Curran 1995, in Hoyle (ed.) Structural
-              Equation Modeling, Sage, pp. 56-75)
-============  =====================================================================
-
-Formal tests flag trivial departures in large samples, which is why the bands
-switch from a test to effect-size style thresholds as n grows.
+The test choice uses one judgement per analysis (:func:`judge_shape`): a
+Shapiro-Wilk test in every group of 3 or more values (a seeded subsample of 5000
+above that), combined into one test by Stouffer's method, with pooled skewness
+and kurtosis for the direction and a smooth size rule for when means are still
+close to normal (Shapiro & Wilk 1965, Biometrika 52:591-611,
+doi:10.1093/biomet/52.3-4.591; Sugden, Smith & Jones 2000). Each group's own
+verdict on the shape-check sheet is the same judgement of that group alone, so
+the sheet and the choice never disagree about a group.
 
 Skewness and excess kurtosis are the adjusted Fisher-Pearson estimators G1 and G2
 (``scipy.stats.skew/kurtosis`` with ``bias=False``; the same formulas as
@@ -40,19 +29,7 @@ from scipy import stats
 
 from statmargin.vocabulary.shape import ShapeCriterion, ShapeDirection, SpreadCriterion
 
-NORMALITY_ALPHA = 0.05  # Shapiro-Wilk level (common practice)
-MEDIUM_Z_LIMIT = 3.29  # two-sided 0.001 normal quantile (Kim 2013)
-LARGE_SKEW_LIMIT = 2.0  # |G1| (Kim 2013; West, Finch & Curran 1995)
-LARGE_KURTOSIS_LIMIT = 7.0  # |G2| (Kim 2013; West, Finch & Curran 1995)
 OUTLIER_FENCE = 1.5  # IQR multiples (Tukey 1977)
-
-# (lowest n, highest n, check name). Evaluated top to bottom; the first band containing n applies.
-SHAPE_RULES: tuple[tuple[int, float, str], ...] = (
-    (0, 2, "too_few"),
-    (3, 50, "shapiro_wilk"),
-    (51, 300, "moment_z"),
-    (301, math.inf, "moment_limits"),
-)
 
 
 @dataclass
@@ -71,8 +48,8 @@ class GroupSummary:
     skewness: float | None  # adjusted Fisher-Pearson G1
     excess_kurtosis: float | None  # adjusted G2
     n_outliers: int
-    check: str  # "too_few", "shapiro_wilk", "moment_z", "moment_limits", "constant"
-    check_statistic: float | None  # W for Shapiro-Wilk, else the largest |z| or None
+    check: str  # "too_few", "shapiro_wilk", "constant"
+    check_statistic: float | None  # W of Shapiro-Wilk
     check_p: float | None
     normal_shaped: bool | None  # None when it could not be checked
     verdict: str  # one short phrase, e.g. "right-skewed (Shapiro-Wilk p = 0.003)"
@@ -86,33 +63,6 @@ class GroupSummary:
 def _float(value) -> float | None:
     value = float(value)
     return value if math.isfinite(value) else None
-
-
-def skewness_se(n: int) -> float:
-    """Standard error of G1: sqrt(6n(n-1) / ((n-2)(n+1)(n+3))) (as used by Kim 2013)."""
-    return math.sqrt(6.0 * n * (n - 1) / ((n - 2) * (n + 1) * (n + 3)))
-
-
-def kurtosis_se(n: int) -> float:
-    """Standard error of G2: 2 SE(G1) sqrt((n^2-1) / ((n-3)(n+5))) (as used by Kim 2013)."""
-    return 2.0 * skewness_se(n) * math.sqrt((n * n - 1.0) / ((n - 3) * (n + 5)))
-
-
-def _rule_for(n: int) -> str:
-    for low, high, check in SHAPE_RULES:
-        if low <= n <= high:
-            return check
-    return "too_few"
-
-
-def _direction(skew: float | None) -> str:
-    if skew is None:
-        return "not normal-shaped"
-    if skew > 0.5:
-        return "right-skewed"
-    if skew < -0.5:
-        return "left-skewed"
-    return "heavy- or light-tailed"
 
 
 def fmt_p(p: float) -> str:
@@ -174,41 +124,27 @@ def _summarize(values, label: str) -> GroupSummary:
     base: dict[str, Any] = dict(label=label, n=n, mean=float(np.mean(x)), sd=sd, median=median, q1=q1, q3=q3,
                 min=float(np.min(x)), max=float(np.max(x)), skewness=skew,
                 excess_kurtosis=kurt, n_outliers=n_out)
-    return judge(base, constant, x)
+    return judge(base, constant, None if constant else group_shape(label, x))
 
 
-def judge(base: dict[str, Any], constant: bool, x: np.ndarray | None) -> GroupSummary:
-    """The verdict of ``SHAPE_RULES`` for a group's summaries (``x``: its values, for Shapiro-Wilk)."""
-    n, skew, kurt = base["n"], base["skewness"], base["excess_kurtosis"]
+def judge(base: dict[str, Any], constant: bool, shape: GroupShape | None) -> GroupSummary:
+    """A group's verdict: the judgement of :func:`judge_shape` for that group alone.
+
+    ``shape`` is the group's :class:`GroupShape` (its Shapiro-Wilk test, G1, G2 and
+    ties at the extremes); None when the group is constant or too small.
+    """
+    n = base["n"]
     if constant:
         return GroupSummary(**base, check="constant", check_statistic=None, check_p=None,
                             normal_shaped=None, verdict="all values are equal")
-    check = _rule_for(n)
-    if check == "too_few":
-        return GroupSummary(**base, check=check, check_statistic=None, check_p=None,
+    if shape is None or shape.shapiro_p is None:
+        return GroupSummary(**base, check="too_few", check_statistic=None, check_p=None,
                             normal_shaped=None, verdict=f"too few values to check the shape (n = {n})")
-    if check == "shapiro_wilk":
-        assert x is not None  # up to 50 values the check reads them
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")  # scipy warns on ties/small n; the verdict stands
-            w, p = stats.shapiro(x)
-        ok = bool(p >= NORMALITY_ALPHA)
-        verdict = ("close to normal" if ok else _direction(skew)) + f" (Shapiro-Wilk {fmt_p(float(p))})"
-        return GroupSummary(**base, check=check, check_statistic=_float(w), check_p=_float(p),
-                            normal_shaped=ok, verdict=verdict)
-    if check == "moment_z":
-        z_skew = (skew or 0.0) / skewness_se(n)
-        z_kurt = (kurt or 0.0) / kurtosis_se(n)
-        z = max(abs(z_skew), abs(z_kurt))
-        ok = z <= MEDIUM_Z_LIMIT
-        verdict = ("close to normal" if ok else _direction(skew if abs(z_skew) > MEDIUM_Z_LIMIT else None))
-        verdict += f" (skewness z = {z_skew:.2f}, kurtosis z = {z_kurt:.2f})"
-        return GroupSummary(**base, check=check, check_statistic=z, check_p=None,
-                            normal_shaped=ok, verdict=verdict)
-    ok = abs(skew or 0.0) <= LARGE_SKEW_LIMIT and abs(kurt or 0.0) <= LARGE_KURTOSIS_LIMIT
-    verdict = ("close to normal" if ok else _direction(skew if abs(skew or 0) > LARGE_SKEW_LIMIT else None))
-    verdict += f" (skewness {skew:.2f}, excess kurtosis {kurt:.2f})"
-    return GroupSummary(**base, check=check, check_statistic=None, check_p=None,
+    alone = combine_shapes([shape])
+    ok = not alone.departs
+    sampled = f" on {SHAPIRO_LIMIT} sampled values" if n > SHAPIRO_LIMIT else ""
+    verdict = f"{'close to normal' if ok else alone.direction.value} (Shapiro-Wilk {fmt_p(shape.shapiro_p)}{sampled})"
+    return GroupSummary(**base, check="shapiro_wilk", check_statistic=shape.shapiro_w, check_p=shape.shapiro_p,
                         normal_shaped=ok, verdict=verdict)
 
 
@@ -369,6 +305,7 @@ class GroupShape:
     shapiro_p: float | None  # on at most SHAPIRO_LIMIT values
     piled: int  # records tied at the group's lowest or highest value (ties only)
     octile_skewness: float | None = None  # (Q(7/8) + Q(1/8) - 2 median) / (Q(7/8) - Q(1/8))
+    shapiro_w: float | None = None  # Shapiro-Wilk's W (on the same values as its p)
 
 
 @dataclass(frozen=True)
@@ -438,7 +375,7 @@ def adjusted_moments(values: np.ndarray) -> tuple[float | None, float | None]:
     return _float(g1), _float(g2)
 
 
-def _group_shape(label: str, values: np.ndarray) -> GroupShape:
+def group_shape(label: str, values: np.ndarray) -> GroupShape:
     """G1, G2, Shapiro-Wilk p and ties at the extremes for one group."""
     n = int(values.size)
     sd = float(np.std(values, ddof=1)) if n > 1 else None
@@ -449,15 +386,21 @@ def _group_shape(label: str, values: np.ndarray) -> GroupShape:
     if n > SHAPIRO_LIMIT:  # a seeded subsample: the p-value stays accurate and repeatable
         rng = np.random.default_rng(SUBSAMPLE_SEED)
         tested = rng.choice(values, SHAPIRO_LIMIT, replace=False)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")  # SciPy warns on ties; the p-value is still used
-        p = _float(stats.shapiro(tested).pvalue)
+    w, p = shapiro(tested)
     low, high = float(values.min()), float(values.max())
     at_low, at_high = int(np.sum(values == low)), int(np.sum(values == high))
     piled = (at_low if at_low >= 2 else 0) + (at_high if at_high >= 2 else 0)
     q1, q2, q7 = np.quantile(values, [0.125, 0.5, 0.875])
     octile = None if q7 == q1 else _float((q7 + q1 - 2 * q2) / (q7 - q1))
-    return GroupShape(label, n, sd, skew, kurt, p, piled, octile)
+    return GroupShape(label, n, sd, skew, kurt, p, piled, octile, w)
+
+
+def shapiro(values: np.ndarray) -> tuple[float | None, float | None]:
+    """Shapiro-Wilk's W and p (SciPy), without SciPy's warnings about ties and size."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # SciPy warns on ties; the p-value is still used
+        result = stats.shapiro(values)
+    return _float(result.statistic), _float(result.pvalue)
 
 
 def _pooled(values: list[tuple[float, float]]) -> tuple[float | None, float | None]:
@@ -551,7 +494,12 @@ def judge_shape(groups: dict[str, Any], *, alpha: float = SHAPE_ALPHA) -> ShapeJ
     shapes = []
     for label, values in groups.items():
         x = np.asarray(values, dtype=float).ravel()
-        shapes.append(_group_shape(str(label), x[np.isfinite(x)]))
+        shapes.append(group_shape(str(label), x[np.isfinite(x)]))
+    return combine_shapes(shapes, alpha)
+
+
+def combine_shapes(shapes: list[GroupShape], alpha: float = SHAPE_ALPHA) -> ShapeJudgement:
+    """The one judgement of an analysis from its groups' numbers (the rule of :func:`judge_shape`)."""
     judged = [g for g in shapes if g.shapiro_p is not None]
     n_smallest = min((g.n for g in shapes), default=0)
     if not judged:
@@ -653,6 +601,12 @@ def judge_spread(groups: dict[str, Any], *, ratio_limit: float = SPREAD_RATIO_LI
         if x.size >= 2:
             sds[str(label)] = float(np.std(x, ddof=1))
             arrays[str(label)] = x
+    return spread_verdict(sds, spread_check(arrays) if len(sds) >= 2 else None, ratio_limit, alpha)
+
+
+def spread_verdict(sds: dict[str, float], check: SpreadCheck | None, ratio_limit: float = SPREAD_RATIO_LIMIT,
+                   alpha: float = SPREAD_ALPHA) -> SpreadJudgement:
+    """The rule of :func:`judge_spread` from each group's SD (groups of 2 or more) and Brown-Forsythe's check."""
     if len(sds) < 2:
         return SpreadJudgement(False, SpreadCriterion.NOT_CHECKED, None, None, None, None, ratio_limit, alpha)
     largest = max(sds, key=lambda k: sds[k])
@@ -660,7 +614,6 @@ def judge_spread(groups: dict[str, Any], *, ratio_limit: float = SPREAD_RATIO_LI
     ratio = math.inf if sds[smallest] == 0 else sds[largest] / sds[smallest]
     if sds[largest] == 0:
         ratio = 1.0
-    check = spread_check(arrays)
     p = check.p_value if check is not None else None
     by_ratio = ratio >= ratio_limit
     by_test = p is not None and p < alpha

@@ -16,6 +16,8 @@ from scipy import stats
 
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
+from statmargin.stats.weighted import weighted_median
+from statmargin.stats.weighted_select import collapse
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
@@ -38,7 +40,8 @@ def _binomial_p(above: np.ndarray, n: np.ndarray, alternative: str) -> np.ndarra
     return np.where(n > 0, p, 1.0)
 
 
-def median_interval(values: np.ndarray, alternative: str, confidence: float) -> tuple[float, float]:
+def median_interval(values: np.ndarray, alternative: str, confidence: float,
+                    counts: np.ndarray | None = None) -> tuple[float, float]:
     """Every value m that the sign test of ``values`` against m does not reject (its hull).
 
     Parameters
@@ -47,6 +50,8 @@ def median_interval(values: np.ndarray, alternative: str, confidence: float) -> 
         Finite values.
     alternative, confidence
         Sidedness and level, as for the test.
+    counts : numpy.ndarray, optional
+        Records each value stands for (a count column); 1 each when not given.
 
     Returns
     -------
@@ -74,8 +79,11 @@ def median_interval(values: np.ndarray, alternative: str, confidence: float) -> 
     (4.0, 9.5)
     """
     alpha = 1.0 - confidence
-    distinct, counts = np.unique(values, return_counts=True)
-    n = values.size
+    if counts is None:
+        distinct, counts = np.unique(values, return_counts=True)
+    else:
+        distinct, counts = collapse(values, counts)
+    n = int(counts.sum())
     through = np.cumsum(counts)  # values <= distinct[i]
     below_at = through - counts  # values < distinct[i]
     above_at = n - through  # values > distinct[i]
@@ -90,7 +98,7 @@ def median_interval(values: np.ndarray, alternative: str, confidence: float) -> 
     else:
         points = np.flatnonzero(accept_at | accept_gap)
         if points.size == 0:  # cannot happen for a sign test with a median inside the data
-            return float(np.median(values)), float(np.median(values))
+            return _median(distinct, counts), _median(distinct, counts)
         low = float(distinct[points[0]])  # a gap's infimum is the value just below it
     if accept_gap[-1]:
         high = math.inf
@@ -102,15 +110,27 @@ def median_interval(values: np.ndarray, alternative: str, confidence: float) -> 
             candidates.append(float(distinct[points_at[-1]]))
         if points_gap.size:
             candidates.append(float(distinct[points_gap[-1] + 1]))  # a gap's supremum
-        high = max(candidates) if candidates else float(np.median(values))
+        high = max(candidates) if candidates else _median(distinct, counts)
     return low, high
 
 
-def _sign_result(values: np.ndarray, mu: float, alternative: str, confidence: float, what: str) -> Result:
-    """The sign test of ``values`` against ``mu`` with the median and the share above."""
-    above = int(np.sum(values > mu))
-    below = int(np.sum(values < mu))
-    ties = int(values.size - above - below)
+def _median(values: np.ndarray, counts: np.ndarray | None) -> float:
+    """``np.median`` of the records (each value standing for ``counts`` records when given)."""
+    return float(np.median(values)) if counts is None else weighted_median(values, counts)
+
+
+def sign_result(values: np.ndarray, mu: float, alternative: str, confidence: float, what: str,
+                counts: np.ndarray | None = None) -> Result:
+    """The sign test of ``values`` against ``mu`` with the median and the share above.
+
+    ``counts`` are the records each value stands for (a count column); the result is
+    that of the repeated records.
+    """
+    weights = np.ones(values.size, dtype=np.int64) if counts is None else counts
+    total = int(weights.sum())
+    above = int(weights[values > mu].sum())
+    below = int(weights[values < mu].sum())
+    ties = total - above - below
     if above + below == 0:
         raise common.NotEnoughDataError(coded(Skip.ALL_EQUAL_TARGET, what=what, value=float(mu)))
     test = stats.binomtest(above, above + below, 0.5, alternative=alternative)
@@ -118,11 +138,11 @@ def _sign_result(values: np.ndarray, mu: float, alternative: str, confidence: fl
     notes: list[Coded] = []
     if ties:
         notes.append(coded(Note.SIGN_TIES_DROPPED, n=Count(ties), value=float(mu)))
-    median = float(np.median(values))
-    low, high = median_interval(values, alternative, confidence)
+    median = _median(values, counts)
+    low, high = median_interval(values, alternative, confidence, counts)
     low, high = common.open_at_null(low, high, float(mu), float(test.pvalue) < 1.0 - confidence)
     if math.isinf(low) and math.isinf(high):
-        common.caveat(notes, coded(Note.MEDIAN_INTERVAL_OPEN, n=Count(values.size), confidence=confidence))
+        common.caveat(notes, coded(Note.MEDIAN_INTERVAL_OPEN, n=Count(total), confidence=confidence))
     return Result(
         outcome="",
         exposure=None,
@@ -135,7 +155,7 @@ def _sign_result(values: np.ndarray, mu: float, alternative: str, confidence: fl
         p_method=PMethod.EXACT,
         alternative=alternative,
         confidence=confidence,
-        n=int(values.size),
+        n=total,
         estimate=Estimate(EstimateKind.MEDIAN, median, min(low, median), max(high, median), reference=float(mu)),
         effect=Effect(EffectKind.SHARE_ABOVE, above / (above + below), float(share.low), float(share.high)),
         notes=notes,
@@ -206,7 +226,7 @@ def sign_test(x: Any, *, mu: float = 0.0, alternative: str = "two-sided", confid
     common.check_options(alternative, confidence)
     values, dropped = common.clean(x)
     common.require_count(values, 1, "the outcome")
-    result = _sign_result(values, float(mu), alternative, confidence, "the outcome")
+    result = sign_result(values, float(mu), alternative, confidence, "the outcome")
     result.n_excluded = dropped
     result.groups = [common.describe("all", values)]
     result.against = float(mu)
@@ -269,20 +289,27 @@ def sign_test_paired(
     common.check_options(alternative, confidence)
     first, second = common.labels_pair(labels)
     a, b, dropped = common.clean_pairs(x1, x2, "the paired measurements")
-    if a.size < 1:
-        raise common.NotEnoughDataError(
-            coded(Skip.TOO_FEW_PAIRS, n=Count(a.size), minimum=1, first=first, second=second)
-        )
+    result = paired_sign_result(a, b, (first, second), alternative, confidence)
+    result.n_excluded = dropped
+    result.groups = [common.describe(first, a), common.describe(second, b),
+                     common.describe(f"{first} - {second}", a - b)]
+    return result
+
+
+def paired_sign_result(a: np.ndarray, b: np.ndarray, labels: tuple[str, str], alternative: str, confidence: float,
+                       counts: np.ndarray | None = None) -> Result:
+    """The sign test of the complete pairs ``a``, ``b`` (each pair standing for ``counts`` records when given)."""
+    first, second = labels
+    n = int(a.size if counts is None else counts.sum())
+    if n < 1:
+        raise common.NotEnoughDataError(coded(Skip.TOO_FEW_PAIRS, n=Count(n), minimum=1, first=first, second=second))
     differences = a - b
     if np.all(differences == 0):
         raise common.NotEnoughDataError(coded(Skip.ALL_DIFFERENCES_ZERO, first=first, second=second))
-    result = _sign_result(differences, 0.0, alternative, confidence, f"the differences {first} - {second}")
+    result = sign_result(differences, 0.0, alternative, confidence, f"the differences {first} - {second}", counts)
     assert result.estimate is not None
     result.design = Design.PAIRED_CONTINUOUS
     result.statistic_name = "pairs above"
-    result.n_excluded = dropped
     result.estimate = Estimate(EstimateKind.PAIRED_MEDIAN_DIFFERENCE, result.estimate.value,
                                result.estimate.ci_low, result.estimate.ci_high, levels=(first, second))
-    result.groups = [common.describe(first, a), common.describe(second, b),
-                     common.describe(f"{first} - {second}", differences)]
     return result

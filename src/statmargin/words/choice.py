@@ -13,7 +13,7 @@ from typing import Any
 
 from ..vocabulary import Design
 from ..vocabulary.codes import Caution, Note, Reason, Skip
-from .sentences import Hidden, capitalized, number, register
+from .sentences import Hidden, number, register, sentence_start
 
 Facts = Mapping[str, Any]
 
@@ -36,6 +36,11 @@ def _what(f: Facts) -> str:
     return f.get("outcome") or "the outcome"
 
 
+def _is(f: Facts) -> str:
+    """'are' for two measures of a correlation, else 'is'."""
+    return "are" if f.get("design") == Design.TWO_CONTINUOUS and f.get("by") else "is"
+
+
 def _size(f: Facts) -> str:
     """'with 597 values' or 'with 12 values in the smallest group'."""
     n = f.get("n_smallest")
@@ -46,7 +51,7 @@ def _size(f: Facts) -> str:
     return f"with {n} values"
 
 
-def _numbers(f: Facts) -> str:
+def shape_numbers(f: Facts) -> str:
     """'(skewness 1.9, excess kurtosis 4.2; Shapiro-Wilk p < 0.001)'."""
     parts = []
     if f.get("skewness") is not None:
@@ -68,42 +73,44 @@ def _few(n: Any) -> bool:
 
 def _no_clear_departure(f: Facts) -> str:
     if _few(f.get("n_smallest")):
-        return capitalized(
-            f"{_what(f)}{_where(f)} shows no clear departure from a normal shape{_numbers(f)}, though "
+        return sentence_start(
+            f"{_what(f)}{_where(f)} {'show' if _is(f) == 'are' else 'shows'} no clear departure from a normal shape{shape_numbers(f)}, though "
             f"{_size(f)} only a large departure could be seen; the test that compares means was used."
         )
-    return capitalized(
-        f"{_what(f)}{_where(f)} is close to a normal shape{_numbers(f)}, so the test that compares "
+    return sentence_start(
+        f"{_what(f)}{_where(f)} {_is(f)} close to a normal shape{shape_numbers(f)}, so the test that compares "
         "means was used."
     )
 
 
 def _departs_large_n(f: Facts) -> str:
-    return capitalized(
-        f"{_what(f)}{_where(f)} is {f['direction']}{_numbers(f)}, but {_size(f)} the mean's "
+    return sentence_start(
+        f"{_what(f)}{_where(f)} {_is(f)} {f['direction']}{shape_numbers(f)}, but {_size(f)} the mean's "
         f"uncertainty is well approximated (about {math.ceil(f['n_needed'])} values are enough for this "
         "shape), so the test that compares means was used."
     )
 
 
 def _departs_small_n(f: Facts) -> str:
-    return capitalized(
-        f"{_what(f)}{_where(f)} is {f['direction']}{_numbers(f)}, and {_size(f)} (about "
+    return sentence_start(
+        f"{_what(f)}{_where(f)} {_is(f)} {f['direction']}{shape_numbers(f)}, and {_size(f)} (about "
         f"{math.ceil(f['n_needed'])} would be needed for means) a rank-based test holds its error rate "
         "better, so it was used."
     )
 
 
 def _too_few(f: Facts) -> str:
-    return capitalized(
-        f"{_what(f)}{_where(f)} has too few values (fewer than 3 in every group) to judge its shape, "
-        "so a test that does not depend on the shape was used."
+    grouped = f.get("design") in (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS)
+    few = "too few values (fewer than 3 in every group)" if grouped else "too few values (fewer than 3)"
+    has = "have" if _is(f) == "are" else "has"
+    return sentence_start(
+        f"{_what(f)}{_where(f)} {has} {few} to judge the shape, so a test that does not depend on the shape was used."
     )
 
 
 def _asymmetric(f: Facts) -> str:
-    return capitalized(
-        f"{_what(f)} is {f['direction']}{_numbers(f)}: for such a measure the signed-rank test would "
+    return sentence_start(
+        f"{_what(f)} {_is(f)} {f['direction']}{shape_numbers(f)}: for such a measure the signed-rank test would "
         "test symmetry rather than the median, so the sign test compares the median with the stated "
         "value, and the median is reported with its distribution-free interval."
     )
@@ -119,9 +126,9 @@ def _no_spread_sign(f: Facts) -> str:
 
 def _spreads_differ(f: Facts, test: str, why: str) -> str:
     ratio = f.get("sd_ratio")
-    shown = "" if ratio is None else f" (largest SD {number(ratio)} times the smallest)"
-    return capitalized(
-        f"{_what(f)}{_where(f)} is {f['direction']}{_numbers(f)} and the spreads differ{shown}; "
+    shown = "" if ratio is None else f" (largest SD {ratio:.1f} times the smallest)"
+    return sentence_start(
+        f"{_what(f)}{_where(f)} {_is(f)} {f['direction']}{shape_numbers(f)} and the spreads differ{shown}; "
         f"{test} was used because {why}."
     )
 
@@ -143,12 +150,12 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
     Reason.SPREADS_DIFFER_RANK_ANOVA_TYPE: lambda f: _spreads_differ(
         f, "the ANOVA-type rank test", "it stays valid when spreads differ, unlike the Kruskal-Wallis test"
     ),
-    Reason.GROUP_WITHOUT_SPREAD_RANK: lambda f: capitalized(
+    Reason.GROUP_WITHOUT_SPREAD_RANK: lambda f: sentence_start(
         f"A group has all its values equal, so {_what(f)} was compared by a rank-based test, whose "
         "p-value does not need spread within groups."
     ),
-    Reason.NON_NORMAL_SPEARMAN: lambda f: capitalized(
-        f"{_what(f)} is {f['direction']}{_numbers(f)}; Pearson's interval depends on the shape at any "
+    Reason.NON_NORMAL_SPEARMAN: lambda f: sentence_start(
+        f"{_what(f)} {_is(f)} {f['direction']}{shape_numbers(f)}; Pearson's interval depends on the shape at any "
         "sample size, so Spearman's rank correlation was used."
     ),
     Note.PERMUTATION_P: lambda f: (
@@ -168,8 +175,8 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
         + f" 0 while the test's p is {f['p']:.3g}: the two come from different methods and disagree "
         "near the edge; read the result as borderline."
     ),
-    Note.SHAPE_DEPARTS_ASSUMED_NORMAL: lambda f: capitalized(
-        f"The shape check found {_what(f)}{_where(f)} {f['direction']}{_numbers(f)}; the test compares "
+    Note.SHAPE_DEPARTS_ASSUMED_NORMAL: lambda f: sentence_start(
+        f"The shape check found {_what(f)}{_where(f)} {f['direction']}{shape_numbers(f)}; the test compares "
         "means because that was chosen."
     ),
 }

@@ -118,6 +118,8 @@ def _rate_name(estimate: Estimate) -> str:
 
 def effect_name(effect: Effect) -> str:
     """The display name of an effect size, e.g. "Hedges' g" or "Cramer's V"."""
+    if effect.kind is EffectKind.PROBABILITY_OF_SUPERIORITY and len(effect.levels) >= 2:
+        return f"probability of superiority ({effect.levels[0]} over {effect.levels[1]})"
     if effect.kind is EffectKind.RATE_RATIO and len(effect.levels) >= 2:
         return f"rate ratio ({effect.levels[0]} / {effect.levels[1]})"
     if effect.kind is EffectKind.ODDS_RATIO and effect.level is not None and len(effect.levels) >= 2:
