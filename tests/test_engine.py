@@ -13,9 +13,9 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from scipy import stats
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from scipy import stats
 
 from statmargin import analyze
 from statmargin.errors import ColumnNotFoundError, OptionError, RoleError
