@@ -1,8 +1,11 @@
 """The decision table: each design module's choice of test (statmargin.designs).
 
-The table itself is common practice with no single source; refinements are
+The categorical rows are common practice with no single source; refinements are
 checked against the rules their sources state (Cochran 1954 for expected counts
-below 5; Delacre, Lakens & Leys 2017 for Welch's t-test by default).
+below 5). The continuous rows come from the one rule table of
+``statmargin.designs.rules`` (sources in its docstring; its judgements are tested in
+tests/test_rules.py and tests/test_choice_regressions.py); here each continuous
+design module is asked through ``continuous.rule_choice``, as the engine asks it.
 """
 
 from __future__ import annotations
@@ -11,17 +14,14 @@ import numpy as np
 import pytest
 
 from statmargin.designs import (
-    multi_group_continuous,
     one_sample_categorical,
     paired_categorical,
     two_categorical,
-    two_group_continuous,
 )
-from statmargin.designs.continuous import choose_family
+from statmargin.designs.continuous import rule_choice
 from statmargin.designs.registry import REGISTRY, decision_table
 from statmargin.results import DESIGNS, TESTS
-from statmargin.stats.shape import SpreadCheck, assess
-from statmargin.vocabulary import Design, MeasureType, ShapeHandling
+from statmargin.vocabulary import Design, ShapeHandling
 from statmargin.words.sentences import say
 
 RNG = np.random.default_rng(20261202)
@@ -32,30 +32,23 @@ SKEWED = {"a": RNG.lognormal(0, 1.2, 30), "b": RNG.lognormal(0.3, 1.2, 30), "c":
 DECISION_TABLE = decision_table()
 
 
-def choose_test(design, *, outcome, by=None, outcome_type=MeasureType.CONTINUOUS, by_type=None,
-                shape_handling=ShapeHandling.AUTO, shape=None, spread=None, min_expected=None,
-                table_shape=None, n_levels=None, single_share=False):
-    """Ask the design module of ``design`` for its choice, from the facts its data would give."""
+def choose_test(design, *, outcome, by=None, min_expected=None, table_shape=None, n_levels=None,
+                single_share=False):
+    """Ask a categorical design module for its choice, from the facts its data would give."""
     design = Design(design)
     if design is Design.ONE_SAMPLE_CATEGORICAL:
         return one_sample_categorical.decide(outcome=outcome, n_levels=n_levels, single_share=single_share,
                                              min_expected=min_expected)
     if design is Design.TWO_CATEGORICAL:
         return two_categorical.decide(outcome=outcome, by=by, table_shape=table_shape, min_expected=min_expected)
-    if design is Design.PAIRED_CATEGORICAL:
-        return paired_categorical.decide(outcome=outcome)
-    facts = dict(outcome=outcome, by=by, outcome_type=outcome_type, by_type=by_type, handling=shape_handling,
-                 shape=shape)
-    if design is Design.TWO_GROUP_CONTINUOUS:
-        return two_group_continuous.decide(**facts)
-    if design is Design.MULTI_GROUP_CONTINUOUS:
-        return multi_group_continuous.decide(**facts, spread=spread)
-    return choose_family(design, DECISION_TABLE[design], **facts)
+    return paired_categorical.decide(outcome=outcome)
 
 
-def shape_of(groups: dict, k: int):
-    """Shape assessment of the first k groups."""
-    return assess({key: groups[key] for key in list(groups)[:k]})
+def continuous_choice(design, data, k, *, ordinal=False, handling=ShapeHandling.AUTO):
+    """The continuous design's choice for the first k groups of ``data`` (one sample: the first group)."""
+    groups = {key: data[key] for key in list(data)[:k]}
+    return rule_choice(Design(design), groups, counts=None, outcome="y", by="g",
+                       ordinal_column="y" if ordinal else None, handling=handling, target=1.0)
 
 
 def test_table_covers_every_design_with_known_tests():
@@ -65,76 +58,60 @@ def test_table_covers_every_design_with_known_tests():
         assert normal in TESTS and rank in TESTS
 
 
-# (design, groups for the shape, k groups, expected test when normal-shaped data, when skewed data)
-# Common practice, no single source (see statmargin/choose.py).
+# (design, k groups, test for normal-shaped data, for skewed data, the rank family's test)
+# From designs.rules.RULES: 30 lognormal values (sigma 1.2, G1 near 3) are far fewer than the
+# 28 + 25 G1^2 the size rule asks for (Sugden, Smith & Jones 2000), so the rank-based row applies;
+# a one-sample question on a skewed measure takes the sign test (Dixon & Mood 1946).
 CONTINUOUS_ROWS = [
-    ("one_sample_continuous", 1, "one_sample_t", "wilcoxon_signed_rank"),
-    ("two_group_continuous", 2, "welch_t", "mann_whitney_u"),
-    ("multi_group_continuous", 3, "one_way_anova", "kruskal_wallis"),
-    ("two_continuous", 2, "pearson_r", "spearman_rho"),
-    ("paired_continuous", 1, "paired_t", "wilcoxon_signed_rank"),
+    ("one_sample_continuous", 1, "one_sample_t", "sign_test", "wilcoxon_signed_rank"),
+    ("two_group_continuous", 2, "welch_t", "brunner_munzel", "brunner_munzel"),
+    ("multi_group_continuous", 3, "alexander_govern", "rank_anova_type", "rank_anova_type"),
+    ("two_continuous", 2, "pearson_r", "spearman_rho", "spearman_rho"),
+    ("paired_continuous", 1, "paired_t", "wilcoxon_signed_rank", "wilcoxon_signed_rank"),
 ]
 
 
-@pytest.mark.parametrize("design,k,normal_test,rank_test", CONTINUOUS_ROWS)
-def test_continuous_rows(design, k, normal_test, rank_test):
-    """Normal-shaped data take the means-based test and skewed data the rank-based one."""
-    spread = SpreadCheck(0.5, (2.0, 87.0), 0.6)
-    normal = choose_test(design, outcome="y", by="g", shape=shape_of(NORMALISH, k), spread=spread)
+@pytest.mark.parametrize("design,k,normal_test,skewed_test,rank_test", CONTINUOUS_ROWS)
+def test_continuous_rows(design, k, normal_test, skewed_test, rank_test):
+    """Normal-shaped data take the means-based test and small skewed samples a rank-based one."""
+    normal = continuous_choice(design, NORMALISH, k)
     assert normal.test == normal_test and not normal.rank_based
-    skewed = choose_test(design, outcome="y", by="g", shape=shape_of(SKEWED, k), spread=spread)
-    assert skewed.test == rank_test and skewed.rank_based
-    assert "rank-based" in say(skewed.reasons[0])
-
-
-def test_welch_anova_when_spreads_differ():
-    """Brown-Forsythe p < 0.05 switches one-way ANOVA to Welch's ANOVA, and the reason says so."""
-    c = choose_test("multi_group_continuous", outcome="y", by="site", shape=shape_of(NORMALISH, 3),
-                    spread=SpreadCheck(5.0, (2.0, 87.0), 0.009))
-    assert c.test == "welch_anova"
-    assert "Brown-Forsythe p = 0.009" in say(c.reasons[1])
+    skewed = continuous_choice(design, SKEWED, k)
+    assert skewed.test == skewed_test and skewed.rank_based
+    assert "right-skewed" in say(skewed.reasons[0])
 
 
 def test_welch_t_reason_names_source():
     """Two normal-shaped groups take Welch's t-test with its reason and source."""
-    c = choose_test("two_group_continuous", outcome="y", by="g", shape=shape_of(NORMALISH, 2))
+    c = continuous_choice("two_group_continuous", NORMALISH, 2)
     assert c.test == "welch_t"
     assert any("Delacre, Lakens & Leys 2017" in say(r) for r in c.reasons)
 
 
-def test_reason_counts_failing_groups():
-    """The shape reason says in how many groups the check failed and what the check was."""
-    mixed = assess({"a": NORMALISH["a"], "b": SKEWED["b"], "c": SKEWED["c"]})
-    c = choose_test("multi_group_continuous", outcome="wait", by="site", shape=mixed)
-    assert say(c.reasons[0]).startswith("wait is right-skewed in 2 of 3 groups of site (Shapiro-Wilk p")
-    assert say(c.reasons[0]).endswith("so a rank-based test was used.")
+@pytest.mark.parametrize("design,k,normal_test,skewed_test,rank_test", CONTINUOUS_ROWS)
+def test_ordinal_always_rank(design, k, normal_test, skewed_test, rank_test):
+    """An ordinal outcome takes a rank-based test (the sign test for one sample and pairs)."""
+    c = continuous_choice(design, NORMALISH, k, ordinal=True)
+    assert c.rank_based
+    assert c.test == ("sign_test" if design in ("one_sample_continuous", "paired_continuous") else rank_test)
+    assert say(c.reasons[0]) == "y is ordinal, so a rank-based test was used."
 
 
-@pytest.mark.parametrize("design,k,normal_test,rank_test", CONTINUOUS_ROWS)
-def test_ordinal_always_rank(design, k, normal_test, rank_test):
-    """An ordinal outcome takes the rank-based test even when the shape looks normal."""
-    c = choose_test(design, outcome="y", by="g", outcome_type=MeasureType.ORDINAL, shape=shape_of(NORMALISH, k))
-    assert c.test == rank_test
-
-
-@pytest.mark.parametrize("design,k,normal_test,rank_test", CONTINUOUS_ROWS)
-def test_user_shape_handling_overrides(design, k, normal_test, rank_test):
+@pytest.mark.parametrize("design,k,normal_test,skewed_test,rank_test", CONTINUOUS_ROWS)
+def test_user_shape_handling_overrides(design, k, normal_test, skewed_test, rank_test):
     """Shape handling 'rank-based' and 'assume normal' override the checks."""
-    spread = SpreadCheck(0.5, (2.0, 87.0), 0.6)
-    forced_rank = choose_test(design, outcome="y", by="g", shape_handling=ShapeHandling.RANK,
-                              shape=shape_of(NORMALISH, k), spread=spread)
+    forced_rank = continuous_choice(design, NORMALISH, k, handling=ShapeHandling.RANK)
     assert forced_rank.test == rank_test
-    forced_normal = choose_test(design, outcome="y", by="g", shape_handling=ShapeHandling.NORMAL,
-                                shape=shape_of(SKEWED, k), spread=spread)
+    forced_normal = continuous_choice(design, SKEWED, k, handling=ShapeHandling.NORMAL)
     assert forced_normal.test == normal_test
     assert forced_normal.notes, "a forced normal choice against the checks must leave a caveat"
 
 
 def test_groups_too_small_take_rank_test():
-    """A group with fewer than 3 values cannot be checked, so the rank-based test is used."""
-    shape = assess({"a": np.array([1.0, 2.0]), "b": NORMALISH["b"]})
-    c = choose_test("two_group_continuous", outcome="y", by="g", shape=shape)
-    assert c.test == "mann_whitney_u"
+    """Two groups of two values cannot be judged, so the rank-based test (permutation p) is used."""
+    c = rule_choice(Design.TWO_GROUP_CONTINUOUS, {"a": np.array([1.0, 2.0]), "b": np.array([3.0, 5.0])},
+                    counts=None, outcome="y", by="g", ordinal_column=None, handling=ShapeHandling.AUTO)
+    assert c.test == "brunner_munzel" and c.options == {"p_method": "permutation"}
     assert "too few values" in say(c.reasons[0])
 
 

@@ -45,9 +45,11 @@ DESIGN_ROWS = [
     ("mtcars_am_by_vs.csv", ["--outcome", "am", "--by", "vs"], {"outcome": "am", "by": "vs"}, "chi_square_independence"),
     ("sleep_extra_by_group.csv", ["--outcome", "extra", "--by", "group", "--treat", "group=categorical"],
      {"outcome": "extra", "by": "group", "treat": ["group=categorical"]}, "welch_t"),
-    ("plantgrowth_weight_by_group.csv", ["--outcome", "weight", "--by", "group"], {"outcome": "weight", "by": "group"}, "one_way_anova"),
-    ("insectsprays_count_by_spray.csv", ["--outcome", "count", "--by", "spray"], {"outcome": "count", "by": "spray"}, "kruskal_wallis"),
-    ("mtcars_mpg_vs_wt.csv", ["--outcome", "mpg", "--by", "wt"], {"outcome": "mpg", "by": "wt"}, "pearson_r"),
+    ("plantgrowth_weight_by_group.csv", ["--outcome", "weight", "--by", "group"], {"outcome": "weight", "by": "group"}, "alexander_govern"),
+    ("insectsprays_count_by_spray.csv", ["--outcome", "count", "--by", "spray"], {"outcome": "count", "by": "spray"}, "rank_anova_type"),
+    ("mtcars_mpg_vs_wt.csv", ["--outcome", "mpg", "--by", "wt"], {"outcome": "mpg", "by": "wt"}, "spearman_rho"),
+    ("women_height_vs_weight.csv", ["--outcome", "height", "--by", "weight"], {"outcome": "height", "by": "weight"},
+     "pearson_r"),
     ("sleep_extra_paired.csv", ["--outcome", "extra", "--by", "group", "--paired-by", "ID"],
      {"outcome": "extra", "by": "group", "paired_by": "ID"}, "wilcoxon_signed_rank"),
 ]
@@ -86,10 +88,10 @@ def test_summary_lists_test_p_and_reasons(tmp_workbook):
     result = run("test", book, "--outcome", "weight", "--by", "group")
     assert result.exit_code == 0
     out = result.stdout
-    # R 4.2.2: oneway.test(weight ~ group, data = PlantGrowth, var.equal = TRUE): F = 4.846, df 2, 27, p = 0.0159
-    assert "weight by group  [one_way_anova]" in out
-    assert "F = 4.85, df = 2 and 27, p = 0.016" in out
-    assert "why: weight looks close to normal in all 3 groups of group" in out
+    # SciPy 1.x: stats.alexandergovern on the three groups of PlantGrowth: A = 8.328, p = 0.0155 (k - 1 = 2 df)
+    assert "weight by group  [alexander_govern]" in out
+    assert "A = 8.33, df = 2, p = 0.016" in out
+    assert "why: weight within the groups of group shows no clear departure from a normal shape" in out
     assert "caution:" in out
 
 
@@ -101,7 +103,7 @@ def test_json_to_file_and_workbook_unchanged(tmp_workbook, tmp_path):
     out = tmp_path / "out.json"
     result = run("test", book, "--outcome", "mpg", "--by", "wt", "--json", out)
     assert result.exit_code == 0
-    assert json.loads(out.read_text())["analyses"][0]["test"] == "pearson_r"
+    assert json.loads(out.read_text())["analyses"][0]["test"] == "spearman_rho"
     assert hashlib.sha256(book.read_bytes()).hexdigest() == before
 
 
@@ -112,7 +114,7 @@ def test_sheet_option(tmp_workbook):
                                 "cars": {c: frame[c].tolist() for c in frame.columns}})
     result = run("test", book, "--sheet", "cars", "--outcome", "mpg", "--by", "wt", "--json", "-")
     assert result.exit_code == 0, result.output
-    assert json.loads(result.stdout)["analyses"][0]["test"] == "pearson_r"
+    assert json.loads(result.stdout)["analyses"][0]["test"] == "spearman_rho"
 
 
 class TestErrors:
@@ -231,7 +233,7 @@ def test_test_reports_progress_and_can_be_quiet(tmp_workbook):
     said: list[tuple] = []
     summary = test_workbook(book, outcome="weight", by="group",
                             progress=lambda message, done=None, total=None: said.append((message, done, total)))
-    assert [r.test for r in summary.results] == ["one_way_anova"]
+    assert [r.test for r in summary.results] == ["alexander_govern"]  # three groups, normal-shaped: the rule table
     assert progress_words.READING_ROWS in {m for m, _, _ in said}
     assert (console.RUNNING, 1, 1) in said
     quiet = run("test", book, "--outcome", "weight", "--by", "group", "--quiet")

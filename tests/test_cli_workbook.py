@@ -113,9 +113,9 @@ class TestBeyondTheBasicTable:
             assert f["flagged"] == (f["p_adjusted"] < ALPHA), f["levels"]
 
     def test_followup_adjustment_is_holm_within_the_family(self, demo_run) -> None:
-        """Dunn follow-ups are Holm-adjusted over the ten pairs (Holm 1979), as their reason says."""
+        """Brunner-Munzel pairs are Holm-adjusted over the ten pairs (Holm 1979), as their reason says."""
         followups = analysis(demo_run, "Days to first visit", "multi_group_continuous")["followups"]
-        assert {f["test"] for f in followups} == {"dunn"}
+        assert {f["test"] for f in followups} == {"pairwise_brunner_munzel"}
         expected = holm([f["p_value"] for f in followups])
         assert [f["p_adjusted"] for f in followups] == pytest.approx(expected, rel=1e-12)
 

@@ -97,9 +97,10 @@ def test_continuous_designs_equal_repeated_rows(name, keep, kwargs):
     assert weighted[0].n == int(frame.n.sum())
 
 
-@pytest.mark.parametrize("rows,expected", [(60, "one_way_anova"), (6, None)], ids=["anova-tukey", "shapiro-band"])
+@pytest.mark.parametrize("rows,expected", [(60, "alexander_govern"), (6, None)],
+                         ids=["alexander-govern-games-howell", "shapiro-band"])
 def test_equal_spreads_and_small_groups_equal_repeated_rows(rows, expected):
-    """Normal-shaped groups of equal spread (one-way ANOVA, Tukey) and groups of under 50 records (Shapiro-Wilk)."""
+    """Normal-shaped groups (Alexander-Govern, Games-Howell) and groups of under 50 records (Shapiro-Wilk)."""
     frame = pd.concat([pd.DataFrame({"Site": label, "Wait": RNG.normal(centre, 2.0, rows).round(1),
                                      "n": RNG.integers(1, 4, rows)})
                        for label, centre in (("A", 10.0), ("B", 12.5), ("C", 11.0))], ignore_index=True)
@@ -107,9 +108,48 @@ def test_equal_spreads_and_small_groups_equal_repeated_rows(rows, expected):
     weighted = analyze(frame, outcome="Wait", by="Site", count="n", shape=shape)
     same(records(weighted), records(analyze(expand(frame), outcome="Wait", by="Site", shape=shape)))
     if expected:
-        assert weighted[0].test == expected and weighted[0].followups[0].test == "tukey_hsd"
+        assert weighted[0].test == expected and weighted[0].followups[0].test == "games_howell"
     else:
         assert weighted[0].shape["assessment"]["groups"][0]["check"] == "shapiro_wilk"
+
+
+@pytest.mark.parametrize("shape", ["auto", "rank"])
+def test_small_groups_with_permutation_p_equal_repeated_rows(shape):
+    """Groups of under 15 records: the seeded permutation p of the rank tests equals the records'."""
+    frame = pd.DataFrame({"Site": ["A"] * 4 + ["B"] * 4 + ["C"] * 4,
+                          "Wait": [3.0, 8.0, 21.0, 40.0, 5.0, 6.0, 9.0, 55.0, 2.0, 12.0, 13.0, 90.0],
+                          "n": [2, 3, 1, 4, 1, 5, 2, 3, 3, 2, 1, 1]})
+    for keep in (["A", "B"], ["A", "B", "C"]):
+        part = frame[frame.Site.isin(keep)].reset_index(drop=True)
+        kwargs = {"outcome": "Wait", "by": "Site", "shape": shape, "treat": {"Wait": "continuous"}}
+        weighted = analyze(part, count="n", **kwargs)
+        assert weighted[0].test in ("brunner_munzel", "rank_anova_type", "welch_t")
+        if weighted[0].test != "welch_t":
+            assert weighted[0].p_method == "permutation"
+        same(records(weighted), records(analyze(expand(part), **kwargs)))
+
+
+def test_equal_changes_and_a_skewed_target_equal_repeated_rows():
+    """Equal non-zero changes (sign test of pairs) and a skewed measure against a target (sign test)."""
+    pairs = pd.DataFrame({"Before": [10.0, 12.0, 9.0, 14.0], "After": [12.5, 14.5, 11.5, 16.5], "n": [3, 1, 4, 2]})
+    kwargs = {"outcome": "Before", "paired_with": "After", "treat": {"Before": "continuous", "After": "continuous"}}
+    weighted = analyze(pairs, count="n", **kwargs)
+    assert weighted[0].test == "sign_test"
+    same(records(weighted), records(analyze(expand(pairs), **kwargs)))
+    waits = pd.DataFrame({"Wait": np.round(RNG.lognormal(np.log(20.0), 0.9, 60), 1), "n": RNG.integers(1, 6, 60)})
+    weighted = analyze(waits, outcome="Wait", against="20", count="n")
+    assert weighted[0].test == "sign_test"
+    same(records(weighted), records(analyze(expand(waits), outcome="Wait", against="20")))
+
+
+def test_more_than_5000_records_judged_like_the_records():
+    """Above 5000 records Shapiro-Wilk reads a seeded subsample: the same records are read from counted rows."""
+    frame = pd.DataFrame({"Site": ["A"] * 800 + ["B"] * 900,
+                          "Wait": np.round(np.concatenate([RNG.gamma(4.0, 3.0, 800), RNG.gamma(4.0, 3.2, 900)]), 1),
+                          "n": RNG.integers(5, 10, 1700)})
+    weighted = analyze(frame, outcome="Wait", by="Site", count="n")
+    assert min(frame.n[frame.Site == s].sum() for s in "AB") > 5000
+    same(records(weighted), records(analyze(expand(frame), outcome="Wait", by="Site")))
 
 
 def test_pairs_and_correlation_equal_repeated_rows():

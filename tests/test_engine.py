@@ -15,6 +15,7 @@ import pandas as pd
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from scipy import stats
 
 from statmargin import analyze
 from statmargin.errors import ColumnNotFoundError, OptionError, RoleError
@@ -90,40 +91,55 @@ class TestDesignsAgainstR:
         assert r.estimate.value == pytest.approx(0.75 - 2.33)
         assert [g["label"] for g in r.groups] == ["1", "2"]
 
-    def test_two_group_skewed_is_mann_whitney(self):
-        """len by supp fails Shapiro-Wilk in OJ, so Mann-Whitney runs and the reason says why."""
+    def test_two_group_judged_once_is_welch(self):
+        """len by supp: one group alone fails Shapiro-Wilk (p = 0.024), the one judgement per analysis does not."""
         r = only(analyze(data("toothgrowth_len_by_supp"), outcome="len", by="supp"))
-        ref = r_test("toothgrowth_len_by_supp", "mann_whitney_approx_cc")  # R 4.2.2: wilcox.test(len ~ supp, exact = FALSE)
-        assert r.test == "mann_whitney_u"
-        assert r.statistic == pytest.approx(ref["statistic"])
-        assert r.p_value == pytest.approx(ref["p_value"], rel=1e-10)
-        assert say(r.reasons[0]).startswith("len is left-skewed in 1 of 2 groups of supp (Shapiro-Wilk p = 0.024)")
-
-    def test_multi_group_anova_with_tukey(self):
-        """PlantGrowth runs one-way ANOVA then Tukey HSD (adjusted p < 0.05)."""
-        r = only(analyze(data("plantgrowth_weight_by_group"), outcome="weight", by="group"))
-        ref = r_test("plantgrowth_weight_by_group", "anova_oneway")  # R 4.2.2: oneway.test(weight ~ group, var.equal = TRUE)
-        assert r.test == "one_way_anova"
+        ref = r_test("toothgrowth_len_by_supp", "t_test_welch")  # R 4.2.2: t.test(len ~ supp, var.equal = FALSE)
+        assert r.test == "welch_t"
         assert r.statistic == pytest.approx(ref["statistic"], rel=1e-10)
         assert r.p_value == pytest.approx(ref["p_value"], rel=1e-10)
-        tukey = {frozenset(f.levels): f for f in r.followups}
-        # R 4.2.2: TukeyHSD(aov(weight ~ group, data = PlantGrowth)), trt2-trt1 p adj
-        assert tukey[frozenset({"trt1", "trt2"})].p_adjusted == pytest.approx(0.01200642397945273, abs=1e-6)
-        assert {f.test for f in r.followups} == {"tukey_hsd"}
+        assert say(r.reasons[0]).startswith("len within the groups of supp is close to a normal shape (")
 
-    def test_multi_group_skewed_is_kruskal_with_dunn(self):
-        """InsectSprays fails the shape check, so Kruskal-Wallis runs, followed by Dunn's test."""
-        r = only(analyze(data("insectsprays_count_by_spray"), outcome="count", by="spray"))
-        ref = r_test("insectsprays_count_by_spray", "kruskal_wallis")  # R 4.2.2: kruskal.test(count ~ spray)
-        assert r.test == "kruskal_wallis"
-        assert r.statistic == pytest.approx(ref["statistic"], rel=1e-10)
-        assert r.p_value == pytest.approx(ref["p_value"], rel=1e-8)
-        assert len(r.followups) == 15 and {f.test for f in r.followups} == {"dunn"}
+    def test_multi_group_alexander_govern_with_games_howell(self):
+        """PlantGrowth runs Alexander-Govern (SciPy's alexandergovern) then Games-Howell (adjusted p < 0.05)."""
+        from scipy import stats
+
+        frame = data("plantgrowth_weight_by_group")
+        r = only(analyze(frame, outcome="weight", by="group"))
+        check = stats.alexandergovern(*[frame.weight[frame.group == g] for g in ("ctrl", "trt1", "trt2")])
+        assert r.test == "alexander_govern"
+        assert r.statistic == pytest.approx(check.statistic, rel=1e-12)
+        assert r.p_value == pytest.approx(check.pvalue, rel=1e-12)
+        assert len(r.followups) == 3 and {f.test for f in r.followups} == {"games_howell"}
+
+    def test_multi_group_skewed_is_rank_anova_type_with_pairwise_brunner_munzel(self):
+        """InsectSprays departs from normal with spreads that differ: ANOVA-type rank test, then Brunner-Munzel pairs."""
+        from scipy import stats
+
+        frame = data("insectsprays_count_by_spray")
+        r = only(analyze(frame, outcome="count", by="spray"))
+        assert r.test == "rank_anova_type" and r.p_method == "permutation"  # 12 per spray, below 15
+        assert len(r.followups) == 15 and {f.test for f in r.followups} == {"pairwise_brunner_munzel"}
+        assert min(f.p_adjusted for f in r.followups) < 0.05
+        pair = next(f for f in r.followups if set(f.levels) == {"A", "C"})
+        # The pair's statistic is SciPy's brunnermunzel t of the pair's own groups (with the opposite sign
+        # convention: positive when the first named group tends to be larger).
+        check = stats.brunnermunzel(frame["count"][frame.spray == pair.levels[0]],
+                                    frame["count"][frame.spray == pair.levels[1]])
+        assert pair.statistic == pytest.approx(-check.statistic, rel=1e-10)
 
     def test_two_continuous(self):
-        """mpg and wt are normal-shaped, so Pearson's r runs."""
+        """mpg and wt together depart from a normal shape (combined Shapiro-Wilk p = 0.039), so Spearman's rho runs."""
         r = only(analyze(data("mtcars_mpg_vs_wt"), outcome="mpg", by="wt"))
-        ref = r_test("mtcars_mpg_vs_wt", "pearson")  # R 4.2.2: cor.test(mpg, wt)
+        ref = r_test("mtcars_mpg_vs_wt", "spearman")  # R 4.2.2: cor.test(mpg, wt, method = "spearman", exact = FALSE)
+        assert r.test == "spearman_rho"
+        assert r.statistic == pytest.approx(ref["statistic"], rel=1e-10)
+        assert r.p_value == pytest.approx(ref["p_value"], rel=1e-8)
+
+    def test_two_continuous_close_to_normal(self):
+        """Height and weight of R's women data show no clear departure, so Pearson's r runs."""
+        r = only(analyze(data("women_height_vs_weight"), outcome="height", by="weight"))
+        ref = r_test("women_height_vs_weight", "pearson")  # R 4.2.2: cor.test(height, weight)
         assert r.test == "pearson_r"
         assert r.statistic == pytest.approx(ref["statistic"], rel=1e-10)
         assert r.p_value == pytest.approx(ref["p_value"], rel=1e-8)
@@ -197,10 +213,10 @@ class TestEngineBehaviour:
         assert r.statistic == pytest.approx(ref["statistic"], rel=1e-10)
 
     def test_ordinal_outcome_gets_rank_test_and_superiority(self):
-        """An ordinal outcome takes Mann-Whitney and reports the probability of superiority U/(n1 n2)."""
+        """An ordinal outcome takes Brunner-Munzel and reports the probability of superiority U/(n1 n2)."""
         frame = data("sleep_extra_by_group").astype({"group": str})
         r = only(analyze(frame, outcome="extra", by="group", treat={"extra": "ordinal"}))
-        assert r.test == "mann_whitney_u"
+        assert r.test == "brunner_munzel"
         # R 4.2.2: wilcox.test(extra ~ group, exact = FALSE) gives W = 25.5 for group 1; 25.5 / (10 * 10).
         assert r.extra["probability_of_superiority"] == pytest.approx(0.255)
 
@@ -293,7 +309,7 @@ class TestDegenerateData:
     def test_accepts_table(self):
         """A Table works as well as a DataFrame."""
         table = Table.from_frame(data("plantgrowth_weight_by_group"))
-        assert only(analyze(table, outcome="weight", by="group")).test == "one_way_anova"
+        assert only(analyze(table, outcome="weight", by="group")).test == "alexander_govern"
 
 
 # ---------------------------------------------------------------- properties
@@ -316,7 +332,7 @@ def test_rank_tests_unchanged_by_monotone_transform(a, b):
         warnings.simplefilter("ignore")
         r1 = only(analyze(frame, outcome="y", by="g", shape="rank"))
         r2 = only(analyze(frame.assign(y=np.exp(frame.y / 25.0) + frame.y ** 3), outcome="y", by="g", shape="rank"))
-    assert r1.test == r2.test == "mann_whitney_u"
+    assert r1.test == r2.test == "brunner_munzel"
     assert r2.statistic == pytest.approx(r1.statistic)
     assert r2.p_value == pytest.approx(r1.p_value)
 
@@ -376,11 +392,12 @@ class TestTypeOptions:
         frame = pd.DataFrame({"p1": ["none", "mild", "severe", "mild", "none", "severe", "mild"],
                               "p2": ["mild", "mild", "severe", "severe", "mild", "severe", "none"]})
         r = only(analyze(frame, outcome="p1", paired_with="p2", treat=["p1=ordinal:none,mild,severe"]))
-        assert (r.design, r.test) == ("paired_continuous", "wilcoxon_signed_rank")
+        assert (r.design, r.test) == ("paired_continuous", "sign_test")
         assert [say(x) for x in r.reasons] == ["p1 is ordinal, so a rank-based test was used."]
         # Ranks p1 = 1,2,3,2,1,3,2 and p2 = 2,2,3,3,2,3,1: differences -1,0,0,-1,-1,0,1 (hand computation);
-        # zeros dropped, four tied |d| = 1 share mid-rank 2.5, and one difference is positive, so V = 2.5.
-        assert r.statistic == pytest.approx(2.5)
+        # zeros dropped, one of the four changes is positive: the sign test's binomial p of 1 in 4 (SciPy).
+        assert r.statistic == 1.0
+        assert r.p_value == pytest.approx(stats.binomtest(1, 4, 0.5).pvalue, rel=1e-12)
 
 
 def test_empty_outcome_is_refused():
@@ -408,7 +425,7 @@ def test_run_plan_reports_progress_after_each_analysis():
 
 
 def test_ordinal_two_groups_report_probability_of_superiority():
-    """An ordinal outcome by two groups reports P(first ranks above second) with r's interval mapped across."""
+    """An ordinal outcome by two groups reports P(first ranks above second) with the Brunner-Munzel interval."""
     import pandas as pd
 
     from statmargin import analyze
@@ -428,10 +445,10 @@ def test_ordinal_two_groups_report_probability_of_superiority():
     b = [ranks[v] for v in frame.rating[frame.site == "B"]]
     # P(X > Y) + P(X = Y) / 2 counted over all 8 x 7 pairs (McGraw & Wong 1992 definition)
     wins = sum((x > y) + 0.5 * (x == y) for x in a for y in b)
-    assert result.test == "mann_whitney_u"
-    assert result.effect.name == "probability of superiority"
+    assert result.test == "brunner_munzel"
+    assert result.effect.name == "probability of superiority (A over B)"
     assert result.effect.value == pytest.approx(wins / 56)
-    r = result.extra["rank_biserial_r"]
-    assert result.effect.ci_low == pytest.approx((r["ci_low"] + 1) / 2)
-    assert result.effect.ci_high == pytest.approx((r["ci_high"] + 1) / 2)
+    assert result.effect.levels == ("A", "B")  # P(a record of A ranks above one of B), the first group first
+    # The interval inverts the same test: it leaves out 1/2 exactly when p is below 0.05.
+    assert (result.effect.ci_low > 0.5 or result.effect.ci_high < 0.5) == (result.p_value < 0.05)
     json.dumps(result.to_record())  # the record stays JSON-ready

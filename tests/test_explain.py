@@ -853,7 +853,7 @@ def test_dunn_followup_reads_as_typical_shift_in_units() -> None:
         followup, make_cases()["kruskal_wallis"], settings=SETTINGS, context=UNITS
     )
     assert text == (
-        "South vs East: weight typically 0.350 g higher in East than in South (95% CI 0.100 to 0.600); "
+        "South vs East: weight typically 0.350 g higher in East than in South (adjusted CI 0.100 to 0.600); "
         "very strong evidence of a difference (adjusted p < 0.001)."
     )
 
@@ -871,7 +871,7 @@ def test_level_named_like_rank_keeps_shift_reading() -> None:
         followup, make_cases()["kruskal_wallis"], settings=SETTINGS, context=UNITS
     )
     assert text == (
-        "Frankfurt vs East: weight typically 0.350 g higher in Frankfurt than in East (95% CI 0.100 to 0.600); "
+        "Frankfurt vs East: weight typically 0.350 g higher in Frankfurt than in East (adjusted CI 0.100 to 0.600); "
         "compatible with no difference (adjusted p = 0.40)."
     )
 

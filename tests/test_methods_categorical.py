@@ -51,8 +51,16 @@ def test_goodness_of_fit_matches_r(case_id: str) -> None:
     # R 4.2.2: chisq.test(tab, p = ...)$expected
     assert result.extra["expected"] == pytest.approx(case["counts"]["expected"], rel=1e-12)
     assert [g["count"] for g in result.groups] == case["counts"]["observed"]
-    # Cohen (1988, ch. 7): w = sqrt(X2 / n), with R's X2.
-    assert result.effect.value == pytest.approx(math.sqrt(ref["statistic"] / result.n), rel=1e-9)
+    # Cohen (1988, ch. 7): plug-in w = sqrt(X2 / n), with R's X2.
+    assert result.extra["cohens_w_plugin"] == pytest.approx(math.sqrt(ref["statistic"] / result.n), rel=1e-9)
+    # The reported w is sqrt(lambda / n) with R's X2 the median of noncentral chi-square(df, lambda)
+    # (SciPy's ncx2 as the reference for the definition), or 0 when p >= 1/2.
+    lam = result.effect.value**2 * result.n
+    if lam > 0:
+        assert stats.ncx2.cdf(ref["statistic"], ref["df"][0], lam) == pytest.approx(0.5, abs=1e-8)
+    else:
+        assert result.p_value >= 0.5
+    assert result.effect.ci_low <= result.effect.value <= result.effect.ci_high
     assert result.notes == []
 
 
@@ -180,10 +188,11 @@ def test_independence_matches_r(case_id: str) -> None:
     np.testing.assert_allclose(result.extra["expected"]["values"], expected, rtol=1e-12)
     assert result.extra["min_expected"] == pytest.approx(case["contingency"]["min_expected"])
     assert result.extra["n_expected_below_5"] == case["contingency"]["n_expected_lt_5"]
-    # sqrt(X2 / (n (min(r, c) - 1))), computed in R 4.2.2 beside the test
-    assert result.effect.value == pytest.approx(
+    # sqrt(X2 / (n (min(r, c) - 1))), computed in R 4.2.2 beside the test: the plug-in V
+    assert result.extra["cramers_v_plugin"] == pytest.approx(
         case["effect_sizes"]["cramers_v"]["value"], rel=1e-9
     )
+    assert result.effect.ci_low <= result.effect.value <= result.effect.ci_high
 
 
 def test_yates_matches_r() -> None:
@@ -194,7 +203,7 @@ def test_yates_matches_r() -> None:
     assert result.statistic == pytest.approx(ref["statistic"], rel=REL_STAT)
     assert result.p_value == pytest.approx(ref["p_value"], rel=REL_P)
     # Cramer's V stays on the uncorrected statistic (as computed in R beside the test).
-    assert result.effect.value == pytest.approx(case["effect_sizes"]["cramers_v"]["value"])
+    assert result.extra["cramers_v_plugin"] == pytest.approx(case["effect_sizes"]["cramers_v"]["value"])
 
 
 def test_independence_small_counts_use_monte_carlo() -> None:

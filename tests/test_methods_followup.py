@@ -12,7 +12,7 @@ from scipy import stats
 
 from reference_cases import cases_by_design, load_case
 from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.stats import followup, twogroup
+from statmargin.stats import followup
 
 MULTI = cases_by_design("multi_group_continuous")
 
@@ -153,29 +153,49 @@ def test_dunn_two_groups_equals_r_rank_sum_test(case_id: str) -> None:
 
 
 @pytest.mark.parametrize("case_id", MULTI)
-def test_dunn_estimate_is_hodges_lehmann_with_rank_sum_interval(case_id: str) -> None:
-    """Each Dunn pair's estimate is the median of all differences, its CI that of the pair's rank-sum test."""
+@pytest.mark.parametrize("adjust", ["holm", "benjamini-hochberg", "none"])
+def test_dunn_intervals_agree_with_adjusted_p(case_id: str, adjust: str) -> None:
+    """Each Dunn pair's interval excludes 0 exactly when its adjusted p is below alpha."""
     _, groups = _groups(case_id)
-    result = followup.dunn(groups, adjust="holm", confidence=0.9)
+    result = followup.dunn(groups, adjust=adjust, alpha=0.05, confidence=0.95)
     for pair in result:
-        later, earlier = (groups[level] for level in pair.levels)
-        # Hodges & Lehmann (1963): the shift is the median of all n_a n_b differences (brute force).
-        assert pair.estimate.value == float(np.median(np.subtract.outer(later, earlier)))
-        # Same construction as R 4.2.2 wilcox.test(later, earlier, conf.int = TRUE, exact = FALSE,
-        # correct = TRUE, conf.level = 0.9), which mann_whitney_u reproduces (test_methods_twogroup).
-        check = twogroup.mann_whitney_u(later, earlier, exact=False, correct=True, confidence=0.9).estimate
-        assert (pair.estimate.ci_low, pair.estimate.ci_high) == (check.ci_low, check.ci_high)
+        excludes = pair.estimate.ci_low > 0 or pair.estimate.ci_high < 0
+        assert excludes == (pair.p_adjusted < 0.05), pair.levels
         assert pair.estimate.ci_low <= pair.estimate.value <= pair.estimate.ci_high
+
+
+@pytest.mark.parametrize("case_id", MULTI)
+def test_dunn_estimate_is_where_z_changes_sign(case_id: str) -> None:
+    """The estimate is the shift of the later group at which Dunn's z (re-ranked) changes sign."""
+    _, groups = _groups(case_id)
+    labels = list(groups)
+    for pair in followup.dunn(groups, adjust="none"):
+        a, b = pair.levels
+
+        def z(d: float, a: str = a, b: str = b) -> float:
+            # Dunn (1964): mean pooled ranks, tie-corrected variance (re-ranked by brute force here)
+            shifted = {k: (v - d if k == a else v) for k, v in groups.items()}
+            pooled = np.concatenate([shifted[k] for k in labels])
+            ranks = stats.rankdata(pooled)
+            starts = np.cumsum([0] + [groups[k].size for k in labels])
+            mean = {k: ranks[starts[i] : starts[i + 1]].mean() for i, k in enumerate(labels)}
+            return float(mean[a] - mean[b])
+
+        step = 1e-6 * (1 + abs(pair.estimate.value))
+        assert z(pair.estimate.value - step) >= 0 >= z(pair.estimate.value + step)
 
 
 @pytest.mark.parametrize("case_id", ["sleep_extra_by_group", "toothgrowth_len_by_supp"])
 def test_dunn_two_groups_interval_equals_r(case_id: str) -> None:
-    """With two groups the Dunn pair's interval is R's rank-sum interval, with the sign flipped (later - earlier)."""
+    """With two groups the Dunn pair is R's rank-sum test without continuity correction, interval included."""
     case, groups = _groups(case_id)
     (only,) = followup.dunn(groups, adjust="none")
-    # R 4.2.2: wilcox.test(y ~ g, exact = FALSE, correct = TRUE, conf.int = TRUE) gives first - second;
+    later, earlier = (groups[level] for level in only.levels)
+    # Hodges & Lehmann (1963): for two groups the estimate is the median of all differences.
+    assert only.estimate.value == pytest.approx(float(np.median(np.subtract.outer(later, earlier))), abs=1e-12)
+    # R 4.2.2: wilcox.test(y ~ g, exact = FALSE, correct = FALSE, conf.int = TRUE) gives first - second;
     # R's uniroot tolerance is 1e-4, so bounds agree to about that.
-    low, high = case["tests"]["mann_whitney_approx_cc"]["conf_int"]
+    low, high = case["tests"]["mann_whitney_approx_nocc"]["conf_int"]
     assert only.estimate.ci_low == pytest.approx(-high, abs=2e-4)
     assert only.estimate.ci_high == pytest.approx(-low, abs=2e-4)
 

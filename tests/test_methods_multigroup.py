@@ -61,9 +61,15 @@ def test_plantgrowth_effect_sizes() -> None:
     case, frame = load_case("plantgrowth_weight_by_group")
     result = one_way_anova(group_arrays(case, frame))
     f = 4.846087862380137
-    assert result.effect.value == pytest.approx(2 * f / (2 * f + 27), rel=1e-12)
+    assert result.extra["eta_squared_plugin"] == pytest.approx(2 * f / (2 * f + 27), rel=1e-12)
     assert result.extra["omega_squared"] == pytest.approx(2 * (f - 1) / (2 * (f - 1) + 30), rel=1e-12)
     assert result.effect.ci_low < result.effect.value < result.effect.ci_high
+    # The reported eta-squared is lambda / (lambda + N) with R's F the median of the noncentral
+    # F(2, 27, lambda) (Steiger 2004; SciPy's ncf as the reference for the definition).
+    from scipy import stats
+
+    lam = 30 * result.effect.value / (1 - result.effect.value)
+    assert stats.ncf.cdf(f, 2, 27, lam) == pytest.approx(0.5, abs=1e-8)
 
 
 def test_variance_share_interval_inverts_noncentral_f() -> None:

@@ -172,18 +172,16 @@ def test_counts_of_one_give_the_unweighted_result_exactly() -> None:
     assert result.p_value == pytest.approx(0.1272, abs=5e-5)
 
 
-def test_large_kruskal_wallis_bootstrap_resamples_counts() -> None:
-    """Above the repeat limit H and p still equal the repeated rows; the bootstrap interval agrees within resampling error."""
+def test_large_kruskal_wallis_effect_equals_the_repeated_rows() -> None:
+    """Thousands of records: H, p, epsilon-squared and its interval equal the repeated rows' (all from H)."""
     rng = np.random.default_rng(7)
     groups = {g: (rng.integers(0, 20, 30) / 2.0, rng.integers(50, 150, 30).astype(float)) for g in "ABC"}
     result = w.kruskal_wallis(groups)
     plain = multigroup.kruskal_wallis({g: _repeat(v, c) for g, (v, c) in groups.items()})
     assert result.statistic == pytest.approx(plain.statistic, rel=1e-12)
     assert result.p_value == pytest.approx(plain.p_value, rel=1e-10)
-    assert result.notes[-1].code == "weighted_bootstrap"
-    width = plain.effect.ci_high - plain.effect.ci_low
-    assert abs(result.effect.ci_low - plain.effect.ci_low) < 0.15 * width
-    assert abs(result.effect.ci_high - plain.effect.ci_high) < 0.15 * width
+    for attribute in ("value", "ci_low", "ci_high"):
+        assert getattr(result.effect, attribute) == pytest.approx(getattr(plain.effect, attribute), rel=1e-9, abs=1e-12)
 
 
 @pytest.mark.parametrize("seed", range(20))

@@ -10,12 +10,10 @@ import pandas as pd
 import pytest
 
 from statmargin.stats.shape import (
-    SHAPE_RULES,
     assess,
     count_check,
     expected_counts,
-    kurtosis_se,
-    skewness_se,
+    judge_shape,
     spread_check,
     summarize,
 )
@@ -101,12 +99,6 @@ def test_outliers_by_tukey_fences():
     assert s.n_outliers == 2
 
 
-def test_shape_rule_bands_cover_all_sizes_once():
-    """Every sample size falls in exactly one band of the rule table."""
-    for n in range(0, 1000):
-        assert sum(low <= n <= high for low, high, _ in SHAPE_RULES) == 1
-
-
 def test_too_few_and_constant_are_unchecked():
     """Two values cannot be checked; equal values are flagged as constant."""
     assert summarize(np.array([1.0, 2.0])).normal_shaped is None
@@ -116,29 +108,30 @@ def test_too_few_and_constant_are_unchecked():
     assert a.normal_shaped is False and a.unchecked == ["a"]
 
 
-def test_moment_standard_errors():
-    """SE of G1 and G2 for n = 100 match the values statistics packages print (0.241 and 0.478)."""
-    # Values recalled from SPSS Descriptives output for n = 100, from memory: SE skewness .241, SE kurtosis .478.
-    # Arithmetic: sqrt(59400 / 1019494) = 0.241380; 2 * 0.241380 * sqrt(9999 / 10185) = 0.478332.
-    assert skewness_se(100) == pytest.approx(0.241380, rel=1e-5)
-    assert kurtosis_se(100) == pytest.approx(0.478332, rel=1e-5)
-    assert round(skewness_se(100), 3) == 0.241 and round(kurtosis_se(100), 3) == 0.478
-
-
-def test_middle_band_flags_strong_skew():
-    """A seeded lognormal sample of 200 is flagged by the skewness z rule; a normal one is not."""
+def test_group_verdict_is_the_judgement_of_that_group_alone():
+    """The shape sheet's verdict of a group equals judge_shape of that group: one rule for sheet and choice."""
     rng = np.random.default_rng(7)
-    skewed = summarize(rng.lognormal(0.0, 1.0, 200))
-    assert skewed.check == "moment_z" and skewed.normal_shaped is False
-    assert skewed.direction == "right-skewed"
-    normal = summarize(rng.normal(0.0, 1.0, 200))
-    assert normal.normal_shaped is True
+    for values in (rng.lognormal(0.0, 1.0, 200), rng.normal(0.0, 1.0, 200), 100 - rng.lognormal(2.0, 0.6, 597)):
+        s = summarize(values)
+        alone = judge_shape({"all": values})
+        assert s.check == "shapiro_wilk" and s.check_p == pytest.approx(alone.p_value, rel=1e-12)
+        assert s.normal_shaped is (not alone.departs)
+        assert s.direction == ("close to normal" if not alone.departs else alone.direction.value)
 
 
-def test_large_band_uses_absolute_limits():
-    """Above 300 values, |G1| > 2 or |G2| > 7 decides; a seeded normal sample passes."""
-    rng = np.random.default_rng(11)
-    s = summarize(rng.normal(10.0, 2.0, 400))
-    assert s.check == "moment_limits" and s.normal_shaped is True
-    heavy = summarize(rng.standard_t(2, 2000))
-    assert heavy.normal_shaped is False
+def test_left_skewed_597_values_are_not_called_close_to_normal():
+    """The reported case: 597 left-skewed scores, described as left-skewed (SciPy's Shapiro-Wilk p < 0.001)."""
+    from scipy import stats
+
+    scores = 100 - np.random.default_rng(597).lognormal(2.0, 0.6, 597)
+    s = summarize(scores)
+    assert stats.shapiro(scores).pvalue < 0.001
+    assert s.direction == "left-skewed" and s.verdict.startswith("left-skewed (Shapiro-Wilk p < 0.001")
+
+
+def test_above_5000_values_shapiro_wilk_reads_a_seeded_subsample():
+    """Above 5000 values the verdict says so and repeats exactly (SciPy documents its p up to 5000)."""
+    values = np.random.default_rng(11).normal(10.0, 2.0, 8000)
+    first, second = summarize(values), summarize(values)
+    assert first.verdict == second.verdict and first.verdict.endswith("on 5000 sampled values)")
+    assert first.normal_shaped is True

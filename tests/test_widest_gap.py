@@ -70,3 +70,16 @@ def test_widest_gap_interval_covers_the_picked_pair_in_at_least_95_percent_of_ru
         covered += gap.ci_low <= 0.0 <= gap.ci_high
     # Bonferroni keeps simultaneous coverage at 95% or more; the bound allows 3 Monte Carlo SEs below 0.95.
     assert covered / runs >= 0.95 - 3 * math.sqrt(0.95 * 0.05 / runs)
+
+
+def test_pairwise_rate_intervals_agree_with_their_adjusted_p() -> None:
+    """Each pair's rate-ratio interval leaves out 1 exactly when its Holm-adjusted p is below 0.05."""
+    from statmargin.stats.rates import pairwise_rate_ratios
+
+    groups = {"North": ([30], [10000]), "Centre": ([70], [12000]), "South": ([15], [9000]),
+              "East": ([44], [10500])}
+    pairs = pairwise_rate_ratios(groups, adjust="holm", alpha=0.05)
+    assert any(p.flagged for p in pairs) and not all(p.flagged for p in pairs)
+    for pair in pairs:
+        excludes = pair.estimate.ci_low > 1 or pair.estimate.ci_high < 1
+        assert excludes == (pair.p_adjusted < 0.05)

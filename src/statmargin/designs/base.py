@@ -43,6 +43,7 @@ class Choice:
     rank_based: bool
     reasons: list[Coded] = field(default_factory=list)
     notes: list[Coded] = field(default_factory=list)  # caveats to carry into Result.notes
+    options: dict[str, Any] = field(default_factory=dict)  # keyword arguments for the chosen method
 
 
 @dataclass

@@ -1,10 +1,9 @@
-"""One continuous (or ordinal) outcome against a stated value: one-sample t or Wilcoxon signed-rank."""
+"""One continuous (or ordinal) outcome against a stated value: one-sample t, sign test or signed-rank (``rules``)."""
 
 from __future__ import annotations
 
 from ..errors import OptionError
 from ..results import Result
-from ..stats import onesample, weighted
 from ..stats.shape import assess
 from ..stats.weighted_shape import assess_weighted
 from ..vocabulary import Design, MeasureType, Test
@@ -19,10 +18,10 @@ from .base import (
     counted_sample,
     method_options,
 )
-from .continuous import choose_family
+from .continuous import rule_choice, run_chosen, tests_of
 from .question import Question
 
-TESTS = (Test.ONE_SAMPLE_T, Test.WILCOXON_SIGNED_RANK)
+TESTS = tests_of(Design.ONE_SAMPLE_CONTINUOUS)
 
 
 class OneSampleContinuous(DesignSpec):
@@ -56,25 +55,24 @@ class OneSampleContinuous(DesignSpec):
         prepared.extra["assessment"] = shape
         prepared.summaries = [s.to_record() for s in shape.summaries]
         constant = constant_reason(name, x)
-        if constant:
-            raise Skipped(constant, prepared, test=TESTS[0])
+        if constant and x[0] == prepared.extra["mu"]:  # every value on the stated value: nothing to test
+            raise Skipped(constant, prepared, test=Test.SIGN_TEST)
         return prepared
 
     def choose(self, question: Question, prepared: Prepared) -> Choice:
-        return choose_family(
-            self.design, TESTS, outcome=question.outcome.name, by=None,
-            outcome_type=question.outcome_info.type, by_type=None, handling=question.handling,
-            shape=prepared.extra["assessment"],
-        )
+        name = question.outcome.name
+        counts = prepared.extra.get("counts")
+        ordinal = name if question.outcome_info.type is MeasureType.ORDINAL else None
+        return rule_choice(self.design, prepared.groups, counts=None if counts is None else {name: counts},
+                           outcome=name, by=None, ordinal_column=ordinal, handling=question.handling,
+                           target=prepared.extra["mu"])
 
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
         x = prepared.groups[question.outcome.name]
         counts = prepared.extra.get("counts")
-        if counts is not None:
-            counted = weighted.one_sample_t if choice.test is Test.ONE_SAMPLE_T else weighted.wilcoxon_signed_rank
-            return counted(x, counts, mu=prepared.extra["mu"], **method_options(question.settings))
-        fn = onesample.one_sample_t if choice.test is Test.ONE_SAMPLE_T else onesample.wilcoxon_signed_rank
-        return fn(x, mu=prepared.extra["mu"], **method_options(question.settings))
+        args = (x,) if counts is None else (x, counts)
+        return run_chosen(choice, *args, counted=counts is not None, mu=prepared.extra["mu"],
+                          **method_options(question.settings))
 
     def decorate(self, result: Result, question: Question, prepared: Prepared) -> None:
         result.against = prepared.extra["mu"]

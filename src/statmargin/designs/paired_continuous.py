@@ -1,12 +1,11 @@
-"""Paired continuous (or ordinal) measurements: the paired t-test or the Wilcoxon signed-rank test."""
+"""Paired continuous (or ordinal) measurements: paired t, signed-rank or sign test (``rules``)."""
 
 from __future__ import annotations
 
 from ..results import Result
-from ..stats import paired, weighted
 from ..stats.shape import assess
 from ..stats.weighted_shape import assess_weighted
-from ..vocabulary import Design, MeasureType, ShapeHandling, Test
+from ..vocabulary import Design, MeasureType, ShapeHandling
 from ..vocabulary.codes import Skip, coded
 from .base import (
     Choice,
@@ -17,11 +16,11 @@ from .base import (
     counted_sample,
     method_options,
 )
-from .continuous import choose_family
+from .continuous import rule_choice, run_chosen, tests_of
 from .pairing import is_categorical, is_paired, prepare_pairs
 from .question import Question
 
-TESTS = (Test.PAIRED_T, Test.WILCOXON_SIGNED_RANK)
+TESTS = tests_of(Design.PAIRED_CONTINUOUS)
 
 
 class PairedContinuous(DesignSpec):
@@ -57,27 +56,25 @@ class PairedContinuous(DesignSpec):
             prepared.summaries, prepared.shape = [], {}
             raise Skipped(coded(Skip.NO_COMPLETE_PAIRS, outcome=name), prepared, test=would)
         constant = constant_reason(f"the differences in {name}", diff)
-        if constant:
+        if constant and diff[0] == 0:  # no pair changed: nothing to test (equal non-zero changes get the sign test)
             raise Skipped(constant, prepared, test=would)
+        prepared.extra["differences"] = diff
         return prepared
 
     def choose(self, question: Question, prepared: Prepared) -> Choice:
-        return choose_family(
-            self.design, TESTS, outcome=question.outcome.name, by=None,
-            outcome_type=question.outcome_info.type, by_type=None, handling=question.handling,
-            shape=prepared.extra["assessment"],
-        )
+        name = question.outcome.name
+        counts = prepared.extra.get("counts")
+        ordinal = name if question.outcome_info.type is MeasureType.ORDINAL else None
+        return rule_choice(self.design, {name: prepared.extra["differences"]},
+                           counts=None if counts is None else {name: counts}, outcome=name, by=None,
+                           ordinal_column=ordinal, handling=question.handling)
 
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
         first, second = prepared.extra["labels"]
         counts = prepared.extra.get("counts")
-        if counts is not None:
-            counted = weighted.paired_t if choice.test is Test.PAIRED_T else weighted.wilcoxon_paired
-            return counted(prepared.groups[first], prepared.groups[second], counts, labels=(first, second),
-                           **method_options(question.settings))
-        fn = paired.paired_t if choice.test is Test.PAIRED_T else paired.wilcoxon_paired
-        return fn(prepared.groups[first], prepared.groups[second], labels=(first, second),
-                  **method_options(question.settings))
+        args = (prepared.groups[first], prepared.groups[second])
+        return run_chosen(choice, *args, *(() if counts is None else (counts,)), counted=counts is not None,
+                          labels=(first, second), **method_options(question.settings))
 
     def decorate(self, result: Result, question: Question, prepared: Prepared) -> None:
         decorate_pairs(result, question, prepared)

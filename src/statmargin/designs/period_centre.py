@@ -1,8 +1,9 @@
 """A continuous (or ordinal) outcome over periods: the mean or median per period, its trend and flags.
 
 Each period is summarised by its mean (t interval) or, when the outcome is
-ordinal, the user chose rank-based handling, or the shape checks find the
-values far from normal-shaped, by its median (distribution-free interval). The
+ordinal, the user chose rank-based handling, or the values within periods depart
+from a normal shape and the smallest period is too small for its mean (the size
+rule of ``stats.shape.judge_shape``), by its median (distribution-free interval). The
 Mann-Kendall test on the period series is the analysis's test and the
 Theil-Sen slope its estimate (units per period); an individuals chart (XmR) of
 the period values flags unusual periods by the Western Electric rules; the
@@ -16,18 +17,23 @@ import numpy as np
 
 from ..results import Result
 from ..stats.period_series import centre_periods
-from ..stats.shape import assess
+from ..stats.shape import judge_shape
 from ..vocabulary import Design, MeasureType, ShapeHandling, Test
 from ..vocabulary.codes import Coded, Reason, coded
 from ..words import period_readings  # noqa: F401 - registers the design's words
 from . import period_common
 from .base import Choice, DesignSpec, Prepared
-from .continuous import shape_facts
 from .question import Question
+from .rules import shape_facts
 
 
-def choose_centre(question: Question, values: np.ndarray) -> tuple[str, Coded]:
-    """'mean' or 'median' for the period summaries, with the reason."""
+def choose_centre(question: Question, numbers: np.ndarray, positions: np.ndarray) -> tuple[str, Coded]:
+    """'mean' or 'median' for the period summaries, with the reason.
+
+    The shape is judged once, on the values within each period (``rules`` judges groups
+    the same way): the mean when no clear departure from a normal shape is seen or the
+    smallest period is large enough for its mean, else the median.
+    """
     outcome = question.outcome.name
     if question.outcome_info.type is MeasureType.ORDINAL:
         return "median", coded(Reason.PERIOD_CENTRE, outcome=outcome, centre="median", cause="ordinal")
@@ -35,10 +41,12 @@ def choose_centre(question: Question, values: np.ndarray) -> tuple[str, Coded]:
         return "median", coded(Reason.PERIOD_CENTRE, outcome=outcome, centre="median", cause="user")
     if question.handling is ShapeHandling.NORMAL:
         return "mean", coded(Reason.PERIOD_CENTRE, outcome=outcome, centre="mean", cause="user")
-    shape = assess({outcome: values})
-    centre = "mean" if shape.normal_shaped else "median"
-    facts = shape_facts(Design.PERIOD_CENTRE, outcome, None, shape)
-    return centre, coded(Reason.PERIOD_CENTRE, centre=centre, cause="shape", **facts)
+    order = np.argsort(positions, kind="stable")
+    cuts = np.flatnonzero(np.diff(positions[order])) + 1
+    shape = judge_shape({str(i): part for i, part in enumerate(np.split(numbers[order], cuts))})
+    centre = "mean" if shape.mean_based_fits else "median"
+    facts = shape_facts(Design.PERIOD_CENTRE, shape, outcome, None)
+    return centre, coded(Reason.PERIOD_CENTRE, centre=centre, cause="shape", departs=shape.departs, **facts)
 
 
 class PeriodCentre(DesignSpec):
@@ -56,7 +64,7 @@ class PeriodCentre(DesignSpec):
         prepared = Prepared(self.design)
         rows = period_common.period_rows(question, np.asarray(vals.usable, dtype=bool), prepared)
         numbers = np.where(rows.used, vals.values, np.nan).astype(float)
-        centre, why = choose_centre(question, numbers[rows.used])
+        centre, why = choose_centre(question, numbers[rows.used], rows.position[rows.used])
         analysis = centre_periods(rows.axis, rows.position, numbers, centre=centre,
                                   alternative=settings.alternative.value, confidence=settings.confidence)
         prepared.n = int(rows.used.sum())

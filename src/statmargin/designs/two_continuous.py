@@ -3,10 +3,9 @@
 from __future__ import annotations
 
 from ..results import Result
-from ..stats import correlation, weighted
 from ..stats.shape import assess
 from ..stats.weighted_shape import assess_weighted
-from ..vocabulary import Design, MeasureType, Test
+from ..vocabulary import Design, MeasureType
 from ..vocabulary.codes import Skip, coded
 from .base import (
     Choice,
@@ -17,10 +16,10 @@ from .base import (
     counted_sample,
     method_options,
 )
-from .continuous import choose_family
+from .continuous import rule_choice, run_chosen, tests_of
 from .question import Question
 
-TESTS = (Test.PEARSON_R, Test.SPEARMAN_RHO)
+TESTS = tests_of(Design.TWO_CONTINUOUS)
 
 
 class TwoContinuous(DesignSpec):
@@ -65,17 +64,16 @@ class TwoContinuous(DesignSpec):
 
     def choose(self, question: Question, prepared: Prepared) -> Choice:
         assert question.by_info is not None and question.by is not None
-        return choose_family(
-            self.design, TESTS, outcome=question.outcome.name, by=question.by.name,
-            outcome_type=question.outcome_info.type, by_type=question.by_info.type,
-            handling=question.handling, shape=prepared.extra["assessment"],
-        )
+        name, by = question.outcome.name, question.by.name
+        ordinal = (name if question.outcome_info.type is MeasureType.ORDINAL
+                   else by if question.by_info.type is MeasureType.ORDINAL else None)
+        counts = prepared.extra.get("counts")
+        return rule_choice(self.design, prepared.groups,
+                           counts=None if counts is None else dict.fromkeys(prepared.groups, counts),
+                           outcome=name, by=by, ordinal_column=ordinal, handling=question.handling)
 
     def run(self, question: Question, prepared: Prepared, choice: Choice) -> Result:
         x, y = prepared.groups.values()
         counts = prepared.extra.get("counts")
-        if counts is not None:
-            counted = weighted.pearson_r if choice.test is Test.PEARSON_R else weighted.spearman_rho
-            return counted(x, y, counts, **method_options(question.settings))
-        fn = correlation.pearson_r if choice.test is Test.PEARSON_R else correlation.spearman_rho
-        return fn(x, y, **method_options(question.settings))
+        return run_chosen(choice, x, y, *(() if counts is None else (counts,)), counted=counts is not None,
+                          **method_options(question.settings))

@@ -551,3 +551,58 @@ def median_walsh_average(x: np.ndarray, *, work_limit: int | None = None) -> flo
     lower = kth_walsh_average(x_sorted, total // 2 - 1, work_limit=limit)
     return _mean_with_next(lower, total // 2, lambda r, c: (x_sorted[r] + x_sorted[c]) / 2.0,
                            np.arange(n, dtype=np.int64), n)
+
+
+def open_at_null(low: float, high: float, null: float, rejected: bool) -> tuple[float, float]:
+    """Keep an inverted interval's verdict on the null value when a bound lands exactly on it.
+
+    An interval found by inverting a test on data with ties can end exactly at the null
+    value while the test rejects it (the set of values not rejected is open there). The
+    bound is then moved inward by the smallest representable step, so ``low > null`` (or
+    ``high < null``) agrees with the test; the printed number is unchanged.
+    """
+    if rejected and low == null:
+        low = math.nextafter(null, math.inf)
+    if rejected and high == null:
+        high = math.nextafter(null, -math.inf)
+    return low, high
+
+
+class SortedRecords:
+    """Values sorted with the cumulative counts of the records they stand for (1 each without counts).
+
+    ``below(points)`` counts the records below each point, ties counting one half: the
+    placement of a value among these records, in O(log n) per point.
+
+    Examples
+    --------
+    >>> records = SortedRecords(np.array([3.0, 1.0, 2.0]), np.array([1, 2, 1]))
+    >>> records.below(np.array([2.0, 3.0, 0.5])).tolist()
+    [2.5, 3.5, 0.0]
+    """
+
+    def __init__(self, values: np.ndarray, counts: np.ndarray | None = None) -> None:
+        # Equal values are merged into one with their summed counts, so ``below`` needs one
+        # binary search per point (the tie half is then that one value's count).
+        distinct, where = np.unique(values, return_inverse=True)
+        weights = np.ones(values.size) if counts is None else np.asarray(counts, dtype=float)
+        self.values = distinct
+        self.weights = np.bincount(where.ravel(), weights=weights, minlength=distinct.size)
+        self.cumulative = np.concatenate(([0.0], np.cumsum(self.weights)))
+
+    def shifted(self, d: float) -> SortedRecords:
+        """The same records with every value moved by ``-d``: order and counts stay, so nothing is sorted again."""
+        moved = object.__new__(SortedRecords)
+        moved.values = self.values - d
+        moved.weights = self.weights
+        moved.cumulative = self.cumulative
+        return moved
+
+    def below(self, points: np.ndarray) -> np.ndarray:
+        """Records below each point, ties counting one half."""
+        at = np.searchsorted(self.values, points, "left")
+        if self.values.size == 0:
+            return np.zeros(np.shape(points))
+        inside = np.minimum(at, self.values.size - 1)
+        tied = np.where(self.values[inside] == points, self.weights[inside], 0.0)
+        return self.cumulative[at] + tied / 2.0

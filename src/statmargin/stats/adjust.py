@@ -248,3 +248,76 @@ def adjust_by_family(
     for members in by_outcome.values():
         adjust_results(members, method)
     return results
+
+
+def matched_levels(p: Sequence[float | None], method: AdjustMethod | str, alpha: float) -> list[float | None]:
+    """Per-comparison levels whose intervals exclude the null exactly when the adjusted p < alpha.
+
+    Parameters
+    ----------
+    p : sequence of float or None
+        Raw p-values of a family (None is left out, as in :func:`adjust_p`).
+    method : AdjustMethod or str
+        ``"holm"``, ``"benjamini-hochberg"`` or ``"none"``.
+    alpha : float
+        The level at which adjusted p-values are read.
+
+    Returns
+    -------
+    list of float or None
+        alpha_i for each comparison: a 1 - alpha_i interval that is the inversion of the
+        comparison's own test excludes the null exactly when ``adjust_p`` gives p < alpha.
+
+    Notes
+    -----
+    Holm (step-down): the j-th smallest p, when the procedure reaches it and rejects,
+    is compared with alpha / (m - j + 1), so that is its level; every comparison
+    after the first one kept gets alpha / (m - s + 1), s that first kept step, which its
+    raw p cannot beat. Benjamini-Hochberg: with R the comparisons selected, every
+    interval has level 1 - R alpha / m (alpha / m when R = 0), the false-coverage-rate
+    intervals of Benjamini & Yekutieli (2005), which match the selection exactly.
+    "none": alpha for all. These intervals agree with their adjusted p by
+    construction; Holm-matched ones are not simultaneous intervals (each has at
+    least 1 - alpha coverage on its own), while Bonferroni's alpha / m would be.
+
+    References
+    ----------
+    Holm, S. (1979). Scandinavian Journal of Statistics 6(2), 65-70.
+    Benjamini, Y., & Yekutieli, D. (2005). False discovery rate-adjusted multiple
+    confidence intervals for selected parameters. JASA 100(469):71-81.
+    doi:10.1198/016214504000001907
+
+    Examples
+    --------
+    >>> p = [0.01, 0.04, 0.03, 0.2]
+    >>> adjust_p(p, "holm")
+    [0.04, 0.09, 0.09, 0.2]
+    >>> matched_levels(p, "holm", 0.05)
+    [0.0125, 0.016666666666666666, 0.016666666666666666, 0.016666666666666666]
+    """
+    chosen = _as_method(method)
+    given = [(i, float(v)) for i, v in enumerate(p) if v is not None and not math.isnan(float(v))]
+    out: list[float | None] = [None] * len(p)
+    m = len(given)
+    if m == 0:
+        return out
+    if chosen is AdjustMethod.NONE:
+        for i, _ in given:
+            out[i] = alpha
+        return out
+    order = sorted(given, key=lambda item: item[1])
+    if chosen is AdjustMethod.HOLM:
+        stopped: float | None = None
+        for j, (i, value) in enumerate(order):
+            level = alpha / (m - j)
+            if stopped is None and value < level:
+                out[i] = level
+            else:
+                stopped = level if stopped is None else stopped
+                out[i] = stopped
+        return out
+    selected = max((j + 1 for j, (_, value) in enumerate(order) if value < (j + 1) * alpha / m), default=0)
+    level = max(selected, 1) * alpha / m
+    for i, _ in given:
+        out[i] = level
+    return out

@@ -135,6 +135,11 @@ def wilson_interval(
     centre = (phat + z * z / (2 * n)) / denom
     half = z / denom * math.sqrt(phat * (1.0 - phat) / n + z * z / (4 * n * n))
     low, high = max(0.0, centre - half), min(1.0, centre + half)
+    # At 0 or n successes the exact limit is 0 or 1; rounding must not put it a step inside.
+    if successes == 0:
+        low = 0.0
+    if successes == n:
+        high = 1.0
     if alternative == "greater":
         high = 1.0
     elif alternative == "less":
@@ -233,9 +238,12 @@ def newcombe_paired_difference_interval(
 
     Notes
     -----
-    Method 10 of Newcombe (1998b): Wilson limits for each marginal share,
-    combined with the correlation phi of the 2x2 table (phi = 0 when a margin is
-    empty).
+    Method 10 of Newcombe (1998b): Wilson limits for each marginal share, combined
+    through the correlation phi of the 2x2 table with Newcombe's correction of its
+    numerator: A = ad - bc is replaced by A - n/2 when A > n/2, by 0 when
+    0 <= A <= n/2, and kept when A < 0; phi = 0 when a margin is empty. The formulas
+    are those given by Fagerland, Lydersen & Laake (2014, Statistics in Medicine
+    33:2850-2875; the "Newcombe square-and-add" interval).
 
     References
     ----------
@@ -243,16 +251,28 @@ def newcombe_paired_difference_interval(
     between binomial proportions based on paired data. Statistics in Medicine
     17(22), 2635-2650.
     https://doi.org/10.1002/(SICI)1097-0258(19981130)17:22<2635::AID-SIM954>3.0.CO;2-C
+    Fagerland, M. W., Lydersen, S., & Laake, P. (2014). Recommended tests and
+    confidence intervals for paired binomial proportions. Statistics in Medicine
+    33(16), 2850-2875. https://doi.org/10.1002/sim.6148
 
     Examples
     --------
-    Newcombe's (1998b) worked example a = 36, b = 12, c = 2, d = 0; the paper lists
-    0.0569 to 0.3404 for method 10 (published values recalled from memory). SciPy
-    has no version of this interval.
+    Newcombe's (1998b) worked example a = 36, b = 12, c = 2, d = 0 (ad - bc < 0, so no
+    correction); the paper lists 0.0569 to 0.3404 for method 10 (published values
+    recalled from memory). SciPy has no version of this interval.
 
     >>> low, high = newcombe_paired_difference_interval([[36, 12], [2, 0]])
     >>> round(low, 4), round(high, 4)
     (0.0569, 0.3404)
+
+    Complete response before and after consolidation therapy (Cavo et al. 2012, the
+    worked example of Fagerland, Lydersen & Laake 2014): ad - bc = 4624 > n/2, so the
+    correction applies; their interval is -0.1186 to -0.0046 (as also in the test
+    suite of the R package contingencytables, which implements their formulas).
+
+    >>> low, high = newcombe_paired_difference_interval([[59, 6], [16, 80]])
+    >>> round(low, 4), round(high, 4)
+    (-0.1186, -0.0046)
     """
     a, b, c, d = (float(v) for v in np.asarray(table, dtype=float).ravel())
     n = a + b + c + d
@@ -260,7 +280,12 @@ def newcombe_paired_difference_interval(
     l1, u1 = wilson_interval(int(a + b), int(n), confidence=confidence)
     l2, u2 = wilson_interval(int(a + c), int(n), confidence=confidence)
     margins = (a + b) * (c + d) * (a + c) * (b + d)
-    phi = (a * d - b * c) / math.sqrt(margins) if margins > 0 else 0.0
+    association = a * d - b * c
+    if association > n / 2.0:
+        association -= n / 2.0
+    elif association >= 0.0:
+        association = 0.0
+    phi = association / math.sqrt(margins) if margins > 0 else 0.0
     diff = p1 - p2
     low_sq = (p1 - l1) ** 2 - 2 * phi * (p1 - l1) * (u2 - p2) + (u2 - p2) ** 2
     high_sq = (u1 - p1) ** 2 - 2 * phi * (u1 - p1) * (p2 - l2) + (p2 - l2) ** 2
@@ -333,6 +358,55 @@ def noncentrality_interval(
         )
 
     return limit(1.0 - alpha / 2.0), limit(alpha / 2.0)
+
+
+def noncentrality_estimate(
+    statistic: float, df: float, *, confidence: float = 0.95
+) -> tuple[float, float, float]:
+    """Median-unbiased noncentrality of a chi-square statistic with its interval.
+
+    Parameters
+    ----------
+    statistic : float
+        Observed Pearson chi-square.
+    df : float
+        Its degrees of freedom.
+    confidence : float
+        Two-sided confidence level.
+
+    Returns
+    -------
+    tuple of float
+        (estimate, lower, upper): the noncentrality under which the observed value is
+        the median, and the bounds of :func:`noncentrality_interval`; one inversion,
+        so lower <= estimate <= upper always.
+
+    Notes
+    -----
+    Effect sizes built on the noncentrality (Cohen's w = sqrt(lambda / n), Cramer's
+    V = sqrt(lambda / (n m))) use this estimate. The plug-in sqrt(X^2 / (n m)) treats
+    the whole statistic as signal (its null expectation is df), so with a small X^2 it
+    can lie above the interval's upper bound.
+
+    References
+    ----------
+    Steiger, J. H., & Fouladi, R. T. (1997). Noncentrality interval estimation and the
+    evaluation of statistical models. In Harlow, Mulaik & Steiger (eds.), What If There
+    Were No Significance Tests? Erlbaum, pp. 221-257.
+
+    Examples
+    --------
+    >>> from scipy import stats
+    >>> mid, low, high = noncentrality_estimate(10.0, 2)
+    >>> round(float(stats.ncx2.cdf(10.0, 2, mid)), 6), low <= mid <= high
+    (0.5, True)
+    """
+    from statmargin.stats import effects
+
+    low, mid, high = effects.invert_noncentrality(
+        effects.noncentral_f_cdf(statistic / df, df, math.inf), confidence, statistic
+    )
+    return mid, low, high
 
 
 # --------------------------------------------------------------------------- input checks
@@ -479,8 +553,10 @@ def chi_square_goodness_of_fit(
     df (as R ``chisq.test(x, p = p)``). When any expected count is below 5
     (Cochran 1954; common practice) the p-value is (1 + #{X2_sim >= X2}) /
     (B + 1) over B multinomial samples under the null, as R's
-    ``simulate.p.value = TRUE``. Cohen's w = sqrt(X2 / n); its interval is
-    sqrt(lambda / n) over the noncentrality interval (Smithson 2003).
+    ``simulate.p.value = TRUE``. Cohen's w = sqrt(lambda / n) with lambda the
+    median-unbiased noncentrality and its interval from the same inversion
+    (:func:`noncentrality_estimate`; Smithson 2003), so w lies inside its interval;
+    the plug-in sqrt(X2 / n) is in ``extra["cohens_w_plugin"]``.
 
     References
     ----------
@@ -502,8 +578,8 @@ def chi_square_goodness_of_fit(
     >>> result = chi_square_goodness_of_fit(counts, shares)
     >>> round(result.statistic, 4), result.df, round(result.p_value, 4), result.p_method
     (0.47, 3.0, 0.9254, 'asymptotic')
-    >>> result.effect.name, round(result.effect.value, 4)
-    ("Cohen's w", 0.0291)
+    >>> result.effect.name, round(result.extra["cohens_w_plugin"], 4), result.effect.value
+    ("Cohen's w", 0.0291, 0.0)
     >>> expected = [556 * s for s in shares.values()]
     >>> math.isclose(result.p_value, stats.chisquare(list(counts.values()), f_exp=expected).pvalue)
     True
@@ -574,13 +650,14 @@ def chi_square_goodness_of_fit(
         level=str(labels[furthest]),
         reference=float(expected_share[furthest]),
     )
-    nc_low, nc_high = noncentrality_interval(x2, df, confidence=confidence)
+    nc_mid, nc_low, nc_high = noncentrality_estimate(x2, df, confidence=confidence)
     effect = Effect(
         EffectKind.COHENS_W,
-        value=math.sqrt(x2 / n),
+        value=math.sqrt(nc_mid / n),
         ci_low=math.sqrt(nc_low / n),
         ci_high=math.sqrt(nc_high / n),
     )
+    extra["cohens_w_plugin"] = math.sqrt(x2 / n)
     groups = [
         {
             "label": lab,
@@ -796,8 +873,10 @@ def chi_square_independence(
     tables simulated with both margins fixed (Patefield's algorithm, via
     ``scipy.stats.random_table``), p = (1 + #{X2_sim >= X2}) / (B + 1) as R's
     ``simulate.p.value``. For a 2x2 table a note recommends Fisher's exact test.
-    Cramer's V = sqrt(X2 / (n (min(r, c) - 1))) with the uncorrected X2; its
-    interval maps the noncentrality interval (Smithson 2003). Woolf's interval
+    Cramer's V = sqrt(lambda / (n (min(r, c) - 1))) with lambda the median-unbiased
+    noncentrality of the uncorrected X2, and its interval from the same inversion
+    (:func:`noncentrality_estimate`; Smithson 2003), so V always lies inside it; the
+    plug-in sqrt(X2 / (n (min(r, c) - 1))) is in ``extra["cramers_v_plugin"]``. Woolf's interval
     adds 0.5 to every cell when a cell is 0 (Haldane-Anscombe).
 
     References
@@ -820,8 +899,8 @@ def chi_square_independence(
     >>> result = chi_square_independence(table, ["F", "M"], ["Democrat", "Independent", "Republican"])
     >>> round(result.statistic, 4), result.df, f"{result.p_value:.4g}"
     (30.0701, 2.0, '2.954e-07')
-    >>> result.effect.name, round(result.effect.value, 4)
-    ("Cramer's V", 0.1044)
+    >>> result.effect.name, round(result.effect.value, 4), round(result.extra["cramers_v_plugin"], 4)
+    ("Cramer's V", 0.1027, 0.1044)
     >>> math.isclose(result.p_value, stats.chi2_contingency(table).pvalue)
     True
 
@@ -891,13 +970,14 @@ def chi_square_independence(
             )
 
     min_dim = min(nrow, ncol) - 1
-    nc_low, nc_high = noncentrality_interval(x2_plain, df, confidence=confidence)
+    nc_mid, nc_low, nc_high = noncentrality_estimate(x2_plain, df, confidence=confidence)
     effect = Effect(
         EffectKind.CRAMERS_V,
-        value=math.sqrt(x2_plain / (n * min_dim)),
+        value=min(1.0, math.sqrt(nc_mid / (n * min_dim))),
         ci_low=min(1.0, math.sqrt(nc_low / (n * min_dim))),
         ci_high=min(1.0, math.sqrt(nc_high / (n * min_dim))),
     )
+    extra["cramers_v_plugin"] = math.sqrt(x2_plain / (n * min_dim))
     estimate = None
     if is_2x2:
         estimate = _difference_of_shares(counts, row_labels, col_labels, confidence=confidence)
@@ -1165,6 +1245,12 @@ def mcnemar(
     ratio = None if c == 0 else b / c
     if c == 0:
         caveat(notes, coded(Note.ONE_WAY_DISCORDANT, n=Count(b)))
+    excludes_zero = low > 0.0 or high < 0.0
+    if alt == "two-sided" and excludes_zero != (p_value < 1.0 - confidence):
+        # Newcombe's interval and McNemar's p are different methods; near the edge they
+        # can disagree (e.g. Cavo et al. 2012: exact p = 0.052, interval -0.119 to -0.005).
+        notes.append(coded(Note.INTERVAL_DISAGREES_WITH_P, low=low, high=high, p=p_value,
+                           alpha=1.0 - confidence, excludes_zero=excludes_zero))
     first, second = int(counts[0].sum()) / n, int(counts[:, 0].sum()) / n
     return Result(
         outcome="",

@@ -13,20 +13,21 @@ from collections.abc import Callable, Iterator, Mapping, Sequence
 from typing import Any, TypeVar
 
 import numpy as np
-from scipy import stats
+from scipy import optimize, stats
 
 from statmargin.errors import NotEnoughDataError
-from statmargin.results import Estimate, Followup
-from statmargin.stats import twogroup
+from statmargin.results import Estimate, Followup, Result
 from statmargin.stats._common import (
+    SortedRecords,
     accurate_mean,
     check_confidence,
     clean,
     median_pairwise_difference,
+    open_at_null,
     sum_of_squares,
     tie_counts,
 )
-from statmargin.stats.adjust import adjust_p
+from statmargin.stats.adjust import adjust_p, matched_levels
 from statmargin.stats.categorical import _count_table
 from statmargin.vocabulary import AdjustMethod, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Count, Skip, coded
@@ -313,30 +314,33 @@ def dunn(
     adjust : {"holm", "benjamini-hochberg", "none"}
         Adjustment over the k(k-1)/2 pairs.
     alpha : float
-        Level for ``flagged``.
+        Level for ``flagged`` and for matching the intervals to the adjusted p.
     confidence : float
-        Level of each pair's interval for the shift.
+        Level of the intervals when no adjustment is made (``adjust="none"``);
+        otherwise each pair's level comes from ``adjust.matched_levels``.
 
     Returns
     -------
     list of Followup
-        test Test.DUNN; ``estimate`` the Hodges-Lehmann location shift (later -
-        earlier level, in the outcome's units) with an approximate interval;
+        test Test.DUNN; ``estimate`` the location shift of the later level against
+        the earlier one that Dunn's own statistic points to, with its interval;
         ``statistic`` z from the mean ranks; ``p_value`` two-sided normal;
         ``p_adjusted`` after ``adjust``.
 
     Notes
     -----
     z = (Rbar_a - Rbar_b) / sqrt((N(N+1)/12 - sum(t^3 - t) / (12 (N - 1)))
-    (1/n_a + 1/n_b)), with ties given average ranks and the tie correction
-    from the pooled ranking. The test is about mean ranks, which have no units,
-    so each pair is described by the Hodges-Lehmann shift (median of all
-    later-minus-earlier differences) and the interval from inverting that pair's
-    rank-sum statistic with continuity correction, as R's ``wilcox.test(conf.int =
-    TRUE, exact = FALSE)`` does. The interval is per pair (not adjusted for the
-    number of pairs) and uses only the pair's two groups, while z and p use the
-    pooled ranking, so an interval and its adjusted p can disagree at the margin.
-    The shift reading assumes the groups differ mainly in location.
+    (1/n_a + 1/n_b)), with ties given average ranks and the tie correction from
+    the pooled ranking. The test is about mean ranks, which have no units. Each
+    pair is described in the outcome's units by inverting this same z over shifts d
+    of the later group (re-ranking ``a - d`` among all values, the standard error
+    held at its value for the data): the estimate is the shift at which z changes
+    sign (the Hodges-Lehmann principle; for two groups it is the median of all
+    differences) and the interval is every d with |z(d)| within the critical value.
+    The interval's level is matched to the adjustment (``matched_levels``: Holm's
+    step levels, Benjamini-Yekutieli's for Benjamini-Hochberg), so an interval
+    excludes 0 exactly when the adjusted p is below ``alpha``. The shift reading
+    assumes the groups differ mainly in location.
 
     References
     ----------
@@ -361,22 +365,21 @@ def dunn(
     ('centre', 'north') 2.687 0.0072 0.0216
     ('south', 'north') 1.1314 0.2579 0.2579
     ('south', 'centre') -1.5556 0.1198 0.2396
+    >>> [(pair.estimate.ci_low > 0 or pair.estimate.ci_high < 0) == pair.flagged
+    ...  for pair in dunn(groups, adjust="holm")]
+    [True, True, True]
 
     SciPy has no Dunn test, but with only two groups Dunn's z equals the
-    Mann-Whitney z without continuity correction, which gives a cross-check:
+    Mann-Whitney z without continuity correction, and the estimate is the median of
+    all differences (the Hodges-Lehmann shift):
 
     >>> two = {"north": groups["north"], "centre": groups["centre"]}
     >>> mw = stats.mannwhitneyu(groups["centre"], groups["north"], use_continuity=False,
     ...                         method="asymptotic")
-    >>> math.isclose(dunn(two, adjust="none")[0].p_value, mw.pvalue)
+    >>> only = dunn(two, adjust="none")[0]
+    >>> math.isclose(only.p_value, mw.pvalue)
     True
-
-    Each pair's estimate is the median of all later-minus-earlier differences:
-
-    >>> first = dunn(groups)[0]
-    >>> first.estimate.kind.value, first.estimate.levels, round(first.estimate.value, 4)
-    ('location_shift', ('centre', 'north'), 1.3)
-    >>> first.estimate.value == float(np.median(np.subtract.outer(groups["centre"], groups["north"])))
+    >>> math.isclose(only.estimate.value, float(np.median(np.subtract.outer(groups["centre"], groups["north"]))))
     True
     """
     confidence = check_confidence(confidence)
@@ -387,36 +390,134 @@ def dunn(
     for label, values in items:
         mean_ranks.append((label, float(ranks[start : start + values.size].mean()), float(values.size)))
         start += values.size
-    values_of = dict(items)
-    return dunn_of_mean_ranks(
-        mean_ranks, tie_counts(pooled),
-        lambda a, b: median_pairwise_difference(values_of[a], values_of[b]),
-        lambda a, b: twogroup._rank_sum_approx_interval(values_of[a], values_of[b], "two-sided", confidence, True),
-        adjust=adjust, alpha=alpha,
-    )
+    # Each group as its distinct values with their counts: the shift search then costs the
+    # number of distinct values, not records, and gives exactly the same z (ties are counts).
+    weighted = {label: _distinct_with_counts(values) for label, values in items}
+    return dunn_of_mean_ranks(mean_ranks, tie_counts(pooled), weighted, adjust=adjust, alpha=alpha,
+                              confidence=confidence)
+
+
+def _distinct_with_counts(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    distinct, counts = np.unique(values, return_counts=True)
+    return distinct, counts.astype(float)
 
 
 def dunn_of_mean_ranks(
     mean_ranks: list[tuple[str, float, float]],
     tie_sizes: np.ndarray,
-    shift: Callable[[str, str], float],
-    interval: Callable[[str, str], tuple[float, float]],
+    groups: Mapping[str, tuple[np.ndarray, np.ndarray]],
     *,
     adjust: AdjustMethod | str = "holm",
     alpha: float = DEFAULT_ALPHA,
+    confidence: float = 0.95,
 ) -> list[Followup]:
-    """:func:`dunn` from each group's (label, mean rank, n), the pooled tie sizes and per-pair shift and interval."""
+    """:func:`dunn` from each group's (label, mean rank, n), the pooled tie sizes and the (values, counts).
+
+    ``groups`` holds each group's distinct values and how many records each stands for
+    (counts of 1 for plain records), so rows that stand for several records get exactly
+    the result of their repeated records.
+    """
     n_total = sum(n for *_, n in mean_ranks)
     tie_term = float(np.sum(tie_sizes**3 - tie_sizes)) / (12.0 * (n_total - 1))
     variance = n_total * (n_total + 1) / 12.0 - tie_term
     if variance <= 0.0:
         raise NotEnoughDataError(coded(Skip.ALL_RANKS_EQUAL))
-    rows, intervals = [], []
+    rows, errors = [], []
     for (a, rank_a, n_a), (b, rank_b, n_b) in _pairs(mean_ranks):
-        z = (rank_a - rank_b) / math.sqrt(variance * (1.0 / n_a + 1.0 / n_b))
-        rows.append((a, b, shift(a, b), z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
-        intervals.append(interval(a, b))
-    return _adjusted_followups(Test.DUNN, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha, intervals)
+        se = math.sqrt(variance * (1.0 / n_a + 1.0 / n_b))
+        z = (rank_a - rank_b) / se
+        rows.append((a, b, z, float(min(1.0, 2.0 * stats.norm.sf(abs(z))))))
+        errors.append(se)
+    levels = _levels([r[3] for r in rows], adjust, alpha, confidence)
+    out_rows, intervals = [], []
+    for (a, b, z, p), se, level in zip(rows, errors, levels, strict=True):
+        critical = float(stats.norm.isf((level or 0.0) / 2.0))
+        estimate, low, high = _DunnShift(groups, a, b, se).solve(critical)
+        out_rows.append((a, b, estimate, z, p))
+        intervals.append(open_at_null(low, high, 0.0, abs(z) > critical))
+    return _adjusted_followups(Test.DUNN, EstimateKind.LOCATION_SHIFT, out_rows, adjust, alpha, intervals)
+
+
+def _levels(raw: Sequence[float | None], adjust: AdjustMethod | str, alpha: float, confidence: float) -> list[float | None]:
+    """Each comparison's interval level: matched to the adjustment, or 1 - confidence without one."""
+    if str(getattr(adjust, "value", adjust)).strip().lower() == AdjustMethod.NONE.value:
+        return [1.0 - confidence] * len(raw)
+    return matched_levels(raw, adjust, alpha)
+
+
+class _DunnShift:
+    """Dunn's z of group a shifted by d against group b, re-ranked among all values.
+
+    The pooled mid-rank of a record is its mid-rank within its own group plus the
+    number of other records below it (ties one half), so shifting group a changes only
+    the counts between a and the rest; each evaluation costs O((n_a + n_b) log N).
+    """
+
+    def __init__(self, groups: Mapping[str, tuple[np.ndarray, np.ndarray]], a: str, b: str, se: float) -> None:
+        values_a, counts_a = groups[a]
+        values_b, counts_b = groups[b]
+        others = [c for c in groups if c != a]
+        rest = [c for c in others if c != b]
+        self.a = np.sort(values_a)
+        self.counts_a = counts_a[np.argsort(values_a, kind="stable")]
+        self.sorted_a = SortedRecords(self.a, self.counts_a)
+        self.n_a, self.n_b = float(counts_a.sum()), float(counts_b.sum())
+        self.values_b, self.counts_b = values_b, counts_b
+        self.others = SortedRecords(np.concatenate([groups[c][0] for c in others]),
+                              np.concatenate([groups[c][1] for c in others]))
+        self.se = se
+        # b's counts against groups other than a and b do not change with d
+        self.b_fixed = 0.0
+        if rest:
+            against = SortedRecords(np.concatenate([groups[c][0] for c in rest]), np.concatenate([groups[c][1] for c in rest]))
+            self.b_fixed = float(np.sum(counts_b * against.below(values_b))) / self.n_b
+
+    def z(self, d: float) -> float:
+        shifted = self.sorted_a.shifted(d)
+        mean_a = (self.n_a + 1) / 2.0 + float(np.sum(shifted.weights * self.others.below(shifted.values))) / self.n_a
+        mean_b = ((self.n_b + 1) / 2.0 + self.b_fixed
+                  + float(np.sum(self.counts_b * shifted.below(self.values_b))) / self.n_b)
+        return (mean_a - mean_b) / self.se
+
+    def solve(self, critical: float) -> tuple[float, float, float]:
+        """(estimate, low, high): the sign change of z and where |z| reaches ``critical``."""
+        others = self.others.values
+        span = float(max(self.a[-1], others[-1]) - min(self.a[0], others[0]))
+        low_end = float(self.a[0] - others[-1]) - span - 1.0
+        high_end = float(self.a[-1] - others[0]) + span + 1.0
+        tolerance = 1e-7 * max(span, 1e-300)  # the bound is then moved to the exact jump point
+
+        def crossing(target: float, right_end: bool, unreachable: float) -> float:
+            # z falls in steps as d grows. The left end of {d: z(d) <= target} is where
+            # z - target - eps changes sign; the right end of {d: z(d) >= target} is where
+            # z - target + eps does. A target that z never reaches leaves that side open.
+            offset = 1e-12 if right_end else -1e-12
+
+            def f(d: float) -> float:
+                return self.z(d) - target + offset
+
+            if f(low_end) <= 0 or f(high_end) > 0:
+                return unreachable
+            return float(optimize.brentq(f, low_end, high_end, xtol=tolerance, rtol=1e-12))
+
+        left = self.snap(crossing(0.0, False, math.nan))
+        right = self.snap(crossing(0.0, True, math.nan))
+        estimate = (left + right) / 2.0
+        if not math.isfinite(critical):
+            return estimate, -math.inf, math.inf
+        low = self.snap(crossing(critical, False, -math.inf))
+        high = self.snap(crossing(-critical, True, math.inf))
+        return estimate, min(low, estimate), max(high, estimate)
+
+    def snap(self, d: float) -> float:
+        """The jump point nearest ``d``: z changes only where a value a_i - d meets another value."""
+        if not math.isfinite(d):
+            return d
+        others = self.others.values
+        right = np.clip(np.searchsorted(others, self.a - d), 0, others.size - 1)
+        left = np.clip(right - 1, 0, others.size - 1)
+        candidates = np.concatenate([self.a - others[left], self.a - others[right]])
+        return float(candidates[np.argmin(np.abs(candidates - d))])
 
 
 def pairwise_mann_whitney(
@@ -490,6 +591,101 @@ def pairwise_mann_whitney(
         p = float(test.pvalue)
         rows.append((a, b, shift, float(test.statistic), p if math.isfinite(p) else None))
     return _adjusted_followups(Test.PAIRWISE_MANN_WHITNEY, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha)
+
+
+def pairwise_brunner_munzel(
+    groups: Mapping[str, Any],
+    *,
+    adjust: AdjustMethod | str = "holm",
+    alpha: float = DEFAULT_ALPHA,
+    confidence: float = 0.95,
+    p_method: str = "auto",
+) -> list[Followup]:
+    """Brunner-Munzel tests of every pair of groups, adjusted over the pairs.
+
+    Parameters
+    ----------
+    groups : mapping of str to array_like
+        Values per group, in display order.
+    adjust : {"holm", "benjamini-hochberg", "none"}
+        Adjustment over the k(k-1)/2 pairs.
+    alpha : float
+        Level for ``flagged`` and for matching the intervals to the adjusted p.
+    confidence : float
+        Level of the intervals when no adjustment is made.
+    p_method : {"auto", "permutation", "asymptotic"}
+        As for ``relative.brunner_munzel`` (the choice rule passes what it used for the
+        omnibus test).
+
+    Returns
+    -------
+    list of Followup
+        test Test.PAIRWISE_BRUNNER_MUNZEL; ``estimate`` the Hodges-Lehmann shift
+        (later - earlier) with the interval from inverting the pair's test at the
+        matched level; ``statistic`` the Brunner-Munzel t (positive when the later
+        level tends to be larger); ``p_value`` unadjusted; ``p_adjusted`` after ``adjust``.
+
+    Notes
+    -----
+    The follow-up of the ANOVA-type rank test: like it, each pair's test stays valid
+    when spreads differ (Dunn's pooled ranking does not). Each pair uses only its own
+    two groups. Interval levels come from ``adjust.matched_levels``, so an interval
+    excludes 0 exactly when the adjusted p is below ``alpha``.
+
+    References
+    ----------
+    Brunner, E., & Munzel, U. (2000). Biometrical Journal 42(1):17-25.
+
+    Examples
+    --------
+    Waiting times (hours) at three sites, five visits each (invented data); with two
+    groups and no adjustment the pair is the Brunner-Munzel test (SciPy cross-check):
+
+    >>> import math
+    >>> from scipy import stats
+    >>> groups = {
+    ...     "north": [4.2, 5.1, 3.9, 4.8, 5.5],
+    ...     "centre": [5.9, 6.4, 5.2, 6.8, 6.1],
+    ...     "south": [4.9, 5.6, 6.0, 5.3, 4.7],
+    ... }
+    >>> pairs = pairwise_brunner_munzel(groups, p_method="asymptotic")
+    >>> [pair.levels for pair in pairs]
+    [('centre', 'north'), ('south', 'north'), ('south', 'centre')]
+    >>> check = stats.brunnermunzel(groups["north"], groups["centre"])
+    >>> math.isclose(pairs[0].p_value, check.pvalue)
+    True
+    >>> [(pair.estimate.ci_low > 0 or pair.estimate.ci_high < 0) == pair.flagged for pair in pairs]
+    [True, True, True]
+    """
+    from statmargin.stats.relative import brunner_munzel
+
+    def run(xa: Any, xb: Any, labels: tuple[str, str], level: float) -> Result:
+        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method)
+
+    return pairwise_of(run, _clean_groups(groups), adjust=adjust, alpha=alpha, confidence=confidence)
+
+
+def pairwise_of(run: Callable[[Any, Any, tuple[str, str], float], Result], items: Sequence[tuple[str, Any]], *,
+                adjust: AdjustMethod | str, alpha: float, confidence: float) -> list[Followup]:
+    """Pairwise Brunner-Munzel follow-ups from ``run(a, b, labels, confidence)`` on each pair of ``items``.
+
+    Each pair is tested once at ``confidence`` for its p, then again at the level matched
+    to the adjustment for its interval.
+    """
+    confidence = check_confidence(confidence)
+    tested = []
+    for (a, xa), (b, xb) in _pairs(list(items)):
+        tested.append((a, b, xa, xb, run(xa, xb, (a, b), confidence)))
+    raw = [r.p_value for *_, r in tested]
+    levels = _levels(raw, adjust, alpha, confidence)
+    rows, intervals = [], []
+    for (a, b, xa, xb, result), level in zip(tested, levels, strict=True):
+        at_level = run(xa, xb, (a, b), 1.0 - (level or 0.0))
+        assert at_level.estimate is not None
+        rows.append((a, b, float(at_level.estimate.value or 0.0), float(result.statistic or 0.0), result.p_value))
+        intervals.append((float(at_level.estimate.ci_low or 0.0), float(at_level.estimate.ci_high or 0.0)))
+    return _adjusted_followups(Test.PAIRWISE_BRUNNER_MUNZEL, EstimateKind.LOCATION_SHIFT, rows, adjust, alpha,
+                               intervals)
 
 
 def adjusted_residuals(

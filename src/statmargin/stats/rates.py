@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 from scipy import optimize, stats
@@ -21,7 +21,7 @@ from statsmodels.stats import rates as sm_rates
 from statmargin.errors import NotEnoughDataError, OptionError
 from statmargin.results import Effect, Estimate, Followup, Result
 from statmargin.stats import _common as common
-from statmargin.stats.adjust import adjust_p
+from statmargin.stats.adjust import adjust_p, matched_levels
 from statmargin.stats.aggregated import (
     Dispersion,
     Pooled,
@@ -840,7 +840,9 @@ def pairwise_rate_ratios(
     per : float
         Accepted so a call mirrors :func:`rate_homogeneity`; ratios have no unit.
     confidence : float
-        Level of each pair's interval (not adjusted for the number of pairs).
+        Level of each pair's interval with ``adjust="none"``; otherwise each pair's
+        level is matched to its adjusted p (``adjust.matched_levels``), so an
+        interval leaves out 1 exactly when the adjusted p is below ``alpha``.
     adjust : {"holm", "benjamini-hochberg", "none"}
         Adjustment of the pairs' p-values.
     alpha : float
@@ -897,7 +899,18 @@ def pairwise_rate_ratios(
             compared = compare_rates(x1, t1, x2, t2, confidence=confidence, method=method,
                                      dispersion=phi, df=float(dispersion.df))
             rows.append((pooled.labels[later], pooled.labels[earlier], compared))
-    adjusted = adjust_p([c.p_value for _, _, c in rows], adjust)
+    raw = [c.p_value for _, _, c in rows]
+    adjusted = adjust_p(raw, adjust)
+    if AdjustMethod(adjust) is not AdjustMethod.NONE:
+        # Each pair's interval at the level its adjusted p is judged at, so the two agree.
+        levels = matched_levels(raw, adjust, alpha)
+        rows = [
+            (a, b, replace(c, ratio_ci=compare_rates(*_pair_counts(pooled, a, b), confidence=1.0 - level,
+                                                     method=method, dispersion=phi,
+                                                     df=float(dispersion.df)).ratio_ci))
+            if level is not None else (a, b, c)
+            for (a, b, c), level in zip(rows, levels, strict=True)
+        ]
     return [
         Followup(
             test=Test.PAIRWISE_RATE_RATIO,
@@ -910,6 +923,11 @@ def pairwise_rate_ratios(
         )
         for (a, b, c), p_adj in zip(rows, adjusted, strict=True)
     ]
+
+
+def _pair_counts(pooled: Pooled, a: str, b: str) -> tuple[int, float, int, float]:
+    i, j = pooled.labels.index(a), pooled.labels.index(b)
+    return int(pooled.events[i]), float(pooled.totals[i]), int(pooled.events[j]), float(pooled.totals[j])
 
 
 def rows_dispersion(groups: Mapping[str, tuple[Any, Any]], *, seed: int = DEFAULT_SEED) -> Dispersion:

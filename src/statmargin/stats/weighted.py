@@ -34,11 +34,6 @@ from statmargin.stats.weighted_select import (
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
 
-# Up to this many records the Kruskal-Wallis bootstrap repeats the rows and draws exactly
-# what the unweighted method draws; above it, it resamples counts per distinct value.
-BOOTSTRAP_REPEAT_LIMIT = 5000
-_CELLS_PER_CHUNK = 2_000_000
-
 Weighted = tuple[Any, Any]  # (values, counts) of one group
 
 
@@ -574,18 +569,15 @@ def welch_anova(groups: Mapping[str, Weighted], *, alternative: str = "two-sided
     for summary in summaries:
         if summary["sd"] == 0.0:
             raise NotEnoughDataError(coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"]))
-    k = len(summaries)
     f, df1, df2 = multigroup.welch_statistic(summaries)
-    between, within, _ = sums_of_squares(cleaned)
     n_total = int(sum(summary["n"] for summary in summaries))
-    effect, omega = multigroup._share_of_variance(between, within, k, n_total, confidence)
-    notes.append(coded(Note.WELCH_EFFECT_CLASSIC))
+    effect = multigroup._weighted_share(f * df1, df1, df2, n_total, confidence)
     return _with_rows(Result(
         outcome="", exposure=None, design=Design.MULTI_GROUP_CONTINUOUS, test=Test.WELCH_ANOVA,
         statistic_name="F", statistic=f, df=[df1, df2], p_value=float(stats.f.sf(f, df1, df2)),
         p_method=PMethod.ASYMPTOTIC, alternative="two-sided", confidence=confidence, n=n_total,
         estimate=multigroup._largest_gap(summaries, "mean", EstimateKind.LARGEST_MEAN_GAP), effect=effect,
-        groups=summaries, notes=notes, extra=omega,
+        groups=summaries, notes=notes,
     ), dropped, no_count)
 
 
@@ -618,11 +610,9 @@ def kruskal_wallis(groups: Mapping[str, Weighted], *, alternative: str = "two-si
 
     Notes
     -----
-    H, its p-value, the estimate and the group summaries equal the repeated data's.
-    The bootstrap interval of epsilon-squared draws exactly the unweighted method's
-    resamples up to ``BOOTSTRAP_REPEAT_LIMIT`` records (the rows are repeated for it:
-    that many records cost little); above it, each resample draws multinomial counts
-    per distinct value (the same resampling distribution, other draws), with a note.
+    H, its p-value, the estimate and the group summaries equal the repeated data's;
+    epsilon-squared and its interval come from H alone (``multigroup._epsilon_squared``),
+    so they equal the repeated data's too, in memory linear in the distinct values.
     """
     cleaned, dropped, no_count, notes = _groups(groups, alternative, confidence)
     plain = _delegate_groups(cleaned)
@@ -636,57 +626,17 @@ def kruskal_wallis(groups: Mapping[str, Weighted], *, alternative: str = "two-si
     df = len(parts) - 1
     if min(sizes) < 5:
         common.caveat(notes, coded(Note.KRUSKAL_SMALL_GROUPS, limit=Count(KRUSKAL_SMALL_GROUP)))
-    if n_total <= BOOTSTRAP_REPEAT_LIMIT:
-        low, high = multigroup._epsilon_bootstrap([np.repeat(v, c) for v, c in parts], n_total, confidence)
-    else:
-        low, high = _epsilon_bootstrap_counts(parts, n_total, confidence)
-        notes.append(coded(Note.WEIGHTED_BOOTSTRAP, resamples=multigroup.BOOTSTRAP_RESAMPLES))
+    value, low, high = multigroup._epsilon_squared(h, len(parts), n_total, confidence)
     summaries = [weighted_describe(label, v, c) for label, (v, c) in cleaned.items()]
     return _with_rows(Result(
         outcome="", exposure=None, design=Design.MULTI_GROUP_CONTINUOUS, test=Test.KRUSKAL_WALLIS,
         statistic_name="H", statistic=h, df=float(df), p_value=float(stats.chi2.sf(h, df)),
         p_method=PMethod.ASYMPTOTIC, alternative="two-sided", confidence=confidence, n=int(n_total),
         estimate=multigroup._largest_gap(summaries, "median", EstimateKind.LARGEST_MEDIAN_GAP),
-        effect=Effect(EffectKind.EPSILON_SQUARED, float(effects.epsilon_squared(h, n_total)), low, high),
+        effect=Effect(EffectKind.EPSILON_SQUARED, value, low, high),
         groups=summaries, notes=notes,
-        extra={"bootstrap_resamples": multigroup.BOOTSTRAP_RESAMPLES, "bootstrap_seed": multigroup.BOOTSTRAP_SEED},
+        extra={"epsilon_squared_plugin": float(effects.epsilon_squared(h, n_total))},
     ), dropped, no_count)
-
-
-def _epsilon_bootstrap_counts(
-    parts: list[tuple[np.ndarray, np.ndarray]], n_total: int, confidence: float
-) -> tuple[float, float]:
-    """Percentile bootstrap of epsilon-squared resampling counts of distinct values within groups.
-
-    Each resample draws, per group, multinomial counts over the group's distinct
-    values with probabilities count / group size: the within-group resampling of
-    ``multigroup._epsilon_bootstrap``, in memory linear in the distinct values.
-    """
-    rng = np.random.default_rng(multigroup.BOOTSTRAP_SEED)
-    grid = np.unique(np.concatenate([v for v, _ in parts]))
-    positions = []
-    for v, c in parts:
-        u, w = collapse(v, c)
-        positions.append((np.searchsorted(grid, u), w / w.sum(), int(w.sum())))
-    resamples = multigroup.BOOTSTRAP_RESAMPLES
-    chunk = max(1, _CELLS_PER_CHUNK // (grid.size * len(parts)))
-    draws = np.empty(resamples)
-    for start in range(0, resamples, chunk):
-        size = min(chunk, resamples - start)
-        per_group = []
-        for where, probabilities, n in positions:
-            counts = np.zeros((size, grid.size))
-            counts[:, where] = rng.multinomial(n, probabilities, size=size)
-            per_group.append(counts)
-        combined = np.sum(per_group, axis=0)
-        ranks = np.cumsum(combined, axis=1) - (combined - 1.0) / 2.0
-        rank_term = sum((counts * ranks).sum(axis=1) ** 2 / n for counts, (_, _, n) in zip(per_group, positions,
-                                                                                          strict=True))
-        tie_sum = (combined**3 - combined).sum(axis=1)
-        draws[start : start + size] = multigroup._tie_corrected_h(rank_term, tie_sum, n_total) / (n_total - 1.0)
-    tail = (1.0 - confidence) / 2.0
-    low, high = np.quantile(draws, [tail, 1.0 - tail])
-    return float(low), float(high)
 
 
 # --------------------------------------------------------------------------- correlation

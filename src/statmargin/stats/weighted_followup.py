@@ -21,7 +21,6 @@ from statmargin.stats import _common as common
 from statmargin.stats import followup, twogroup
 from statmargin.stats.weighted import (
     Weighted,
-    _rank_sum_interval,
     clean_weighted,
     midranks,
     weighted_mean,
@@ -113,14 +112,8 @@ def dunn(groups: Mapping[str, Weighted], *, adjust: AdjustMethod | str = "holm",
         mean_ranks.append((label, math.fsum(c * ranks[start : start + v.size]) / n, n))
         start += v.size
     by_label = {label: (v, c) for label, v, c in items}
-
-    def shift(a: str, b: str) -> float:
-        return median_pairwise_difference_weighted(*by_label[a], *by_label[b])
-
-    def interval(a: str, b: str) -> tuple[float, float]:
-        return _rank_sum_interval(*by_label[a], *by_label[b], "two-sided", confidence, True)
-
-    return followup.dunn_of_mean_ranks(mean_ranks, ties, shift, interval, adjust=adjust, alpha=alpha)
+    return followup.dunn_of_mean_ranks(mean_ranks, ties, by_label, adjust=adjust, alpha=alpha,
+                                       confidence=confidence)
 
 
 def pairwise_mann_whitney(groups: Mapping[str, Weighted], *, adjust: AdjustMethod | str = "holm",

@@ -1,12 +1,17 @@
 """Shape and spread checks of counted rows (a count column): the checks of the repeated records.
 
+The one judgement per analysis that chooses the test (``judge_shape_weighted``,
+``judge_spread_weighted``) equals ``shape.judge_shape`` and ``shape.judge_spread``
+of the repeated records, including the seeded subsample Shapiro-Wilk reads
+above 5000 records (the same records are picked, found from cumulative counts).
+
 A row with count c stands for c identical records, so the shape checks that
 choose a test see what they would see on the records listed one per row: the
 same summaries (n, mean, SD, quartiles, G1, G2, Tukey outliers), the same
-verdict of ``shape.SHAPE_RULES`` and the same Brown-Forsythe check of spread.
-Up to 50 records (the Shapiro-Wilk band, which needs the records themselves)
-the rows are repeated; above that every number is computed from the rows and
-their counts in memory linear in the rows.
+verdict and the same Brown-Forsythe check of spread. Up to 50 records the rows
+are repeated; above that every number is computed from the rows and their
+counts in memory linear in the rows (Shapiro-Wilk reads at most 5000 records,
+repeated from the rows).
 """
 
 from __future__ import annotations
@@ -20,19 +25,32 @@ from scipy import stats
 
 from statmargin.stats.shape import (
     OUTLIER_FENCE,
-    SHAPE_RULES,
+    SHAPE_ALPHA,
+    SHAPIRO_LIMIT,
+    SPREAD_ALPHA,
+    SPREAD_RATIO_LIMIT,
+    SUBSAMPLE_SEED,
+    GroupShape,
     GroupSummary,
     ShapeAssessment,
+    ShapeJudgement,
     SpreadCheck,
+    SpreadJudgement,
     combine,
+    combine_shapes,
+    group_shape,
     judge,
+    shapiro,
+    spread_verdict,
     summarize,
     with_direction,
 )
 from statmargin.stats.weighted import weighted_mean, weighted_median
+from statmargin.stats.weighted_select import collapse
 
-# The most records whose shape check reads the records themselves (Shapiro-Wilk band).
-REPEAT_UP_TO = int(next(high for _, high, check in SHAPE_RULES if check == "shapiro_wilk"))
+# Up to this many records the summaries are those of the repeated records themselves (cheap,
+# and exact by construction); above it they come from the rows and their counts.
+REPEAT_UP_TO = 50
 
 Counted = tuple[Any, Any]  # (values, counts) of one group
 
@@ -121,7 +139,8 @@ def summarize_weighted(values: Any, counts: Any, label: str = "all") -> GroupSum
         min=float(x[0]), max=float(x[-1]), skewness=skew, excess_kurtosis=kurt,
         n_outliers=int(w[outside].sum()),
     )
-    return with_direction(judge(base, constant, None))
+    # Shapiro-Wilk above 5000 records reads the records at seeded positions in row order: the rows as given.
+    return with_direction(judge(base, constant, None if constant else group_shape_weighted(label, values, counts)))
 
 
 def _finite(value: float) -> float | None:
@@ -172,3 +191,86 @@ def spread_check_weighted(groups: Mapping[str, Counted]) -> SpreadCheck | None:
     if not (math.isfinite(f) and math.isfinite(p)):
         return None
     return SpreadCheck(float(f), (float(k - 1), float(total - k)), p)
+
+
+def _moments(x: np.ndarray, w: np.ndarray) -> tuple[float, float | None, float | None]:
+    """SD (n - 1), G1 and G2 of the repeated records (formulas of ``shape.adjusted_moments``)."""
+    n = int(w.sum())
+    mean = weighted_mean(x, w)
+    d = x - mean
+    m2 = math.fsum(w * d**2) / n
+    sd = math.sqrt(m2 * n / (n - 1))
+    if m2 == 0.0:
+        return sd, None, None
+    m3 = math.fsum(w * d**3) / n
+    m4 = math.fsum(w * d**4) / n
+    skew = _finite(math.sqrt(n * (n - 1.0)) / (n - 2.0) * m3 / m2**1.5)
+    kurt = _finite((n - 1.0) / ((n - 2.0) * (n - 3.0)) * ((n + 1.0) * m4 / (m2 * m2) - 3.0 * (n - 1.0)))
+    return sd, skew, kurt
+
+
+def group_shape_weighted(label: str, values: Any, counts: Any) -> GroupShape:
+    """``shape.group_shape`` of the repeated records of one group.
+
+    Up to ``SHAPIRO_LIMIT`` records the records are repeated (Shapiro-Wilk reads them
+    all); above it the moments come from the rows and their counts, and Shapiro-Wilk
+    reads the records at the positions ``shape.group_shape`` would draw from the
+    records listed in row order, so the judgement is the same.
+
+    Examples
+    --------
+    >>> rng = np.random.default_rng(3)
+    >>> x, c = rng.lognormal(size=3000), rng.integers(1, 4, size=3000)
+    >>> a, b = group_shape_weighted("a", x, c), group_shape("a", np.repeat(x, c))
+    >>> a.n == b.n, math.isclose(a.shapiro_p, b.shapiro_p), math.isclose(a.skewness, b.skewness)
+    (True, True, True)
+    """
+    v = np.asarray(values, dtype=float).ravel()
+    w = np.asarray(counts, dtype=float).ravel()
+    keep = np.isfinite(v) & np.isfinite(w) & (w > 0)
+    v, w = v[keep], w[keep].astype(np.int64)
+    n = int(w.sum())
+    if n <= SHAPIRO_LIMIT:
+        return group_shape(label, np.repeat(v, w))
+    sd, skew, kurt = _moments(v, w)
+    if not sd:
+        return GroupShape(label, n, sd, None, None, None, 0)
+    picked = np.random.default_rng(SUBSAMPLE_SEED).choice(n, SHAPIRO_LIMIT, replace=False)
+    rows = np.searchsorted(np.cumsum(w), picked, side="right")
+    w_statistic, p = shapiro(v[rows])
+    ux, uw = collapse(v, w)  # distinct values with their records
+    at_low, at_high = int(uw[0]), int(uw[-1])
+    piled = (at_low if at_low >= 2 else 0) + (at_high if at_high >= 2 else 0)
+    q1, q2, q7 = quantiles(ux, uw, [0.125, 0.5, 0.875])
+    octile = None if q7 == q1 else _finite(float((q7 + q1 - 2 * q2) / (q7 - q1)))
+    return GroupShape(label, n, sd, skew, kurt, p, piled, octile, w_statistic)
+
+
+def judge_shape_weighted(groups: Mapping[str, Counted], *, alpha: float = SHAPE_ALPHA) -> ShapeJudgement:
+    """``shape.judge_shape`` of the repeated records of each group ``{label: (values, counts)}``.
+
+    Examples
+    --------
+    >>> from statmargin.stats.shape import judge_shape
+    >>> rng = np.random.default_rng(4)
+    >>> groups = {g: (rng.gamma(2.0, size=30), rng.integers(1, 5, size=30)) for g in ("a", "b")}
+    >>> a = judge_shape_weighted(groups)
+    >>> b = judge_shape({g: np.repeat(v, c) for g, (v, c) in groups.items()})
+    >>> a.direction == b.direction, math.isclose(a.p_value, b.p_value)
+    (True, True)
+    """
+    return combine_shapes([group_shape_weighted(str(label), v, c) for label, (v, c) in groups.items()], alpha)
+
+
+def judge_spread_weighted(groups: Mapping[str, Counted], *, ratio_limit: float = SPREAD_RATIO_LIMIT,
+                          alpha: float = SPREAD_ALPHA) -> SpreadJudgement:
+    """``shape.judge_spread`` of the repeated records of each group ``{label: (values, counts)}``."""
+    sds: dict[str, float] = {}
+    kept: dict[str, Counted] = {}
+    for label, (values, counts) in groups.items():
+        x, w = _rows(values, counts)
+        if int(w.sum()) >= 2:
+            sds[str(label)] = _moments(x, w)[0]
+            kept[str(label)] = (x, w)
+    check = spread_check_weighted(kept) if len(sds) >= 2 else None
+    return spread_verdict(sds, check, ratio_limit, alpha)

@@ -6,7 +6,7 @@ and the identifiers written to JSON; display text is made from them in
 """
 
 from .columns import MeasureType, Role, ShapeHandling
-from .designs import FOLLOWUP_TESTS, Design, PMethod, Test
+from .designs import FOLLOWUP_TESTS, MATCHED_INTERVAL_TESTS, Design, PMethod, Test
 from .effects import EffectKind, EstimateKind
 from .notes import NoteKind
 from .periods import (
@@ -19,9 +19,11 @@ from .periods import (
     SinceLastRun,
 )
 from .run import AdjustFamily, AdjustMethod, Alternative, RowsToUse, YesNo
+from .shape import ShapeCriterion, ShapeDirection, SpreadCriterion
 
 __all__ = [
     "FOLLOWUP_TESTS",
+    "MATCHED_INTERVAL_TESTS",
     "SINCE_LAST_RUN_ORDER",
     "AdjustFamily",
     "AdjustMethod",
@@ -39,8 +41,11 @@ __all__ = [
     "Precision",
     "Role",
     "RowsToUse",
+    "ShapeCriterion",
+    "ShapeDirection",
     "ShapeHandling",
     "SinceLastRun",
+    "SpreadCriterion",
     "Test",
     "YesNo",
 ]

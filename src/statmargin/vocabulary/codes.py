@@ -153,6 +153,11 @@ class Note(Word):
     SHARES_OVERDISPERSED = "shares_overdispersed"  # dispersion, rows (not records), p
     RATE_NO_EVENTS_GROUP = "rate_no_events_group"  # label
     WEIGHTED_BOOTSTRAP = "weighted_bootstrap"  # resamples
+    PERMUTATION_P = "permutation_p"  # draws, smallest, below
+    SIGN_TIES_DROPPED = "sign_ties_dropped"  # n, value
+    MEDIAN_INTERVAL_OPEN = "median_interval_open"  # n, confidence
+    INTERVAL_DISAGREES_WITH_P = "interval_disagrees_with_p"  # low, high, p, alpha, excludes_zero
+    SHAPE_DEPARTS_ASSUMED_NORMAL = "shape_departs_assumed_normal"  # the facts of a shape reason
 
 
 class Reason(Word):
@@ -193,6 +198,20 @@ class Reason(Word):
     SUGGEST_EVENTS_OUT_OF = "suggest_events_out_of"  # events, total, rows
     SUGGEST_EVENTS_PER = "suggest_events_per"  # events, per, rows, whole: bool
     SUGGEST_COUNT = "suggest_count"  # count, categories
+    # designs.rules: facts of every shape reason are design, outcome, by, direction, p,
+    # skewness, excess_kurtosis, n_smallest, n_needed, groups (+ sd_ratio, largest,
+    # smallest, spread_p for group designs)
+    SHAPE_NO_CLEAR_DEPARTURE = "shape_no_clear_departure"
+    SHAPE_DEPARTS_LARGE_N = "shape_departs_large_n"  # mean-based despite the departure
+    SHAPE_DEPARTS_SMALL_N = "shape_departs_small_n"  # rank-based
+    SHAPE_TOO_FEW = "shape_too_few"  # no group of 3 or more values
+    ASYMMETRIC_TARGET_SIGN_TEST = "asymmetric_target_sign_test"  # one sample: the median, sign test
+    NO_SPREAD_SIGN_TEST = "no_spread_sign_test"  # + value, target
+    SPREADS_DIFFER_BRUNNER_MUNZEL = "spreads_differ_brunner_munzel"
+    SPREADS_DIFFER_SMALL_WELCH = "spreads_differ_small_welch"
+    SPREADS_DIFFER_RANK_ANOVA_TYPE = "spreads_differ_rank_anova_type"
+    GROUP_WITHOUT_SPREAD_RANK = "group_without_spread_rank"
+    NON_NORMAL_SPEARMAN = "non_normal_spearman"
 
 
 class Caution(Word):

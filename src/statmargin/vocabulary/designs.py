@@ -60,11 +60,16 @@ class Test(Word):
     RATE_HOMOGENEITY = "rate_homogeneity"  # 3+ rates: chi-square test of homogeneity
     QUASI_POISSON = "quasi_poisson"  # rates when rows vary more than Poisson sampling allows
     QUASI_BINOMIAL = "quasi_binomial"  # shares when rows vary more than binomial sampling allows
+    BRUNNER_MUNZEL = "brunner_munzel"  # two groups, probability of superiority (Brunner & Munzel 2000)
+    SIGN_TEST = "sign_test"  # one sample or paired: the median against a value (exact binomial)
+    RANK_ANOVA_TYPE = "rank_anova_type"  # 3+ groups, relative effects (Brunner et al. 2017)
+    ALEXANDER_GOVERN = "alexander_govern"  # 3+ group means, unequal spreads (Alexander & Govern 1994)
     # follow-ups
     TUKEY_HSD = "tukey_hsd"
     GAMES_HOWELL = "games_howell"
     DUNN = "dunn"
     PAIRWISE_MANN_WHITNEY = "pairwise_mann_whitney"
+    PAIRWISE_BRUNNER_MUNZEL = "pairwise_brunner_munzel"
     ADJUSTED_RESIDUAL = "adjusted_residual"
     PAIRWISE_RATE_RATIO = "pairwise_rate_ratio"
 
@@ -77,7 +82,15 @@ FOLLOWUP_TESTS = frozenset(
         Test.PAIRWISE_MANN_WHITNEY,
         Test.ADJUSTED_RESIDUAL,
         Test.PAIRWISE_RATE_RATIO,
+        Test.PAIRWISE_BRUNNER_MUNZEL,
     }
+)
+
+
+# Follow-ups whose interval is at the level their adjusted p is judged at (stats.adjust.matched_levels),
+# so the interval leaves out "no difference" exactly when the adjusted p is below the level.
+MATCHED_INTERVAL_TESTS = frozenset(
+    {Test.DUNN, Test.PAIRWISE_MANN_WHITNEY, Test.PAIRWISE_BRUNNER_MUNZEL, Test.PAIRWISE_RATE_RATIO}
 )
 
 
@@ -89,3 +102,4 @@ class PMethod(Word):
     NORMAL_APPROXIMATION = "normal_approximation"
     NORMAL_APPROXIMATION_CONTINUITY = "normal_approximation_continuity"  # with continuity correction
     MONTE_CARLO = "monte_carlo"
+    PERMUTATION = "permutation"  # Monte Carlo draws from the permutation distribution (seeded)

@@ -35,12 +35,15 @@ class EstimateKind(Word):
     RATE_RATIO = "rate_ratio"  # levels (first, second): first / second (pairwise follow-ups)
     LARGEST_RATE_GAP = "largest_rate_gap"  # levels (highest, lowest), per ``per`` units; Bonferroni interval over the pairs
     LARGEST_SHARE_GAP = "largest_share_gap"  # level; levels (highest, lowest); Bonferroni interval over the pairs
+    MEDIAN = "median"  # one-sample median, reference: the stated value
+    PAIRED_MEDIAN_DIFFERENCE = "paired_median_difference"  # median of differences, levels (first, second)
 
 
 class EffectKind(Word):
     """A standardized effect size."""
 
     HEDGES_G = "hedges_g"
+    HEDGES_G_AV = "hedges_g_av"  # difference over the average of the two SDs (Welch's t)
     HEDGES_G_Z = "hedges_g_z"  # of paired differences
     RANK_BISERIAL = "rank_biserial"
     RANK_BISERIAL_PAIRED = "rank_biserial_paired"
@@ -56,3 +59,6 @@ class EffectKind(Word):
     ODDS_RATIO = "odds_ratio"  # conditional MLE, level and levels (row 1, row 2)
     DISCORDANT_ODDS_RATIO = "discordant_odds_ratio"  # b/c of McNemar's table
     RATE_RATIO = "rate_ratio"  # levels (first, second): first rate / second rate
+    ETA_SQUARED_WEIGHTED = "eta_squared_weighted"  # precision-weighted share (unequal spreads)
+    EPSILON_SQUARED_EQUAL_WEIGHTS = "epsilon_squared_equal_weights"  # from relative effects, groups weighted equally
+    SHARE_ABOVE = "share_above"  # sign test: share of values above the stated value (values equal to it left out)

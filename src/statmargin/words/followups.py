@@ -7,9 +7,16 @@ from typing import Any
 
 from ..plan.model import Settings
 from ..results import Followup, Result
-from ..vocabulary import Design, EstimateKind, Test
+from ..vocabulary import AdjustMethod, Design, EstimateKind, Test
 from . import context as ctx
-from .numbers import ci_label, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
+from .numbers import (
+    evidence_words,
+    fmt_ci,
+    fmt_number,
+    fmt_p,
+    followup_ci_label,
+    is_number,
+)
 
 FollowupReader = Callable[..., str]
 # Designs whose follow-ups are worded in their own module (``register_followup_reading``).
@@ -91,7 +98,8 @@ def followup_reading(
             )
         decimals = ctx.reading_decimals(context, parent.outcome, value, low, high)
         ci = fmt_ci(low, high, decimals)
-        ci_part = f" ({ci_label(parent.confidence)} {ci})" if ci else ""
+        label = followup_ci_label(followup.test, parent.confidence, settings.adjust != AdjustMethod.NONE)
+        ci_part = f" ({label} {ci})" if ci else ""
         # A Hodges-Lehmann shift is a typical difference, not a difference in means.
         typical = est.kind is EstimateKind.LOCATION_SHIFT
         suffix = f" {units}" if units else ""

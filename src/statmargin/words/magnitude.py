@@ -75,6 +75,7 @@ CONVENTIONS: dict[str, Convention] = {
 # probability of superiority has no convention here.
 CONVENTION_OF: dict[EffectKind, str] = {
     EffectKind.HEDGES_G: "d",
+    EffectKind.HEDGES_G_AV: "d",
     EffectKind.HEDGES_G_Z: "d",
     EffectKind.RANK_BISERIAL: "r",
     EffectKind.RANK_BISERIAL_PAIRED: "r",
@@ -86,6 +87,8 @@ CONVENTION_OF: dict[EffectKind, str] = {
     EffectKind.ETA_SQUARED: "eta_squared",
     EffectKind.OMEGA_SQUARED: "eta_squared",
     EffectKind.EPSILON_SQUARED: "eta_squared",
+    EffectKind.ETA_SQUARED_WEIGHTED: "eta_squared",
+    EffectKind.EPSILON_SQUARED_EQUAL_WEIGHTS: "eta_squared",
     EffectKind.ODDS_RATIO: "odds_ratio",
     EffectKind.DISCORDANT_ODDS_RATIO: "odds_ratio",
 }

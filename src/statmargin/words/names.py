@@ -21,10 +21,15 @@ _PAIR_NAMES: dict[EstimateKind, str] = {
     EstimateKind.PAIRED_PSEUDO_MEDIAN: "pseudo-median of differences",
     EstimateKind.LARGEST_MEAN_GAP: "largest difference between group means",
     EstimateKind.LARGEST_MEDIAN_GAP: "largest difference between group medians",
+    EstimateKind.PAIRED_MEDIAN_DIFFERENCE: "median difference",
 }
 
 _PLAIN_EFFECTS: dict[EffectKind, str] = {
     EffectKind.HEDGES_G: "Hedges' g",
+    EffectKind.HEDGES_G_AV: "Hedges' g (average SD)",
+    EffectKind.ETA_SQUARED_WEIGHTED: "eta-squared (precision-weighted)",
+    EffectKind.EPSILON_SQUARED_EQUAL_WEIGHTS: "epsilon-squared (groups weighted equally)",
+    EffectKind.SHARE_ABOVE: "share of values above the stated value",
     EffectKind.HEDGES_G_Z: "Hedges' g_z",
     EffectKind.RANK_BISERIAL: "rank-biserial r",
     EffectKind.RANK_BISERIAL_PAIRED: "rank-biserial r (matched pairs)",
@@ -60,6 +65,8 @@ def estimate_name(estimate: Estimate) -> str:
         return f"mean difference from {estimate.reference:.6g}"
     if kind is EstimateKind.PSEUDO_MEDIAN:
         return "pseudo-median"
+    if kind is EstimateKind.MEDIAN:
+        return "median" if estimate.reference is None else f"median (against {estimate.reference:.6g})"
     if kind is EstimateKind.SHARE:
         return f"share of '{estimate.level}'"
     if kind is EstimateKind.SHARE_FURTHEST:
@@ -114,6 +121,8 @@ def _rate_name(estimate: Estimate) -> str:
 
 def effect_name(effect: Effect) -> str:
     """The display name of an effect size, e.g. "Hedges' g" or "Cramer's V"."""
+    if effect.kind is EffectKind.PROBABILITY_OF_SUPERIORITY and len(effect.levels) >= 2:
+        return f"probability of superiority ({effect.levels[0]} over {effect.levels[1]})"
     if effect.kind is EffectKind.RATE_RATIO and len(effect.levels) >= 2:
         return f"rate ratio ({effect.levels[0]} / {effect.levels[1]})"
     if effect.kind is EffectKind.ODDS_RATIO and effect.level is not None and len(effect.levels) >= 2:

@@ -66,6 +66,20 @@ def ci_label(confidence: float) -> str:
     return f"{confidence * 100:g}% CI"
 
 
+def followup_ci_label(test: Any, confidence: float, adjusted: bool) -> str:
+    """'adjusted CI' for a follow-up whose interval is matched to its adjusted p, else '95% CI'.
+
+    Examples
+    --------
+    >>> from statmargin.vocabulary import Test
+    >>> followup_ci_label(Test.DUNN, 0.95, True), followup_ci_label(Test.TUKEY_HSD, 0.95, True)
+    ('adjusted CI', '95% CI')
+    """
+    from ..vocabulary import MATCHED_INTERVAL_TESTS
+
+    return "adjusted CI" if adjusted and test in MATCHED_INTERVAL_TESTS else ci_label(confidence)
+
+
 def evidence_words(p: float | None) -> str:
     """Words for the strength of evidence against 'no difference' at p-value ``p``."""
     if not is_number(p):

@@ -16,6 +16,7 @@ and evidence beside it. Wording for the designs' codes, their follow-ups
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -27,12 +28,13 @@ from ..vocabulary.codes import Reason, Skip
 from . import context as ctx
 from . import sentences
 from .cautions import register_lines
+from .choice import shape_numbers
 from .followups import register_followup_reading
 from .numbers import ci_label, decimals_for, evidence_words, fmt_number, fmt_p, is_number
 from .period_words import RULE_NAMES
 from .questions import against_text
 from .readings import Parts, _evidence, _family_tail, _verdict, p_used, register_parts
-from .sentences import Facts, capitalized, shape_phrase
+from .sentences import Facts, capitalized
 
 OVER_TIME = (Design.PERIOD_SHARES, Design.PERIOD_CENTRE)
 TIME_LINE = (
@@ -337,7 +339,27 @@ def _centre_reason(f: Facts) -> str:
         return f"{outcome} is ordinal, so each period is summarised by its median."
     if cause == "user":
         return f"The shape setting of {outcome} asks for it, so each period is summarised by its {centre}."
-    return capitalized(f"{shape_phrase(f)}, so each period is summarised by its {centre}.")
+    if not f.get("departs"):
+        if f.get("p") is None:
+            return capitalized(
+                f"{outcome} has too few values in its periods to judge their shape, so each period is "
+                f"summarised by its {centre}."
+            )
+        return capitalized(
+            f"{outcome} within periods shows no clear departure from a normal shape{shape_numbers(f)}, so each "
+            f"period is summarised by its {centre}."
+        )
+    n, needed = f["n_smallest"], math.ceil(f["n_needed"])
+    if centre == "mean":
+        return capitalized(
+            f"{outcome} within periods is {f['direction']}{shape_numbers(f)}, but with {n} values in the smallest "
+            f"period its mean is well approximated (about {needed} are enough for this shape), so each period is "
+            "summarised by its mean."
+        )
+    return capitalized(
+        f"{outcome} within periods is {f['direction']}{shape_numbers(f)}, and with {n} values in the smallest "
+        f"period (about {needed} would be needed) a mean would mislead, so each period is summarised by its median."
+    )
 
 
 def _comparisons_reason(f: Facts) -> str:

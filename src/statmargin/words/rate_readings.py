@@ -16,8 +16,16 @@ from typing import Any
 
 from ..plan.model import Settings
 from ..results import Followup, Result
-from ..vocabulary import Design, EstimateKind
-from .numbers import ci_label, decimals_for, evidence_words, fmt_ci, fmt_number, fmt_p, is_number
+from ..vocabulary import AdjustMethod, Design, EstimateKind
+from .numbers import (
+    decimals_for,
+    evidence_words,
+    fmt_ci,
+    fmt_number,
+    fmt_p,
+    followup_ci_label,
+    is_number,
+)
 from .questions import events_subject, named, rate_unit
 from .readings import (
     MAX_LISTED_GROUPS,
@@ -254,7 +262,8 @@ def pair_reading(followup: Followup, parent: Result, settings: Settings) -> str:
             ratio, low, high = (1.0 / ratio, 1.0 / high if is_number(high) and high > 0 else None,
                                 1.0 / low if is_number(low) and low > 0 else None)
         ci = fmt_ci(low, high, 2)
-        ci_part = f" ({ci_label(parent.confidence)} {ci})" if ci else ""
+        label = followup_ci_label(followup.test, parent.confidence, settings.adjust != AdjustMethod.NONE)
+        ci_part = f" ({label} {ci})" if ci else ""
         size = f"the rate in {first} was {fmt_number(ratio, 2)} times the rate in {second}{ci_part}; "
     p = followup.p_adjusted if is_number(followup.p_adjusted) else followup.p_value
     significant = is_number(p) and p < settings.alpha

@@ -45,7 +45,8 @@ SHARE_HIDDEN_READING = (
 )
 # Groups listed by name in a reading; more are summarised by their range.
 MAX_LISTED_GROUPS = 6
-RANK_TESTS = (Test.MANN_WHITNEY_U, Test.KRUSKAL_WALLIS, Test.WILCOXON_SIGNED_RANK, Test.SPEARMAN_RHO)
+RANK_TESTS = (Test.MANN_WHITNEY_U, Test.KRUSKAL_WALLIS, Test.WILCOXON_SIGNED_RANK, Test.SPEARMAN_RHO,
+              Test.BRUNNER_MUNZEL, Test.RANK_ANOVA_TYPE, Test.SIGN_TEST)
 
 
 @dataclass(frozen=True)
@@ -217,7 +218,8 @@ def _two_group_answer(result: Result, settings: Settings, context: Any, n_family
         first, second = second, first
         value, low, high = -value, (-high if is_number(high) else None), (-low if is_number(low) else None)
     ev = _evidence(result, settings, n_family)
-    typical = est.kind is EstimateKind.LOCATION_SHIFT or est.kind is EstimateKind.PAIRED_PSEUDO_MEDIAN
+    typical = est.kind in (EstimateKind.LOCATION_SHIFT, EstimateKind.PAIRED_PSEUDO_MEDIAN,
+                           EstimateKind.PAIRED_MEDIAN_DIFFERENCE)
     paired = result.design in PAIRED
     within = f" within the same {_pair_noun(result)}" if paired and not wide_pair(result) else (
         " on the same records" if paired else ""
@@ -468,7 +470,8 @@ def _one_value(result: Result, settings: Settings, context: Any, n_family: int |
     if est.kind is EstimateKind.MEAN_DIFFERENCE_FROM_VALUE:
         centre, low, high, word = mu + float(est.value), _shift(est.ci_low, mu), _shift(est.ci_high, mu), "Mean"
     else:
-        centre, low, high, word = float(est.value), est.ci_low, est.ci_high, "Typical"
+        word = "Median" if est.kind is EstimateKind.MEDIAN else "Typical"
+        centre, low, high = float(est.value), est.ci_low, est.ci_high
     decimals = ctx.reading_decimals(context, outcome, centre, low, high)
     interval = _interval(result, low, high, decimals)
     figures = f"{word} {outcome} was {_n(centre, decimals)}{units} ({interval}), against a stated {mu:g}{units}."

@@ -292,7 +292,7 @@ def _plain(value: Any) -> str:
 # ---------------------------------------------------------------- shape phrases
 
 
-def _sentence_start(text: str) -> str:
+def sentence_start(text: str) -> str:
     """Capitalize a leading lowercase article only; column names keep their own spelling."""
     for word in ("the ", "there "):
         if text.startswith(word):
@@ -350,6 +350,8 @@ def _followup_pairs(f: Facts) -> str:
     from .explain import TEST_NAMES
 
     what = TEST_NAMES[f["test"]]
+    if what.startswith("Pairwise "):
+        what = "p" + what[1:]
     if f.get("holm"):
         what = f"{what} with Holm adjustment"
     return (
@@ -380,8 +382,8 @@ REASON_TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], s
     Reason.USER_NORMAL: (
         "Shape handling for {outcome} is set to assume normal, so the shape checks were not used."
     ),
-    Reason.SHAPE_RANK: lambda f: _sentence_start(f"{shape_phrase(f)}, so a rank-based test was used."),
-    Reason.SHAPE_NORMAL: lambda f: _sentence_start(
+    Reason.SHAPE_RANK: lambda f: sentence_start(f"{shape_phrase(f)}, so a rank-based test was used."),
+    Reason.SHAPE_NORMAL: lambda f: sentence_start(
         f"{shape_phrase(f)}, so a test that assumes normal-shaped data was used."
     ),
     Reason.WELCH_DEFAULT: (
