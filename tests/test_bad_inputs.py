@@ -17,9 +17,9 @@ import xlsxwriter
 from click.testing import CliRunner
 
 from statmargin.cli import main
+from statmargin.io.addresses import column_letter
 from statmargin.io.file import sink as xlsxsink
 from statmargin.plan.roles_sheet import HEADERS, TABLE_HEADER_ROW
-from statmargin.read.table import column_letter
 from workbook_edit import make_newcomer_workbook, set_roles
 
 INPUT, LOCKED, WRITE = 2, 3, 4

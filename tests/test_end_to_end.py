@@ -22,10 +22,10 @@ from click.testing import CliRunner
 
 from libreoffice import convert, find_soffice, require_soffice
 from statmargin.cli import main
+from statmargin.io.addresses import column_letter
 from statmargin.io.file.source import FileSource
 from statmargin.io.file.zipio import read_zip
 from statmargin.plan.roles_sheet import HEADERS
-from statmargin.read.table import column_letter
 from workbook_edit import (
     BLANK_WAIT_CELL,
     DIRTY_WAIT_CELLS,

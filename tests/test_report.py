@@ -24,9 +24,10 @@ from result_builders import (
     tukey_trt2_vs_trt1,
 )
 from statmargin.designs.engine import run_answers
+from statmargin.io.addresses import column_index
 from statmargin.options import build_plan
 from statmargin.plan.model import Settings
-from statmargin.read.table import DataNote, NoteKind, Table, column_index
+from statmargin.read.table import DataNote, NoteKind, Table
 from statmargin.results import Estimate, Result
 from statmargin.sheets import report, shapes
 from statmargin.sheets import results as results_layout

@@ -3,6 +3,7 @@
 import pytest
 
 from statmargin.errors import RoleError
+from statmargin.io.addresses import column_letter
 from statmargin.plan.model import ColumnChoice, Plan, Settings
 from statmargin.plan.roles_sheet import (
     HEADERS,
@@ -11,7 +12,6 @@ from statmargin.plan.roles_sheet import (
     build_roles_sheet,
     parse_roles_sheet,
 )
-from statmargin.read.table import column_letter
 from statmargin.vocabulary import AdjustMethod, Alternative, MeasureType, Role, ShapeHandling
 
 FACTS = [

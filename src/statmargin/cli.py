@@ -39,10 +39,12 @@ def _set_debug(ctx: click.Context, _param: click.Parameter, value: bool) -> bool
     return value
 
 
-debug_option = click.option(
-    "--debug", is_flag=True, expose_value=False, is_eager=True, callback=_set_debug,
-    help=console.HELP["debug"],
-)
+def _option(flag: str, *names: str, **settings: Any) -> Callable[[Callable[..., Any]], Callable[..., Any]]:
+    """A click option whose help is ``console.HELP`` under the option's name (``--out-of``: ``out_of``)."""
+    return click.option(flag, *names, help=console.HELP[flag.removeprefix("--").replace("-", "_")], **settings)
+
+
+debug_option = _option("--debug", is_flag=True, expose_value=False, is_eager=True, callback=_set_debug)
 
 
 def handle_errors(fn: Callable[..., Any]) -> Callable[..., Any]:
@@ -108,64 +110,35 @@ def _sigterm_as_interrupt() -> Iterator[None]:
         signal.signal(signal.SIGTERM, previous)
 
 
-sheet_option = click.option(
-    "--sheet", metavar="NAME", default=None,
-    help=console.HELP["sheet"],
+sheet_option = _option("--sheet", metavar="NAME", default=None)
+treat_option = _option("--treat", metavar="COL=TYPE", multiple=True)
+shape_option = _option("--shape", type=click.Choice(["auto", "normal", "rank"]), default="auto", show_default=True)
+alternative_option = _option(
+    "--alternative", type=click.Choice(["two-sided", "greater", "less"]), default="two-sided", show_default=True
 )
-treat_option = click.option(
-    "--treat", metavar="COL=TYPE", multiple=True,
-    help=console.HELP["treat"],
+confidence_option = _option("--confidence", type=float, default=0.95, show_default=True)
+adjust_option = _option(
+    "--adjust", type=click.Choice(["holm", "benjamini-hochberg", "none"]), default="holm", show_default=True
 )
-shape_option = click.option(
-    "--shape", type=click.Choice(["auto", "normal", "rank"]), default="auto", show_default=True,
-    help=console.HELP["shape"],
+json_option = _option("--json", "json_path", metavar="PATH|-", default=None)
+outcome_option = _option("--outcome", metavar="COL", multiple=True)
+by_option = _option("--by", metavar="COL", multiple=True)
+against_option = _option("--against", metavar="[COL=]VALUE", multiple=True)
+event_option = _option("--event", metavar="[COL=]LEVEL", multiple=True)
+events_option = _option("--events", metavar="COL", multiple=True)
+out_of_option = _option("--out-of", metavar="[COL=]TOTALS", multiple=True)
+per_option = _option("--per", metavar="[COL=]TIME", multiple=True)
+per_unit_option = _option("--per-unit", metavar="UNIT", default=None)
+count_option = _option("--count", metavar="COL", default=None)
+period_option = _option("--period", metavar="COL", default=None)
+period_length_option = _option(
+    "--period-length", type=click.Choice(["week", "month", "quarter", "year"]), default=None
 )
-alternative_option = click.option(
-    "--alternative", type=click.Choice(["two-sided", "greater", "less"]), default="two-sided",
-    show_default=True, help=console.HELP["alternative"],
+adjust_across_option = _option(
+    "--adjust-across", type=click.Choice(["this run", "each outcome", "none"]), default=None
 )
-confidence_option = click.option(
-    "--confidence", type=float, default=0.95, show_default=True, help=console.HELP["confidence"],
-)
-adjust_option = click.option(
-    "--adjust", type=click.Choice(["holm", "benjamini-hochberg", "none"]), default="holm", show_default=True,
-    help=console.HELP["adjust"],
-)
-json_option = click.option(
-    "--json", "json_path", metavar="PATH|-", default=None,
-    help=console.HELP["json"],
-)
-outcome_option = click.option("--outcome", metavar="COL", multiple=True, help=console.HELP["outcome"])
-by_option = click.option("--by", metavar="COL", multiple=True, help=console.HELP["by"])
-against_option = click.option(
-    "--against", metavar="[COL=]VALUE", multiple=True,
-    help=console.HELP["against"],
-)
-event_option = click.option(
-    "--event", metavar="[COL=]LEVEL", multiple=True, help=console.HELP["event"],
-)
-events_option = click.option("--events", metavar="COL", multiple=True, help=console.HELP["events"])
-out_of_option = click.option("--out-of", metavar="[COL=]TOTALS", multiple=True, help=console.HELP["out_of"])
-per_option = click.option("--per", metavar="[COL=]TIME", multiple=True, help=console.HELP["per"])
-per_unit_option = click.option("--per-unit", metavar="UNIT", default=None, help=console.HELP["per_unit"])
-count_option = click.option("--count", metavar="COL", default=None, help=console.HELP["count"])
-period_option = click.option("--period", metavar="COL", default=None, help=console.HELP["period"])
-period_length_option = click.option(
-    "--period-length", type=click.Choice(["week", "month", "quarter", "year"]), default=None,
-    help=console.HELP["period_length"],
-)
-adjust_across_option = click.option(
-    "--adjust-across", type=click.Choice(["this run", "each outcome", "none"]), default=None,
-    help=console.HELP["adjust_across"],
-)
-pairing_key_option = click.option(
-    "--pairing-key", metavar="COL", default=None,
-    help=console.HELP["pairing_key"],
-)
-paired_with_option = click.option(
-    "--paired-with", metavar="[COL=]COL2", multiple=True,
-    help=console.HELP["paired_with"],
-)
+pairing_key_option = _option("--pairing-key", metavar="COL", default=None)
+paired_with_option = _option("--paired-with", metavar="[COL=]COL2", multiple=True)
 # Old spellings, kept for one release: test --paired-by, plan --pair.
 paired_by_alias = click.option(
     "--paired-by", metavar="COL", default=None, hidden=True, expose_value=False,
@@ -175,15 +148,20 @@ pair_alias = click.option(
     "--pair", metavar="COL=COL2", multiple=True, hidden=True, expose_value=False,
     callback=_old_spelling("--paired-with", "paired_with"),
 )
-out_option = click.option(
-    "--out", metavar="PATH", type=click.Path(path_type=Path, readable=False), default=None,
-    help=console.HELP["out"],
-)
-quiet_option = click.option("--quiet", is_flag=True, help=console.HELP["quiet"])
-share_option = click.option("--share", is_flag=True, help=console.HELP["share"])
-min_count_option = click.option(
-    "--min-count", type=click.IntRange(min=2), default=None, metavar="N", help=console.HELP["min_count"]
-)
+out_option = _option("--out", metavar="PATH", type=click.Path(path_type=Path, readable=False), default=None)
+quiet_option = _option("--quiet", is_flag=True)
+share_option = _option("--share", is_flag=True)
+min_count_option = _option("--min-count", type=click.IntRange(min=2), default=None, metavar="N")
+header_row_option = _option("--header-row", type=int, default=None, metavar="N")
+
+
+def event_to_period_options(command: Callable[..., Any]) -> Callable[..., Any]:
+    """The column options ``test`` and ``plan`` share, in their help order: event level, aggregated rows, period."""
+    for option in reversed(
+        (event_option, events_option, out_of_option, per_option, per_unit_option, count_option, period_option)
+    ):
+        command = option(command)
+    return command
 
 
 def check_json_target(path: str | None, *protect: Path | None) -> None:
@@ -215,6 +193,14 @@ def write_json(document: dict[str, Any], path: str, *, protect: Path | None = No
         target.write_text(text + "\n", encoding="utf-8")
     except OSError as err:
         raise errors.OptionError(console.json_not_written(path, str(err.strerror or err))) from None
+
+
+def _show(summary: Any, summary_text: Callable[[], str], json_path: str | None, workbook: Path) -> None:
+    """The summary on standard output unless the JSON goes there; the JSON wherever --json says."""
+    if json_path != "-":
+        click.echo(summary_text())
+    if json_path:
+        write_json(summary.to_record(), json_path, protect=workbook)
 
 
 def _progress(quiet: bool) -> contextlib.AbstractContextManager[Callable[..., None]]:
@@ -253,13 +239,7 @@ def main() -> None:
 @pairing_key_option
 @paired_by_alias
 @paired_with_option
-@event_option
-@events_option
-@out_of_option
-@per_option
-@per_unit_option
-@count_option
-@period_option
+@event_to_period_options
 @period_length_option
 @treat_option
 @shape_option
@@ -301,10 +281,7 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
             treat=treat, shape=shape, alternative=alternative, confidence=confidence, adjust=adjust,
             share=share, min_count=min_count, progress=progress,
         )
-    if json_path != "-":
-        click.echo(console.test_summary(summary.results, sheet=summary.sheet))
-    if json_path:
-        write_json(summary.to_record(), json_path, protect=workbook)
+    _show(summary, lambda: console.test_summary(summary.results, sheet=summary.sheet), json_path, workbook)
 
 
 # ---------------------------------------------------------------- plan, run, demo
@@ -313,20 +290,14 @@ def test_command(workbook: Path, sheet: str | None, outcome: tuple[str, ...], by
 @main.command("plan")
 @click.argument("workbook", type=click.Path(path_type=Path, readable=False))
 @sheet_option
-@click.option("--header-row", type=int, default=None, metavar="N", help=console.HELP["header_row"])
+@header_row_option
 @outcome_option
 @by_option
 @pairing_key_option
 @against_option
 @paired_with_option
 @pair_alias
-@event_option
-@events_option
-@out_of_option
-@per_option
-@per_unit_option
-@count_option
-@period_option
+@event_to_period_options
 @treat_option
 @out_option
 @json_option
@@ -354,10 +325,7 @@ def plan_command(workbook: Path, sheet: str | None, header_row: int | None, outc
             event=event, events=events, out_of=out_of, per=per, count=count, period=period, per_unit=per_unit,
             out=out, progress=progress,
         )
-    if json_path != "-":
-        click.echo(console.plan_summary(summary, workbook.name))
-    if json_path:
-        write_json(summary.to_record(), json_path, protect=workbook)
+    _show(summary, lambda: console.plan_summary(summary, workbook.name), json_path, workbook)
 
 
 @main.command("run")
@@ -393,10 +361,7 @@ def run_command(workbook: Path, out: Path | None, share: bool, min_count: int | 
     with warnings.catch_warnings(), _progress(quiet or json_path == "-") as progress:
         warnings.simplefilter("ignore")  # caveats are in each result's notes
         summary = run_workbook(workbook, out=out, share=share, min_count=min_count, progress=progress)
-    if json_path != "-":
-        click.echo(console.run_summary(summary))
-    if json_path:
-        write_json(summary.to_record(), json_path, protect=workbook)
+    _show(summary, lambda: console.run_summary(summary), json_path, workbook)
 
 
 def _run_folder(folder: Path, *, out: Path | None, share: bool, min_count: int | None, pattern: str,

@@ -49,6 +49,19 @@ def _clean(value: Any) -> Any:
     return value
 
 
+def _interval_record(item: Estimate | Effect) -> dict[str, Any]:
+    """The JSON record of an estimate or effect: kind, display name, value and its interval."""
+    return _clean(
+        {
+            "kind": item.kind.value,
+            "name": item.name,
+            "value": item.value,
+            "ci_low": item.ci_low,
+            "ci_high": item.ci_high,
+        }
+    )
+
+
 @dataclass(frozen=True)
 class Estimate:
     """A quantity in the outcome's own units (or a share, r, rho) with its confidence interval.
@@ -76,15 +89,7 @@ class Estimate:
         return estimate_name(self)
 
     def to_record(self) -> dict[str, Any]:
-        return _clean(
-            {
-                "kind": self.kind.value,
-                "name": self.name,
-                "value": self.value,
-                "ci_low": self.ci_low,
-                "ci_high": self.ci_high,
-            }
-        )
+        return _interval_record(self)
 
 
 @dataclass(frozen=True)
@@ -105,15 +110,7 @@ class Effect:
         return effect_name(self)
 
     def to_record(self) -> dict[str, Any]:
-        return _clean(
-            {
-                "kind": self.kind.value,
-                "name": self.name,
-                "value": self.value,
-                "ci_low": self.ci_low,
-                "ci_high": self.ci_high,
-            }
-        )
+        return _interval_record(self)
 
 
 @dataclass(frozen=True)

@@ -252,30 +252,16 @@ def analyze(
     >>> math.isclose(result.p_value, scipy_p)
     True
     """
-    from ..options import build_plan, make_settings, parse_col_values, parse_treat
+    from ..options import make_settings, plan_from_options
     from ..words.explain import apply as explain_results
 
     table = data if isinstance(data, Table) else _table_from(data)
-    outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
-    bys = [] if by is None else [by] if isinstance(by, str) else list(by)
-    event_columns = [events] if isinstance(events, str) else list(events)
     against_text = against if isinstance(against, (Mapping, type(None))) else str(against)
-    plan = build_plan(
-        outcomes,
-        bys,
-        against=parse_col_values(against_text, "--against", [*outcomes, *event_columns]),
-        pairing_key=pairing_key or paired_by,
-        paired_with=parse_col_values(paired_with, "--paired-with", outcomes),
-        treat=parse_treat(treat),
-        shape=shape,
-        settings=make_settings(alternative=alternative, confidence=confidence, adjust=adjust,
-                               family=adjust_across, grain=period_length, per_unit=per_unit,
-                               series_by_group=series_by_group),
-        event=parse_col_values(event, "--event", outcomes),
-        events=event_columns,
-        out_of=parse_col_values(out_of, "--out-of", event_columns),
-        per=parse_col_values(per, "--per", event_columns),
-        count=count,
+    settings = make_settings(alternative=alternative, confidence=confidence, adjust=adjust, family=adjust_across,
+                             grain=period_length, per_unit=per_unit, series_by_group=series_by_group)
+    plan = plan_from_options(
+        outcome, by, against=against_text, pairing_key=pairing_key or paired_by, paired_with=paired_with, treat=treat,
+        shape=shape, settings=settings, event=event, events=events, out_of=out_of, per=per, count=count,
         period=period,
     )
     results = run_plan(table, plan)

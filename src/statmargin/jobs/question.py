@@ -89,7 +89,7 @@ def test_workbook(
         The sheet read and the results, with readings and cautions.
     """
     from ..designs.engine import run_plan
-    from ..options import build_plan, make_settings, parse_col_values, parse_treat
+    from ..options import make_settings, plan_from_options
     from ..read.reader import read_table
     from ..sheets.share import DEFAULT_MIN_COUNT, suppress
     from ..words import console
@@ -98,26 +98,11 @@ def test_workbook(
     from ..words.explain import apply as explain_results
     from .workbook import used_columns
 
-    outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
-    bys = [by] if isinstance(by, str) else list(by)
-    event_columns = [events] if isinstance(events, str) else list(events)
     settings = make_settings(alternative=alternative, confidence=confidence, adjust=adjust,
                              family=adjust_across, grain=period_length, per_unit=per_unit)
-    plan = build_plan(
-        outcomes,
-        bys,
-        against=parse_col_values(against, "--against", [*outcomes, *event_columns]),
-        pairing_key=pairing_key,
-        paired_with=parse_col_values(paired_with, "--paired-with", outcomes),
-        treat=parse_treat(treat),
-        shape=shape,
-        settings=settings,
-        event=parse_col_values(event, "--event", outcomes),
-        events=event_columns,
-        out_of=parse_col_values(out_of, "--out-of", event_columns),
-        per=parse_col_values(per, "--per", event_columns),
-        count=count,
-        period=period,
+    plan = plan_from_options(
+        outcome, by, against=against, pairing_key=pairing_key, paired_with=paired_with, treat=treat, shape=shape,
+        settings=settings, event=event, events=events, out_of=out_of, per=per, count=count, period=period,
     )
     with warnings.catch_warnings():
         # Caveats are already in each result's notes; no Python warning lines.

@@ -6,7 +6,8 @@ here once; each refusal is a typed error with its one-line message from
 """
 
 from .against import parse_against
-from .columns import build_plan, parse_col_values, parse_treat
+from .columns import build_plan, parse_col_values, parse_treat, plan_from_options
 from .settings import make_settings
 
-__all__ = ["build_plan", "make_settings", "parse_against", "parse_col_values", "parse_treat"]
+__all__ = ["build_plan", "make_settings", "parse_against", "parse_col_values", "parse_treat",
+           "plan_from_options"]

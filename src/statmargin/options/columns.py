@@ -197,3 +197,58 @@ def build_plan(
     if unknown:
         raise OptionError(refusals.type_for_unnamed(unknown[0]))
     return Plan(columns=list(choices.values()), settings=settings or Settings())
+
+
+ColValues = Mapping[str, str] | Iterable[str] | str | None
+
+
+def plan_from_options(
+    outcome: str | Sequence[str] = (),
+    by: str | Sequence[str] | None = None,
+    *,
+    against: ColValues = None,
+    pairing_key: str | None = None,
+    paired_with: ColValues = None,
+    treat: Mapping[str, str] | Iterable[str] | None = None,
+    shape: str = "auto",
+    settings: Settings | None = None,
+    event: ColValues = None,
+    events: str | Sequence[str] = (),
+    out_of: ColValues = None,
+    per: ColValues = None,
+    count: str | None = None,
+    period: str | None = None,
+) -> Plan:
+    """The plan of a one-off question from options as users give them (``analyze``, ``statmargin test``).
+
+    A column option takes one name or several; ``against``, ``paired_with``,
+    ``event``, ``out_of`` and ``per`` take ``[COL=]VALUE`` text, items or a
+    mapping (:func:`parse_col_values`). A bare value applies to every outcome,
+    or every events column for ``out_of`` and ``per`` (``against``: both). The
+    checks are :func:`build_plan`'s.
+
+    Examples
+    --------
+    >>> plan = plan_from_options("Score", against="85")
+    >>> [(c.name, c.role.value, c.against) for c in plan.columns]
+    [('Score', 'outcome', '85')]
+    """
+    outcomes = [outcome] if isinstance(outcome, str) else list(outcome)
+    bys = [] if by is None else [by] if isinstance(by, str) else list(by)
+    event_columns = [events] if isinstance(events, str) else list(events)
+    return build_plan(
+        outcomes,
+        bys,
+        against=parse_col_values(against, "--against", [*outcomes, *event_columns]),
+        pairing_key=pairing_key,
+        paired_with=parse_col_values(paired_with, "--paired-with", outcomes),
+        treat=parse_treat(treat),
+        shape=shape,
+        settings=settings,
+        event=parse_col_values(event, "--event", outcomes),
+        events=event_columns,
+        out_of=parse_col_values(out_of, "--out-of", event_columns),
+        per=parse_col_values(per, "--per", event_columns),
+        count=count,
+        period=period,
+    )

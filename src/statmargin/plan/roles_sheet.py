@@ -20,7 +20,7 @@ from enum import Enum
 from typing import Any
 
 from ..errors import RoleError
-from ..read.table import column_letter
+from ..io.addresses import column_letter
 from ..sheets.model import SheetModel, Validation
 from ..vocabulary import (
     AdjustFamily,

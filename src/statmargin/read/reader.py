@@ -55,12 +55,13 @@ import numpy as np
 
 from .. import stages
 from ..errors import ColumnNotFoundError, NotEnoughDataError, OptionError, WorkbookError
+from ..io.addresses import column_letter
 from ..io.protocol import ERROR_ISSUE, CellIssues, TableRange, WorkbookSource
 from ..vocabulary import RowsToUse
 from ..words import notes_words, read_messages
 from ..words.file_messages import damaged_part_way
 from ..words.workbook_messages import no_workbook_given
-from .table import Column, DataNote, NoteKind, Table, column_letter
+from .table import Column, DataNote, NoteKind, Table
 
 NOTE_CAP = 1000  # notes kept per (column, kind); the rest are summarised in one note
 BATCH_ROWS = 8192  # rows handled together; large enough to amortise per-batch work

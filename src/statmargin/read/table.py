@@ -15,6 +15,7 @@ from typing import Any
 
 import numpy as np
 
+from ..io.addresses import column_letter
 from ..vocabulary import NoteKind
 
 
@@ -106,24 +107,6 @@ class Table:
             )
         rows = np.arange(2, len(frame) + 2, dtype=np.int64)
         return cls(sheet=sheet, header_row=1, rows=rows, columns=columns, n_rows_read=len(frame))
-
-
-def column_letter(index: int) -> str:
-    """Spreadsheet column letter for a 0-based column index (0 -> A, 26 -> AA)."""
-    letters = ""
-    index += 1
-    while index:
-        index, rem = divmod(index - 1, 26)
-        letters = chr(65 + rem) + letters
-    return letters
-
-
-def column_index(letter: str) -> int:
-    """0-based column index for a spreadsheet column letter (A -> 0, AA -> 26)."""
-    index = 0
-    for ch in letter.upper():
-        index = index * 26 + (ord(ch) - 64)
-    return index - 1
 
 
 def _dates_column(series: Any, name: str, letter: str) -> Column:

@@ -11,8 +11,9 @@ from typing import Any, TypeGuard
 import numpy as np
 
 from .._version import __version__
+from ..io.addresses import column_letter
 from ..plan.model import Settings
-from ..read.table import Table, column_letter
+from ..read.table import Table
 from ..results import Result
 from ..vocabulary.codes import Hidden
 from .model import SheetModel

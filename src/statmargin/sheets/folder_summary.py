@@ -9,7 +9,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Any
 
-from ..read.table import column_letter
+from ..io.addresses import column_letter
 from ..results import Result
 from ..words import cautions, technical
 from ..words.period_words import RULE_NAMES, SINCE_LAST_RUN_WORDS, summary_title

@@ -9,7 +9,7 @@ from __future__ import annotations
 import re
 
 from ..errors import WriteError
-from ..read.table import column_letter
+from ..io.addresses import column_index, column_letter
 from ..words import sheet_messages
 from .looks import LOOKS
 from .model import SheetModel
@@ -40,10 +40,7 @@ def parse_cell_ref(ref: str) -> tuple[int, int]:
     match = _CELL_REF.match(ref.strip())
     if not match:
         raise WriteError(sheet_messages.not_a_cell(ref))
-    col = 0
-    for ch in match.group(1).upper():
-        col = col * 26 + ord(ch) - 64
-    return int(match.group(2)) - 1, col - 1
+    return int(match.group(2)) - 1, column_index(match.group(1))
 
 
 def quote_sheet(name: str) -> str:

@@ -4,7 +4,8 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from ..read.table import DataNote, column_letter
+from ..io.addresses import column_letter
+from ..read.table import DataNote
 from ..words import notes_words
 from ..words.context import count_text
 from .context import SHEET_NAMES, ReportContext, quote_sheet

@@ -19,7 +19,7 @@ import math
 from collections.abc import Sequence
 from typing import Any
 
-from ..read.table import column_letter
+from ..io.addresses import column_letter
 from ..results import PeriodPoint, Result
 from ..vocabulary import ChartKind, Design
 from ..vocabulary.codes import Hidden

@@ -22,7 +22,7 @@ from __future__ import annotations
 from collections.abc import Mapping, Sequence
 from typing import Any
 
-from ..read.table import column_letter
+from ..io.addresses import column_letter
 from ..results import Result
 from ..vocabulary import SINCE_LAST_RUN_ORDER, EstimateKind, SinceLastRun
 from ..words import explain, results_text

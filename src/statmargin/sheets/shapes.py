@@ -8,7 +8,7 @@ from typing import Any
 
 import numpy as np
 
-from ..read.table import column_letter
+from ..io.addresses import column_letter
 from ..results import Result
 from ..vocabulary import Design
 from ..words import context as words_context

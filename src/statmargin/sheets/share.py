@@ -55,7 +55,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import replace
 from typing import Any, overload
 
-from ..read.table import column_index
+from ..io.addresses import column_index
 from ..results import Result
 from ..vocabulary import Design, Test
 from ..vocabulary.codes import Coded, Count, Derived, Hidden, Note, coded

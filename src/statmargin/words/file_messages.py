@@ -13,11 +13,17 @@ import errno
 from collections.abc import Sequence
 
 LEFT_AS_IT_WAS = "the file was left as it was"
+ORIGINAL_LEFT_AS_IT_WAS = "the original file was left as it was"
 RESAVE = "open it in a spreadsheet program and save it again"
 
 
 def _left(text: str) -> str:
     return f"{text}; {LEFT_AS_IT_WAS}."
+
+
+def _original_left(text: str) -> str:
+    """A failed write: the new file is dropped and the user's own file is untouched."""
+    return f"{text}; {ORIGINAL_LEFT_AS_IT_WAS}."
 
 
 def _size(n_bytes: int) -> str:
@@ -421,7 +427,7 @@ def cannot_create_in(folder: str, exc: OSError) -> str:
 
 def write_failed(name: str, detail: str) -> str:
     """Writing, checking or moving the new file failed."""
-    return f"Writing {name} failed ({detail}); the original file was left as it was."
+    return _original_left(f"Writing {name} failed ({detail})")
 
 
 def write_failed_os(name: str, exc: OSError) -> str:
@@ -431,37 +437,37 @@ def write_failed_os(name: str, exc: OSError) -> str:
 
 def new_part_checksum(part: str) -> str:
     """Verification: a part of the new file fails its CRC."""
-    return f"The new file's part {part} fails its checksum; the original file was left as it was."
+    return _original_left(f"The new file's part {part} fails its checksum")
 
 
 def new_file_not_zip(detail: str) -> str:
     """Verification: the new file is not a zip."""
-    return f"The new file is not a valid zip ({detail}); the original file was left as it was."
+    return _original_left(f"The new file is not a valid zip ({detail})")
 
 
 def part_not_removed(part: str) -> str:
     """Verification: a part that should have gone is still there."""
-    return f"The part {part} should have been removed; the original file was left as it was."
+    return _original_left(f"The part {part} should have been removed")
 
 
 def part_changed(part: str) -> str:
     """Verification: a user's part is not byte-identical after copying."""
-    return f"The part {part} changed while copying; the original file was left as it was."
+    return _original_left(f"The part {part} changed while copying")
 
 
 def part_not_well_formed(part: str, detail: str) -> str:
     """Verification: an edited part does not parse."""
-    return f"The new part {part} is not well-formed XML ({detail}); the original file was left as it was."
+    return _original_left(f"The new part {part} is not well-formed XML ({detail})")
 
 
 def not_readable_back(detail: str) -> str:
     """Verification: the reading library cannot open the new file."""
-    return f"The new file could not be read back ({detail}); the original file was left as it was."
+    return _original_left(f"The new file could not be read back ({detail})")
 
 
 def sheets_mismatch(names: Sequence[str], expected: Sequence[str]) -> str:
     """Verification: the new file lists other sheets than planned."""
-    return f"The new file lists sheets {list(names)}, expected {list(expected)}; the original file was left as it was."
+    return _original_left(f"The new file lists sheets {list(names)}, expected {list(expected)}")
 
 
 def interrupted() -> str:

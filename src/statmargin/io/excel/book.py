@@ -285,19 +285,7 @@ class ExcelBook:
         return None
 
     def write_sheets(self, models: list[SheetModel], out: str | None = None) -> WriteReport:
-        """Put the models into the open workbook, replacing earlier tool sheets of the same kinds.
-
-        Parameters
-        ----------
-        models : list of SheetModel
-            Tool sheets to write, at most one per kind.
-        out : None
-            Must be None (see ``check``).
-
-        Returns
-        -------
-        WriteReport
-            Final sheet names by kind, renames and replaced sheets.
+        """See ``WorkbookSink.write_sheets``; here, into the open workbook (``out`` must be None).
 
         Raises
         ------

@@ -20,11 +20,11 @@ from collections.abc import Callable
 from typing import Any
 
 from ...errors import WriteError
-from ...read.table import column_letter
 from ...sheets.layout import parse_cell_ref, resolve_link, wrapped_row_heights
 from ...sheets.looks import INPUT_BORDER, LOOKS, RULE, SERIES_COLOURS, SLATE, number_format_code
 from ...sheets.model import Chart, SheetModel
 from ...words import excel_messages
+from ..addresses import column_letter
 from .cells import Rect, cell_grid, rectangles
 
 # Cells per call when values are written or read: large enough that a 100,000-row

@@ -22,6 +22,7 @@ from ...sheets.layout import resolve_link as resolve_link
 from ...sheets.layout import wrapped_row_heights as wrapped_row_heights
 from ...sheets.model import UNWRITABLE_TEXT, SheetModel, Validation
 from ...words import file_messages as messages
+from ..addresses import column_letter as column_letter  # kept importable from here
 
 MAIN_NS = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
 REL_NS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
@@ -66,16 +67,6 @@ def escape(text: str) -> str:
         .replace(">", "&gt;")
         .replace('"', "&quot;")
     )
-
-
-def column_letter(index: int) -> str:
-    """Column letters for a 0-based column index (0 -> A, 26 -> AA)."""
-    letters = ""
-    index += 1
-    while index:
-        index, rem = divmod(index - 1, 26)
-        letters = chr(65 + rem) + letters
-    return letters
 
 
 def _number_text(value: float) -> str:

@@ -122,19 +122,7 @@ class FileSink:
         return out
 
     def write_sheets(self, models: list[SheetModel], out: str | None = None) -> WriteReport:
-        """Put the models into the workbook (or a copy at ``out``), replacing earlier tool sheets.
-
-        Parameters
-        ----------
-        models : list of SheetModel
-            Tool sheets to write, at most one per kind.
-        out : str, optional
-            Write a copy here instead of updating the workbook in place.
-
-        Returns
-        -------
-        WriteReport
-            Final sheet names by kind, renames and replaced sheets.
+        """See ``WorkbookSink.write_sheets``; here, into the workbook file (or a copy at ``out``).
 
         Raises
         ------

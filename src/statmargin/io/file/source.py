@@ -30,8 +30,8 @@ from xml.sax.saxutils import unescape
 
 from ... import stages
 from ...errors import WorkbookError
-from ...read.table import column_index
 from ...words import file_messages as messages
+from ..addresses import column_index
 from ..protocol import ERROR_ISSUE as ERROR_ISSUE  # re-exported from the protocol
 from ..protocol import NO_VALUE_ISSUE as NO_VALUE_ISSUE
 from ..protocol import (
@@ -279,23 +279,7 @@ class FileSource:
         last_row: int | None = None,
         columns: Iterable[int] | None = None,
     ) -> CellIssues:
-        """Cells calamine reads as empty but that hold an error value or an uncalculated formula.
-
-        Parameters
-        ----------
-        sheet : str
-            Worksheet name.
-        first_row, last_row : int
-            1-based inclusive row bounds to report (``None``: no upper bound).
-        columns : iterable of int, optional
-            0-based column indexes to report; ``None`` means all.
-
-        Returns
-        -------
-        dict
-            ``(row, col) -> (kind, text)`` with row 1-based and col 0-based; kind is
-            ``"error"`` (text is the error code, e.g. ``"#N/A"``) or
-            ``"no cached value"`` (text is the formula, e.g. ``"=SUM(B2:B9)"``).
+        """See ``WorkbookSource.cell_issues``; here, the cells calamine reads as empty.
 
         Notes
         -----

@@ -410,9 +410,8 @@ def write_zip(entries: list[ZipEntry]) -> bytes:
         if max(offset, len(entry.raw), entry.size) >= _U32_MAX:
             raise WriteError(messages.too_large_to_write())
         version = 20
-        out += struct.pack(
-            "<IHHHHHIIIHH",
-            _LOCAL_SIG,
+        # Local and central headers share these fields in this order (PKWARE APPNOTE.TXT 4.3.7, 4.3.12).
+        shared = (
             version,
             flags,
             entry.method,
@@ -424,26 +423,12 @@ def write_zip(entries: list[ZipEntry]) -> bytes:
             len(name),
             len(entry.extra),
         )
+        out += struct.pack("<IHHHHHIIIHH", _LOCAL_SIG, *shared)
         out += name + entry.extra + entry.raw
+        made_by = (3 << 8) | version if entry.external_attr >> 16 else version
+        # Then: comment length, disk number, internal attributes, external attributes, offset.
         central += struct.pack(
-            "<IHHHHHHIIIHHHHHII",
-            _CENTRAL_SIG,
-            (3 << 8) | version if entry.external_attr >> 16 else version,
-            version,
-            flags,
-            entry.method,
-            entry.dos_time,
-            entry.dos_date,
-            entry.crc,
-            len(entry.raw),
-            entry.size,
-            len(name),
-            len(entry.extra),
-            0,
-            0,
-            0,
-            entry.external_attr,
-            offset,
+            "<IHHHHHHIIIHHHHHII", _CENTRAL_SIG, made_by, *shared, 0, 0, 0, entry.external_attr, offset
         )
         central += name + entry.extra
     if len(entries) >= _U16_MAX or len(out) + len(central) >= _U32_MAX:
