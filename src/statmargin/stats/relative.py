@@ -524,15 +524,14 @@ def _permutation_p_two_sample(t: float, draws: np.ndarray, alternative: str) -> 
     return permutation_p(observed, np.asarray(_tail_statistic(draws, alternative), dtype=float))
 
 
-def _shift_statistic(a_sorted: np.ndarray, ca: np.ndarray, b_records: common.SortedRecords, d: float) -> float:
-    """Brunner-Munzel t of ``a - d`` against ``b`` (``a`` sorted, rows standing for ``ca`` records), from placements."""
-    shifted = a_sorted - d
-    below_a = b_records.below(shifted)
-    below_b = common.SortedRecords(shifted, ca).below(b_records.values)
-    counts_b = np.diff(b_records.cumulative)
-    n1, n2 = float(ca.sum()), float(b_records.cumulative[-1])
-    mean_a, var_a = _counted_moments(below_a, ca)
-    _, var_b = _counted_moments(below_b, counts_b)
+def _shift_statistic(a_records: common.SortedRecords, b_records: common.SortedRecords, d: float) -> float:
+    """Brunner-Munzel t of ``a - d`` against ``b``, each as sorted distinct values with their record counts."""
+    shifted = a_records.shifted(d)
+    below_a = b_records.below(shifted.values)
+    below_b = shifted.below(b_records.values)
+    n1, n2 = float(a_records.cumulative[-1]), float(b_records.cumulative[-1])
+    mean_a, var_a = _counted_moments(below_a, a_records.weights)
+    _, var_b = _counted_moments(below_b, b_records.weights)
     ps = mean_a / n2
     variance = var_a / (n1 * n2 * n2) + var_b / (n2 * n1 * n1)
     if variance <= 0:
@@ -553,9 +552,10 @@ def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Criti
     ``wilcox.test`` intervals. The estimate is kept inside the interval even when ties
     make the statistic at it non-zero.
     """
-    order = np.argsort(a, kind="stable")
-    a_sorted = a[order]
-    counts_a = np.ones(a.size) if ca is None else np.asarray(ca, dtype=float)[order]
+    # Distinct values with their counts: ties are counts, so the statistic is the same and
+    # each evaluation costs the number of distinct values, not of records.
+    a_records = common.SortedRecords(a, ca)
+    a_sorted = a_records.values
     b_records = common.SortedRecords(b, cb)
     b_sorted = b_records.values
     span = float(a_sorted[-1] - b_sorted[0]) - float(a_sorted[0] - b_sorted[-1])
@@ -563,7 +563,7 @@ def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Criti
     high_end = float(a_sorted[-1] - b_sorted[0]) + span + 1.0
 
     def statistic(d: float) -> float:
-        return _shift_statistic(a_sorted, counts_a, b_records, d)
+        return _shift_statistic(a_records, b_records, d)
 
     def snap(d: float) -> float:
         targets = a_sorted - d
