@@ -581,8 +581,8 @@ class SortedRecords:
     [2.5, 3.5, 0.0]
     """
 
-    def __init__(self, values: np.ndarray, counts: np.ndarray | None = None) -> None:
-        order = np.argsort(values, kind="stable")
+    def __init__(self, values: np.ndarray, counts: np.ndarray | None = None, *, presorted: bool = False) -> None:
+        order = slice(None) if presorted else np.argsort(values, kind="stable")  # presorted: skip the sort
         self.values = values[order]
         weights = np.ones(values.size) if counts is None else np.asarray(counts, dtype=float)[order]
         self.cumulative = np.concatenate(([0.0], np.cumsum(weights)))
