@@ -112,6 +112,27 @@ def test_skewed_outcome_is_summarised_by_its_median() -> None:
     assert "so each period is summarised by its median" in say(result.reasons[0])
 
 
+def test_latest_against_previous_is_chosen_by_the_same_rule_as_any_two_groups() -> None:
+    """Small skewed months: the comparison is the rule table's choice for the two months, run as any two groups."""
+    from statmargin.designs.rules import choose_continuous
+    from statmargin.stats.relative import brunner_munzel
+    from statmargin.vocabulary import Design
+
+    rng = np.random.default_rng(20260803)
+    data = pd.DataFrame({"Month": np.repeat([f"2025-{m:02d}" for m in range(1, 7)], 12),
+                         "Days": np.round(rng.lognormal(1.0, 1.1, 72), 1)})
+    [result] = analyze(data, outcome="Days", period="Month")
+    [versus] = result.followups
+    latest, previous = (data.loc[data.Month == m, "Days"].to_numpy() for m in ("2025-06", "2025-05"))
+    choice = choose_continuous(Design.TWO_GROUP_CONTINUOUS, {"2025-06": latest, "2025-05": previous})
+    assert versus.test == choice.test == "brunner_munzel"
+    alone = brunner_munzel(latest, previous, labels=("2025-06", "2025-05"), **choice.options)
+    assert versus.p_value == pytest.approx(alone.p_value, rel=1e-12)
+    [two_groups] = analyze(data[data.Month.isin(["2025-05", "2025-06"])], outcome="Days", by="Month",
+                           treat=["Month=categorical:2025-06,2025-05"])
+    assert two_groups.test == versus.test and two_groups.p_value == pytest.approx(versus.p_value, rel=1e-12)
+
+
 def test_two_periods_give_no_trend_but_keep_the_series_and_the_comparison() -> None:
     """With two months the analysis is not run (too few periods), yet the series and July-vs-June remain."""
     [result] = analyze(month_frame([(40, 60), (30, 60)]), outcome="Seen", period="Month")

@@ -10,8 +10,9 @@ The comparisons are asked of the record-level designs themselves: the rows of
 the two periods become a two-group question (the outcome by a column of period
 labels, the latest first), and the registered design answers it exactly as it
 answers any two-group question, so the test is the one the decision table picks
-(chi-square or Fisher's exact test for a two-level outcome; Welch's t-test or
-the Mann-Whitney U test for a continuous one, by the shape checks). Their
+(chi-square or Fisher's exact test for a two-level outcome; for a continuous one
+the rule table of ``designs.rules``, as for any two groups: Welch's t-test or the
+Brunner-Munzel test). Their
 p-values are adjusted together within the analysis (one or two comparisons,
 the run's method), as follow-ups are; the trend test is the analysis's own
 test and joins the run's adjustment family.

@@ -659,28 +659,29 @@ def pairwise_brunner_munzel(
     """
     from statmargin.stats.relative import brunner_munzel
 
-    def run(xa: Any, xb: Any, labels: tuple[str, str], level: float) -> Result:
-        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method)
+    def run(xa: Any, xb: Any, labels: tuple[str, str], level: float, intervals: bool) -> Result:
+        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method, intervals=intervals)
 
     return pairwise_of(run, _clean_groups(groups), adjust=adjust, alpha=alpha, confidence=confidence)
 
 
-def pairwise_of(run: Callable[[Any, Any, tuple[str, str], float], Result], items: Sequence[tuple[str, Any]], *,
-                adjust: AdjustMethod | str, alpha: float, confidence: float) -> list[Followup]:
-    """Pairwise Brunner-Munzel follow-ups from ``run(a, b, labels, confidence)`` on each pair of ``items``.
+def pairwise_of(run: Callable[[Any, Any, tuple[str, str], float, bool], Result],
+                items: Sequence[tuple[str, Any]], *, adjust: AdjustMethod | str, alpha: float,
+                confidence: float) -> list[Followup]:
+    """Pairwise Brunner-Munzel follow-ups from ``run(a, b, labels, confidence, intervals)`` on each pair.
 
-    Each pair is tested once at ``confidence`` for its p, then again at the level matched
-    to the adjustment for its interval.
+    Each pair is first tested alone for its p (``intervals=False``), then once more at the
+    level matched to the adjustment for its estimate and interval.
     """
     confidence = check_confidence(confidence)
     tested = []
     for (a, xa), (b, xb) in _pairs(list(items)):
-        tested.append((a, b, xa, xb, run(xa, xb, (a, b), confidence)))
+        tested.append((a, b, xa, xb, run(xa, xb, (a, b), confidence, False)))
     raw = [r.p_value for *_, r in tested]
     levels = _levels(raw, adjust, alpha, confidence)
     rows, intervals = [], []
     for (a, b, xa, xb, result), level in zip(tested, levels, strict=True):
-        at_level = run(xa, xb, (a, b), 1.0 - (level or 0.0))
+        at_level = run(xa, xb, (a, b), 1.0 - (level or 0.0), True)
         assert at_level.estimate is not None
         rows.append((a, b, float(at_level.estimate.value or 0.0), float(result.statistic or 0.0), result.p_value))
         intervals.append((float(at_level.estimate.ci_low or 0.0), float(at_level.estimate.ci_high or 0.0)))

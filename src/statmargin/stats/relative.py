@@ -113,7 +113,7 @@ def relative_effects(counts: list[np.ndarray], sizes: list[int] | list[float],
     placements = [c * scale for c in counts]  # (B, k, n_s): placement of each value in group j
 
     def mean(values: np.ndarray, s: int) -> np.ndarray:  # over each group's records
-        return values.mean(axis=2) if weights is None else values @ weights[s] / float(sizes[s])
+        return values.mean(axis=2) if weights is None else np.sum(values * weights[s], axis=2) / float(sizes[s])
 
     p = np.stack([mean(placements[i], i).sum(axis=1) * weight for i in range(k)], axis=1)
     parts = []
@@ -265,9 +265,10 @@ def two_sample_t_counted(a: np.ndarray, ca: np.ndarray, b: np.ndarray,
 
 def _counted_moments(values: np.ndarray, counts: np.ndarray) -> tuple[float, float]:
     """Mean and variance (n - 1) of the records of rows ``values`` standing for ``counts`` records each."""
+    # Elementwise sums, not np.dot: a BLAS call per evaluation is slow when its threads compete for cores.
     n = float(counts.sum())
-    mean = float(np.dot(counts, values)) / n
-    return mean, float(np.dot(counts, (values - mean) ** 2)) / (n - 1.0)
+    mean = float(np.sum(counts * values)) / n
+    return mean, float(np.sum(counts * (values - mean) ** 2)) / (n - 1.0)
 
 
 def _t_of_placements(ps: np.ndarray, s1: np.ndarray, s2: np.ndarray, n1: float,
@@ -346,6 +347,7 @@ def brunner_munzel(
     alternative: str = "two-sided",
     confidence: float = 0.95,
     p_method: str = "auto",
+    intervals: bool = True,
 ) -> Result:
     """Brunner-Munzel test: does a value of the first group tend to exceed one of the second?
 
@@ -362,6 +364,9 @@ def brunner_munzel(
     p_method : {"auto", "permutation", "asymptotic"}
         ``auto`` draws permutations when the smaller group has fewer than
         ``PERMUTATION_BELOW`` values (Neubert & Brunner 2007), else the t approximation.
+    intervals : bool
+        False gives the test alone (no estimate or effect): follow-ups first need only
+        every pair's p to know the level of each pair's intervals.
 
     Returns
     -------
@@ -437,9 +442,12 @@ def brunner_munzel(
     else:
         p_value = asymptotic_p(t, df, alternative)
         method = PMethod.ASYMPTOTIC
-    shift = common.median_pairwise_difference(a, b)
-    result = two_group_result(BrunnerMunzel(ps, se, t, df, p_value, method, draws), a, b, shift,
-                              (first, second), alternative, confidence)
+    test = BrunnerMunzel(ps, se, t, df, p_value, method, draws)
+    if intervals:
+        shift = common.median_pairwise_difference(a, b)
+        result = two_group_result(test, a, b, shift, (first, second), alternative, confidence)
+    else:
+        result = result_without_intervals(test, a.size + b.size, alternative, confidence)
     result.n_excluded = dropped_a + dropped_b
     result.groups = [common.describe(first, a), common.describe(second, b)]
     result.notes = notes
@@ -457,6 +465,14 @@ class BrunnerMunzel:
     p_value: float
     p_method: PMethod
     draws: np.ndarray | None  # permuted t values, when the p-value came from permutations
+
+
+def result_without_intervals(test: BrunnerMunzel, n: int, alternative: str, confidence: float) -> Result:
+    """The Result of a Brunner-Munzel test without its estimate and effect (see ``intervals``)."""
+    return Result(outcome="", exposure=None, design=Design.TWO_GROUP_CONTINUOUS, test=Test.BRUNNER_MUNZEL,
+                  statistic_name="t", statistic=test.t, df=test.df if math.isfinite(test.df) else None,
+                  p_value=test.p_value, p_method=test.p_method, alternative=alternative, confidence=confidence,
+                  n=int(n))
 
 
 def two_group_result(test: BrunnerMunzel, a: np.ndarray, b: np.ndarray, shift: float, labels: tuple[str, str],

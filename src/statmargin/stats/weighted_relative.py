@@ -44,7 +44,8 @@ def _repeated(values: np.ndarray, counts: np.ndarray) -> np.ndarray:
 
 
 def brunner_munzel(x: Weighted, y: Weighted, *, labels: tuple[str, str] = ("A", "B"),
-                   alternative: str = "two-sided", confidence: float = 0.95, p_method: str = "auto") -> Result:
+                   alternative: str = "two-sided", confidence: float = 0.95, p_method: str = "auto",
+                   intervals: bool = True) -> Result:
     """``relative.brunner_munzel`` of the repeated records; ``x`` and ``y`` are (values, counts).
 
     Examples
@@ -64,11 +65,15 @@ def brunner_munzel(x: Weighted, y: Weighted, *, labels: tuple[str, str] = ("A", 
     sizes = [int(ca.sum()), int(cb.sum())]
     if _all_ones(ca, cb) or relative.use_permutation(p_method, sizes):
         plain = relative.brunner_munzel(_repeated(a, ca), _repeated(b, cb), labels=(first, second),
-                                        alternative=alternative, confidence=confidence, p_method=p_method)
+                                        alternative=alternative, confidence=confidence, p_method=p_method,
+                                        intervals=intervals)
         return _with_rows(plain, dropped, no_count)
     ps, se, t, df = relative.two_sample_t_counted(a, ca, b, cb)
     test = relative.BrunnerMunzel(ps, se, t, df, relative.asymptotic_p(t, df, alternative), PMethod.ASYMPTOTIC,
                                   None)
+    if not intervals:
+        bare = relative.result_without_intervals(test, sum(sizes), alternative, confidence)
+        return _with_rows(bare, dropped, no_count)
     shift = median_pairwise_difference_weighted(a, ca, b, cb)
     result = relative.two_group_result(test, a, b, shift, (first, second), alternative, confidence, ca, cb)
     result.groups = [weighted_describe(first, a, ca), weighted_describe(second, b, cb)]
@@ -180,7 +185,7 @@ def pairwise_brunner_munzel(groups: Mapping[str, Weighted], *, adjust: AdjustMet
     """``followup.pairwise_brunner_munzel`` of the repeated records; each group is (values, counts)."""
     items = [(label, (v, c)) for label, v, c in _clean_groups(groups)]
 
-    def run(xa: Weighted, xb: Weighted, labels: tuple[str, str], level: float) -> Result:
-        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method)
+    def run(xa: Weighted, xb: Weighted, labels: tuple[str, str], level: float, intervals: bool) -> Result:
+        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method, intervals=intervals)
 
     return followup.pairwise_of(run, items, adjust=adjust, alpha=alpha, confidence=confidence)
