@@ -66,3 +66,23 @@ def test_terminal_redraws_one_line_with_a_bar():
     assert first.startswith("[" + "#" * 6 + "." * 18 + "] statmargin: running analyses: 1 of 4 analyses (25%)")
     assert second.startswith("[" + "#" * 24 + "]")
     assert text.endswith("\n") and "writing results sheets" in text.split("\n")[1]
+
+
+def test_follow_ups_report_their_progress() -> None:
+    """run_answers says after each analysis's follow-ups how many are done, so a long follow-up step moves."""
+    import numpy as np
+    import pandas as pd
+
+    from statmargin.designs.engine import run_answers
+    from statmargin.options import build_plan
+    from statmargin.read.table import Table
+
+    rng = np.random.default_rng(3)
+    frame = pd.DataFrame({"site": np.repeat(["A", "B", "C"], 30), "wait": rng.normal(30, 5, 90),
+                          "score": rng.normal(5, 1, 90)})
+    frame.loc[frame.site == "C", "wait"] += 10
+    calls: list[tuple[int, int]] = []
+    answers = run_answers(Table.from_frame(frame), build_plan(["wait", "score"], ["site"]),
+                          followup_progress=lambda done, total: calls.append((done, total)))
+    assert calls == [(1, 2), (2, 2)]
+    assert answers[0].result.followups  # the clear difference in waits got its pairs

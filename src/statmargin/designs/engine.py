@@ -35,7 +35,8 @@ class Answer:
 
 
 def run_answers(
-    table: Table, plan: Plan, *, progress: Callable[[int, int], None] | None = None
+    table: Table, plan: Plan, *, progress: Callable[[int, int], None] | None = None,
+    followup_progress: Callable[[int, int], None] | None = None,
 ) -> list[Answer]:
     """Run every analysis of a plan, adjust p-values across the run, add follow-ups.
 
@@ -47,6 +48,9 @@ def run_answers(
         Roles, choices and settings.
     progress : callable, optional
         Called with (analyses done, analyses in all) after each analysis.
+    followup_progress : callable, optional
+        Called the same way as each analysis's follow-ups are done (they can take
+        longer than the analyses on big sheets).
 
     Returns
     -------
@@ -77,8 +81,10 @@ def run_answers(
         if progress is not None:
             progress(len(answers), len(analyses))
     adjust_by_family([a.result for a in answers], settings.adjust, settings.family)
-    for answer in answers:
+    for done, answer in enumerate(answers, start=1):
         _follow_up(answer, settings)
+        if followup_progress is not None:
+            followup_progress(done, len(answers))
     return answers
 
 

@@ -383,10 +383,9 @@ def run_workbook(
     def analysis_done(done: int, total: int) -> None:
         last_analysis[0] = time.perf_counter()
         say(console.RUNNING, done=done, total=total)
-        if done == total:
-            say(words.FOLLOW_UPS)
 
-    answers = run_answers(table, plan, progress=analysis_done)
+    answers = run_answers(table, plan, progress=analysis_done,
+                          followup_progress=lambda done, total: say(words.FOLLOW_UPS, done=done, total=total))
     # run_answers adjusts p-values and runs the follow-ups after its last progress call.
     stages.add("analyses", last_analysis[0] - analyses_start)
     stages.add("follow-ups", time.perf_counter() - last_analysis[0])

@@ -11,7 +11,7 @@ from .console import RUNNING as RUNNING_ANALYSES
 
 READING_ROWS = "reading rows"
 FINDING_DATA = "looking for the sheet that holds the data"
-FOLLOW_UPS = "adjusting p-values and running follow-up comparisons"
+FOLLOW_UPS = "running follow-up comparisons"  # p-values are adjusted just before, in no time
 BUILDING_SHEETS = "building the results sheets"
 INFERRING_TYPES = "looking at each column's values"
 WRITING_ROLES = "writing the roles sheet"
