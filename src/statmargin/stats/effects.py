@@ -9,7 +9,9 @@ from __future__ import annotations
 import math
 import warnings
 from collections.abc import Callable
+from typing import Any
 
+import numpy as np
 from scipy import optimize, special, stats
 
 from statmargin.results import Effect
@@ -183,6 +185,77 @@ def standardized_effect(
         ci_low=correction * low * scale,
         ci_high=correction * high * scale,
     )
+
+
+def standardized_mean_with_any_shape(effect: Effect, values: Any, mu: float, alternative: str,
+                                     confidence: float, counts: Any = None) -> Effect:
+    """Widen a one-sample (or paired) standardized mean's interval so it also holds for non-normal data.
+
+    Parameters
+    ----------
+    effect : Effect
+        Hedges' g (or g_z) with its noncentral-t interval (:func:`standardized_effect`).
+    values : array_like
+        The values (or paired differences) it was computed from.
+    counts : array_like, optional
+        How many records each value stands for (a count column); all 1 by default.
+    mu, alternative, confidence
+        As for the test.
+
+    Returns
+    -------
+    Effect
+        The same estimate; the interval is the union of the noncentral-t interval (exact
+        for normal data) and the delta-method interval d +- z sqrt((1 + d^2 (kappa - 1) / 4
+        - d gamma_1) / n) with the sample skewness gamma_1 and kurtosis kappa, both times
+        Hedges' J.
+
+    Notes
+    -----
+    The noncentral-t interval assumes normal data: with heavy tails (t with 3 df) it
+    covered about 0.90 in the choose-then-test simulation at n = 30. The delta-method
+    variance comes from Var(mean) = sigma^2 / n, Var(s) ~ sigma^2 (kappa - 1) / (4n) and
+    Cov(mean, s) ~ mu_3 / (2 sigma n); it is the single-group case of Bonett's (2008)
+    distribution-free interval (Psychological Methods 13(2), 99-109,
+    doi:10.1037/1082-989X.13.2.99; form recalled from memory and re-derived here). For
+    normal data it reduces to the usual (1 + d^2 / 2) / n, so the union barely widens.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> x = np.random.default_rng(1).standard_t(3, 30) + 0.6
+    >>> n = x.size
+    >>> plain = standardized_effect(EffectKind.HEDGES_G, x.mean() / (x.std(ddof=1) / n ** 0.5), n - 1,
+    ...                             n ** -0.5, "two-sided", 0.95)
+    >>> wide = standardized_mean_with_any_shape(plain, x, 0.0, "two-sided", 0.95)
+    >>> bool(wide.ci_low <= plain.ci_low and wide.ci_high >= plain.ci_high and wide.value == plain.value)
+    True
+    """
+    x = np.asarray(values, dtype=float)
+    c = np.ones(x.size) if counts is None else np.asarray(counts, dtype=float)
+    n = float(c.sum())
+    if n < 4 or effect.value is None or not math.isfinite(effect.value):
+        return effect
+    mean = float(np.dot(c, x)) / n
+    squares = float(np.dot(c, (x - mean) ** 2))
+    if not squares > 0:
+        return effect
+    d = (mean - mu) / math.sqrt(squares / (n - 1.0))
+    centred = (x - mean) / math.sqrt(squares / n)
+    skew, kurtosis = float(np.dot(c, centred**3)) / n, float(np.dot(c, centred**4)) / n
+    variance = (1.0 + d * d * (kurtosis - 1.0) / 4.0 - d * skew) / n
+    if not variance > 0:
+        return effect
+    correction = hedges_correction(n - 1.0)
+    one_sided = alternative in ("greater", "less")
+    z = stats.norm.ppf(confidence if one_sided else 0.5 + confidence / 2.0)
+    half = z * math.sqrt(variance)
+    low, high = effect.ci_low, effect.ci_high
+    if alternative != "less" and low is not None and math.isfinite(low):
+        low = min(low, correction * (d - half))
+    if alternative != "greater" and high is not None and math.isfinite(high):
+        high = max(high, correction * (d + half))
+    return Effect(effect.kind, value=effect.value, ci_low=low, ci_high=high)
 
 
 def fisher_z_interval(

@@ -72,13 +72,18 @@ def mean_t(
     >>> math.isclose(tested.t, stats.ttest_1samp(extra, 0.0).statistic)
     True
     """
-    return mean_t_of_summary(common.describe(label, values), mu, effect_kind, alternative, confidence)
+    return mean_t_of_summary(common.describe(label, values), mu, effect_kind, alternative, confidence, values=values)
 
 
 def mean_t_of_summary(
-    summary: dict[str, Any], mu: float, effect_kind: EffectKind, alternative: str, confidence: float
+    summary: dict[str, Any], mu: float, effect_kind: EffectKind, alternative: str, confidence: float,
+    values: np.ndarray | None = None, counts: np.ndarray | None = None,
 ) -> MeanT:
-    """:func:`mean_t` from a summary (``n``, ``mean``, ``sd``), for callers that summarise counted rows."""
+    """:func:`mean_t` from a summary (``n``, ``mean``, ``sd``), for callers that summarise counted rows.
+
+    With ``values`` (and their ``counts``), the effect's interval also holds for
+    non-normal data (``effects.standardized_mean_with_any_shape``).
+    """
     n = summary["n"]
     se = summary["sd"] / math.sqrt(n)
     difference = summary["mean"] - mu
@@ -86,6 +91,8 @@ def mean_t_of_summary(
     df = n - 1
     low, high = common.t_interval(difference, se, df, alternative, confidence)
     effect = effects.standardized_effect(effect_kind, t, df, 1.0 / math.sqrt(n), alternative, confidence)
+    if values is not None:
+        effect = effects.standardized_mean_with_any_shape(effect, values, mu, alternative, confidence, counts)
     return MeanT(summary, difference, t, df, low, high, effect)
 
 

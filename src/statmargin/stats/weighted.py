@@ -202,7 +202,8 @@ def one_sample_t(
         return _with_rows(onesample.one_sample_t(v, mu=mu, alternative=alternative, confidence=confidence),
                           dropped, no_count)
     _require(v, c, 2, "the outcome")
-    tested = onesample.mean_t_of_summary(weighted_describe("all", v, c), mu, EffectKind.HEDGES_G, alternative, confidence)
+    tested = onesample.mean_t_of_summary(weighted_describe("all", v, c), mu, EffectKind.HEDGES_G, alternative, confidence,
+                                         values=v, counts=c)
     return _with_rows(Result(
         outcome="", exposure=None, design=Design.ONE_SAMPLE_CONTINUOUS, test=Test.ONE_SAMPLE_T,
         statistic_name="t", statistic=tested.t, df=float(tested.df),
@@ -256,7 +257,7 @@ def paired_t(
         raise NotEnoughDataError(coded(Skip.ALL_DIFFERENCES_ZERO, first=first, second=second))
     _require(d, c, 2, f"the differences {first} - {second}")
     tested = onesample.mean_t_of_summary(weighted_describe(f"{first} - {second}", d, c), 0.0, EffectKind.HEDGES_G_Z,
-                           alternative, confidence)
+                           alternative, confidence, values=d, counts=c)
     mean = tested.summary["mean"]
     return _with_rows(Result(
         outcome="", exposure=None, design=Design.PAIRED_CONTINUOUS, test=Test.PAIRED_T,
