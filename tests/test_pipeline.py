@@ -177,7 +177,7 @@ class TestRunOnReferenceData:
         assert record["analyses"][0]["p_value"] == summary.results[0].p_value
 
     def test_progress_messages(self, tmp_path) -> None:
-        """The progress callback hears each step (reading, running, writing) and each analysis's count."""
+        """The progress callback hears each step (reading, running, writing) and the counts of analyses and follow-ups."""
         path = plant_growth(tmp_path / "plants.xlsx")
         plan_workbook(path, outcome=["weight"], by=["group"])
         steps: list[str] = []
@@ -190,5 +190,6 @@ class TestRunOnReferenceData:
                 counts.append((message, done, total))
 
         run_workbook(path, progress=hear)
-        assert steps == ["reading", "running", "adjusting", "building", "writing"]
-        assert counts == [("reading rows", 30, 30), ("running analyses", 1, 1)]
+        assert steps == ["reading", "running", "building", "writing"]
+        assert counts == [("reading rows", 30, 30), ("running analyses", 1, 1),
+                          ("running follow-up comparisons", 1, 1)]
