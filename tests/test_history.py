@@ -45,6 +45,8 @@ def record(p: float | None, estimate: float | None = 1.0, low: float | None = 0.
         (None, record(0.2), SinceLastRun.NEW),
         (record(None), record(0.2), SinceLastRun.NEW),  # skipped last time
         (None, record(None), SinceLastRun.NEW),  # new and skipped
+        (record(None), record(None), SinceLastRun.UNCHANGED),  # skipped last time and now
+        (record(None), None, SinceLastRun.UNCHANGED),  # skipped last time, no longer asked
         (record(0.2), None, SinceLastRun.NO_LONGER_RUN),
         (record(0.2), record(None), SinceLastRun.NO_LONGER_RUN),  # skipped now
         (record(0.2), record(0.3, 1.2), SinceLastRun.UNCHANGED),
@@ -267,3 +269,30 @@ def test_comparison_flags_of_a_stable_program_stay_near_the_level() -> None:
         plain += since_last_run(before, now) is not SinceLastRun.UNCHANGED
     assert 0.035 < ours / 4000 < 0.075  # about the 5% level of the one test (Monte Carlo SE 0.0035)
     assert plain / 4000 > 0.2
+
+
+def test_a_question_skipped_twice_is_not_new_every_run(tmp_path) -> None:
+    """Two plain runs where one question cannot be run: the second says nothing changed (invented site visits)."""
+    import json
+
+    from click.testing import CliRunner
+
+    from leak_workbooks import site_visits
+    from statmargin.cli import main
+    from workbook_edit import results_records
+
+    book = site_visits(tmp_path / "visits.xlsx")
+    runner = CliRunner()
+    planned = runner.invoke(main, ["plan", str(book), "--outcome", "Wait", "--outcome", "Seen", "--by", "Site"])
+    assert planned.exit_code == 0, planned.output
+    first = runner.invoke(main, ["run", str(book), "--quiet"])
+    second = runner.invoke(main, ["run", str(book), "--quiet", "--json", str(tmp_path / "second.json")])
+    assert first.exit_code == 0 and second.exit_code == 0, second.output
+    assert "First run" in first.stdout
+    # Wait by Site is skipped both times (the one-row group 'Harbor'): no "New:" line.
+    assert "New:" not in second.stdout and "Nothing changed since the last run" in second.stdout
+    document = json.loads((tmp_path / "second.json").read_text())
+    flags = {(a["outcome"], a["skipped"] is not None): a["since_last_run"] for a in document["analyses"]}
+    assert flags == {("Wait", True): "unchanged", ("Seen", False): "unchanged"}
+    records = results_records(book)
+    assert [r["Since last run"] for r in records] == ["unchanged", "unchanged"]

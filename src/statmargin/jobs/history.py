@@ -10,7 +10,8 @@ records (``last_run``) and compares each analysis (``since_last_run``).
 Flags and precedence (the first that applies is reported):
 
 1. ``no_longer_run``: the analysis was run last time and is missing or skipped now;
-2. ``new``: it was not run last time (absent or skipped);
+2. ``new``: it is run now and was not run last time (absent or skipped), or it is
+   asked for the first time and cannot be run;
 3. ``direction_reversed``: the estimate points the other way and at least one of
    the two runs was below its significance level (a sign flip between two
    results that were both above the level is noise, not news);
@@ -18,7 +19,10 @@ Flags and precedence (the first that applies is reported):
 5. ``no_longer_below_level``: it crossed back above it;
 6. ``moved_outside_interval``: the new estimate lies outside the previous
    interval (same kind of estimate);
-7. ``unchanged``.
+7. ``unchanged``; this includes a question that was not run last time and is not
+   run now (skipped twice, or skipped last time and no longer asked): there is
+   nothing new to say about it, and flagging it "new" on every refresh would
+   keep "nothing changed" from ever being said while one question stays skipped.
 
 Reversal comes before crossing because a result that now points the other way
 is read differently whatever its p-value; crossing comes before the interval
@@ -253,11 +257,22 @@ def since_last_run(previous: KeyResult | None, current: KeyResult | None) -> Sin
     -------
     SinceLastRun
 
+    Notes
+    -----
+    A question that is not run now is ``no_longer_run`` if it was run last
+    time; ``new`` if it was not asked last time at all (a new question whose
+    data cannot support a test yet); and ``unchanged`` if it was asked and not
+    run last time either, or was skipped last time and is gone now. The
+    reason it is skipped is on the results sheet beside it every run.
+
     Examples
     --------
     >>> before = KeyResult("2026-06-01", "a", "welch_t", 0.08, 0.08, "mean_difference", 2.0, -0.3, 4.3, 1, 0.05)
     >>> since_last_run(before, before)
     'unchanged'
+    >>> skipped = KeyResult("2026-06-01", "a", None, None, None, None, None, None, None, None, 0.05)
+    >>> since_last_run(skipped, skipped), since_last_run(None, skipped), since_last_run(before, skipped)
+    ('unchanged', 'new', 'no_longer_run')
     >>> now = KeyResult("2026-07-01", "a", "welch_t", 0.01, 0.01, "mean_difference", 3.1, 0.8, 5.4, 1, 0.05)
     >>> since_last_run(before, now)
     'now_below_level'
@@ -270,7 +285,8 @@ def since_last_run(previous: KeyResult | None, current: KeyResult | None) -> Sin
     if not runs_now:
         if ran_before:
             return SinceLastRun.NO_LONGER_RUN
-        return SinceLastRun.NEW
+        # Not run last time either: only a question asked for the first time is news.
+        return SinceLastRun.NEW if previous is None and current is not None else SinceLastRun.UNCHANGED
     if not ran_before:
         return SinceLastRun.NEW
     assert previous is not None and current is not None  # narrowed by the checks above
