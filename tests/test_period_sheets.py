@@ -89,13 +89,18 @@ def test_line_chart_follows_drawingml(model: SheetModel) -> None:
 
 
 def test_small_periods_are_hidden_in_sharing_mode() -> None:
-    """A period with a small count of either level loses its share, interval and limits; so does July-vs-June."""
+    """A period with a small count of either level loses its share, interval and limits; so does July-vs-June.
+
+    The total of "Yes" (through the centre line) and the trend test's z (a weighted sum of the
+    periods' counts with their n's known) are shown, so two hidden periods could be solved for:
+    a third period is hidden with them (the smallest shown count beside them, July's 97 "Yes").
+    """
     result = shares_result()
     hidden = suppress(result, 30)  # "No" counts: January 29 and June 28 are below 30, the others are not
     shown = {p.period: p for p in hidden.periods}
-    assert [k for k, p in shown.items() if p.value is None] == ["2026-01", "2026-06"]
+    assert [k for k, p in shown.items() if p.value is None] == ["2026-01", "2026-06", "2026-07"]
     assert shown["2026-06"].lower_limit is None and shown["2026-06"].n == 150
-    assert shown["2026-07"].value == pytest.approx(97 / 150)
+    assert shown["2026-05"].value == pytest.approx(113 / 151)  # invented demo: 113 of 151 in May
     [versus] = hidden.followups  # 2026-07 against 2026-06: its 2 x 2 has June's small cell
     assert versus.estimate is None and versus.p_value is None
     assert hidden.trend == result.trend and hidden.p_value == result.p_value  # the whole series' trend stays

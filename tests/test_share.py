@@ -209,9 +209,15 @@ def test_small_counts_show_a_threshold_and_complements_say_suppressed() -> None:
     assert "<11" in values and "suppressed" in values
 
 
-def test_zero_counts_stay_visible() -> None:
-    """Zeros are not hidden (they reveal no person); mtcars has no 8-cylinder car with 4 gears."""
-    _, _, after = shared_run()
+@pytest.mark.parametrize(("min_count", "zero_shown"), [(5, True), (11, False)])
+def test_zeros_stay_visible_unless_their_total_is_hidden(min_count: int, zero_shown: bool) -> None:
+    """A zero reveals no one beside a shown total; beside a hidden total it says the rest is all of it.
+
+    mtcars (R datasets) has no 8-cylinder car with 4 gears. Under 5, gear 4's total (12) stays and
+    so does the zero; under 11, gear 5's total (5) is hidden, so gear 4's total is hidden with it
+    (n = 32 is shown) and the zero goes too.
+    """
+    _, _, after = shared_run(min_count)
     shape = after[1]
     top = (
         next(
@@ -219,7 +225,9 @@ def test_zero_counts_stay_visible() -> None:
         )
         + 1
     )
-    assert shape.cells[(top + 3, 2)].value == 0  # R: table(mtcars$cyl, mtcars$gear)["8", "4"] == 0
+    zero = shape.cells[(top + 3, 2)]  # R: table(mtcars$cyl, mtcars$gear)["8", "4"] == 0
+    assert (zero.value == 0) is zero_shown
+    assert (shape.cells[(top + 4, 2)].value == 12) is zero_shown  # gear 4's total
 
 
 def test_results_header_says_sharing_mode_and_record_level_data() -> None:

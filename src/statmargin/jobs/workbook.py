@@ -23,6 +23,7 @@ from ..plan.model import ColumnChoice, Plan
 from ..plan.roles_sheet import KIND as ROLES_KIND
 from ..plan.roles_sheet import ColumnFacts, RolesSheet, build_roles_sheet, parse_roles_sheet
 from ..read.table import Table
+from ..sheets.context import shown_count
 from ..sheets.share import DEFAULT_MIN_COUNT, suppress
 from ..vocabulary import MeasureType, Role
 from ..words import console, refusals, roles_words
@@ -70,7 +71,7 @@ class RunSummary:
     data_sheet: str
     rows_read: int
     results: list[Any]
-    notes: int
+    notes: Any  # a count, or a hidden one in sharing mode
     write: WriteReport
     messages: list[str] = field(default_factory=list)
     changes: list[str] = field(default_factory=list)  # what changed since the last run, as the results sheet says it
@@ -82,7 +83,7 @@ class RunSummary:
             "path": self.path,
             "data_sheet": self.data_sheet,
             "rows_read": self.rows_read,
-            "data_notes": self.notes,
+            "data_notes": self.notes if isinstance(self.notes, int) else None,  # null: hidden in sharing mode
             "sheets": self.write.sheets,
             "renamed": self.write.renamed,
             "analyses": [r.to_record() for r in self.results],
@@ -376,7 +377,9 @@ def run_workbook(
         progress=lambda done, total: say(words.READING_ROWS, done=done, total=total),
         rows_to_use=plan.settings.rows,
     )
-    say(console.running_on_rows(len(table.rows), hidden_rows_note(table.n_hidden, plan.settings.rows)))
+    floor = (min_count or DEFAULT_MIN_COUNT) if share else None
+    say(console.running_on_rows(len(table.rows), hidden_rows_note(shown_count(table.n_hidden, floor),
+                                                                   plan.settings.rows)))
     analyses_start = time.perf_counter()
     last_analysis = [analyses_start]
 
@@ -428,9 +431,10 @@ def run_workbook(
         data_sheet=table.sheet,
         rows_read=table.n_rows_read,
         results=results,
-        notes=len(table.notes),
+        notes=shown_count(len(table.notes), floor),
         write=write,
-        messages=[line for line in (hidden_rows_line(table.n_hidden, plan.settings.rows),) if line]
+        messages=[line for line in (hidden_rows_line(shown_count(table.n_hidden, floor), plan.settings.rows),)
+                  if line]
         + list(write.renamed),
         changes=list(context.changes or []),
     )

@@ -59,7 +59,7 @@ class ReportContext:
     samples: dict[tuple[str, str, str], Mapping[str, Any]] = field(default_factory=dict)
     fingerprint: str = ""
     decimals: dict[str, int] = field(default_factory=dict)  # each numeric column's own precision
-    hidden_rows: int | None = 0  # data rows a filter or the user hid (None: the workbook cannot tell)
+    hidden_rows: Any = 0  # data rows a filter or the user hid (None: cannot tell; a Hidden mark in sharing mode)
     changes: list[str] = field(default_factory=list)  # what changed since the last run (lines; none: not tracked)
 
     @classmethod
@@ -135,7 +135,7 @@ class ReportContext:
             samples=drawn,
             fingerprint=table.fingerprint if table is not None else "",
             decimals=decimals,
-            hidden_rows=table.n_hidden if table is not None else 0,
+            hidden_rows=shown_count(table.n_hidden if table is not None else 0, share_min_count),
         )
 
 
@@ -156,6 +156,13 @@ def column_decimals(numbers: np.ndarray) -> int:
         if np.all(np.abs(scaled - np.round(scaled)) < 1e-6):
             return places
     return MAX_DECIMALS
+
+
+def shown_count(count: Any, floor: int | None) -> Any:
+    """A count as sharing mode shows it: hidden when it is from 1 to ``floor - 1`` (no floor: as it is)."""
+    if floor is None or not isinstance(count, int) or isinstance(count, bool) or not 0 < count < floor:
+        return count
+    return Hidden(floor)
 
 
 def analysis_key(result: Result) -> tuple[str, str, str]:

@@ -14,6 +14,7 @@ from typing import Any
 
 from ..results import Result
 from ..vocabulary import Design
+from ..vocabulary.codes import Hidden
 from ..words import rate_readings
 from .context import _a1, _finite, _num
 from .model import Chart, ChartSeries, SheetModel
@@ -46,9 +47,13 @@ def put_event_table(model: SheetModel, row: int, result: Result) -> tuple[int, C
         else:
             total = _num(g.get("total"))
             model.put(r, 2, total, "fixed1" if total is not None else "text")  # person-time as typed, to 0.1
+        hidden = bool(g.get("suppressed")) or isinstance(g.get("events"), Hidden)
         for col, key in ((3, "rate"), (4, "ci_low"), (5, "ci_high")):
             value = _num(g.get(key))
-            model.put(r, col, value, value_style if value is not None else "text")
+            if value is None and hidden:
+                model.put(r, col, "suppressed", "suppressed")  # sharing mode: it would give the events back
+            else:
+                model.put(r, col, value, value_style if value is not None else "text")
         _count(model, r, 6, g.get("rows"), counts_records=False)
         # The share or rate and its interval give the events back with the total.
         model.count_dependents[(r, 1)] = [(r, 3), (r, 4), (r, 5)]

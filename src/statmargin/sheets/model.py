@@ -61,6 +61,11 @@ class Cell:
     is_count: bool = False  # a count of records; sharing mode suppresses small ones
 
 
+def hidden_cell(value: Hidden) -> Cell:
+    """The cell of a count hidden by sharing mode: "<N" for a small one, "suppressed" for a complementary one."""
+    return Cell(f"<{value.floor}" if value.small else "suppressed", "suppressed", None, True)
+
+
 @dataclass
 class ChartSeries:
     """One series of a chart. Line charts also say how the line is drawn and where its interval is.
@@ -118,7 +123,7 @@ class SheetModel:
     anchors: dict[str, str] = field(default_factory=dict)  # named spot -> cell, for links
     # Sharing mode (see share.py): cells that reveal a count (a group's share, mean,
     # SD, ...) are suppressed with it; each set in ``count_sets`` is linked by one sum
-    # (its members and their shown total), so one hidden member would be recoverable.
+    # (its members, then their shown total last), so one hidden member would be recoverable.
     count_dependents: dict[tuple[int, int], list[tuple[int, int]]] = field(default_factory=dict)
     count_sets: list[list[tuple[int, int]]] = field(default_factory=list)
     # Printing (all optional). ``column_breaks`` holds the 0-based index of the first
@@ -153,7 +158,7 @@ class SheetModel:
     ) -> None:
         """Set one cell (0-based row and column); a count hidden by sharing mode shows as "<N"."""
         if isinstance(value, Hidden):
-            self.cells[(row, col)] = Cell(f"<{value.floor}", "suppressed", None, True)
+            self.cells[(row, col)] = hidden_cell(value)
             return
         self.cells[(row, col)] = Cell(value, style, link, is_count)
 

@@ -46,6 +46,9 @@ def notes_sheet(
     model.fit_to_width = True
     model.page_numbers = True
     last = column_letter(len(NOTE_COLUMNS) - 1)
+    if context.share_mode:
+        row = _counted_notes(model, table_notes, context)
+        return _other_notes(model, row, extra_notes, last)
     model.put(0, 0, "statmargin data notes", "title")
     model.put(
         1,
@@ -70,6 +73,11 @@ def notes_sheet(
     if not table_notes:
         model.put(row, 0, notes_words.NO_NOTES, "muted")
         row += 1
+    return _other_notes(model, row, extra_notes, last)
+
+
+def _other_notes(model: SheetModel, row: int, extra_notes: Sequence[str], last: str) -> SheetModel:
+    """The sentences about the run (incomplete pairs and the like) under the table."""
     if extra_notes:
         row += 1
         model.put(row, 0, "Other notes", "subtitle")
@@ -81,3 +89,42 @@ def notes_sheet(
     return model
 
 
+SHARED_NOTE_COLUMNS: tuple[tuple[str, float], ...] = (
+    ("Sheet", 14),
+    ("Column", 18),
+    ("What was wrong", 24),
+    ("Action", 26),
+    ("Cells", 10),
+)
+
+
+def _counted_notes(model: SheetModel, table_notes: Sequence[DataNote], context: ReportContext) -> int:
+    """Sharing mode: notes counted by sheet, column, kind and action; small counts are hidden later.
+
+    Cell addresses and values are record-level data, like the data sheet itself.
+    The counts and their total form one sum, so sharing mode can protect a small one.
+    """
+    model.put(1, 0, notes_words.cells_noted_shared(count_text(len(table_notes), context)), "wrap")
+    model.merged.append(f"A2:{column_letter(len(SHARED_NOTE_COLUMNS) - 1)}2")
+    header = 3
+    model.put_row(header, [name for name, _ in SHARED_NOTE_COLUMNS], "header")
+    model.freeze = (header + 1, 0)
+    model.widths = {i: width for i, (_, width) in enumerate(SHARED_NOTE_COLUMNS)}
+    counts: dict[tuple[str, str, str, str], int] = {}
+    for note in table_notes:
+        key = (note.sheet, note.column, notes_words.kind_words(note.kind), note.action)
+        counts[key] = counts.get(key, 0) + 1
+    row = header + 1
+    cells = []
+    for (sheet, column, kind, action), count in counts.items():
+        model.put_row(row, [sheet, column, kind, action], "wrap")
+        model.put(row, 4, count, "integer", is_count=True)
+        cells.append((row, 4))
+        row += 1
+    if not counts:
+        model.put(row, 0, notes_words.NO_NOTES, "muted")
+        return row + 1
+    model.put(row, 0, "Total", "label")
+    model.put(row, 4, len(table_notes), "integer", is_count=True)
+    model.count_sets.append(cells + [(row, 4)])
+    return row + 1

@@ -93,8 +93,9 @@ def build_sheets(
     extra = list(extra_notes)
     for result in results:
         pairs = result.extra.get("incomplete_pairs") if isinstance(result.extra, Mapping) else None
-        if pairs:
-            extra.append(explain.incomplete_pairs_note(result, len(pairs), context))
+        if pairs:  # the keys themselves, or (sharing mode) only their number
+            count = len(pairs) if isinstance(pairs, (list, tuple)) else pairs
+            extra.append(explain.incomplete_pairs_note(result, count, context))
     if context.share_mode:
         family = explain.count_comparisons(results)
         results = suppress(list(results), context.share_min_count)

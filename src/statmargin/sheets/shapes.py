@@ -11,6 +11,7 @@ import numpy as np
 from ..io.addresses import column_letter
 from ..results import Result
 from ..vocabulary import Design
+from ..vocabulary.codes import Hidden
 from ..words import context as words_context
 from ..words import explain, sheet_texts, technical
 from ..words.questions import EVENT_DESIGNS
@@ -128,7 +129,7 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
     model.put_row(row, ["Level", "Count", "Share", "Stated share", "Expected count"], "header")
     row += 1
     count_cells: list[tuple[int, int]] = []
-    total = 0
+    counted = 0
     expected_rows: list[tuple[int, Any]] = []
     for g in result.groups:
         if not isinstance(g, Mapping):
@@ -136,18 +137,13 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
         label = str(g.get("label", ""))
         count = g.get("count", g.get("n"))
         model.put(row, 0, label, "label")
-        if _finite(count):
-            model.put(row, 1, int(count), "integer", is_count=True)
-            total += int(count)
-        else:
-            model.put(
-                row,
-                1,
-                "suppressed" if g.get("suppressed") else None,
-                "suppressed" if g.get("suppressed") else "text",
-            )
+        _count_cell(model, row, 1, count, suppressed=bool(g.get("suppressed")))
+        counted += int(count) if _finite(count) else 0
         share = _num(g.get("share"))
-        model.put(row, 2, share, "percent" if share is not None else "text")
+        if isinstance(count, Hidden):
+            model.put(row, 2, "suppressed", "suppressed")  # a share with the total gives the count back
+        else:
+            model.put(row, 2, share, "percent" if share is not None else "text")
         stated = _num(against.get(label, against.get(g.get("label"))) if against else None)
         model.put(row, 3, stated, "percent" if stated is not None else "text")
         expected_rows.append((row, g.get("expected")))
@@ -155,11 +151,13 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
         count_cells.append((row, 1))
         row += 1
     model.put(row, 0, "Total", "label")
-    model.put(row, 1, total, "integer", is_count=True)
+    # The analysis's n: adding up the shown counts would give a wrong total once one is hidden.
+    total = result.n if _finite(result.n) or isinstance(result.n, Hidden) else counted
+    _count_cell(model, row, 1, total)
     total_cell = (row, 1)
     for r, expected in expected_rows:
         value = _num(expected)
-        if value is None and _finite(model.cells[(r, 3)].value):
+        if value is None and _finite(model.cells[(r, 3)].value) and _finite(total):
             value = float(model.cells[(r, 3)].value) * total
         model.put(r, 4, value, "number" if value is not None else "text")
     model.count_sets.append(count_cells + [total_cell])
@@ -174,6 +172,7 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
     model.put(bar_top + 1, 0, "Observed", "label")
     model.put(bar_top + 2, 0, "Stated", "label")
     series = []
+    copies = [(bar_top + 1, 1 + i) for i in range(len(count_cells))]
     for i, (r, _) in enumerate(count_cells):
         col = 1 + i
         model.put(bar_top, col, model.cells[(r, 0)].value, "header")
@@ -181,7 +180,8 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
         model.cells[(bar_top + 1, col)] = Cell(
             observed.value, observed.style, None, observed.is_count
         )
-        model.count_dependents.setdefault((r, 1), []).append((bar_top + 1, col))
+        # One hidden level empties the whole observed bar: the others alone would be drawn as 100%.
+        model.count_dependents.setdefault((r, 1), []).extend(copies)
         expected = model.cells[(r, 4)].value
         model.put(bar_top + 2, col, expected, "number" if _finite(expected) else "text")
         series.append(
@@ -199,6 +199,18 @@ def _put_level_table(model: SheetModel, row: int, result: Result) -> tuple[int, 
         y_title="share of records",
     )
     return bar_top + 4, chart
+
+
+def _count_cell(model: SheetModel, row: int, col: int, value: Any, *, suppressed: bool = False) -> None:
+    """A count: a whole number, a count hidden by sharing mode (its own mark), or empty."""
+    if isinstance(value, Hidden):
+        model.put(row, col, value)
+    elif _finite(value):
+        model.put(row, col, int(value), "integer", is_count=True)
+    elif suppressed:
+        model.put(row, col, "suppressed", "suppressed", is_count=True)
+    else:
+        model.put(row, col, None)
 
 
 def _crosstab(result: Result) -> tuple[list[list[Any]], list[str], list[str]] | None:
@@ -232,12 +244,50 @@ def _crosstab(result: Result) -> tuple[list[list[Any]], list[str], list[str]] | 
     return [list(r) for r in observed], rows, cols
 
 
+def _margins(result: Result, observed: list[list[Any]], row_labels: list[str]) -> tuple[list[Any], list[Any], Any]:
+    """Row totals, column totals and the grand total of a table, hidden where sharing mode hid them.
+
+    A total is the sum of its cells when every cell is shown; else the total the
+    result gives (a group's n, or the margins sharing mode wrote beside the
+    table), else a hidden mark: never the sum of the shown cells alone.
+    """
+    marks = [v for line in observed for v in line if isinstance(v, Hidden)]
+    floor = marks[0].floor if marks else 0
+    given = result.extra.get("observed") if isinstance(result.extra, Mapping) else None
+    given = given if isinstance(given, Mapping) else {}
+    groups = {str(g.get("label")): g for g in result.groups if isinstance(g, Mapping)}
+
+    def known(value: Any) -> bool:
+        return _finite(value) or isinstance(value, Hidden)
+
+    def total(cells: list[Any], fallback: Any) -> Any:
+        if all(_finite(v) for v in cells):
+            return int(sum(cells))
+        return fallback if known(fallback) else Hidden(floor, small=False)
+
+    rows = []
+    for i, label in enumerate(row_labels):
+        listed = given.get("row_totals")
+        group = groups.get(label, {})
+        fallback = listed[i] if isinstance(listed, Sequence) and i < len(listed) else next(
+            (group[k] for k in ("n", "count", "total") if known(group.get(k))), None)
+        rows.append(total(list(observed[i]), fallback))
+    columns = []
+    for j in range(len(observed[0])):
+        listed = given.get("col_totals")
+        fallback = listed[j] if isinstance(listed, Sequence) and j < len(listed) else None
+        columns.append(total([line[j] for line in observed], fallback))
+    grand = result.n if known(result.n) and not all(_finite(v) for v in rows) else None
+    return rows, columns, total(rows, grand) if grand is None else grand
+
+
 def _put_crosstab(model: SheetModel, row: int, result: Result) -> tuple[int, Chart | None]:
     """Observed counts with totals (and expected counts), plus 100% bars per row."""
     table = _crosstab(result)
     if table is None:
         return row, None
     observed, row_labels, col_labels = table
+    row_sums, col_sums, grand_total = _margins(result, observed, row_labels)
     model.put(row, 0, "Observed counts", "subtitle")
     row += 1
     top = row
@@ -250,14 +300,9 @@ def _put_crosstab(model: SheetModel, row: int, result: Result) -> tuple[int, Cha
         model.put(r, 0, label, "label")
         line = []
         for j in range(n_cols):
-            value = observed[i][j]
-            if _finite(value):
-                model.put(r, 1 + j, int(value), "integer", is_count=True)
-            else:
-                model.put(r, 1 + j, None)
+            _count_cell(model, r, 1 + j, observed[i][j])
             line.append((r, 1 + j))
-        total = int(sum(v for v in observed[i] if _finite(v)))
-        model.put(r, 1 + n_cols, total, "integer", is_count=True)
+        _count_cell(model, r, 1 + n_cols, row_sums[i])
         row_total_cells.append((r, 1 + n_cols))
         body_cells.append(line)
         model.count_sets.append(line + [(r, 1 + n_cols)])
@@ -265,14 +310,11 @@ def _put_crosstab(model: SheetModel, row: int, result: Result) -> tuple[int, Cha
     model.put(total_row, 0, "Total", "label")
     col_total_cells = []
     for j in range(n_cols):
-        total = int(sum(observed[i][j] for i in range(len(row_labels)) if _finite(observed[i][j])))
-        model.put(total_row, 1 + j, total, "integer", is_count=True)
+        _count_cell(model, total_row, 1 + j, col_sums[j])
         col_total_cells.append((total_row, 1 + j))
         model.count_sets.append([line[j] for line in body_cells] + [(total_row, 1 + j)])
     grand = (total_row, 1 + n_cols)
-    model.put(
-        *grand, int(sum(model.cells[c].value for c in col_total_cells)), "integer", is_count=True
-    )
+    _count_cell(model, *grand, grand_total)
     model.count_sets.append(col_total_cells + [grand])
     model.count_sets.append(row_total_cells + [grand])
     row = total_row + 2
@@ -297,20 +339,35 @@ def _put_crosstab(model: SheetModel, row: int, result: Result) -> tuple[int, Cha
                 model.count_dependents.setdefault(row_total_cells[i], []).append((r, 1 + j))
                 model.count_dependents.setdefault(col_total_cells[j], []).append((r, 1 + j))
         row = row + 1 + len(row_labels) + 1
+    first, drawn = top + 1, top
+    if any(model.cells[c].style == "suppressed" for line in body_cells for c in line):
+        # 100% bars of a row with a hidden count would show the other counts as the whole row.
+        model.put(row, 0, sheet_texts.CHART_ROWS_SHOWN, "subtitle")
+        model.put_row(row + 1, [""] + col_labels, "header")
+        drawn, first = row + 1, row + 2
+        for i, label in enumerate(row_labels):
+            model.put(first + i, 0, label, "label")
+            for j, cell in enumerate(body_cells[i]):
+                source = model.cells[cell]
+                model.cells[(first + i, 1 + j)] = Cell(source.value, source.style, None, source.is_count)
+                # Each cell of a row hides the row's whole copy with it.
+                model.count_dependents.setdefault(cell, []).extend((first + i, 1 + k) for k in range(n_cols))
+        row = first + len(row_labels) + 1
     series = [
         ChartSeries(
-            col_labels[j], f"{_a1(top + 1, 1 + j, True)}:{_a1(top + len(row_labels), 1 + j, True)}"
+            col_labels[j], f"{_a1(first, 1 + j, True)}:{_a1(first + len(row_labels) - 1, 1 + j, True)}"
         )
         for j in range(n_cols)
     ]
     chart = Chart(
         kind="percent_bar",
         title=f"{result.outcome or 'Outcome'} by {result.exposure or 'group'}",
-        categories=f"{_a1(top + 1, 0, True)}:{_a1(top + len(row_labels), 0, True)}",
+        categories=f"{_a1(first, 0, True)}:{_a1(first + len(row_labels) - 1, 0, True)}",
         series=series,
         anchor="",
         y_title="share of records",
     )
+    del drawn
     return row, chart
 
 
@@ -413,7 +470,18 @@ def _put_histogram(
             column.append((top + i, 1 + j))
         if label in n_cells:  # the bins add up to the group's n shown above
             model.count_sets.append(column + [n_cells[label]])
+            # A group whose n is hidden has its whole distribution hidden with it.
+            model.count_dependents.setdefault(n_cells[label], []).extend(column)
+        else:  # no n above: the bins' total goes under them, so a hidden bin is never the only unknown
+            total = (top + len(bin_text), 1 + j)
+            model.put(*total, int(counts.sum()), "integer", is_count=True)
+            model.count_sets.append(column + [total])
     bottom = top + len(bin_text) - 1
+    if any(label not in n_cells for label in labels):
+        model.put(bottom + 1, 0, "Total", "label")
+        bottom_table = bottom + 1
+    else:
+        bottom_table = bottom
     chart = Chart(
         kind="column",
         title=title,
@@ -426,7 +494,7 @@ def _put_histogram(
         x_title=units or None,
         y_title="records",
     )
-    return bottom + 2, chart
+    return bottom_table + 2, chart
 
 
 def _values_and_counts(sample: Any) -> tuple[Sequence[float], Sequence[float] | None]:

@@ -51,24 +51,21 @@ from __future__ import annotations
 
 import copy
 import math
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Iterable, Mapping, MutableMapping, Sequence
 from dataclasses import replace
 from typing import Any, overload
 
 from ..io.addresses import column_index
 from ..results import Result
-from ..vocabulary import Design, Test
+from ..vocabulary import Design
 from ..vocabulary.codes import Coded, Count, Derived, Hidden, Note, coded
 from ..words import explain, refusals
-from ..words.questions import EVENT_DESIGNS
 from .model import Cell, SheetModel
+from .share_results import hide_group, holds_hidden, protect_results
 
 DEFAULT_MIN_COUNT = 11
 SUPPRESSED_TEXT = "suppressed"
 
-_CATEGORICAL = (Design.ONE_SAMPLE_CATEGORICAL, Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL)
-_GROUPED_CONTINUOUS = (Design.TWO_GROUP_CONTINUOUS, Design.MULTI_GROUP_CONTINUOUS, Design.PAIRED_CONTINUOUS)
-_OVER_TIME = (Design.PERIOD_SHARES, Design.PERIOD_CENTRE)
 
 
 def is_small_count(value: Any, min_count: int = DEFAULT_MIN_COUNT) -> bool:
@@ -136,20 +133,21 @@ def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> She
         changed = False
         for members in out.count_sets:
             present = [pos for pos in members if pos in cells]
-            if any(pos in hidden for pos in present):
-                for pos in present:  # a zero beside a hidden count says the hidden one is all of it
+            if present and present[-1] in hidden:
+                for pos in present[:-1]:  # a zero beside a hidden total says the hidden rest is all of it
                     if pos not in hidden and _numeric(cells[pos]) == 0.0:
                         hidden.add(pos)
                         changed = True
             if sum(pos in hidden for pos in present) != 1:
                 continue
+            # Inner cells before the total (listed last), then the smallest non-zero.
             candidates = [
-                (value, pos)
-                for pos in present
+                (i == len(present) - 1, value, pos)
+                for i, pos in enumerate(present)
                 if pos not in hidden and (value := _numeric(cells[pos])) is not None and value > 0
             ]
             if candidates:
-                hidden.add(min(candidates)[1])
+                hidden.add(min(candidates)[2])
                 changed = True
         for pos in list(hidden):
             for dependent in out.count_dependents.get(pos, []):
@@ -172,118 +170,82 @@ def suppress_model(model: SheetModel, min_count: int = DEFAULT_MIN_COUNT) -> She
 # ---------------------------------------------------------------- results
 
 
-def _group_size(group: Mapping[str, Any]) -> Any:
-    return group.get("n", group.get("count"))
-
-
-def _small_group(group: Mapping[str, Any], design: Any, min_count: int) -> bool:
-    """A group with a small count of records, or (rows of events) of events or of people without one."""
-    if is_small_count(_group_size(group), min_count):
-        return True
-    if design not in EVENT_DESIGNS:
-        return False
-    events, total = group.get("events"), group.get("total")
-    if is_small_count(events, min_count):
-        return True
-    people = design in (Design.ONE_SAMPLE_POOLED_SHARE, Design.GROUP_POOLED_SHARES)
-    return people and isinstance(events, int) and isinstance(total, int) and is_small_count(total - events, min_count)
-
-
-def _small_cells(result: Result, min_count: int) -> bool:
-    """True when a categorical result has a cell or level count from 1 to N-1."""
-    values: list[Any] = [_group_size(g) for g in result.groups if isinstance(g, Mapping)]
-    observed: Any = result.extra.get("observed") if isinstance(result.extra, Mapping) else None
-    counts = result.shape.get("counts") if isinstance(result.shape, Mapping) else None
-    if observed is None and isinstance(counts, Mapping):
-        observed = counts.get("observed")
-    if isinstance(observed, Mapping):
-        observed = observed.get("values", observed.get("counts"))
-    if hasattr(observed, "tolist"):
-        observed = observed.tolist()
-    if isinstance(observed, Sequence):
-        for line in observed:
-            values.extend(line if isinstance(line, Sequence) else [line])
-    return any(is_small_count(v, min_count) for v in values)
-
-
-def _is_two_by_two(result: Result) -> bool:
-    if result.test in (Test.FISHER_EXACT, Test.MCNEMAR):
-        return True
-    df = result.df
-    return (
-        result.design in (Design.TWO_CATEGORICAL, Design.PAIRED_CATEGORICAL)
-        and isinstance(df, (int, float))
-        and df == 1
-    )
-
-
-def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Result:
-    """A copy of one result with the numbers that would reveal small counts removed.
+def suppress_results(results: Sequence[Result], min_count: int = DEFAULT_MIN_COUNT) -> list[Result]:
+    """Copies of a run's results with small counts, and the numbers that would reveal them, removed.
 
     Parameters
     ----------
-    result : Result
+    results : sequence of Result
+        All results of one run: a group hidden in one of them is hidden in
+        every other that shows the same column's label.
     min_count : int
 
     Returns
     -------
-    Result
-        Removed values become None; their field names are listed in
-        ``extra["suppressed"]`` so the sheets show them as suppressed, and a
-        plain caution is added when readings are written afterwards.
+    list of Result
+        Hidden counts become ``Hidden`` marks (null in JSON); numbers computed
+        from them become None, and their field names are listed in
+        ``extra["suppressed"]`` so the sheets show them as suppressed; a plain
+        caution is added when readings are written afterwards. See
+        ``share_results`` for the rules by design.
     """
     _check_min_count(min_count)
-    out = copy.deepcopy(result)
-    hidden: set[str] = set()
-    small_group = False
-    for g in out.groups:
-        if not isinstance(g, Mapping) or not _small_group(g, out.design, min_count):
-            continue
-        small_group = True
-        keep = {"label", "n", "count", "normality_test"}
-        for key in list(g):
-            if key not in keep:
-                g[key] = None
-        g["suppressed"] = True
-    if out.design in _CATEGORICAL and _small_cells(out, min_count):
-        hidden.add("estimate")
-        if _is_two_by_two(out):
-            hidden |= {"effect", "statistic", "p_value", "p_adjusted"}
-        out.followups = [f for f in out.followups if f.test != Test.ADJUSTED_RESIDUAL]
-    elif out.design in _GROUPED_CONTINUOUS and small_group:
-        hidden.add("estimate")
-    elif out.design in EVENT_DESIGNS and small_group:
-        # A group's share or rate with its total gives its events back; so do the pooled
-        # estimate and its effect with the other groups' figures.
-        hidden |= {"estimate", "effect"}
-        out.followups = []
-    elif out.design in _OVER_TIME and _suppress_periods(out, min_count):
-        hidden.add("periods")
-    if "estimate" in hidden and out.estimate is not None:
-        out.estimate = replace(out.estimate, value=None, ci_low=None, ci_high=None)
-    if "effect" in hidden and out.effect is not None:
-        out.effect = replace(out.effect, value=None, ci_low=None, ci_high=None)
-    if "statistic" in hidden:
-        out.statistic = None
-    if "p_value" in hidden:
-        out.p_value = None
-    if "p_adjusted" in hidden:
-        out.p_adjusted = None
-    _hide_counts(out, min_count)
-    if hidden or small_group:
-        previous = out.extra.get("suppressed", []) if isinstance(out.extra, Mapping) else []
-        out.extra = dict(out.extra or {})
-        out.extra["suppressed"] = sorted(
-            set(previous) | hidden | ({"groups"} if small_group else set())
-        )
-        caution = coded(Note.SHARE_HIDDEN, floor=min_count)
-        if caution not in out.notes:  # keeps a second pass idempotent
-            out.notes = list(out.notes) + [caution]
+    out = [copy.deepcopy(result) for result in results]
+    hidden_fields = protect_results(out, min_count)
+    for index, result in enumerate(out):
+        fields = hidden_fields.get(index)
+        if fields is None:
+            fields = _without_layout(result, min_count)
+        _remove(result, fields, min_count)
     return out
 
 
+def suppress_result(result: Result, min_count: int = DEFAULT_MIN_COUNT) -> Result:
+    """One result through ``suppress_results`` (a copy; the input is not changed)."""
+    return suppress_results([result], min_count)[0]
+
+
+def _without_layout(result: Result, min_count: int) -> set[str]:
+    """Designs without linked counts (one sample, pairs, two measures): small groups lose their summaries."""
+    hidden: set[str] = set()
+    for group in result.groups:
+        if isinstance(group, MutableMapping) and is_small_count(group.get("n", group.get("count")), min_count):
+            hide_group(group)
+            hidden.add("groups")
+    if hidden and result.design is Design.PAIRED_CONTINUOUS:
+        hidden.add("estimate")  # the mean difference of a handful of pairs
+    return hidden
+
+
+def _remove(result: Result, hidden: set[str], min_count: int) -> None:
+    """Clear the hidden fields, hide every remaining small count, and note that numbers are hidden."""
+    if "estimate" in hidden and result.estimate is not None:
+        result.estimate = replace(result.estimate, value=None, ci_low=None, ci_high=None)
+    if "effect" in hidden and result.effect is not None:
+        result.effect = replace(result.effect, value=None, ci_low=None, ci_high=None)
+    for name in ("statistic", "p_value", "p_adjusted"):
+        if name in hidden:
+            setattr(result, name, None)
+    if "effect" in hidden and isinstance(result.extra, dict):
+        for key in [k for k in result.extra if k.startswith(("omega", "odds", "risk"))]:
+            result.extra[key] = None
+    pairs = result.extra.get("incomplete_pairs") if isinstance(result.extra, Mapping) else None
+    if isinstance(pairs, (list, tuple)):
+        # The keys of incomplete pairs are record-level data; sharing mode keeps only their number.
+        result.extra["incomplete_pairs"] = len(pairs)
+    _hide_counts(result, min_count)
+    if hidden or holds_hidden(result):
+        previous = result.extra.get("suppressed", []) if isinstance(result.extra, Mapping) else []
+        result.extra = dict(result.extra or {})
+        result.extra["suppressed"] = sorted(set(previous) | hidden)
+        caution = coded(Note.SHARE_HIDDEN, floor=min_count)
+        if caution not in result.notes:  # keeps a second pass idempotent
+            result.notes = list(result.notes) + [caution]
+
+
 # Keys whose values are counts of records, wherever they sit in a result's groups, tables and series.
-COUNT_KEYS = frozenset({"n", "count", "events", "total", "n_pairs", "observed", "counts"})
+COUNT_KEYS = frozenset({"n", "count", "events", "total", "n_pairs", "observed", "counts", "n_outliers",
+                        "discordant_b", "discordant_c", "incomplete_pairs"})
 
 
 def _hidden_count(value: Any, min_count: int) -> Any:
@@ -323,51 +285,8 @@ def _hide_counts(result: Result, min_count: int) -> None:
     result.notes = [_hide_facts(n, min_count) for n in result.notes]
     if result.skipped is not None:
         result.skipped = _hide_facts(result.skipped, min_count)
-
-
-def _small_period(point: Any, design: Design, min_count: int) -> bool:
-    """A period whose n, or (for shares) whose count of either level, is a small count."""
-    if is_small_count(point.n, min_count):
-        return True
-    if design is Design.PERIOD_SHARES and point.value is not None and point.n:
-        count = round(point.value * point.n)
-        return is_small_count(count, min_count) or is_small_count(point.n - count, min_count)
-    return False
-
-
-def _suppress_periods(result: Result, min_count: int) -> bool:
-    """Hide what reveals a small count in a series over time; True when anything was hidden.
-
-    A period's share (or mean) and interval are hidden with its n, and so are its
-    p-chart limits (computed from n); for shares, a period with a small count of
-    either level is hidden too, as a small cell of a table is. A latest-period
-    comparison that involves such a period loses its estimate and, for shares
-    (a 2 x 2 table), its statistic and p-values. The trend and the flags are kept:
-    they are functions of the whole series.
-    """
-    small = {p.period for p in result.periods or [] if _small_period(p, result.design, min_count)}
-    if not small:
-        return False
-    result.periods = [
-        replace(p, n=_hidden_count(p.n, min_count), value=None, ci_low=None, ci_high=None, lower_limit=None,
-                upper_limit=None)
-        if p.period in small else p
-        for p in result.periods or []
-    ]
-    for g in result.groups:
-        if isinstance(g, dict) and str(g.get("label")) in small:
-            for key in list(g):
-                if key not in ("label", "n"):
-                    g[key] = None
-            g["suppressed"] = True
-    shares = result.design is Design.PERIOD_SHARES
-    result.followups = [
-        replace(f, estimate=None, statistic=None if shares else f.statistic,
-                p_value=None if shares else f.p_value, p_adjusted=None if shares else f.p_adjusted)
-        if any(level in small for level in f.levels) else f
-        for f in result.followups
-    ]
-    return True
+    if result.periods:
+        result.periods = [replace(p, n=_hidden_count(p.n, min_count)) for p in result.periods]
 
 
 # ---------------------------------------------------------------- entry point
@@ -408,17 +327,15 @@ def suppress(items: Any, min_count: int = DEFAULT_MIN_COUNT) -> Any:
         return suppress_model(items, min_count)
     if isinstance(items, Result):
         return suppress_result(items, min_count)
-    out: list[SheetModel | Result] = []
+    items = list(items)
     for item in items:
-        if isinstance(item, SheetModel):
-            out.append(suppress_model(item, min_count))
-        elif isinstance(item, Result):
-            out.append(suppress_result(item, min_count))
-        else:
+        if not isinstance(item, (SheetModel, Result)):
             from ..errors import OptionError
 
             raise OptionError(refusals.cannot_share(type(item).__name__))
-    return out
+    # Results are protected together, so one group is hidden alike in every analysis.
+    results = iter(suppress_results([item for item in items if isinstance(item, Result)], min_count))
+    return [suppress_model(item, min_count) if isinstance(item, SheetModel) else next(results) for item in items]
 
 
 __all__ = [
@@ -428,4 +345,5 @@ __all__ = [
     "suppress",
     "suppress_model",
     "suppress_result",
+    "suppress_results",
 ]

@@ -40,30 +40,35 @@ class Derived(float):
 
 
 class Hidden:
-    """A small count hidden by sharing mode, wherever a count stood (a fact, a group, a cell).
+    """A count hidden by sharing mode, wherever a count stood (a fact, a group, a cell).
 
-    Words write it as "fewer than N", sheets as "<N"; JSON writes null.
+    ``small`` is True for a count hidden because it is below the floor: words
+    write it as "fewer than N", sheets as "<N". A count hidden only so that a
+    small one cannot be worked out from it (complementary suppression) has
+    ``small=False``: words write "a hidden number of", sheets "suppressed".
+    JSON writes null for both.
     """
 
-    __slots__ = ("floor",)
+    __slots__ = ("floor", "small")
 
-    def __init__(self, floor: int) -> None:
+    def __init__(self, floor: int, small: bool = True) -> None:
         self.floor = floor
+        self.small = small
 
     def __format__(self, spec: str) -> str:
-        return f"fewer than {self.floor}"
+        return str(self)
 
     def __str__(self) -> str:
-        return f"fewer than {self.floor}"
+        return f"fewer than {self.floor}" if self.small else "a hidden number of"
 
     def __repr__(self) -> str:
-        return f"Hidden({self.floor})"
+        return f"Hidden({self.floor})" if self.small else f"Hidden({self.floor}, small=False)"
 
     def __eq__(self, other: object) -> bool:
-        return isinstance(other, Hidden) and other.floor == self.floor
+        return isinstance(other, Hidden) and (other.floor, other.small) == (self.floor, self.small)
 
     def __hash__(self) -> int:
-        return hash(("hidden", self.floor))
+        return hash(("hidden", self.floor, self.small))
 
 
 class Skip(Word):

@@ -92,7 +92,7 @@ def positive(count: Any) -> bool:
 def below(count: Any, limit: int) -> bool:
     """A count above zero and under ``limit``; a hidden count is, whenever the limit reaches its floor."""
     if isinstance(count, Hidden):
-        return limit >= count.floor
+        return count.small and limit >= count.floor  # a count hidden to protect another may be large
     return isinstance(count, int) and 0 < count < limit
 
 

@@ -48,6 +48,17 @@ def cells_noted(count: str) -> str:
     return f"{cells} skipped, converted or merged while reading; each cell address links to the cell."
 
 
+def cells_noted_shared(count: str) -> str:
+    """The notes sheet's first line in sharing mode, where notes are counted, not listed cell by cell."""
+    if count == "0":
+        return "No cell was skipped, converted or merged while reading."
+    cells = "1 cell was" if count == "1" else f"{count} cells were"
+    return (
+        f"{cells} skipped, converted or merged while reading. Sharing mode counts them by column and "
+        "kind, without cell addresses or values (those are record-level data)."
+    )
+
+
 def merged_into(kept: str) -> str:
     return f"merged into {kept!r}"
 

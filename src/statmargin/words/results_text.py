@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from ..vocabulary import RowsToUse
 from .numbers import fmt_percent
 from .roles_words import SETTING_LABELS
@@ -42,8 +44,11 @@ def run_line(*, workbook: str, sheet: str, rows_read: int, when: str, version: s
     )
 
 
-def hidden_rows_note(hidden: int | None, rows: RowsToUse) -> str:
-    """What the run line adds about rows a filter or the user hid ("" when there were none)."""
+def hidden_rows_note(hidden: Any, rows: RowsToUse) -> str:
+    """What the run line adds about rows a filter or the user hid ("" when there were none).
+
+    ``hidden`` is a count, None (not recorded) or, in sharing mode, a hidden small count.
+    """
     if rows is RowsToUse.VISIBLE:
         if hidden is None:
             return "; this file does not record which rows are hidden, so all rows were used"
@@ -56,7 +61,7 @@ def hidden_rows_note(hidden: int | None, rows: RowsToUse) -> str:
     )
 
 
-def hidden_rows_line(hidden: int | None, rows: RowsToUse) -> str:
+def hidden_rows_line(hidden: Any, rows: RowsToUse) -> str:
     """The same as :func:`hidden_rows_note`, as a sentence of its own for the terminal ("" when there is nothing to say)."""
     if rows is RowsToUse.VISIBLE:
         if hidden is None:
@@ -73,7 +78,7 @@ def hidden_rows_line(hidden: int | None, rows: RowsToUse) -> str:
     )
 
 
-def _rows(n: int) -> str:
+def _rows(n: Any) -> str:
     return "row" if n == 1 else "rows"
 
 

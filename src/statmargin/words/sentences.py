@@ -44,10 +44,15 @@ def _too_few_values(f: Facts) -> str:
 
 
 def _group_of_one(f: Facts) -> str:
-    size = "very few values" if isinstance(f["n"], Hidden) else "a single value"
+    if isinstance(f["n"], Hidden):
+        # Sharing mode: one cell address, or the minimum of 2, would say the group has one record.
+        return (
+            f"Group {f['level']!r} of {f['by']} has too few values to compare (sharing mode hides how many). "
+            "A typing slip in a label often makes such a group: correct the label, or leave its rows out."
+        )
     where = f" (cell {f['cell']})" if f.get("cell") else ""
     return (
-        f"Group {f['level']!r} of {f['by']} has {size}{where}; each group needs at least 2. "
+        f"Group {f['level']!r} of {f['by']} has a single value{where}; each group needs at least 2. "
         "A typing slip in that cell often makes such a group: correct the label, or leave the row out."
     )
 

@@ -7,6 +7,8 @@ from __future__ import annotations
 SHAPE_INTRO = "How each test was chosen: the data's shape, spread and counts, with charts."
 SHAPE_NO_ANALYSES = "No analyses were run."
 EXPECTED_IF_UNRELATED = "Expected counts if the two were unrelated"
+# Sharing mode: the 100% bars are drawn from a copy of the counts in which a row with a hidden count is left empty.
+CHART_ROWS_SHOWN = "Counts drawn in the chart (a row with a hidden count is left out)"
 
 
 def shares_chart_title(outcome: str) -> str:
