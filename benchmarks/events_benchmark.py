@@ -75,11 +75,12 @@ def _run(job: str, rows: int) -> dict:
             "tests": [a.result.test for a in answers]}
 
 
-def _spawn(job: str, rows: int, src: str | None) -> dict:
+def _spawn(job: str, rows: int, src: str | None, script: str = __file__) -> dict:
+    """Run one job of ``script`` (this file by default) in a fresh process; its last line of JSON."""
     env = dict(os.environ)
     if src:
         env["PYTHONPATH"] = src
-    out = subprocess.run([sys.executable, __file__, "--job", job, "--rows", str(rows)], capture_output=True,
+    out = subprocess.run([sys.executable, script, "--job", job, "--rows", str(rows)], capture_output=True,
                          text=True, check=True, env=env)
     return json.loads(out.stdout.strip().splitlines()[-1])
 

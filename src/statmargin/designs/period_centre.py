@@ -49,6 +49,22 @@ def choose_centre(question: Question, numbers: np.ndarray, positions: np.ndarray
     return centre, coded(Reason.PERIOD_CENTRE, centre=centre, cause="shape", departs=shape.departs, **facts)
 
 
+def two_values(values: np.ndarray) -> list[float] | None:
+    """[low, high] when every value is one of two numbers (a 0/1 column read as numbers), else None.
+
+    Examples
+    --------
+    >>> two_values(np.array([0.0, 1.0, 1.0])), two_values(np.array([0.0, 1.0, 2.0]))
+    ([0.0, 1.0], None)
+    """
+    if values.size == 0:
+        return None
+    low, high = float(values.min()), float(values.max())
+    if low == high or not bool(np.all((values == low) | (values == high))):
+        return None
+    return [low, high]
+
+
 class PeriodCentre(DesignSpec):
     design = Design.PERIOD_CENTRE
     tests = (Test.MANN_KENDALL, Test.MANN_KENDALL)
@@ -71,6 +87,10 @@ class PeriodCentre(DesignSpec):
         prepared.n_excluded = question.left_out(rows.used)
         prepared.summaries = [{"label": p.period, "n": p.n, centre: p.value} for p in analysis.points]
         prepared.extra.update(centre=centre, why_centre=why)
+        ends = two_values(numbers[rows.used])
+        if ends is not None:
+            # Each period's mean is then a share of the higher value: sharing mode treats it as one.
+            prepared.extra["two_values"] = ends
         period_common.fill_prepared(prepared, rows, analysis, question)
         prepared.extra["comparisons"] = period_common.compare_latest(
             question, rows, period_common.outcome_choice(question)

@@ -128,7 +128,7 @@ def decorate(result: Result, prepared: Prepared) -> None:
     comparisons: list[tuple[PeriodComparison, Followup]] = prepared.extra.get("comparisons", [])
     result.followups = [f for _, f in comparisons]
     for key in ("latest", "previous", "year_earlier", "partial", "grain", "period_column", "chart",
-                "centre", "level", "group"):
+                "centre", "level", "group", "two_values"):
         value = prepared.extra.get(key)
         if value is not None:
             result.extra[key] = value

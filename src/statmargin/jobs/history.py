@@ -36,7 +36,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable, Mapping, Sequence
-from dataclasses import astuple, dataclass, fields
+from dataclasses import astuple, dataclass, fields, replace
 from typing import Any
 
 from ..results import Followup, Result
@@ -493,8 +493,13 @@ class RunChanges:
     flags: Mapping[str, SinceLastRun]
 
 
+def without_numbers(record: KeyResult) -> KeyResult:
+    """A record with its p-values, estimate, interval and direction removed (which analysis, when and how stay)."""
+    return replace(record, p_value=None, p_adjusted=None, estimate=None, ci_low=None, ci_high=None, direction=None)
+
+
 def track(results: Sequence[Result], earlier: Sequence[KeyResult], run: str, alpha: float,
-          keep: int = KEEP_RUNS) -> tuple[RunChanges, list[list[Any]]]:
+          keep: int = KEEP_RUNS, *, share: bool = False) -> tuple[RunChanges, list[list[Any]]]:
     """Compare a run with the last one in the history, set each result's flag, and give the new history rows.
 
     Parameters
@@ -509,6 +514,13 @@ def track(results: Sequence[Result], earlier: Sequence[KeyResult], run: str, alp
         This run's significance level.
     keep : int
         Runs the history keeps, this one included.
+    share : bool
+        Sharing mode: this run's results arrive suppressed; the earlier runs'
+        records lose their numbers in the rows written (``without_numbers``),
+        since a run without sharing mode kept estimates and p-values that could
+        give a small count back and the hidden sheet travels with the file.
+        Flags are worked out before that, and the next run compares with this
+        one only, so no flag is lost.
 
     Returns
     -------
@@ -520,7 +532,8 @@ def track(results: Sequence[Result], earlier: Sequence[KeyResult], run: str, alp
     flags = compare_runs(previous, current)
     apply_since_last_run(results, flags)
     previous_run = earlier[-1].run if earlier else None
-    return RunChanges(previous_run, flags), history_rows(earlier, current, keep)
+    kept = [without_numbers(record) for record in earlier] if share else list(earlier)
+    return RunChanges(previous_run, flags), history_rows(kept, current, keep)
 
 
 def history_sheet(rows: Sequence[Sequence[Any]]) -> Any:

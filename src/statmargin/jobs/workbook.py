@@ -476,12 +476,13 @@ def _since_last_run(results: list[Any], earlier: list[Any], now: datetime, conte
     """Flag each result against the last run, put the changes at the top of the sheet; the new history sheet.
 
     In sharing mode the results arrive suppressed, so the history keeps the
-    numbers as the sheets show them and the flags are worked out from those.
+    numbers as the sheets show them and the flags are worked out from those;
+    earlier runs' numbers are not written back (``history.track``).
     """
     from . import history
 
     stamp = now.strftime("%Y-%m-%dT%H:%M:%S.%fZ")  # to the microsecond: two runs in one second stay apart
-    changes, rows = history.track(results, earlier, stamp, context.settings.alpha)
+    changes, rows = history.track(results, earlier, stamp, context.settings.alpha, share=context.share_mode)
     context.changes = history.change_lines(results, changes)
     return history.history_sheet(rows)
 

@@ -1,4 +1,4 @@
-"""Sharing mode: hide small counts, and whatever would reveal them, on the tool's sheets.
+"""Sharing mode: hide small counts, and whatever would reveal them, in every output.
 
 Default threshold: counts from 1 to 10 are hidden (``DEFAULT_MIN_COUNT = 11``).
 This follows a common public-health practice of not publishing cells under 11
@@ -6,42 +6,44 @@ This follows a common public-health practice of not publishing cells under 11
 suppression policy, recalled from memory); many agencies use 5 instead, so the
 threshold is a setting. It is common practice, not a guarantee of anonymity.
 
-What is hidden (decisions):
+Results first (``suppress_results``, before any sentence is made), so the
+JSON, the terminal summary and the sheets carry the same hidden values; the
+rules by design are in ``share_results`` and the audit in ``share_audit``:
 
-* every cell marked as a count (``Cell.is_count``) holding 1 .. N-1; zeros stay
-  (they are shown by most such policies and reveal no person), except in a set
-  of counts with a hidden member, where a zero beside it tells that the hidden
-  count is the whole of its row (every inspection of a small district passed);
-* complementary cells: in every set of counts linked by a shown total
-  (``SheetModel.count_sets``: a row or column with its total, histogram bins
-  with the group's n), a single hidden member could be recovered by
-  subtraction, so the smallest other non-zero member is hidden too, repeated
-  until no set has exactly one hidden member;
-* everything listed as revealing a hidden count (``SheetModel.count_dependents``):
-  a group's share, mean, SD, median, quartiles, min/max, skewness, kurtosis,
-  normality p and outlier count when the group's n is hidden, and expected
-  counts when a margin is hidden;
-* on the results themselves (``suppress_result``, run before readings are
-  written): the summaries of groups with n < N; the difference estimate of a
-  continuous comparison with such a group (with the other group's mean it
-  would give the hidden mean back); the estimate (a share or a difference of
-  shares) of a categorical analysis with a small cell; and for a 2 x 2 table
-  with a small cell also its effect, statistic and p-values (with the margins,
-  any of them would give the cell back); adjusted-residual follow-ups of
-  tables with a small cell are dropped; in a series over time, each period with
-  a small n (or, for shares, a small count of either level) loses its value,
-  interval and limits, and a latest-period comparison with it its estimate
-  (and, for shares, its statistic and p-values). Standardized effects, statistics and
-  p-values of larger tables and of continuous comparisons are kept: they are
-  functions of the whole data that do not single out a cell or a group mean.
+* every count from 1 to N-1 is hidden (``vocabulary.codes.Hidden``, worded
+  "fewer than N", shown "<N", null in JSON); zeros stay, except beside a hidden
+  total ("0 failed" beside a hidden number of inspections says all passed);
+* a result's counts are laid out as the sums they form (cells, row and column
+  totals, groups adding up to n, a series' periods and its trend test's
+  weighted sum), and while any hidden count can be worked out from the shown
+  ones by adding and subtracting, the smallest shown count beside it is hidden
+  too (complementary cells, shown "suppressed"); a group hidden in one analysis
+  is hidden in every analysis of the run;
+* numbers computed from a hidden count go with it: shares, rates, means and
+  every other summary of a hidden group (and of a group whose values are all at
+  two ends, whose mean is a share), intervals, control limits, expected counts
+  (with any hidden total), estimates naming a hidden group, follow-ups and cell
+  residuals involving one;
+* the statistic, p-values and standardized effect of a table go when its hidden
+  counts keep fewer than two free directions (a 2 x 2 table with a hidden cell),
+  since any one of them would then pin the counts down; otherwise they stay, as
+  do a series' trend test (its sum is in the audit) and the statistics of
+  continuous comparisons: functions of the whole data that single out no cell.
 
-Everything is hidden on values, before any sentence exists: counts in the
-results (groups, tables, ``n``) and in the facts of reason and caution codes
-become ``vocabulary.codes.Hidden`` (worded "fewer than N", shown "<N", written
-to JSON as null), and numbers derived from counts that could give one back
-(``Derived``, such as the smallest expected count) are dropped. No text is
-rewritten afterwards, so the JSON, the terminal summary and the sheets carry
-the same suppressed values.
+Then the sheets (``suppress_model``), for what only a sheet shows (histogram
+bins, the data notes' counts): counts marked ``Cell.is_count`` from 1 to N-1
+are hidden, a set of counts linked by a shown total (``SheetModel.count_sets``,
+total last) never keeps exactly one hidden member, zeros beside a hidden total
+go, and cells listed in ``SheetModel.count_dependents`` go with their count.
+
+Also hidden: small counts of rows left out of an analysis, of rows hidden by a
+filter and of data notes (the notes are counted, not listed, so no cell
+address or value is written); the reason a question could not be run names no
+cell and no minimum when it would say a group has one record. Not protected:
+rows read less rows used gives a small count of rows left out back (these
+count missing values, not members of a group; hiding n for every analysis
+with a few blanks would cost far more); bounds from non-negativity, and
+nonlinear whole-series diagnostics (dispersion, autocorrelation).
 
 The data sheet itself is not touched and still holds record-level data; the
 results header says so.
@@ -53,7 +55,7 @@ import copy
 import math
 from collections.abc import Iterable, Mapping, MutableMapping, Sequence
 from dataclasses import replace
-from typing import Any, overload
+from typing import Any, cast, overload
 
 from ..io.addresses import column_index
 from ..results import Result
@@ -261,16 +263,24 @@ def _hide_in(value: Any, min_count: int, *, counting: bool) -> Any:
     return _hidden_count(value, min_count) if counting else value
 
 
+def _hide_fact(value: Any, min_count: int) -> Any:
+    """A fact with small counts hidden and numbers derived from counts dropped, inside lists and tuples too."""
+    if isinstance(value, Derived):
+        return None
+    if isinstance(value, Count):
+        return _hidden_count(int(value), min_count)
+    if isinstance(value, (list, tuple)):
+        return type(value)(_hide_fact(v, min_count) for v in value)
+    return value
+
+
 def _hide_facts(item: Coded, min_count: int) -> Coded:
     """A code with small counts hidden and facts derived from counts dropped."""
-    facts: dict[str, Any] = {}
-    for key, value in item.facts.items():
-        if isinstance(value, Derived):
-            facts[key] = None
-        elif isinstance(value, Count):
-            facts[key] = _hidden_count(int(value), min_count)
-        else:
-            facts[key] = value
+    facts = {key: _hide_fact(value, min_count) for key, value in item.facts.items()}
+    if item.code is Note.PERIOD_FEW_ROWS:
+        # Listing the hidden periods under "fewer than 10 rows" would narrow their hidden n (one not
+        # listed would have exactly 10 under the default of 11): only periods with a shown n are listed.
+        facts["periods"] = [(label, n) for label, n in facts.get("periods", []) if not isinstance(n, Hidden)]
     return Coded(item.code, facts)
 
 
@@ -282,11 +292,21 @@ def _hide_counts(result: Result, min_count: int) -> None:
     result.shape = _hide_in(result.shape, min_count, counting=False)
     result.extra = _hide_in(result.extra, min_count, counting=False)
     result.reasons = [_hide_facts(r, min_count) for r in result.reasons]
-    result.notes = [_hide_facts(n, min_count) for n in result.notes]
+    result.notes = [note for n in result.notes if _worth_saying(note := _hide_facts(n, min_count))]
     if result.skipped is not None:
         result.skipped = _hide_facts(result.skipped, min_count)
     if result.periods:
-        result.periods = [replace(p, n=_hidden_count(p.n, min_count)) for p in result.periods]
+        # A hidden n loses its "few rows" flag too: the flag's own limit would narrow the hidden count.
+        points = []
+        for point in result.periods:
+            n: Any = _hidden_count(point.n, min_count)
+            points.append(replace(point, n=cast(int, n), few=False) if isinstance(n, Hidden) else point)
+        result.periods = points
+
+
+def _worth_saying(note: Coded) -> bool:
+    """A note left with nothing to list (every period it named is hidden) is dropped."""
+    return not (note.code is Note.PERIOD_FEW_ROWS and not note.facts.get("periods"))
 
 
 # ---------------------------------------------------------------- entry point

@@ -28,7 +28,10 @@ callers hide those numbers unless ``free >= 2``.
 Notes
 -----
 Written here because the general-purpose libraries have no small-cell
-suppression; the null space comes from ``scipy.linalg.null_space`` (SVD).
+suppression. Sums with one or two hidden members are solved first by sparse
+elimination; what remains is a small dense system whose row space comes from
+SciPy's pivoted QR (``scipy.linalg.qr``); the test suite checks both against
+numpy's SVD rank on random tables.
 Complementary suppression and the check for exact disclosure by linear
 relations are the textbook approach (Hundepool et al., *Statistical
 Disclosure Control*, Wiley 2012, ch. 4, doi:10.1002/9781118348239); bounds
@@ -41,7 +44,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.linalg import null_space
+from scipy.linalg import qr
 
 _TOL = 1e-9
 
@@ -74,16 +77,32 @@ class CountWeb:
         """The members add up to the total."""
         self.lines.append((tuple(members), total))
 
-    def matrix(self) -> np.ndarray:
-        """One row per sum (members +1, total -1) and per equation."""
-        rows = np.zeros((len(self.lines) + len(self.equations), len(self.values)))
-        for r, (members, total) in enumerate(self.lines):
-            rows[r, list(members)] = 1.0
-            rows[r, total] -= 1.0
-        for r, coefficients in enumerate(self.equations, start=len(self.lines)):
-            for index, coefficient in coefficients.items():
-                rows[r, index] += coefficient
-        return rows
+    def rows(self) -> list[dict[int, float]]:
+        """One row per sum (members +1, total -1) and per equation, as {count index: coefficient}."""
+        out: list[dict[int, float]] = []
+        for members, total in self.lines:
+            row = dict.fromkeys(members, 1.0)
+            row[total] = row.get(total, 0.0) - 1.0
+            out.append(row)
+        out.extend(dict(coefficients) for coefficients in self.equations)
+        return out
+
+    def matrix(self, columns: Sequence[int] | None = None) -> np.ndarray:
+        """The rows as a dense matrix, over all counts or only ``columns`` (rows touching none are dropped).
+
+        Only the hidden counts' columns are ever needed, so a long series never
+        makes a matrix over all of its counts.
+        """
+        rows = self.rows()
+        columns = list(range(len(self.values))) if columns is None else list(columns)
+        position = {index: j for j, index in enumerate(columns)}
+        touching = [row for row in rows if any(i in position for i in row)] if columns else []
+        out = np.zeros((len(touching), len(columns)))
+        for r, row in enumerate(touching):
+            for index, coefficient in row.items():
+                if index in position:
+                    out[r, position[index]] += coefficient
+        return out
 
 
 @dataclass(frozen=True)
@@ -99,13 +118,12 @@ class Protection:
         return self.hidden - self.small
 
 
-def exposed(matrix: np.ndarray, hidden: Sequence[int]) -> tuple[list[int], int]:
+def exposed(web: CountWeb, hidden: Sequence[int]) -> tuple[list[int], int]:
     """The hidden counts the shown ones determine, and the null space's dimension.
 
     Parameters
     ----------
-    matrix : numpy.ndarray
-        ``CountWeb.matrix()``.
+    web : CountWeb
     hidden : sequence of int
         Indices of hidden counts.
 
@@ -126,21 +144,103 @@ def exposed(matrix: np.ndarray, hidden: Sequence[int]) -> tuple[list[int], int]:
     >>> n = web.add(38, fixed=True)
     >>> for members, total in (((a, b), r1), ((c, d), r2), ((a, c), c1), ((b, d), c2), ((r1, r2), n)):
     ...     web.line(members, total)
-    >>> exposed(web.matrix(), [a])
+    >>> exposed(web, [a])
     ([0], 0)
-    >>> exposed(web.matrix(), [a, b, c, d])
+    >>> exposed(web, [a, b, c, d])
     ([], 1)
     """
     hidden = list(hidden)
     if not hidden:
         return [], 0
-    sub = matrix[:, hidden]
-    sub = sub[np.any(np.abs(sub) > _TOL, axis=1)]
-    basis = np.eye(len(hidden)) if sub.shape[0] == 0 else null_space(sub)
-    if basis.shape[1] == 0:
-        return hidden, 0
-    fixed_ones = [h for h, row in zip(hidden, basis, strict=True) if np.max(np.abs(row)) < 1e-7]
-    return fixed_ones, int(basis.shape[1])
+    rows, via = _eliminate(web, hidden)
+    rest = sorted({v for row in rows for v in row} | {h for h in hidden if h not in via})
+    position = {v: j for j, v in enumerate(rest)}
+    sub = np.zeros((len(rows), len(rest)))
+    for r, row in enumerate(rows):
+        for v, c in row.items():
+            sub[r, position[v]] = c
+    span = _row_space(sub) if sub.size else np.zeros((len(rest), 0))
+    # Each hidden count as a combination of the counts left: fixed when that combination lies in
+    # the row space of the sums (it is then a combination of published numbers).
+    combinations = np.zeros((len(hidden), len(rest)))
+    for k, h in enumerate(hidden):
+        for v, c in (via[h].items() if h in via else [(h, 1.0)]):
+            combinations[k, position[v]] += c
+    outside = combinations - (combinations @ span) @ span.T
+    moves = np.linalg.norm(outside, axis=1) if len(rest) else np.zeros(len(hidden))
+    return [h for h, move in zip(hidden, moves, strict=True) if move < 1e-7], len(rest) - span.shape[1]
+
+
+def _eliminate(web: CountWeb, hidden: Sequence[int]) -> tuple[list[dict[int, float]], dict[int, dict[int, float]]]:
+    """Sparse elimination first: sums with one or two hidden members are solved before any dense algebra.
+
+    A sum whose only hidden member is one count fixes it; a sum with two gives
+    one as a multiple of the other (plus a known number). Substituting these
+    leaves a small dense system (on a long series, the few sums across all
+    periods) whose null space decides the rest. Returns the remaining rows and,
+    for every eliminated count, its expression in the counts that remain (the
+    known part left out; an empty expression is a fixed count). The null space's
+    dimension does not change: each step removes one count and one independent
+    row.
+    """
+    keep = set(hidden)
+    rows: dict[int, dict[int, float]] = {}
+    holding: dict[int, set[int]] = {}
+    for r, row in enumerate(web.rows()):
+        part = {v: c for v, c in row.items() if v in keep and abs(c) > _TOL}
+        if part:
+            rows[r] = part
+            for v in part:
+                holding.setdefault(v, set()).add(r)
+    via: dict[int, dict[int, float]] = {}
+    used_in: dict[int, set[int]] = {}  # count -> eliminated counts whose expression holds it
+    queue = [r for r, row in rows.items() if len(row) <= 2]
+    while queue:
+        r = queue.pop()
+        current = rows.get(r)
+        if current is None or len(current) > 2:
+            continue
+        del rows[r]
+        for v in current:
+            holding[v].discard(r)
+        if not current:
+            continue
+        pivot, *others = sorted(current, key=lambda v: (len(holding.get(v, ())), v))
+        expression = {u: -current[u] / current[pivot] for u in others}  # pivot = expression + a known number
+        for target in [pivot, *used_in.pop(pivot, set())]:
+            base = via.get(target, {pivot: 1.0}) if target != pivot else {pivot: 1.0}
+            factor = base.pop(pivot, 0.0)
+            for u, c in expression.items():
+                base[u] = base.get(u, 0.0) + factor * c
+                used_in.setdefault(u, set()).add(target)
+            via[target] = {u: c for u, c in base.items() if abs(c) > _TOL}
+        for other in list(holding.pop(pivot, set())):
+            line = rows[other]
+            factor = line.pop(pivot)
+            for u, c in expression.items():
+                line[u] = line.get(u, 0.0) + factor * c
+                holding.setdefault(u, set()).add(other)
+            for u in [u for u, c in line.items() if abs(c) <= _TOL]:
+                del line[u]
+                holding[u].discard(other)
+            if len(line) <= 2:
+                queue.append(other)
+    return list(rows.values()), via
+
+
+def _row_space(matrix: np.ndarray) -> np.ndarray:
+    """An orthonormal basis (as columns) of the row space, from a QR decomposition with column pivoting.
+
+    Rows are scaled to unit length first (the row space does not change); a
+    direction counts where its diagonal entry of R is above 1e-10 of the
+    largest. SciPy's pivoted QR (LAPACK geqp3) reveals the rank of these small
+    integer systems reliably; the test suite checks it against numpy's SVD rank.
+    """
+    scaled = matrix / np.linalg.norm(matrix, axis=1, keepdims=True)
+    q, r, _ = qr(scaled.T, mode="economic", pivoting=True)
+    diagonal = np.abs(np.diag(r))
+    rank = int(np.sum(diagonal > 1e-10 * max(float(diagonal[0]), 1.0))) if diagonal.size else 0
+    return np.asarray(q[:, :rank])
 
 
 def protect(web: CountWeb, small: Iterable[int], also: Iterable[int] = ()) -> Protection:
@@ -172,14 +272,13 @@ def protect(web: CountWeb, small: Iterable[int], also: Iterable[int] = ()) -> Pr
     """
     small_set = frozenset(small)
     hidden = set(small_set) | set(also)
-    matrix = web.matrix()
     sums_of = _sums_of(web)
     free = 0
     while True:
         hidden |= _zeros_beside_hidden_totals(web, hidden)
         if not hidden:
             return Protection(small_set, frozenset(), 0)
-        determined, free = exposed(matrix, sorted(hidden))
+        determined, free = exposed(web, sorted(hidden))
         if not determined:
             break
         chosen = _complements(web, determined, sums_of, hidden)

@@ -151,7 +151,7 @@ def layout(result: Result) -> Layout | None:
         return _levels_layout(result)
     if result.design is Design.ONE_SAMPLE_POOLED_SHARE:
         return _pooled_share_layout(result)
-    if result.design is Design.PERIOD_SHARES:
+    if result.design is Design.PERIOD_SHARES or _mean_of_two_values(result):
         return _period_shares_layout(result)
     if result.design in GROUP_LINES:
         return _group_line_layout(result)
@@ -339,6 +339,10 @@ def _table_layout(result: Result) -> Layout | None:
             _expected_hidden(res, floor)
         _write_margins(res, lay, protection, floor, row_totals, col_totals)
         out = _whole_table(res, protection)
+        if hidden and n_rows == 2 and n_cols == 2:
+            # A 2 x 2 table's p-value (Fisher's or McNemar's), its odds ratio and its difference of
+            # shares are different functions of the cells: together they pin the cells down.
+            out |= set(WHOLE_TABLE)
         if hidden and (paired or _estimate_names_hidden(res, hidden_rows, True)):
             out.add("estimate")
         if hidden:
@@ -558,6 +562,23 @@ def _hide_points(result: Result, hidden_labels: set[str], lay: Layout, protectio
     result.periods = points
 
 
+def _mean_of_two_values(result: Result) -> bool:
+    """A series of means of a column holding two values only: each mean is a share, laid out as one."""
+    extra = result.extra if isinstance(result.extra, Mapping) else {}
+    ends = extra.get("two_values")
+    return (result.design is Design.PERIOD_CENTRE and extra.get("centre") == "mean"
+            and isinstance(ends, Sequence) and len(ends) == 2 and ends[1] > ends[0])
+
+
+def _period_share(group: Mapping[str, Any], result: Result) -> Any:
+    """A period's share of the counted level; for means of two values, (mean - low) / (high - low)."""
+    if not _mean_of_two_values(result):
+        return group.get("share")
+    low, high = result.extra["two_values"]
+    mean = group.get("mean")
+    return (mean - low) / (high - low) if isinstance(mean, (int, float)) else None
+
+
 def _period_shares_layout(result: Result) -> Layout | None:
     groups = [g for g in result.groups if isinstance(g, MutableMapping) and g.get("label") is not None]
     if not groups:
@@ -571,7 +592,7 @@ def _period_shares_layout(result: Result) -> Layout | None:
         label = str(g["label"])
         n = _number(g.get("n"))
         counts = g.get("counts") if isinstance(g.get("counts"), MutableMapping) else None
-        share = g.get("share")
+        share = _period_share(g, result)
         x = _number(counts.get(level)) if counts and level in counts else (
             round(_number(share) * n) if isinstance(share, (int, float)) else 0.0)
         yes.append(lay.add(x, [(counts, level)] if counts and level in counts else []))
@@ -586,7 +607,7 @@ def _period_shares_layout(result: Result) -> Layout | None:
     lay.web.line(yes, all_yes)
     lay.web.line(no, all_no)
     lay.web.line([all_yes, all_no], total)
-    if result.trend is not None:
+    if result.trend is not None and result.design is Design.PERIOD_SHARES:
         # The trend test's numerator is a published linear function of the periods' counts.
         lay.web.equations.append({index: float(position) for position, index in enumerate(yes)})
 

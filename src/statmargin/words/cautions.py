@@ -107,9 +107,9 @@ REGRESSION_LINE = (
     "measured again (regression to the mean), which can look like a change."
 )
 SHARE_NOTE = (
-    "Sharing mode: counts below {floor}, and shares or summaries that would reveal them, are "
-    "hidden on the statmargin sheets. The data sheet itself still holds record-level data; "
-    "remove it before sharing this file."
+    "Sharing mode: counts below {floor} are hidden on the statmargin sheets (shown <{floor}), and "
+    "so is any other count, share or summary that would give one back (shown suppressed). The "
+    "data sheet itself still holds record-level data; remove it before sharing this file."
 )
 SHARE_CAUTION = (
     "Some numbers for this analysis are hidden in sharing mode because a group or cell has "

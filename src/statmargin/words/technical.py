@@ -125,7 +125,8 @@ def technical_lines(
     name = TEST_NAMES.get(result.test or "", result.test or "no test")
     parts: list[str] = []
     if result.skipped:
-        parts.append(f"{name} was not run: {say(result.skipped).rstrip('.')}.")
+        lead = f"{name} was not run" if result.test else "No test was run"
+        parts.append(f"{lead}: {say(result.skipped).rstrip('.')}.")
     else:
         # Rates count events (the person-time is in the groups), every other design records.
         used = "events" if result.design in (Design.ONE_SAMPLE_RATE, Design.GROUP_RATES) else "records"
