@@ -297,6 +297,10 @@ def test_run_json_and_terminal_give_no_count_back(runs: dict[str, Any]) -> None:
     assert runs["plain"]["json"]["data_notes"] == 2 and runs["shared"]["json"]["data_notes"] is None
     assert "2 data notes" in runs["plain"]["terminal"]
     assert "fewer than 11 data notes" in runs["shared"]["terminal"]
+    # Three rows are hidden by the sheet's filter (invented workbook).
+    assert "3 rows hidden or filtered" in runs["plain"]["terminal"]
+    assert "Fewer than 11 rows hidden or filtered" in runs["shared"]["terminal"]
+    assert small_counts_in_text(runs["shared"]["terminal"]) == []
 
 
 def test_run_results_sheet_names_no_single_record(runs: dict[str, Any]) -> None:

@@ -214,8 +214,8 @@ def _without_layout(result: Result, min_count: int) -> set[str]:
         if isinstance(group, MutableMapping) and is_small_count(group.get("n", group.get("count")), min_count):
             hide_group(group)
             hidden.add("groups")
-    if hidden and result.design is Design.PAIRED_CONTINUOUS:
-        hidden.add("estimate")  # the mean difference of a handful of pairs
+    if hidden and result.design in (Design.PAIRED_CONTINUOUS, Design.ONE_SAMPLE_CONTINUOUS):
+        hidden.add("estimate")  # the mean (difference) of a handful of records, as their summaries are
     return hidden
 
 

@@ -68,14 +68,16 @@ def hidden_rows_line(hidden: Any, rows: RowsToUse) -> str:
             return "This file does not record which rows are hidden, so all rows were used."
         if not hidden:
             return ""
-        return f"{hidden:,} hidden or filtered {_rows(hidden)} left out ({SETTING_LABELS['rows']}: {rows})."
+        line = f"{hidden:,} hidden or filtered {_rows(hidden)} left out ({SETTING_LABELS['rows']}: {rows})."
+        return line[:1].upper() + line[1:]
     if not hidden:
         return ""
     were = "was" if hidden == 1 else "were"
-    return (
+    line = (
         f"{hidden:,} {_rows(hidden)} hidden or filtered in the sheet {were} used like the others"
         f" ({SETTING_LABELS['rows']} on the roles sheet can leave them out)."
     )
+    return line[:1].upper() + line[1:]  # "Fewer than 11 rows ..." in sharing mode
 
 
 def _rows(n: Any) -> str:
