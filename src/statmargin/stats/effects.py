@@ -174,17 +174,23 @@ def standardized_effect(
     Returns
     -------
     Effect
-        Value and bounds all multiplied by the same J(df), so the interval matches the
-        corrected estimate (Hedges & Olkin 1985, Statistical Methods for Meta-Analysis).
+        Hedges' g = J(df) d (Hedges & Olkin 1985, Statistical Methods for
+        Meta-Analysis), with the noncentral-t interval for the population standardized
+        difference (Steiger & Fouladi 1997): the noncentrality bounds times ``scale``.
+
+    Notes
+    -----
+    The bounds are not multiplied by J, as some software does: that shrinks the
+    interval below its level (in ``simulations/choose_then_test.py`` 82-88% coverage
+    at 5 to 10 values, where J is 0.8 to 0.9). The interval excludes 0 exactly when
+    the t-test rejects, and g = J d lies inside it: J d is between 0 and d, and the
+    near bound of a 95% interval is closer to 0 than J d whenever it has the sign of d
+    (kept by taking the hull with g in any case).
     """
     correction = hedges_correction(df)
     low, high = noncentrality_interval(t, df, alternative, confidence)
-    return Effect(
-        kind,
-        value=correction * t * scale,
-        ci_low=correction * low * scale,
-        ci_high=correction * high * scale,
-    )
+    value = correction * t * scale
+    return Effect(kind, value=value, ci_low=min(low * scale, value), ci_high=max(high * scale, value))
 
 
 def standardized_mean_with_any_shape(effect: Effect, values: Any, mu: float, alternative: str,
@@ -307,11 +313,14 @@ def rank_biserial_signed(
 
     Notes
     -----
-    The interval uses the null standard deviation of r,
-    ``sqrt(n (n + 1) (2 n + 1) / 6) / (n (n + 1) / 2)``, on the atanh scale: an
-    approximation that is adequate for moderate n. A perfect r = +/-1 is moved in by
-    half a step of V (2 / (n (n + 1))) before the transform, a continuity-style
-    adjustment so the interval does not collapse onto the boundary.
+    The interval takes the null standard deviation of r,
+    ``s = sqrt(n (n + 1) (2 n + 1) / 6) / (n (n + 1) / 2)``, to the atanh scale by the
+    delta method, s / (1 - r^2). Using s itself on the atanh scale, as for Pearson's r,
+    assumes r's variance shrinks like (1 - r^2)^2 away from 0, which r's does not: that
+    interval covered 67-85% under a shift in ``simulations/choose_then_test.py``. A
+    perfect r = +/-1 is moved in by half a step of V (2 / (n (n + 1))) before the
+    transform, a continuity-style adjustment so the interval does not collapse onto
+    the boundary.
 
     References
     ----------
@@ -322,7 +331,9 @@ def rank_biserial_signed(
     total = n * (n + 1) / 2.0
     r = 2.0 * v_plus / total - 1.0
     se = math.sqrt(n * (n + 1) * (2 * n + 1) / 6.0) / total
-    low, high = fisher_z_interval(r, se, alternative, confidence, edge=1.0 - 2.0 / (n * (n + 1)))
+    edge = 1.0 - 2.0 / (n * (n + 1))
+    held = max(-edge, min(edge, r))
+    low, high = fisher_z_interval(r, se / (1.0 - held * held), alternative, confidence, edge=edge)
     return Effect(EffectKind.RANK_BISERIAL_PAIRED, value=r, ci_low=low, ci_high=high)
 
 
