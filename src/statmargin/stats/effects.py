@@ -213,8 +213,9 @@ def standardized_mean_with_any_shape(effect: Effect, values: Any, mu: float, alt
     Effect
         The same estimate; the interval is the union of the noncentral-t interval (exact
         for normal data) and the delta-method interval d +- z sqrt((1 + d^2 (kappa - 1) / 4
-        - d gamma_1) / n) with the sample skewness gamma_1 and kurtosis kappa, both times
-        Hedges' J.
+        - d gamma_1) / n) with the sample skewness gamma_1 and kurtosis kappa, both
+        intervals of the population standardized mean (not shrunk by Hedges' J; see
+        :func:`standardized_effect`).
 
     Notes
     -----
@@ -242,25 +243,24 @@ def standardized_mean_with_any_shape(effect: Effect, values: Any, mu: float, alt
     n = float(c.sum())
     if n < 4 or effect.value is None or not math.isfinite(effect.value):
         return effect
-    mean = float(np.dot(c, x)) / n
-    squares = float(np.dot(c, (x - mean) ** 2))
+    mean = float(np.sum(c * x)) / n  # elementwise sums: no BLAS threads competing for cores
+    squares = float(np.sum(c * (x - mean) ** 2))
     if not squares > 0:
         return effect
     d = (mean - mu) / math.sqrt(squares / (n - 1.0))
     centred = (x - mean) / math.sqrt(squares / n)
-    skew, kurtosis = float(np.dot(c, centred**3)) / n, float(np.dot(c, centred**4)) / n
+    skew, kurtosis = float(np.sum(c * centred**3)) / n, float(np.sum(c * centred**4)) / n
     variance = (1.0 + d * d * (kurtosis - 1.0) / 4.0 - d * skew) / n
     if not variance > 0:
         return effect
-    correction = hedges_correction(n - 1.0)
     one_sided = alternative in ("greater", "less")
     z = stats.norm.ppf(confidence if one_sided else 0.5 + confidence / 2.0)
     half = z * math.sqrt(variance)
     low, high = effect.ci_low, effect.ci_high
     if alternative != "less" and low is not None and math.isfinite(low):
-        low = min(low, correction * (d - half))
+        low = min(low, d - half)
     if alternative != "greater" and high is not None and math.isfinite(high):
-        high = max(high, correction * (d + half))
+        high = max(high, d + half)
     return Effect(effect.kind, value=effect.value, ci_low=low, ci_high=high)
 
 
