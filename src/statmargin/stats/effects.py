@@ -264,6 +264,90 @@ def standardized_mean_with_any_shape(effect: Effect, values: Any, mu: float, alt
     return Effect(effect.kind, value=effect.value, ci_low=low, ci_high=high)
 
 
+def _central_moments(values: Any, counts: Any = None) -> tuple[float, float, float, float, float]:
+    """n, mean and the central moments m2, m3, m4 (denominator n) of the records."""
+    x = np.asarray(values, dtype=float)
+    c = np.ones(x.size) if counts is None else np.asarray(counts, dtype=float)
+    n = float(c.sum())
+    mean = float(np.sum(c * x)) / n
+    d = x - mean
+    return n, mean, float(np.sum(c * d**2)) / n, float(np.sum(c * d**3)) / n, float(np.sum(c * d**4)) / n
+
+
+def standardized_difference_with_any_shape(effect: Effect, a: Any, b: Any, alternative: str, confidence: float,
+                                           counts_a: Any = None, counts_b: Any = None) -> Effect:
+    """Widen Welch's Hedges' g (average-variance scale) interval so it also holds for non-normal groups.
+
+    Parameters
+    ----------
+    effect : Effect
+        Hedges' g with its noncentral-t interval from Welch's t (:func:`standardized_effect`).
+    a, b : array_like
+        The two groups' values (finite).
+    counts_a, counts_b : array_like, optional
+        How many records each value stands for (a count column); all 1 by default.
+    alternative, confidence
+        As for the test.
+
+    Returns
+    -------
+    Effect
+        The same estimate; the interval is the union of the noncentral-t one and the
+        delta-method interval d +- z sqrt(V) of d = (mean_a - mean_b) / s, s^2 the average
+        of the two variances, with
+
+        V = (s_a^2 / n_a + s_b^2 / n_b) / s^2 - d (mu3_a / n_a - mu3_b / n_b) / (2 s^3)
+            + d^2 sum_i s_i^4 (kappa_i - 1) / n_i / (16 s^4),
+
+        mu3 each group's third central moment and kappa its kurtosis.
+
+    Notes
+    -----
+    The two-group form of :func:`standardized_mean_with_any_shape`, from Var(mean_i) =
+    s_i^2 / n_i, Var(s_i^2) ~ s_i^4 (kappa_i - 1) / n_i and Cov(mean_i, s_i^2) ~ mu3_i / n_i
+    by the delta method (derived here, in the manner of Bonett 2008). For two normal
+    groups of n it is 2 / n + d^2 / (4n), the usual large-sample variance of d, so the
+    union barely widens; with skewed groups of 5 to 10 values the noncentral-t interval
+    alone covered 84-88% under a shift in ``simulations/choose_then_test.py``.
+
+    Examples
+    --------
+    >>> rng = np.random.default_rng(3)
+    >>> a, b = rng.lognormal(0.5, 0.8, 10), rng.lognormal(0.0, 0.8, 10)
+    >>> from statmargin.stats.twogroup import welch_t
+    >>> plain = welch_t(a, b).effect  # already widened; the noncentral-t part alone is narrower or equal
+    >>> bool(plain.ci_low <= plain.value <= plain.ci_high)
+    True
+    """
+    if effect.value is None or not math.isfinite(effect.value):
+        return effect
+    groups = [_central_moments(a, counts_a), _central_moments(b, counts_b)]
+    if any(n < 4 or m2 <= 0 for n, _, m2, _, _ in groups):
+        return effect
+    variances = [m2 * n / (n - 1.0) for n, _, m2, _, _ in groups]
+    average = (variances[0] + variances[1]) / 2.0
+    sd = math.sqrt(average)
+    d = (groups[0][1] - groups[1][1]) / sd
+    (na, _, m2a, m3a, m4a), (nb, _, m2b, m3b, m4b) = groups
+    variance = (
+        (variances[0] / na + variances[1] / nb) / average
+        - d * (m3a / na - m3b / nb) / (2.0 * sd**3)
+        + d * d * (variances[0] ** 2 * (m4a / m2a**2 - 1.0) / na + variances[1] ** 2 * (m4b / m2b**2 - 1.0) / nb)
+        / (16.0 * average**2)
+    )
+    if not variance > 0:
+        return effect
+    one_sided = alternative in ("greater", "less")
+    z = stats.norm.ppf(confidence if one_sided else 0.5 + confidence / 2.0)
+    half = z * math.sqrt(variance)
+    low, high = effect.ci_low, effect.ci_high
+    if alternative != "less" and low is not None and math.isfinite(low):
+        low = min(low, d - half)
+    if alternative != "greater" and high is not None and math.isfinite(high):
+        high = max(high, d + half)
+    return Effect(effect.kind, value=effect.value, ci_low=low, ci_high=high)
+
+
 def fisher_z_interval(
     r: float, standard_error: float, alternative: str, confidence: float, edge: float = 1.0 - 1e-15
 ) -> tuple[float, float]:

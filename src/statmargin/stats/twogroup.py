@@ -160,6 +160,8 @@ def _t_test(
     a, b, dropped, first, second = _two_groups(x, y, labels)
     result = t_test_of_summaries(common.describe(first, a), common.describe(second, b), alternative, confidence,
                                  equal_variances=equal_variances)
+    if not equal_variances and result.effect is not None:
+        result.effect = effects.standardized_difference_with_any_shape(result.effect, a, b, alternative, confidence)
     result.n_excluded = dropped
     return result
 

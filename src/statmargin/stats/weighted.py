@@ -419,6 +419,9 @@ def _t_test(x: Weighted, y: Weighted, labels: tuple[str, str], alternative: str,
     _check_two(a, ca, b, cb, first, second)
     result = twogroup.t_test_of_summaries(weighted_describe(first, a, ca), weighted_describe(second, b, cb),
                                           alternative, confidence, equal_variances=equal_variances)
+    if not equal_variances and result.effect is not None:
+        result.effect = effects.standardized_difference_with_any_shape(result.effect, a, b, alternative, confidence,
+                                                                       ca, cb)
     return _with_rows(result, dropped, no_count)
 
 
