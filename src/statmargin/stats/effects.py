@@ -253,6 +253,11 @@ def standardized_mean_with_any_shape(effect: Effect, values: Any, mu: float, alt
     variance = (1.0 + d * d * (kurtosis - 1.0) / 4.0 - d * skew) / n
     if not variance > 0:
         return effect
+    return _with_normal_interval(effect, d, variance, alternative, confidence)
+
+
+def _with_normal_interval(effect: Effect, d: float, variance: float, alternative: str, confidence: float) -> Effect:
+    """The effect with its interval widened to cover d +- z sqrt(variance) (one side for one-sided questions)."""
     one_sided = alternative in ("greater", "less")
     z = stats.norm.ppf(confidence if one_sided else 0.5 + confidence / 2.0)
     half = z * math.sqrt(variance)
@@ -337,15 +342,7 @@ def standardized_difference_with_any_shape(effect: Effect, a: Any, b: Any, alter
     )
     if not variance > 0:
         return effect
-    one_sided = alternative in ("greater", "less")
-    z = stats.norm.ppf(confidence if one_sided else 0.5 + confidence / 2.0)
-    half = z * math.sqrt(variance)
-    low, high = effect.ci_low, effect.ci_high
-    if alternative != "less" and low is not None and math.isfinite(low):
-        low = min(low, d - half)
-    if alternative != "greater" and high is not None and math.isfinite(high):
-        high = max(high, d + half)
-    return Effect(effect.kind, value=effect.value, ci_low=low, ci_high=high)
+    return _with_normal_interval(effect, d, variance, alternative, confidence)
 
 
 def fisher_z_interval(
