@@ -307,7 +307,7 @@ def test_the_run_ends_on_the_results_sheet_with_a_summary(both) -> None:
     """After Run the results sheet is the active one and the status bar says what was written; no box popped up."""
     state = xs.app_state(both["book"])
     assert state["active"] == "statmargin results"
-    assert state["status_bar"] == "statmargin: 1 analysis(es) written to 'statmargin results'; save the workbook to keep them."
+    assert state["status_bar"] == "statmargin: 1 analysis written to 'statmargin results'; save the workbook to keep them."
     assert state["alerts"] == []
     assert state["screen_updating"] is True and state["calculation"] == "automatic"
 

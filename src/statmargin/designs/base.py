@@ -28,6 +28,7 @@ import numpy as np
 
 from ..errors import NotEnoughDataError
 from ..plan.model import Settings
+from ..plan.types import ordinal_labels
 from ..results import Followup, Result
 from ..vocabulary import Design, Test
 from ..vocabulary.codes import Coded, Skip, coded
@@ -172,6 +173,9 @@ class DesignSpec:
             else:
                 result.groups = list(prepared.summaries)
         result.shape = {**prepared.shape, **result.shape}
+        labels = ordinal_labels(question.outcome, question.outcome_info)
+        if labels:  # medians and centres of 1..k codes are read back as these labels
+            result.extra["outcome_levels"] = list(labels)
         if result.p_value is None or (isinstance(result.p_value, float) and math.isnan(result.p_value)):
             if result.skipped is None:
                 result.skipped = coded(Skip.NO_P_VALUE)

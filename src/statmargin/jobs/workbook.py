@@ -232,7 +232,8 @@ def plan_workbook(
         data_sheet=data_sheet,
         header_row=table.header_row,
         columns=[
-            {"column": f.name, "letter": f.letter, "inferred_type": f.inferred, "role": c.role.value}
+            {"column": f.name, "letter": f.letter, "inferred_type": f.inferred, "role": c.role.value,
+             "type": c.treat_as.value if c.treat_as is not None else f.inferred}
             for f, c in zip(facts, ordered, strict=True)
         ],
         new_columns=new,

@@ -337,7 +337,7 @@ def usable_values(column: Column, info: TypeInfo) -> ColumnValues:
                 labels = np.where(usable, labels, None)  # type: ignore[call-overload]
         return ColumnValues(labels, usable, present, excluded)
     if kind is MeasureType.ORDINAL:
-        if _is_numeric(column) and not (info.levels and not _levels_are_numbers(info.levels)):
+        if ordinal_labels(column, info) is None:
             values = np.where(has_number, column.numbers, np.nan)
             if has_text.any():
                 excluded[why.TEXT_IN_NUMBERS] = int(has_text.sum())
@@ -353,6 +353,15 @@ def usable_values(column: Column, info: TypeInfo) -> ColumnValues:
     # Identifiers and empty columns: labels are kept (pairing keys use them) but no test uses them.
     labels = category_labels(column)
     return ColumnValues(labels, present.copy(), present, excluded)
+
+
+def ordinal_labels(column: Column, info: TypeInfo) -> tuple[str, ...] | None:
+    """The labels an ordinal column's values 1..k stand for, lowest first; None when its numbers are used as they are."""
+    if info.type is not MeasureType.ORDINAL:
+        return None
+    if _is_numeric(column) and not (info.levels and not _levels_are_numbers(info.levels)):
+        return None
+    return info.levels
 
 
 def _levels_are_numbers(levels: tuple[str, ...]) -> bool:

@@ -554,7 +554,7 @@ def one_way_anova(groups: Mapping[str, Weighted], *, alternative: str = "two-sid
         outcome="", exposure=None, design=Design.MULTI_GROUP_CONTINUOUS, test=Test.ONE_WAY_ANOVA,
         statistic_name="F", statistic=f, df=[float(df1), float(df2)], p_value=float(stats.f.sf(f, df1, df2)),
         p_method=PMethod.ASYMPTOTIC, alternative="two-sided", confidence=confidence, n=int(n_total),
-        estimate=multigroup._largest_gap(summaries, "mean", EstimateKind.LARGEST_MEAN_GAP), effect=effect,
+        estimate=multigroup._largest_gap(summaries, "mean", EstimateKind.LARGEST_MEAN_GAP, confidence), effect=effect,
         groups=summaries, notes=notes,
         extra={**omega, "ss_between": between, "ss_within": within, "ms_between": ms_between,
                "ms_within": ms_within},
@@ -580,7 +580,7 @@ def welch_anova(groups: Mapping[str, Weighted], *, alternative: str = "two-sided
         outcome="", exposure=None, design=Design.MULTI_GROUP_CONTINUOUS, test=Test.WELCH_ANOVA,
         statistic_name="F", statistic=f, df=[df1, df2], p_value=float(stats.f.sf(f, df1, df2)),
         p_method=PMethod.ASYMPTOTIC, alternative="two-sided", confidence=confidence, n=n_total,
-        estimate=multigroup._largest_gap(summaries, "mean", EstimateKind.LARGEST_MEAN_GAP), effect=effect,
+        estimate=multigroup._largest_gap(summaries, "mean", EstimateKind.LARGEST_MEAN_GAP, confidence), effect=effect,
         groups=summaries, notes=notes,
     ), dropped, no_count)
 

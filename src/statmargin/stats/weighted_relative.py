@@ -151,7 +151,7 @@ def sign_test_paired(x1: Any, x2: Any, counts: Any, *, labels: tuple[str, str] =
 
 
 def alexander_govern(groups: Mapping[str, Weighted], *, alternative: str = "two-sided",
-                     confidence: float = 0.95) -> Result:
+                     confidence: float = 0.95, p_method: str = "asymptotic") -> Result:
     """``multigroup.alexander_govern`` of the repeated records; each group is (values, counts).
 
     Examples
@@ -165,9 +165,11 @@ def alexander_govern(groups: Mapping[str, Weighted], *, alternative: str = "two-
     True
     """
     cleaned, dropped, no_count, notes = _groups(groups, alternative, confidence)
-    if all(_all_ones(c) for _, c in cleaned.values()):
-        plain = multigroup.alexander_govern({label: v for label, (v, _) in cleaned.items()},
-                                            alternative=alternative, confidence=confidence)
+    sizes = [int(np.sum(c)) for _, c in cleaned.values()]
+    if all(_all_ones(c) for _, c in cleaned.values()) or relative.use_permutation(p_method, sizes):
+        # Permutations (at most 2000 records) shuffle records, so the few records are repeated.
+        plain = multigroup.alexander_govern({label: _repeated(v, c) for label, (v, c) in cleaned.items()},
+                                            alternative=alternative, confidence=confidence, p_method=p_method)
         return _with_rows(plain, dropped, no_count)
     summaries = [weighted_describe(label, v, c) for label, (v, c) in cleaned.items()]
     for summary in summaries:

@@ -13,6 +13,7 @@ from typing import Any
 
 from ..vocabulary import Design
 from ..vocabulary.codes import Caution, Note, Reason, Skip
+from .numbers import noun
 from .sentences import Hidden, number, register, sentence_start
 
 Facts = Mapping[str, Any]
@@ -163,7 +164,8 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = 
         f"from {f['draws']} seeded random rearrangements of the groups rather than from an approximation."
     ),
     Note.SIGN_TIES_DROPPED: lambda f: (
-        f"{f['n']} value(s) equal to {number(f['value'])} were left out of the sign test, as it requires."
+        f"{f['n']} {noun(f['n'], 'value')} equal to {number(f['value'])} {noun(f['n'], 'was', 'were')} left out of "
+        "the sign test, as it requires."
     ),
     Note.MEDIAN_INTERVAL_OPEN: lambda f: (
         f"With {f['n']} values no {f['confidence']:.0%} interval for the median can be formed from the "

@@ -89,7 +89,7 @@ def test_summary(results: Sequence[Result], *, sheet: str | None = None) -> str:
     """A short summary of a one-off question: test, statistic, df, p, estimate and effect, reasons."""
     lines: list[str] = []
     if sheet:
-        lines.append(f"Sheet {sheet!r}: {len(results)} analysis(es)")
+        lines.append(f"Sheet {sheet!r}: {counted(len(results), 'analysis', 'analyses')}")
     for r in results:
         against = r.extra.get("target_text", r.against) if isinstance(r.extra, dict) else r.against
         target = r.exposure or r.pairing or (f"against {against}" if r.against is not None else "")
@@ -130,7 +130,7 @@ def plan_summary(summary: Any, workbook_name: str) -> str:
         f"sheet {summary.data_sheet!r} (headers in row {summary.header_row})."
     ]
     marked = [c for c in summary.columns if c["role"] != "ignore"]
-    lines.extend(f"  {c['column']}: {c['role']} ({c['inferred_type']})" for c in marked)
+    lines.extend(f"  {c['column']}: {c['role']} ({c['type']})" for c in marked)
     if not marked:
         lines.append(
             "  No roles chosen yet: open the file, pick roles in the shaded cells, save, then run "

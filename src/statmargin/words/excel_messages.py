@@ -6,7 +6,7 @@ working in Excel (buttons and menus, not command lines).
 
 from __future__ import annotations
 
-from .numbers import noun
+from .numbers import counted, noun
 
 TITLE = "statmargin"
 STATUS_PREFIX = "statmargin: "
@@ -101,7 +101,7 @@ def planned(sheet: str, n_columns: int) -> str:
 
 
 def ran(n_analyses: int, sheet: str) -> str:
-    return f"{n_analyses} analysis(es) written to '{sheet}'; save the workbook to keep them."
+    return f"{counted(n_analyses, 'analysis', 'analyses')} written to '{sheet}'; save the workbook to keep them."
 
 
 def internal_problem(kind: str, detail: str) -> str:

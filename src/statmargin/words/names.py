@@ -49,6 +49,8 @@ _PLAIN_EFFECTS: dict[EffectKind, str] = {
 
 
 def _pair(levels: tuple[str, ...]) -> str:
+    if len(levels) >= 2 and levels[0] == levels[1]:
+        return "all groups equal"  # the widest gap is 0, between a group and itself
     return f"{levels[0]} - {levels[1]}" if len(levels) >= 2 else "first - second"
 
 

@@ -16,6 +16,7 @@ the outcome's own precision when the run knows it.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -177,6 +178,33 @@ def _listed(rows: Sequence[tuple[str, str]], by: str | None) -> str:
     return f"{len(rows)} groups of {by or 'the groups'}"
 
 
+def _labelled(result: Result) -> bool:
+    """True for an ordinal outcome whose values are the codes 1..k of its labels."""
+    return isinstance(result.extra, Mapping) and bool(result.extra.get("outcome_levels"))
+
+
+def _level_units(value: Any) -> str:
+    """' level' or ' levels': differences of an ordinal outcome's codes count levels."""
+    return " level" if is_number(value) and abs(float(value)) == 1 else " levels"
+
+
+def _level_decimals(*values: Any) -> int:
+    """0 decimals for whole numbers of levels (the usual case), else 1."""
+    return 0 if all(float(v).is_integer() for v in values if is_number(v)) else 1
+
+
+def _level_of(result: Result, value: Any) -> str | None:
+    """An ordinal outcome's centre as its label ('Good', 'between Good and Very good'); None without labels."""
+    labels = result.extra.get("outcome_levels") if isinstance(result.extra, Mapping) else None
+    if not labels or not is_number(value):
+        return None
+    position = float(value) - 1.0  # labels stand for the codes 1..k
+    low = min(max(int(math.floor(position + 1e-9)), 0), len(labels) - 1)
+    if abs(position - low) < 1e-9 or low == len(labels) - 1:
+        return str(labels[low])
+    return f"between {labels[low]} and {labels[low + 1]}"
+
+
 def _groups_line(result: Result, context: Any) -> tuple[str, int]:
     """'Mean Wait: North 12.5, South 14.0 minutes.' with the decimals used."""
     key = _centre_key(result)
@@ -187,6 +215,8 @@ def _groups_line(result: Result, context: Any) -> tuple[str, int]:
     values = [v for _, v in rows]
     decimals = ctx.reading_decimals(context, outcome, *values)
     units = _units(context, outcome)
+    if rows and _level_of(result, rows[0][1]) is not None:
+        return _level_groups_line(result, rows, key, outcome), decimals
     if not rows:
         return "", decimals
     if len(rows) > 2 and len({v for _, v in rows}) == 1:
@@ -205,6 +235,15 @@ def _groups_line(result: Result, context: Any) -> tuple[str, int]:
     return f"{key.capitalize()} {outcome}: {_listed(shown, result.exposure)}{units}.", decimals
 
 
+def _level_groups_line(result: Result, rows: Sequence[tuple[str, Any]], key: str, outcome: str) -> str:
+    """'Median Satisfaction: North Good, South Very good.' for an ordinal outcome with labels."""
+    levels = [(label, _level_of(result, value) or "") for label, value in rows]
+    if len(rows) > 2 and len({level for _, level in levels}) == 1:
+        return f"{key.capitalize()} {outcome} was {levels[0][1]} in each of the {len(rows)} groups of {result.exposure}."
+    shown = [(named(result, label), level) for label, level in levels]
+    return f"{key.capitalize()} {outcome}: {_listed(shown, result.exposure)}."
+
+
 def _two_group_answer(result: Result, settings: Settings, context: Any, n_family: int | None,
                       decimals: int) -> tuple[str, str, str]:
     est = result.estimate
@@ -212,6 +251,8 @@ def _two_group_answer(result: Result, settings: Settings, context: Any, n_family
     units = _units(context, outcome)
     if est is None or not is_number(est.value):
         return "", "", ""
+    if _labelled(result):  # a shift of 1..k codes counts levels
+        units, decimals = _level_units(est.value), _level_decimals(est.value, est.ci_low, est.ci_high)
     first, second = (named(result, label) for label in two_labels(result))
     value, low, high = float(est.value), est.ci_low, est.ci_high
     if value < 0 and not _one_sided(result):
@@ -233,7 +274,7 @@ def _two_group_answer(result: Result, settings: Settings, context: Any, n_family
         subject, verb = f"Mean {first}", "was"
     else:
         subject, verb = capitalized(first), "was"
-    interval = _interval(result, low, high, decimals)
+    interval = _interval(result, low, high, decimals, units if _labelled(result) else "")
     size = f"{_n(value, decimals)}{units} ({interval})" if interval else f"{_n(value, decimals)}{units}"
     if value == 0:
         answer = f"{subject} {verb} the same as {second}{within}"
@@ -259,7 +300,13 @@ def _multi_group_answer(result: Result, settings: Settings, context: Any, n_fami
     units = _units(context, outcome)
     size = ""
     gap = ""
-    if est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2:
+    if est is not None and is_number(est.value) and _labelled(result):
+        units, decimals = _level_units(est.value), _level_decimals(est.value)
+    if (est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2
+            and is_number(est.ci_low) and is_number(est.ci_high)):
+        size, gap = widest_gap_clause(result, _n(est.ci_low, decimals), f"{_n(est.ci_high, decimals)}{units}",
+                                      f"{_n(est.value, decimals)}{units}")
+    elif est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2:
         high, low = (named(result, label) for label in est.levels)
         size = f"{_n(est.value, decimals)}{units} ({high} over {low}, the widest gap)"
         gap = f"; the widest gap is {high} over {low}, {_n(est.value, decimals)}{units}"
@@ -476,6 +523,11 @@ def _one_value(result: Result, settings: Settings, context: Any, n_family: int |
     interval = _interval(result, low, high, decimals)
     figures = f"{word} {outcome} was {_n(centre, decimals)}{units} ({interval}), against a stated {mu:g}{units}."
     gap = centre - mu
+    if _labelled(result):  # codes 1..k read back as their labels; the gap counts levels
+        bounds = f"{_level_of(result, low)} to {_level_of(result, high)}" if is_number(low) and is_number(high) else ""
+        figures = (f"{word} {outcome} was {_level_of(result, centre)}" + (f" ({ci_label(result.confidence)} {bounds})" if bounds else "")
+                   + f", against a stated {_level_of(result, mu)}.")
+        units, decimals = _level_units(gap), _level_decimals(gap)
     side = "above" if gap >= 0 else "below"
     outside = is_number(low) and is_number(high) and not (float(low) <= mu <= float(high))
     verdict = _verdict(ev, "a difference", interval_excludes=outside)
