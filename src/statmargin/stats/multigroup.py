@@ -135,7 +135,7 @@ def _largest_gap(summaries: list[dict[str, Any]], key: str, kind: EstimateKind,
     high = max(summaries, key=lambda g: g[key])
     low = min(summaries, key=lambda g: g[key])
     gap = high[key] - low[key]
-    bounds = (None, None)
+    bounds: tuple[float | None, float | None] = (None, None)
     if confidence is not None and gap != 0:
         bounds = widest_mean_gap_interval(high, low, len(summaries), confidence)
     return Estimate(kind, gap, bounds[0], bounds[1], levels=(str(high["label"]), str(low["label"])))
