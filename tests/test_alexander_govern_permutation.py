@@ -12,6 +12,7 @@ import math
 
 import numpy as np
 import pandas as pd
+import pytest
 from scipy import stats
 
 from statmargin import analyze
@@ -52,16 +53,21 @@ def test_small_groups_hold_their_level_by_simulation() -> None:
     assert 0.05 - 3 * se <= rejected / runs <= 0.05 + 3 * se
 
 
-def test_the_rule_asks_for_permutations_when_spreads_are_alike_and_groups_small() -> None:
-    """Three normal-looking groups of 6 with alike spreads: Alexander-Govern with a permutation p."""
+@pytest.mark.parametrize(("size", "sds", "method"), [
+    (6, (2.0, 2.0, 2.0), PMethod.PERMUTATION),  # small groups, alike spreads
+    (6, (1.0, 4.0, 1.0), PMethod.PERMUTATION),  # small groups, spreads differ: still studentized permutations
+    (15, (2.0, 2.0, 2.0), PMethod.ASYMPTOTIC),  # 15 per group: the chi-square p
+])
+def test_the_rule_asks_for_permutations_below_15_per_group(size: int, sds: tuple[float, ...], method: PMethod) -> None:
+    """Three normal groups: Alexander-Govern with a permutation p below 15 values per group, the chi-square p above."""
     rng = np.random.default_rng(8)
-    data = pd.DataFrame({"Site": np.repeat(["Ash", "Birch", "Cedar"], 6),
-                         "Score": np.concatenate([rng.normal(m, 2.0, 6) for m in (50, 52, 55)])})
-    [result] = analyze(data, outcome="Score", by="Site")
+    data = pd.DataFrame({"Site": np.repeat(["Ash", "Birch", "Cedar"], size),
+                         "Score": np.concatenate([rng.normal(m, sd, size) for m, sd in zip((50, 52, 55), sds, strict=True)])})
+    [result] = analyze(data, outcome="Score", by="Site", shape="normal")
     assert result.test is Test.ALEXANDER_GOVERN
-    assert result.p_method is PMethod.PERMUTATION
-    assert result.statistic == stats.alexandergovern(*[data.Score[data.Site == s].to_numpy()
-                                                       for s in ("Ash", "Birch", "Cedar")]).statistic
+    assert result.p_method is method
+    groups = [data.Score[data.Site == s].to_numpy() for s in ("Ash", "Birch", "Cedar")]
+    assert result.statistic == stats.alexandergovern(*groups).statistic
 
 
 def test_counted_rows_give_the_permutation_p_of_their_records() -> None:

@@ -89,7 +89,7 @@ def test_summary_lists_test_p_and_reasons(tmp_workbook):
     assert result.exit_code == 0
     out = result.stdout
     # SciPy 1.x: stats.alexandergovern on the three groups of PlantGrowth: A = 8.328 (k - 1 = 2 df); groups of 10
-    # with alike spreads take the seeded permutation p, 0.0167 (chi-square p 0.0155, within Monte Carlo error).
+    # take the seeded permutation p, 0.0167 (chi-square p 0.0155, within Monte Carlo error).
     assert "weight by group  [alexander_govern]" in out
     assert "A = 8.33, df = 2, p = 0.017" in out
     assert "why: weight within the groups of group shows no clear departure from a normal shape" in out

@@ -103,7 +103,7 @@ class TestDesignsAgainstR:
     def test_multi_group_alexander_govern_with_games_howell(self):
         """PlantGrowth runs Alexander-Govern (SciPy's alexandergovern) then Games-Howell (adjusted p < 0.05).
 
-        Groups of 10 with alike spreads take the permutation p (seeded, 4000 draws):
+        Groups of 10 take the permutation p (seeded, 4000 draws):
         0.0167 against SciPy's chi-square p of 0.0155, within the draws' Monte Carlo error.
         """
         from scipy import stats

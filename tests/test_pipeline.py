@@ -162,7 +162,7 @@ class TestRunOnReferenceData:
         assert result.test == "alexander_govern"
         assert_close(result.statistic, float(check.statistic), rel=RTOL, context="A")
         groups = [frame.weight[frame.group == g].to_numpy() for g in ("ctrl", "trt1", "trt2")]
-        # Groups of 10 with alike spreads: the seeded permutation p, within Monte Carlo error of SciPy's chi-square p.
+        # Groups of 10: the seeded permutation p, within Monte Carlo error of SciPy's chi-square p.
         assert result.p_value == alexander_govern_permutation_p(groups, float(check.statistic))
         assert abs(result.p_value - float(check.pvalue)) < 3 * math.sqrt(check.pvalue * (1 - check.pvalue) / 4000)
         assert result.df == 2.0
