@@ -18,7 +18,7 @@ from statmargin.stats import _common as common
 from statmargin.stats import effects, relative
 from statmargin.stats.aggregated import pairs_level
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, Subject, coded
 
 # Kruskal-Wallis's chi-square p is a rough guide below this many values in a group (common practice).
 KRUSKAL_SMALL_GROUP = 5
@@ -39,7 +39,7 @@ def _prepare(groups: Mapping[str, Any], alternative: str, confidence: float) -> 
         dropped += lost
     if len(cleaned) < 2:
         raise common.NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
-    common.require_spread(np.concatenate(list(cleaned.values())), "the outcome in every group")
+    common.require_spread(np.concatenate(list(cleaned.values())), Subject.OUTCOME_EVERY_GROUP)
     return cleaned, dropped, notes
 
 

@@ -41,8 +41,7 @@ from statmargin.stats.categorical import (
     wilson_interval,
 )
 from statmargin.vocabulary import AdjustMethod, Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Note, Reason, Skip, coded
-from statmargin.words import rates_words
+from statmargin.vocabulary.codes import Coded, Note, Reason, Refusal, Skip, coded
 
 # Two rates: the exact conditional test when an expected count under the null is
 # below this (Cochran's rule, common practice, as for 2x2 tables); the score test otherwise.
@@ -216,14 +215,14 @@ def _target(value: float) -> float:
     """A target rate per unit: a finite number above 0."""
     target = float(value)
     if not (math.isfinite(target) and target > 0):
-        raise OptionError(rates_words.target_rate_refused(value))
+        raise OptionError(coded(Refusal.TARGET_RATE, value=value))
     return target
 
 
 def _per(value: float) -> float:
     per = float(value)
     if not (math.isfinite(per) and per > 0):
-        raise OptionError(rates_words.per_unit_refused(str(value)))
+        raise OptionError(coded(Refusal.PER_UNIT, value=str(value)))
     return per
 
 
@@ -495,7 +494,7 @@ def compare_rates(
                         (to_ratio(float(ci.low)), to_ratio(float(ci.high))), difference,
                         (d_low, d_high), smallest)
     if method not in ("auto", "score"):
-        raise OptionError(rates_words.rate_method_refused(method))
+        raise OptionError(coded(Refusal.RATE_METHOD, method=method))
     scored = sm_rates.test_poisson_2indep(x1, t1, x2, t2, method="score", compare="ratio",
                                  alternative=_SIDES[alternative])
     low, high = wilson_interval(int(x1), n, confidence=confidence, alternative=alternative)
