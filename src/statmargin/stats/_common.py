@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import math
 import warnings
-from collections.abc import Iterable
+from collections.abc import Iterable, Mapping
 from typing import Any
 
 import numpy as np
@@ -15,7 +15,7 @@ from scipy import stats
 
 from statmargin.errors import CaveatWarning, NotEnoughDataError, OptionError
 from statmargin.vocabulary import PMethod
-from statmargin.vocabulary.codes import Coded, Count, Note, Refusal, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Refusal, Skip, Subject, coded
 
 ALTERNATIVES = ("two-sided", "greater", "less")
 
@@ -226,6 +226,29 @@ def caveat(notes: list[Coded], note: Coded) -> None:
     """Record a statistical caveat in ``notes`` and as a Python warning (``CaveatWarning``, worded by ``words``)."""
     notes.append(note)
     warnings.warn(CaveatWarning(note), stacklevel=3)
+
+
+def prepare_groups(groups: Mapping[str, Any], alternative: str, confidence: float) -> tuple[dict[str, np.ndarray], int, list[Coded]]:
+    """Clean every group, require two values each, at least two groups and some spread.
+
+    Returns the cleaned groups, how many values were dropped, and the note that a
+    comparison of several groups is two-sided whatever ``alternative`` asked.
+    """
+    check_options(alternative, confidence)
+    notes: list[Coded] = []
+    if alternative != "two-sided":
+        notes.append(coded(Note.MULTIGROUP_TWO_SIDED, alternative=alternative))
+    cleaned: dict[str, np.ndarray] = {}
+    dropped = 0
+    for label, values in groups.items():
+        kept, lost = clean(values, f"group {label}")
+        require_count(kept, 2, f"group {label}")
+        cleaned[str(label)] = kept
+        dropped += lost
+    if len(cleaned) < 2:
+        raise NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
+    require_spread(np.concatenate(list(cleaned.values())), Subject.OUTCOME_EVERY_GROUP)
+    return cleaned, dropped, notes
 
 
 def labels_pair(labels: Iterable[str]) -> tuple[str, str]:

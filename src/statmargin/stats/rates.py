@@ -11,7 +11,7 @@ unit (2 per 1,000 is ``0.002``).
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -127,13 +127,8 @@ def _first_above_mode_at_most(m: float, threshold: float) -> int:
     while stats.poisson.pmf(high, m) > threshold:
         step *= 2
         high = low + step
-    while high - low > 1:  # pmf(low) > threshold >= pmf(high)
-        mid = (low + high) // 2
-        if stats.poisson.pmf(mid, m) <= threshold:
-            high = mid
-        else:
-            low = mid
-    return high
+    # pmf(low) > threshold >= pmf(high)
+    return _first_true(low, high, lambda i: stats.poisson.pmf(i, m) <= threshold)
 
 
 def _count_below_mode_at_most(m: float, threshold: float) -> int:
@@ -143,13 +138,18 @@ def _count_below_mode_at_most(m: float, threshold: float) -> int:
         return top + 1
     if stats.poisson.pmf(0, m) > threshold:
         return 0
-    low, high = 0, top  # pmf(low) <= threshold < pmf(high)
+    # pmf(0) <= threshold < pmf(top): the first count above the threshold is how many lie at or below it
+    return _first_true(0, top, lambda i: stats.poisson.pmf(i, m) > threshold)
+
+
+def _first_true(low: int, high: int, true_at: Callable[[int], bool]) -> int:
+    """Smallest i in (low, high] with ``true_at(i)``, by bisection: false at ``low``, true at ``high``, monotone."""
     while high - low > 1:
         mid = (low + high) // 2
-        if stats.poisson.pmf(mid, m) <= threshold:
-            low = mid
-        else:
+        if true_at(mid):
             high = mid
+        else:
+            low = mid
     return high
 
 

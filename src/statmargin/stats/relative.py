@@ -24,7 +24,7 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Refusal, Skip, Subject, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Refusal, Subject, coded
 
 PERMUTATION_BELOW = 15  # "auto" draws permutations when the smallest group is smaller than this
 PERMUTATIONS = 4000  # permutation draws (p resolution 1 / 4001)
@@ -692,20 +692,8 @@ def rank_anova_type(
     """
     common.check_options(alternative, confidence)
     _check_p_method(p_method)
-    notes: list[Coded] = []
-    if alternative != "two-sided":
-        notes.append(coded(Note.MULTIGROUP_TWO_SIDED, alternative=alternative))
-    cleaned: dict[str, np.ndarray] = {}
-    dropped = 0
-    for label, values in groups.items():
-        kept, lost = common.clean(values, f"group {label}")
-        common.require_count(kept, 2, f"group {label}")
-        cleaned[str(label)] = kept
-        dropped += lost
-    if len(cleaned) < 2:
-        raise common.NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
+    cleaned, dropped, notes = common.prepare_groups(groups, alternative, confidence)
     arrays = list(cleaned.values())
-    common.require_spread(np.concatenate(arrays), Subject.OUTCOME_EVERY_GROUP)
     rows, sizes = _arranged(arrays)
     rel = relative_effects(placement_counts(rows, sizes), sizes)
     ats = anova_type(rel, sizes)

@@ -492,7 +492,7 @@ def _rank_sum_interval(a: np.ndarray, ca: np.ndarray, b: np.ndarray, cb: np.ndar
 
 
 def _groups(groups: Mapping[str, Weighted], alternative: str, confidence: float) -> tuple[Any, ...]:
-    """As ``multigroup._prepare``: two records per group, two groups, some spread overall."""
+    """As ``_common.prepare_groups``: two records per group, two groups, some spread overall."""
     common.check_options(alternative, confidence)
     notes: list[Coded] = []
     if alternative != "two-sided":
