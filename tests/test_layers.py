@@ -134,10 +134,6 @@ ALLOWED = {
     ("stats/rates.py", "events in first group"): (
         "the name of the exact rate-ratio test's statistic, a label in the Statistic column like 't' or 'z'"
     ),
-    ("stats/shape.py", "all values are equal"): "a group's shape verdict (a record field); left to move to words/",
-    ("stats/shape.py", "too few values to check the shape (n = )"): (
-        "a group's shape verdict (a record field); left to move to words/"
-    ),
 }
 
 
