@@ -18,7 +18,6 @@ from ..stats.shape import assess, spread_check
 from ..stats.weighted_shape import assess_weighted, spread_check_weighted
 from ..vocabulary import Design, MeasureType, ShapeHandling
 from ..vocabulary.codes import Coded, Count, Reason, Skip, coded
-from ..words import shape_words
 from .base import Prepared, Skipped, constant_reason, counted_sample
 from .question import Question
 
@@ -121,9 +120,9 @@ def prepare_groups(question: Question, design: Design, would: tuple[object, obje
         spread = spread_check_weighted(counted) if len(data.levels) >= 3 else None
         prepared.samples = {label: counted_sample(v, c) for label, (v, c) in counted.items()}
         prepared.extra["counts"] = data.counts
-    prepared.shape = {"assessment": shape_words.worded_assessment(shape), "spread": spread.to_record() if spread else None}
-    prepared.extra.update(assessment=shape, spread=spread, lead=data.lead)
-    prepared.summaries = [shape_words.worded(s) for s in shape.summaries]
+    prepared.keep_shape(shape)
+    prepared.shape["spread"] = spread.to_record() if spread else None
+    prepared.extra.update(spread=spread, lead=data.lead)
     if len(data.levels) < 2:
         reason = coded(Skip.FEWER_THAN_TWO_GROUPS, by=by, level=data.levels[0] if data.levels else None)
         raise Skipped(reason, prepared, design=Design.TWO_GROUP_CONTINUOUS, reasons=data.lead)

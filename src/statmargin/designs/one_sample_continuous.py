@@ -8,7 +8,7 @@ from ..stats.shape import assess
 from ..stats.weighted_shape import assess_weighted
 from ..vocabulary import Design, MeasureType, Test
 from ..vocabulary.codes import Skip, coded
-from ..words import refusals, shape_words
+from ..words import refusals
 from .base import (
     Choice,
     DesignSpec,
@@ -51,9 +51,7 @@ class OneSampleContinuous(DesignSpec):
         if n == 0:
             raise Skipped(coded(Skip.NO_USABLE_VALUES, name=name), prepared)
         shape = assess({name: x}) if question.counts is None else assess_weighted({name: (x, counts)})
-        prepared.shape = {"assessment": shape_words.worded_assessment(shape)}
-        prepared.extra["assessment"] = shape
-        prepared.summaries = [shape_words.worded(s) for s in shape.summaries]
+        prepared.keep_shape(shape)
         constant = constant_reason(name, x)
         if constant and x[0] == prepared.extra["mu"]:  # every value on the stated value: nothing to test
             raise Skipped(constant, prepared, test=Test.SIGN_TEST)

@@ -7,7 +7,6 @@ from ..stats.shape import assess
 from ..stats.weighted_shape import assess_weighted
 from ..vocabulary import Design, MeasureType, ShapeHandling
 from ..vocabulary.codes import Skip, coded
-from ..words import shape_words
 from .base import (
     Choice,
     DesignSpec,
@@ -47,9 +46,7 @@ class PairedContinuous(DesignSpec):
             halves = assess_weighted({first: (a, w), second: (b, w)})
             prepared.samples = {first: counted_sample(a, w), second: counted_sample(b, w)}
             prepared.extra["counts"] = w
-        prepared.shape = {"assessment": shape_words.worded_assessment(shape)}
-        prepared.extra["assessment"] = shape
-        prepared.summaries = [shape_words.worded(s) for s in halves.summaries]
+        prepared.keep_shape(shape, halves)
         prepared.groups = {first: a, second: b}
         ordinal = data.info.type is MeasureType.ORDINAL
         would = TESTS[1 if ordinal or question.handling is ShapeHandling.RANK else 0]

@@ -7,7 +7,6 @@ from ..stats.shape import assess
 from ..stats.weighted_shape import assess_weighted
 from ..vocabulary import Design, MeasureType
 from ..vocabulary.codes import Skip, coded
-from ..words import shape_words
 from .base import (
     Choice,
     DesignSpec,
@@ -50,9 +49,7 @@ class TwoContinuous(DesignSpec):
             shape = assess_weighted({name: (x, counts), by: (y, counts)})
             prepared.samples = {name: counted_sample(x, counts), by: counted_sample(y, counts)}
             prepared.extra["counts"] = counts
-        prepared.shape = {"assessment": shape_words.worded_assessment(shape)}
-        prepared.extra["assessment"] = shape
-        prepared.summaries = [shape_words.worded(s) for s in shape.summaries]
+        prepared.keep_shape(shape)
         for column, values in ((name, x), (by, y)):
             constant = constant_reason(column, values)
             if constant or x.size == 0:
