@@ -17,6 +17,7 @@ from statmargin.stats.shape import (
     spread_check,
     summarize,
 )
+from statmargin.words.shape_words import direction_and_evidence, verdict
 
 REF = Path(__file__).parent / "reference"
 CASES = {c["case_id"]: c for c in json.loads((REF / "r_cases.json").read_text())["cases"]}
@@ -116,7 +117,7 @@ def test_group_verdict_is_the_judgement_of_that_group_alone():
         alone = judge_shape({"all": values})
         assert s.check == "shapiro_wilk" and s.check_p == pytest.approx(alone.p_value, rel=1e-12)
         assert s.normal_shaped is (not alone.departs)
-        assert s.direction == ("close to normal" if not alone.departs else alone.direction.value)
+        assert direction_and_evidence(s.to_record())[0] == ("close to normal" if not alone.departs else alone.direction.value)
 
 
 def test_left_skewed_597_values_are_not_called_close_to_normal():
@@ -126,12 +127,13 @@ def test_left_skewed_597_values_are_not_called_close_to_normal():
     scores = 100 - np.random.default_rng(597).lognormal(2.0, 0.6, 597)
     s = summarize(scores)
     assert stats.shapiro(scores).pvalue < 0.001
-    assert s.direction == "left-skewed" and s.verdict.startswith("left-skewed (Shapiro-Wilk p < 0.001")
+    assert direction_and_evidence(s.to_record())[0] == "left-skewed"
+    assert verdict(s).startswith("left-skewed (Shapiro-Wilk p < 0.001")
 
 
 def test_above_5000_values_shapiro_wilk_reads_a_seeded_subsample():
     """Above 5000 values the verdict says so and repeats exactly (SciPy documents its p up to 5000)."""
     values = np.random.default_rng(11).normal(10.0, 2.0, 8000)
     first, second = summarize(values), summarize(values)
-    assert first.verdict == second.verdict and first.verdict.endswith("on 5000 sampled values)")
+    assert verdict(first) == verdict(second) and verdict(first).endswith("on 5000 sampled values)")
     assert first.normal_shaped is True

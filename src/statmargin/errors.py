@@ -10,6 +10,16 @@ from __future__ import annotations
 from .vocabulary.codes import Coded
 
 
+def _worded(reason: Coded | str) -> tuple[Coded | None, str]:
+    """The code (None for a plain message) and the one-line message of an error or a caveat."""
+    if isinstance(reason, str):
+        return None, reason
+    # Words come after the methods in the pipeline: imported when a message is needed.
+    from .words.sentences import say
+
+    return reason, say(reason)
+
+
 class StatmarginError(Exception):
     """Base class: a problem with the user's input or file, explained in one line."""
 
@@ -31,7 +41,15 @@ class RoleError(StatmarginError):
 
 
 class OptionError(StatmarginError):
-    """A command-line or API option has a value that does not fit."""
+    """A command-line or API option has a value that does not fit.
+
+    Raised with a one-line message or, from the statistical methods, with a
+    ``vocabulary.codes.Coded`` refusal (kept as ``reason``) that words writes.
+    """
+
+    def __init__(self, reason: Coded | str) -> None:
+        self.reason, message = _worded(reason)
+        super().__init__(message)
 
 
 class NotEnoughDataError(StatmarginError):
@@ -42,14 +60,16 @@ class NotEnoughDataError(StatmarginError):
     """
 
     def __init__(self, reason: Coded | str) -> None:
-        if isinstance(reason, str):
-            self.reason: Coded | None = None
-            super().__init__(reason)
-            return
-        from .words.sentences import say
+        self.reason, message = _worded(reason)
+        super().__init__(message)
 
-        self.reason = reason
-        super().__init__(say(reason))
+
+class CaveatWarning(UserWarning):
+    """A statistical caveat raised while computing, as a Python warning: its code as ``note``, worded."""
+
+    def __init__(self, note: Coded) -> None:
+        self.note, message = _worded(note)
+        super().__init__(message)
 
 
 class WorkbookLockedError(StatmarginError):

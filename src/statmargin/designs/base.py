@@ -30,8 +30,10 @@ from ..errors import NotEnoughDataError
 from ..plan.model import Settings
 from ..plan.types import ordinal_labels
 from ..results import Followup, Result
+from ..stats.shape import ShapeAssessment
 from ..vocabulary import Design, Test
 from ..vocabulary.codes import Coded, Skip, coded
+from ..words import shape_words
 from .question import Question
 
 
@@ -71,6 +73,16 @@ class Prepared:
     shape: dict[str, Any] = field(default_factory=dict)
     samples: dict[str, Any] = field(default_factory=dict)
     extra: dict[str, Any] = field(default_factory=dict)  # design-specific facts (target, pairing, ...)
+
+    def keep_shape(self, assessment: ShapeAssessment, shown: ShapeAssessment | None = None) -> None:
+        """Keep the shape check behind the choice, worded for the sheets and JSON, with the groups shown.
+
+        ``shown`` is the assessment whose groups the sheets describe when they are not the
+        checked ones (a paired design checks the differences and shows each measurement).
+        """
+        self.shape = {"assessment": shape_words.worded_assessment(assessment)}
+        self.extra["assessment"] = assessment
+        self.summaries = [shape_words.worded(s) for s in (shown or assessment).summaries]
 
 
 class Skipped(Exception):

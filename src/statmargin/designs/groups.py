@@ -87,20 +87,17 @@ def group_data(question: Question) -> GroupData:
     else:
         numbers, numbers_info = question.outcome, question.outcome_info
         grouping, grouping_info = question.by, question.by_info
-    y = question.values(numbers, numbers_info)
-    g = question.values(grouping, grouping_info)
-    usable = y.usable & g.usable
-    n_excluded = question.left_out(usable)
-    kept, weights = question.weighted(usable)
-    values = y.values[kept].astype(float)
-    labels = g.values[kept]
+    both = question.both(numbers, numbers_info, grouping, grouping_info)
+    n_excluded, weights = both.n_excluded, both.weights
+    values = both.first.values[both.kept].astype(float)
+    labels = both.second.values[both.kept]
     levels = levels_present(grouping_info, labels)
     # Too many groups are refused in prepare_groups; splitting them would cost n x groups.
     few = len(levels) <= MAX_GROUPS
     groups = {lev: values[labels == lev] for lev in levels} if few else {}
     counts = None if question.counts is None or not few else {lev: weights[labels == lev] for lev in levels}
     data = GroupData(numbers, numbers_info, grouping, grouping_info, levels, groups, int(weights.sum()),
-                     n_excluded, lead, kept, labels, counts)
+                     n_excluded, lead, both.kept, labels, counts)
     question.cache["groups"] = data
     return data
 
@@ -123,9 +120,9 @@ def prepare_groups(question: Question, design: Design, would: tuple[object, obje
         spread = spread_check_weighted(counted) if len(data.levels) >= 3 else None
         prepared.samples = {label: counted_sample(v, c) for label, (v, c) in counted.items()}
         prepared.extra["counts"] = data.counts
-    prepared.shape = {"assessment": shape.to_record(), "spread": spread.to_record() if spread else None}
-    prepared.extra.update(assessment=shape, spread=spread, lead=data.lead)
-    prepared.summaries = [s.to_record() for s in shape.summaries]
+    prepared.keep_shape(shape)
+    prepared.shape["spread"] = spread.to_record() if spread else None
+    prepared.extra.update(spread=spread, lead=data.lead)
     if len(data.levels) < 2:
         reason = coded(Skip.FEWER_THAN_TWO_GROUPS, by=by, level=data.levels[0] if data.levels else None)
         raise Skipped(reason, prepared, design=Design.TWO_GROUP_CONTINUOUS, reasons=data.lead)

@@ -51,9 +51,7 @@ class OneSampleContinuous(DesignSpec):
         if n == 0:
             raise Skipped(coded(Skip.NO_USABLE_VALUES, name=name), prepared)
         shape = assess({name: x}) if question.counts is None else assess_weighted({name: (x, counts)})
-        prepared.shape = {"assessment": shape.to_record()}
-        prepared.extra["assessment"] = shape
-        prepared.summaries = [s.to_record() for s in shape.summaries]
+        prepared.keep_shape(shape)
         constant = constant_reason(name, x)
         if constant and x[0] == prepared.extra["mu"]:  # every value on the stated value: nothing to test
             raise Skipped(constant, prepared, test=Test.SIGN_TEST)

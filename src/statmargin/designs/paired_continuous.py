@@ -46,9 +46,7 @@ class PairedContinuous(DesignSpec):
             halves = assess_weighted({first: (a, w), second: (b, w)})
             prepared.samples = {first: counted_sample(a, w), second: counted_sample(b, w)}
             prepared.extra["counts"] = w
-        prepared.shape = {"assessment": shape.to_record()}
-        prepared.extra["assessment"] = shape
-        prepared.summaries = [s.to_record() for s in halves.summaries]
+        prepared.keep_shape(shape, halves)
         prepared.groups = {first: a, second: b}
         ordinal = data.info.type is MeasureType.ORDINAL
         would = TESTS[1 if ordinal or question.handling is ShapeHandling.RANK else 0]

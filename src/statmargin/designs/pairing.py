@@ -77,12 +77,9 @@ def _wide(question: Question, design: Design) -> PairData:
         # Both columns must share one set of levels.
         levels = tuple(sorted(set(a_info.levels) | set(b_info.levels), key=_level_key))
         a_info = TypeInfo(MeasureType.CATEGORICAL, len(levels), levels, a_info.reason, a_info.inferred)
-    a = question.values(a_col, a_info)
-    b = question.values(b_col, b_info)
-    usable = a.usable & b.usable
-    n_excl = question.left_out(usable)
-    kept, counts = question.weighted(usable)
-    x, z = a.values[kept], b.values[kept]
+    both = question.both(a_col, a_info, b_col, b_info)
+    a, b, usable, n_excl, counts = both.first, both.second, both.usable, both.n_excluded, both.weights
+    x, z = a.values[both.kept], b.values[both.kept]
     if not a_cat:
         x, z = x.astype(float), z.astype(float)
     # Sheet rows whose pair had one half missing or unreadable, so the data notes can list them.

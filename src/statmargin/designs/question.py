@@ -23,6 +23,18 @@ from ..words import rates_words, refusals
 USABLE_TYPES = (MeasureType.CONTINUOUS, MeasureType.CATEGORICAL, MeasureType.ORDINAL)
 
 
+@dataclass(frozen=True)
+class BothColumns:
+    """Two columns read for one analysis (``Question.both``): the rows it uses are ``kept``."""
+
+    first: ColumnValues
+    second: ColumnValues
+    usable: np.ndarray  # rows where both values are usable
+    kept: np.ndarray  # usable rows with records (a count above 0 when there is a count column)
+    weights: np.ndarray  # records per kept row (all 1 without a count column)
+    n_excluded: int  # records left out (``Question.left_out``)
+
+
 @dataclass
 class ColumnTypes:
     """Types and usable values of a table's columns, each worked out once per run."""
@@ -134,6 +146,14 @@ class Question:
             return usable, np.ones(int(usable.sum()), dtype=np.int64)
         keep = usable & np.isfinite(counts) & (counts > 0)
         return keep, counts[keep].astype(np.int64)
+
+    def both(self, first: Column, first_info: TypeInfo, second: Column, second_info: TypeInfo) -> BothColumns:
+        """Two columns' values and the rows where both are usable, with records per row and those left out."""
+        a = self.values(first, first_info)
+        b = self.values(second, second_info)
+        usable = a.usable & b.usable
+        kept, weights = self.weighted(usable)
+        return BothColumns(a, b, usable, kept, weights, self.left_out(usable))
 
     def left_out(self, usable: np.ndarray) -> int:
         """Records (rows holding anything) that an analysis using ``usable`` rows leaves out.

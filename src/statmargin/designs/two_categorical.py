@@ -52,12 +52,9 @@ class TwoCategorical(DesignSpec):
     def prepare(self, question: Question) -> Prepared:
         assert question.by is not None and question.by_info is not None
         name, by = question.outcome.name, question.by.name
-        a = question.values(question.outcome, question.outcome_info)
-        b = question.values(question.by, question.by_info)
-        usable = a.usable & b.usable
-        n_excl = question.left_out(usable)
-        kept, weights = question.weighted(usable)
-        out_labels, by_labels = a.values[kept], b.values[kept]
+        both = question.both(question.outcome, question.outcome_info, question.by, question.by_info)
+        n_excl, weights = both.n_excluded, both.weights
+        out_labels, by_labels = both.first.values[both.kept], both.second.values[both.kept]
         rows = levels_present(question.by_info, by_labels)
         cols = levels_present(question.outcome_info, out_labels)
         if len(cols) == 2:

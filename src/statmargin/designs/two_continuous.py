@@ -37,13 +37,10 @@ class TwoContinuous(DesignSpec):
     def prepare(self, question: Question) -> Prepared:
         assert question.by is not None and question.by_info is not None
         name, by = question.outcome.name, question.by.name
-        a = question.values(question.outcome, question.outcome_info)
-        b = question.values(question.by, question.by_info)
-        usable = a.usable & b.usable
-        n_excl = question.left_out(usable)
-        kept, counts = question.weighted(usable)
-        x = a.values[kept].astype(float)
-        y = b.values[kept].astype(float)
+        both = question.both(question.outcome, question.outcome_info, question.by, question.by_info)
+        n_excl, counts = both.n_excluded, both.weights
+        x = both.first.values[both.kept].astype(float)
+        y = both.second.values[both.kept].astype(float)
         prepared = Prepared(self.design, n=int(counts.sum()), n_excluded=n_excl, groups={name: x, by: y})
         if question.counts is None:
             shape = assess({name: x, by: y})
@@ -52,9 +49,7 @@ class TwoContinuous(DesignSpec):
             shape = assess_weighted({name: (x, counts), by: (y, counts)})
             prepared.samples = {name: counted_sample(x, counts), by: counted_sample(y, counts)}
             prepared.extra["counts"] = counts
-        prepared.shape = {"assessment": shape.to_record()}
-        prepared.extra["assessment"] = shape
-        prepared.summaries = [s.to_record() for s in shape.summaries]
+        prepared.keep_shape(shape)
         for column, values in ((name, x), (by, y)):
             constant = constant_reason(column, values)
             if constant or x.size == 0:

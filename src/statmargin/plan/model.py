@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from ..stats.categorical import DEFAULT_RESAMPLES, DEFAULT_SEED
 from ..vocabulary import (
     AdjustFamily,
     AdjustMethod,
@@ -18,14 +19,14 @@ from ..vocabulary import (
 
 @dataclass(frozen=True)
 class Settings:
-    """Run-wide settings; defaults are defined here once."""
+    """Run-wide settings; defaults are defined here once (those of the Monte Carlo methods in ``stats``)."""
 
     confidence: float = 0.95
     adjust: AdjustMethod = AdjustMethod.HOLM
     alternative: Alternative = Alternative.TWO_SIDED
     alpha: float = 0.05  # level for flags and follow-up comparisons (common practice)
-    seed: int = 20261202  # Monte Carlo p-values are reproducible run to run
-    monte_carlo_resamples: int = 20000
+    seed: int = DEFAULT_SEED  # Monte Carlo p-values are reproducible run to run
+    monte_carlo_resamples: int = DEFAULT_RESAMPLES
     merge_look_alikes: bool = True  # labels differing only in case, spacing or trailing punctuation
     family: AdjustFamily = AdjustFamily.RUN  # which results share one adjustment
     rows: RowsToUse = RowsToUse.ALL  # hidden and filtered rows used (and said so) or left out

@@ -7,15 +7,15 @@ from __future__ import annotations
 
 import math
 import warnings
-from collections.abc import Iterable
+from collections.abc import Iterable, Mapping
 from typing import Any
 
 import numpy as np
 from scipy import stats
 
-from statmargin.errors import NotEnoughDataError, OptionError
+from statmargin.errors import CaveatWarning, NotEnoughDataError, OptionError
 from statmargin.vocabulary import PMethod
-from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Refusal, Skip, Subject, coded
 
 ALTERNATIVES = ("two-sided", "greater", "less")
 
@@ -36,13 +36,9 @@ def check_options(alternative: str, confidence: float) -> None:
         With a one-line message saying which value to use.
     """
     if alternative not in ALTERNATIVES:
-        raise OptionError(
-            f"The alternative '{alternative}' is not known; use one of: {', '.join(ALTERNATIVES)}."
-        )
+        raise OptionError(coded(Refusal.UNKNOWN_ALTERNATIVE, given=alternative))
     if not (isinstance(confidence, (int, float)) and 0.0 < float(confidence) < 1.0):
-        raise OptionError(
-            f"The confidence level {confidence!r} must be a number between 0 and 1, such as 0.95."
-        )
+        raise OptionError(coded(Refusal.CONFIDENCE_RANGE, given=confidence))
 
 
 def check_confidence(confidence: float) -> float:
@@ -54,7 +50,7 @@ def check_confidence(confidence: float) -> float:
         When the level is not strictly between 0 and 1.
     """
     if not (0.0 < float(confidence) < 1.0):
-        raise OptionError(f"Confidence level {confidence} is not between 0 and 1; use e.g. 0.95.")
+        raise OptionError(coded(Refusal.CONFIDENCE_RANGE, given=confidence))
     return float(confidence)
 
 
@@ -191,7 +187,7 @@ def z_quantiles(alternative: str, confidence: float) -> tuple[float | None, floa
 def check_exact(exact: bool | str) -> None:
     """Refuse an ``exact`` choice other than ``"auto"``, True or False."""
     if exact not in ("auto", True, False):
-        raise OptionError(f"exact must be 'auto', True or False, not {exact!r}.")
+        raise OptionError(coded(Refusal.EXACT_CHOICE, given=exact))
 
 
 def normal_approximation(correct: bool) -> tuple[PMethod, Coded]:
@@ -227,18 +223,39 @@ def tie_counts(values: np.ndarray) -> np.ndarray:
 
 
 def caveat(notes: list[Coded], note: Coded) -> None:
-    """Record a statistical caveat in ``notes`` and as a Python warning (worded by ``words``)."""
-    from statmargin.words.sentences import say
-
+    """Record a statistical caveat in ``notes`` and as a Python warning (``CaveatWarning``, worded by ``words``)."""
     notes.append(note)
-    warnings.warn(say(note), stacklevel=3)
+    warnings.warn(CaveatWarning(note), stacklevel=3)
+
+
+def prepare_groups(groups: Mapping[str, Any], alternative: str, confidence: float) -> tuple[dict[str, np.ndarray], int, list[Coded]]:
+    """Clean every group, require two values each, at least two groups and some spread.
+
+    Returns the cleaned groups, how many values were dropped, and the note that a
+    comparison of several groups is two-sided whatever ``alternative`` asked.
+    """
+    check_options(alternative, confidence)
+    notes: list[Coded] = []
+    if alternative != "two-sided":
+        notes.append(coded(Note.MULTIGROUP_TWO_SIDED, alternative=alternative))
+    cleaned: dict[str, np.ndarray] = {}
+    dropped = 0
+    for label, values in groups.items():
+        kept, lost = clean(values, f"group {label}")
+        require_count(kept, 2, f"group {label}")
+        cleaned[str(label)] = kept
+        dropped += lost
+    if len(cleaned) < 2:
+        raise NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
+    require_spread(np.concatenate(list(cleaned.values())), Subject.OUTCOME_EVERY_GROUP)
+    return cleaned, dropped, notes
 
 
 def labels_pair(labels: Iterable[str]) -> tuple[str, str]:
     """Two group labels as strings; refuse any other count."""
     pair = tuple(str(label) for label in labels)
     if len(pair) != 2:
-        raise OptionError(f"Two group labels are needed, got {len(pair)}.")
+        raise OptionError(coded(Refusal.TWO_LABELS, n=len(pair)))
     return pair[0], pair[1]
 
 
@@ -326,7 +343,7 @@ def _kth_in_sorted_rows(
 def _checked_rank(k: int, total: int) -> int:
     """``k`` as an int in [0, total); refuse anything else in one line."""
     if not (0 <= int(k) < total):
-        raise OptionError(f"The order statistic {k} is outside 0 to {total - 1}.")
+        raise OptionError(f"k={k} outside 0 to {total - 1}")  # a caller's mistake, never a user's
     return int(k)
 
 

@@ -15,6 +15,7 @@ import numpy as np
 from statmargin.errors import OptionError
 from statmargin.results import Result
 from statmargin.vocabulary import AdjustFamily, AdjustMethod
+from statmargin.vocabulary.codes import Refusal, coded
 
 
 def _as_method(method: AdjustMethod | str) -> AdjustMethod:
@@ -24,10 +25,7 @@ def _as_method(method: AdjustMethod | str) -> AdjustMethod:
     try:
         return AdjustMethod(str(method).strip().lower())
     except ValueError:
-        choices = ", ".join(f"'{m.value}'" for m in AdjustMethod)
-        raise OptionError(
-            f"Unknown p-value adjustment '{method}'; choose one of {choices}."
-        ) from None
+        raise OptionError(coded(Refusal.UNKNOWN_ADJUSTMENT, given=method)) from None
 
 
 def _holm(p: np.ndarray) -> np.ndarray:
@@ -114,9 +112,7 @@ def adjust_p(p: Sequence[float | None], method: AdjustMethod | str) -> list[floa
     present = [i for i, _ in given]
     values = np.array([v for _, v in given], dtype=float)
     if values.size and (values.min() < 0.0 or values.max() > 1.0):
-        raise OptionError(
-            "A p-value outside 0 to 1 was passed for adjustment; this is a bug in the caller."
-        )
+        raise OptionError(f"p outside 0 to 1: {values.min()!r}, {values.max()!r}")  # a caller's bug
     if chosen is AdjustMethod.HOLM:
         adjusted = _holm(values)
     elif chosen is AdjustMethod.BH:
@@ -188,9 +184,7 @@ def _as_family(family: AdjustFamily | str) -> AdjustFamily:
     try:
         return AdjustFamily(" ".join(str(family).split()).lower())
     except ValueError:
-        from statmargin.words.period_words import unknown_family
-
-        raise OptionError(unknown_family(str(family))) from None
+        raise OptionError(coded(Refusal.UNKNOWN_FAMILY, given=str(family))) from None
 
 
 def adjust_by_family(

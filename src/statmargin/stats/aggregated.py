@@ -21,7 +21,7 @@ from scipy import stats
 from statmargin.errors import NotEnoughDataError
 from statmargin.stats._common import caveat
 from statmargin.vocabulary import PMethod
-from statmargin.vocabulary.codes import Coded, Note, Reason, Skip, coded
+from statmargin.vocabulary.codes import Coded, Note, Reason, Skip, Subject, coded
 
 # The dispersion test says rows vary more than sampling allows when its p-value is
 # below this level (a conventional 5% level; see ``pearson_dispersion``).
@@ -239,7 +239,7 @@ def split_by(events: Any, totals: Any, strata: Sequence[Any]) -> dict[str, tuple
     t = np.asarray(totals, dtype=float).ravel()
     labels = np.asarray([str(s) for s in strata], dtype=object)
     if labels.size != e.size:
-        raise NotEnoughDataError(coded(Skip.LENGTH_MISMATCH, what="the rows and their strata", first=e.size,
+        raise NotEnoughDataError(coded(Skip.LENGTH_MISMATCH, what=Subject.ROWS_AND_STRATA, first=e.size,
                                        second=labels.size))
     return {str(k): (e[labels == k], t[labels == k]) for k in dict.fromkeys(labels.tolist())}
 

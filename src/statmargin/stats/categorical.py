@@ -17,15 +17,15 @@ from scipy import optimize, stats
 from scipy.stats import contingency
 
 from statmargin.errors import NotEnoughDataError, OptionError
-from statmargin.plan.model import Settings
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats._common import caveat, check_confidence
 from statmargin.vocabulary import Alternative, Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Derived, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Derived, Note, Refusal, Skip, Subject, coded
 
-_DEFAULTS = Settings()
-DEFAULT_SEED = _DEFAULTS.seed
-DEFAULT_RESAMPLES = _DEFAULTS.monte_carlo_resamples
+# Run-wide defaults (plan.model.Settings takes them from here): Monte Carlo p-values are
+# reproducible run to run.
+DEFAULT_SEED = 20261202
+DEFAULT_RESAMPLES = 20000
 
 # Cochran (1954) rule, common practice: the chi-square approximation is doubtful
 # when more than 20% of expected counts are below 5 or any is below 1.
@@ -44,9 +44,7 @@ def _alternative(alternative: Alternative | str) -> str:
     value = getattr(alternative, "value", alternative)
     value = str(value).strip().lower()
     if value not in ("two-sided", "greater", "less"):
-        raise OptionError(
-            f"Unknown alternative '{alternative}'; choose 'two-sided', 'greater' or 'less'."
-        )
+        raise OptionError(coded(Refusal.UNKNOWN_ALTERNATIVE, given=alternative))
     return value
 
 
@@ -59,9 +57,7 @@ def _z(confidence: float, alternative: str) -> float:
 
 def _check_resamples(resamples: int) -> int:
     if int(resamples) < 1:
-        raise OptionError(
-            f"The number of Monte Carlo resamples is {resamples}; use a whole number such as 20000."
-        )
+        raise OptionError(coded(Refusal.RESAMPLES, given=resamples))
     return int(resamples)
 
 
@@ -412,13 +408,14 @@ def noncentrality_estimate(
 # --------------------------------------------------------------------------- input checks
 
 
-def _as_count(value: Any, what: str) -> int:
+def _as_count(value: Any, what: Subject, label: str | None = None) -> int:
+    """A whole count 0 or more; ``what`` (with ``label`` for ``Subject.COUNT_OF``) names it in a refusal."""
     try:
         number = float(value)
     except (TypeError, ValueError):
-        raise OptionError(f"{what} is '{value}', not a count; use whole numbers.") from None
+        raise OptionError(coded(Refusal.NOT_A_COUNT, what=what, label=label, value=value)) from None
     if not math.isfinite(number) or number < 0 or number != int(number):
-        raise OptionError(f"{what} is {value}; counts must be whole numbers 0 or more.")
+        raise OptionError(coded(Refusal.NOT_WHOLE_COUNT, what=what, label=label, value=value))
     return int(number)
 
 
@@ -426,13 +423,11 @@ def _count_table(table: Any, row_labels: Sequence[str], col_labels: Sequence[str
     """A validated integer table with no empty row or column."""
     arr = np.asarray(table, dtype=object)
     if arr.ndim != 2:
-        raise OptionError("The table of counts must have rows and columns (2-D).")
+        raise OptionError(coded(Refusal.TABLE_NOT_2D))
     if arr.shape != (len(row_labels), len(col_labels)):
-        raise OptionError(
-            f"The table is {arr.shape[0]}x{arr.shape[1]} but {len(row_labels)} row and "
-            f"{len(col_labels)} column labels were given; give one label per row and column."
-        )
-    counts = np.array([[_as_count(v, "A table cell") for v in row] for row in arr], dtype=np.int64)
+        raise OptionError(coded(Refusal.TABLE_LABELS, rows=arr.shape[0], columns=arr.shape[1],
+                                row_labels=len(row_labels), column_labels=len(col_labels)))
+    counts = np.array([[_as_count(v, Subject.TABLE_CELL) for v in row] for row in arr], dtype=np.int64)
     if counts.shape[0] < 2 or counts.shape[1] < 2:
         raise NotEnoughDataError(coded(Skip.ONE_CATEGORY_SIDE))
     if counts.sum() == 0:
@@ -588,22 +583,18 @@ def chi_square_goodness_of_fit(
     labels = [str(k) for k in shares]
     missing = [str(k) for k in counts if str(k) not in labels]
     if missing:
-        raise OptionError(
-            f"Category '{missing[0]}' has counts but no expected share; give a share for every category."
-        )
+        raise OptionError(coded(Refusal.SHARE_MISSING, label=missing[0]))
     if len(labels) < 2:
         raise NotEnoughDataError(coded(Skip.ONE_CATEGORY_GIVEN))
     by_label = {str(k): v for k, v in counts.items()}
     observed = np.array(
-        [_as_count(by_label.get(lab, 0), f"The count of '{lab}'") for lab in labels], dtype=float
+        [_as_count(by_label.get(lab, 0), Subject.COUNT_OF, lab) for lab in labels], dtype=float
     )
     expected_share = np.array([float(shares[k]) for k in shares], dtype=float)
     if not np.all(np.isfinite(expected_share)) or np.any(expected_share <= 0):
-        raise OptionError("Every expected share must be a number above 0; fix the shares given.")
+        raise OptionError(coded(Refusal.SHARES_NOT_POSITIVE))
     if abs(expected_share.sum() - 1.0) > 1e-6:
-        raise OptionError(
-            f"The expected shares add up to {expected_share.sum():g}, not 1; correct them so they add up to 1."
-        )
+        raise OptionError(coded(Refusal.SHARES_SUM, total=float(expected_share.sum())))
     expected_share = expected_share / expected_share.sum()
     n = int(observed.sum())
     if n == 0:
@@ -768,19 +759,15 @@ def binomial_exact(
     """
     confidence = check_confidence(confidence)
     alt = _alternative(alternative)
-    n = _as_count(n, "The number of observations")
-    successes = _as_count(successes, f"The count of '{label}'")
+    n = _as_count(n, Subject.OBSERVATIONS)
+    successes = _as_count(successes, Subject.COUNT_OF, label)
     if n == 0:
         raise NotEnoughDataError(coded(Skip.NO_OBSERVATIONS))
     if successes > n:
-        raise OptionError(
-            f"The count of '{label}' ({successes}) is larger than the total ({n}); check the counts."
-        )
+        raise OptionError(coded(Refusal.COUNT_ABOVE_TOTAL, label=label, count=successes, total=n))
     share = float(share)
     if not (0.0 < share < 1.0):
-        raise OptionError(
-            f"The target share {share} must be between 0 and 1 (exclusive); give e.g. 0.5."
-        )
+        raise OptionError(coded(Refusal.TARGET_SHARE_OPEN, value=share))
     test = stats.binomtest(successes, n, p=share, alternative=alt)
     exact = test.proportion_ci(confidence_level=confidence, method=PMethod.EXACT)
     phat = successes / n
@@ -1006,7 +993,12 @@ def chi_square_independence(
 def _woolf_odds_ratio(
     counts: np.ndarray, confidence: float, col_labels: Sequence[str], row_labels: Sequence[str]
 ) -> dict[str, Any]:
-    """Sample odds ratio (a d)/(b c) with Woolf's log interval (0.5 added if a cell is 0)."""
+    """Sample odds ratio (a d)/(b c) with Woolf's log interval (0.5 added if a cell is 0).
+
+    A record of numbers and identifiers for ``Result.extra``: the odds of ``level``
+    (the first column) in ``levels`` (first row against second), the interval method
+    and whether 0.5 was added to every cell.
+    """
     cells = counts.astype(float)
     adjusted = bool((cells == 0).any())
     if adjusted:
@@ -1016,12 +1008,13 @@ def _woolf_odds_ratio(
     se = math.sqrt(1 / a + 1 / b + 1 / c + 1 / d)
     z = _z(confidence, "two-sided")
     return {
-        "name": f"odds ratio of '{col_labels[0]}' ('{row_labels[0]}' vs '{row_labels[1]}')",
+        "level": str(col_labels[0]),
+        "levels": [str(row_labels[0]), str(row_labels[1])],
         "value": math.exp(log_or),
         "ci_low": math.exp(log_or - z * se),
         "ci_high": math.exp(log_or + z * se),
-        "method": "sample odds ratio, Woolf logit interval"
-        + (" with 0.5 added to every cell" if adjusted else ""),
+        "method": "woolf_logit",
+        "half_added": adjusted,
     }
 
 
@@ -1090,9 +1083,7 @@ def fisher_exact(
     alt = _alternative(alternative)
     counts = _count_table(table2x2, row_labels, col_labels)
     if counts.shape != (2, 2):
-        raise OptionError(
-            "Fisher's exact test here takes a 2x2 table; use the chi-square test for larger tables."
-        )
+        raise OptionError(coded(Refusal.FISHER_TWO_BY_TWO))
     p_value = float(stats.fisher_exact(counts, alternative=alt).pvalue)
     odds = contingency.odds_ratio(counts, kind="conditional")
     ci = odds.confidence_interval(confidence_level=confidence, alternative=alt)
@@ -1207,11 +1198,11 @@ def mcnemar(
     confidence = check_confidence(confidence)
     alt = _alternative(alternative)
     if len(labels) != 2:
-        raise OptionError("McNemar's test needs exactly two levels; give two labels.")
+        raise OptionError(coded(Refusal.MCNEMAR_TWO_LEVELS))
     arr = np.asarray(table2x2, dtype=object)
     if arr.shape != (2, 2):
-        raise OptionError("McNemar's test takes a 2x2 table of paired counts.")
-    counts = np.array([[_as_count(v, "A table cell") for v in row] for row in arr], dtype=np.int64)
+        raise OptionError(coded(Refusal.MCNEMAR_TWO_BY_TWO))
+    counts = np.array([[_as_count(v, Subject.TABLE_CELL) for v in row] for row in arr], dtype=np.int64)
     n = int(counts.sum())
     if n == 0:
         raise NotEnoughDataError(coded(Skip.NO_COMPLETE_PAIRS))
@@ -1287,6 +1278,6 @@ def mcnemar(
             "observed": _labelled(counts, labels, labels),
             "discordant_b": b,
             "discordant_c": c,
-            "exact_rule": f"exact binomial version when discordant pairs < {MCNEMAR_EXACT_BELOW}",
+            "exact_below": MCNEMAR_EXACT_BELOW,  # the exact binomial version below this many discordant pairs
         },
     )

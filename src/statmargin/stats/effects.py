@@ -99,7 +99,7 @@ def noncentrality_interval(
     def cdf(ncp: float) -> float:
         value = float(stats.nct.cdf(t, df, ncp)) if ncp != 0.0 else float(stats.t.cdf(t, df))
         if not math.isfinite(value):
-            raise ValueError("noncentral t distribution function not finite")
+            raise ValueError(f"nct.cdf({t}, {df}, {ncp}) = {value}")
         return value
 
     if abs(t) <= NONCENTRAL_T_LIMIT:

@@ -18,29 +18,21 @@ from statmargin.stats import _common as common
 from statmargin.stats import effects, relative
 from statmargin.stats.aggregated import pairs_level
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
+from statmargin.vocabulary.codes import Count, Note, Skip, coded
 
 # Kruskal-Wallis's chi-square p is a rough guide below this many values in a group (common practice).
 KRUSKAL_SMALL_GROUP = 5
 
 
-def _prepare(groups: Mapping[str, Any], alternative: str, confidence: float) -> tuple[dict[str, np.ndarray], int, list[Coded]]:
-    """Clean every group, require two values each, at least two groups and some spread."""
-    common.check_options(alternative, confidence)
-    notes: list[Coded] = []
-    if alternative != "two-sided":
-        notes.append(coded(Note.MULTIGROUP_TWO_SIDED, alternative=alternative))
-    cleaned: dict[str, np.ndarray] = {}
-    dropped = 0
-    for label, values in groups.items():
-        kept, lost = common.clean(values, f"group {label}")
-        common.require_count(kept, 2, f"group {label}")
-        cleaned[str(label)] = kept
-        dropped += lost
-    if len(cleaned) < 2:
-        raise common.NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
-    common.require_spread(np.concatenate(list(cleaned.values())), "the outcome in every group")
-    return cleaned, dropped, notes
+def _summaries_with_spread(cleaned: Mapping[str, np.ndarray]) -> list[dict[str, Any]]:
+    """Each group's summary; refuse a group without spread, which precision weights cannot weigh."""
+    summaries = [common.describe(label, values) for label, values in cleaned.items()]
+    for summary in summaries:
+        if summary["sd"] == 0.0:
+            raise common.NotEnoughDataError(
+                coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"])
+            )
+    return summaries
 
 
 def sums_of_squares(groups: Mapping[str, np.ndarray]) -> tuple[float, float, list[float]]:
@@ -249,7 +241,7 @@ def one_way_anova(
     >>> math.isclose(result.p_value, stats.f_oneway(*groups.values()).pvalue)
     True
     """
-    cleaned, dropped, notes = _prepare(groups, alternative, confidence)
+    cleaned, dropped, notes = common.prepare_groups(groups, alternative, confidence)
     between, within, _ = sums_of_squares(cleaned)
     k = len(cleaned)
     n_total = sum(values.size for values in cleaned.values())
@@ -337,13 +329,8 @@ def welch_anova(
     >>> math.isclose(result.p_value, scipy_p)
     True
     """
-    cleaned, dropped, notes = _prepare(groups, alternative, confidence)
-    summaries = [common.describe(label, values) for label, values in cleaned.items()]
-    for summary in summaries:
-        if summary["sd"] == 0.0:
-            raise common.NotEnoughDataError(
-                coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"])
-            )
+    cleaned, dropped, notes = common.prepare_groups(groups, alternative, confidence)
+    summaries = _summaries_with_spread(cleaned)
     f, df1, df2 = welch_statistic(summaries)
     n_total = int(sum(summary["n"] for summary in summaries))
     effect = _weighted_share(f * df1, df1, df2, n_total, confidence)
@@ -471,13 +458,8 @@ def alexander_govern(
     >>> result.effect.ci_low <= result.effect.value <= result.effect.ci_high
     True
     """
-    cleaned, dropped, notes = _prepare(groups, alternative, confidence)
-    summaries = [common.describe(label, values) for label, values in cleaned.items()]
-    for summary in summaries:
-        if summary["sd"] == 0.0:
-            raise common.NotEnoughDataError(
-                coded(Skip.GROUP_CONSTANT_WELCH, label=summary["label"], value=summary["mean"])
-            )
+    cleaned, dropped, notes = common.prepare_groups(groups, alternative, confidence)
+    summaries = _summaries_with_spread(cleaned)
     values = list(cleaned.values())
     check = stats.alexandergovern(*values)
     p, method = float(check.pvalue), PMethod.ASYMPTOTIC
@@ -712,7 +694,7 @@ def kruskal_wallis(
     >>> math.isclose(result.p_value, stats.kruskal(*groups.values()).pvalue)
     True
     """
-    cleaned, dropped, notes = _prepare(groups, alternative, confidence)
+    cleaned, dropped, notes = common.prepare_groups(groups, alternative, confidence)
     arrays = list(cleaned.values())
     n_total = sum(values.size for values in arrays)
     h = kruskal_wallis_h(arrays)

@@ -22,18 +22,54 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import TypeVar
+from typing import Protocol, TypeVar
 
 import numpy as np
 
 from ..errors import NotEnoughDataError
-from ..plan.periods import PeriodAxis, period_label
 from ..results import PeriodPoint, Trend, Unusual
+from ..vocabulary import Grain
 from ..vocabulary.codes import Coded
 from .control import ControlChart, baseline_mask, individuals_chart, p_chart
 from .trend import Series, centre_series, cochran_armitage, mann_kendall, share_series
 
 T = TypeVar("T")
+
+
+class PeriodAxis(Protocol):
+    """What the methods read of the period axis the caller built (``plan.periods.PeriodAxis``).
+
+    The caller labels the periods (``labels``, one per key): the methods work on keys and
+    positions and never word a period.
+    """
+
+    @property
+    def grain(self) -> Grain: ...
+
+    @property
+    def keys(self) -> np.ndarray:
+        """The period keys, int64 and consecutive."""
+
+    @property
+    def latest(self) -> int:
+        """Key of the latest period used for comparisons and flags."""
+
+    @property
+    def partial(self) -> int | None:
+        """Key of a partial last period (after ``latest``), if any."""
+
+    @property
+    def few(self) -> tuple[int, ...]:
+        """Keys of periods with fewer rows than the minimum."""
+
+    @property
+    def labels(self) -> list[str]:
+        """Each key's period as shown (the caller's labels)."""
+
+    @property
+    def first(self) -> int: ...
+
+    def through_latest(self) -> np.ndarray: ...
 
 
 @dataclass
@@ -58,10 +94,11 @@ def _assemble(
 ) -> PeriodAnalysis:
     points = []
     few = set(axis.few)
+    labels = axis.labels
     for i, key in enumerate(axis.keys):
         points.append(
             PeriodPoint(
-                period=period_label(axis.grain, int(key)),
+                period=labels[i],
                 n=int(series.n[i]),
                 value=_finite(series.value[i]),
                 ci_low=_finite(series.ci_low[i]),
@@ -74,7 +111,7 @@ def _assemble(
             )
         )
     unusual = (
-        [Unusual(period_label(axis.grain, int(axis.keys[i])), rule) for i, rule in chart.flags]
+        [Unusual(labels[i], rule) for i, rule in chart.flags]
         if chart is not None
         else []
     )

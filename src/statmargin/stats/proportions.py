@@ -42,8 +42,7 @@ from statmargin.stats.categorical import (
     wilson_interval,
 )
 from statmargin.vocabulary import EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Skip, coded
-from statmargin.words import rates_words
+from statmargin.vocabulary.codes import Coded, Refusal, Skip, coded
 
 
 def share_summaries(
@@ -85,7 +84,7 @@ def _wilson(events: float, total: float, confidence: float) -> tuple[float, floa
 def _share_target(value: float) -> float:
     share = float(value)
     if not (math.isfinite(share) and 0.0 < share < 1.0):
-        raise OptionError(rates_words.target_share_refused(value))
+        raise OptionError(coded(Refusal.TARGET_SHARE, value=value))
     return share
 
 
@@ -302,7 +301,7 @@ def compare_shares(
                                          seed=seed, resamples=resamples,
                                          monte_carlo="auto" if phi is None else False)
     else:
-        raise OptionError(rates_words.share_test_refused(chosen))
+        raise OptionError(coded(Refusal.SHARE_TEST, test=chosen))
     if phi is not None:
         _quasi_binomial(result, table, pooled, phi, dispersion, alternative, confidence)
     result.extra["categories"] = result.groups

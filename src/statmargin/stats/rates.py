@@ -11,7 +11,7 @@ unit (2 per 1,000 is ``0.002``).
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -41,8 +41,7 @@ from statmargin.stats.categorical import (
     wilson_interval,
 )
 from statmargin.vocabulary import AdjustMethod, Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Note, Reason, Skip, coded
-from statmargin.words import rates_words
+from statmargin.vocabulary.codes import Coded, Note, Reason, Refusal, Skip, coded
 
 # Two rates: the exact conditional test when an expected count under the null is
 # below this (Cochran's rule, common practice, as for 2x2 tables); the score test otherwise.
@@ -128,13 +127,8 @@ def _first_above_mode_at_most(m: float, threshold: float) -> int:
     while stats.poisson.pmf(high, m) > threshold:
         step *= 2
         high = low + step
-    while high - low > 1:  # pmf(low) > threshold >= pmf(high)
-        mid = (low + high) // 2
-        if stats.poisson.pmf(mid, m) <= threshold:
-            high = mid
-        else:
-            low = mid
-    return high
+    # pmf(low) > threshold >= pmf(high)
+    return _first_true(low, high, lambda i: stats.poisson.pmf(i, m) <= threshold)
 
 
 def _count_below_mode_at_most(m: float, threshold: float) -> int:
@@ -144,13 +138,18 @@ def _count_below_mode_at_most(m: float, threshold: float) -> int:
         return top + 1
     if stats.poisson.pmf(0, m) > threshold:
         return 0
-    low, high = 0, top  # pmf(low) <= threshold < pmf(high)
+    # pmf(0) <= threshold < pmf(top): the first count above the threshold is how many lie at or below it
+    return _first_true(0, top, lambda i: stats.poisson.pmf(i, m) > threshold)
+
+
+def _first_true(low: int, high: int, true_at: Callable[[int], bool]) -> int:
+    """Smallest i in (low, high] with ``true_at(i)``, by bisection: false at ``low``, true at ``high``, monotone."""
     while high - low > 1:
         mid = (low + high) // 2
-        if stats.poisson.pmf(mid, m) <= threshold:
-            low = mid
-        else:
+        if true_at(mid):
             high = mid
+        else:
+            low = mid
     return high
 
 
@@ -216,14 +215,14 @@ def _target(value: float) -> float:
     """A target rate per unit: a finite number above 0."""
     target = float(value)
     if not (math.isfinite(target) and target > 0):
-        raise OptionError(rates_words.target_rate_refused(value))
+        raise OptionError(coded(Refusal.TARGET_RATE, value=value))
     return target
 
 
 def _per(value: float) -> float:
     per = float(value)
     if not (math.isfinite(per) and per > 0):
-        raise OptionError(rates_words.per_unit_refused(str(value)))
+        raise OptionError(coded(Refusal.PER_UNIT, value=str(value)))
     return per
 
 
@@ -495,7 +494,7 @@ def compare_rates(
                         (to_ratio(float(ci.low)), to_ratio(float(ci.high))), difference,
                         (d_low, d_high), smallest)
     if method not in ("auto", "score"):
-        raise OptionError(rates_words.rate_method_refused(method))
+        raise OptionError(coded(Refusal.RATE_METHOD, method=method))
     scored = sm_rates.test_poisson_2indep(x1, t1, x2, t2, method="score", compare="ratio",
                                  alternative=_SIDES[alternative])
     low, high = wilson_interval(int(x1), n, confidence=confidence, alternative=alternative)

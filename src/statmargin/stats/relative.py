@@ -24,7 +24,7 @@ from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Refusal, Subject, coded
 
 PERMUTATION_BELOW = 15  # "auto" draws permutations when the smallest group is smaller than this
 PERMUTATIONS = 4000  # permutation draws (p resolution 1 / 4001)
@@ -215,7 +215,7 @@ def permutation_critical(draws: np.ndarray, alpha: float) -> float:
 
 def _check_p_method(p_method: str) -> None:
     if p_method not in P_METHODS:
-        raise common.OptionError(f"p_method must be one of {', '.join(P_METHODS)}, not {p_method!r}.")
+        raise common.OptionError(coded(Refusal.UNKNOWN_P_METHOD, given=p_method, choices=P_METHODS))
 
 
 def use_permutation(p_method: str, sizes: list[int]) -> bool:
@@ -427,7 +427,7 @@ def brunner_munzel(
     b, dropped_b = common.clean(y, f"group {second}")
     common.require_count(a, 2, f"group {first}")
     common.require_count(b, 2, f"group {second}")
-    common.require_spread(np.concatenate([a, b]), "the outcome in both groups")
+    common.require_spread(np.concatenate([a, b]), Subject.OUTCOME_BOTH_GROUPS)
     rows, sizes = _arranged([a, b])
     ps_arr, se_arr, t_arr, df_arr = _two_sample_t(rows, sizes)
     ps, se, t, df = float(ps_arr[0]), float(se_arr[0]), float(t_arr[0]), float(df_arr[0])
@@ -692,20 +692,8 @@ def rank_anova_type(
     """
     common.check_options(alternative, confidence)
     _check_p_method(p_method)
-    notes: list[Coded] = []
-    if alternative != "two-sided":
-        notes.append(coded(Note.MULTIGROUP_TWO_SIDED, alternative=alternative))
-    cleaned: dict[str, np.ndarray] = {}
-    dropped = 0
-    for label, values in groups.items():
-        kept, lost = common.clean(values, f"group {label}")
-        common.require_count(kept, 2, f"group {label}")
-        cleaned[str(label)] = kept
-        dropped += lost
-    if len(cleaned) < 2:
-        raise common.NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
+    cleaned, dropped, notes = common.prepare_groups(groups, alternative, confidence)
     arrays = list(cleaned.values())
-    common.require_spread(np.concatenate(arrays), "the outcome in every group")
     rows, sizes = _arranged(arrays)
     rel = relative_effects(placement_counts(rows, sizes), sizes)
     ats = anova_type(rel, sizes)

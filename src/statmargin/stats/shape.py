@@ -52,9 +52,9 @@ class GroupSummary:
     check_statistic: float | None  # W of Shapiro-Wilk
     check_p: float | None
     normal_shaped: bool | None  # None when it could not be checked
-    verdict: str  # one short phrase, e.g. "right-skewed (Shapiro-Wilk p = 0.003)"
-    direction: str = ""  # "close to normal", "right-skewed", "left-skewed", "heavy- or light-tailed", ...
-    evidence: str = ""  # the check behind the verdict, e.g. "Shapiro-Wilk p = 0.003"
+    # The verdict's facts (``words.shape_words`` writes the verdict, its direction and evidence):
+    departure: ShapeDirection | None = None  # how a group that failed the check departs
+    sampled: int | None = None  # values the check read when it read a seeded subsample
 
     def to_record(self) -> dict:
         return asdict(self)
@@ -65,22 +65,9 @@ def _float(value) -> float | None:
     return value if math.isfinite(value) else None
 
 
-def fmt_p(p: float) -> str:
-    """A p-value for a reason sentence: 'p < 0.001' or 'p = 0.012'."""
-    return "p < 0.001" if p < 0.001 else f"p = {p:.3f}"
-
-
 def summarize(values, label: str = "all") -> GroupSummary:
     """Summaries and the normal-shape verdict for one group (see :func:`_summarize`)."""
-    return with_direction(_summarize(values, label))
-
-
-def with_direction(summary: GroupSummary) -> GroupSummary:
-    """The summary with its verdict split into the direction and the evidence behind it."""
-    head, _, tail = summary.verdict.partition(" (")
-    summary.direction = head
-    summary.evidence = tail.rstrip(")")
-    return summary
+    return _summarize(values, label)
 
 
 def _summarize(values, label: str) -> GroupSummary:
@@ -109,7 +96,7 @@ def _summarize(values, label: str) -> GroupSummary:
     n = int(x.size)
     if n == 0:
         return GroupSummary(label, 0, None, None, None, None, None, None, None, None, None, 0,
-                            "too_few", None, None, None, "no values")
+                            "too_few", None, None, None)
     q1, median, q3 = (float(v) for v in np.quantile(x, [0.25, 0.5, 0.75]))
     iqr = q3 - q1
     n_out = int(np.sum((x < q1 - OUTLIER_FENCE * iqr) | (x > q3 + OUTLIER_FENCE * iqr)))
@@ -133,19 +120,15 @@ def judge(base: dict[str, Any], constant: bool, shape: GroupShape | None) -> Gro
     ``shape`` is the group's :class:`GroupShape` (its Shapiro-Wilk test, G1, G2 and
     ties at the extremes); None when the group is constant or too small.
     """
-    n = base["n"]
     if constant:
-        return GroupSummary(**base, check="constant", check_statistic=None, check_p=None,
-                            normal_shaped=None, verdict="all values are equal")
+        return GroupSummary(**base, check="constant", check_statistic=None, check_p=None, normal_shaped=None)
     if shape is None or shape.shapiro_p is None:
-        return GroupSummary(**base, check="too_few", check_statistic=None, check_p=None,
-                            normal_shaped=None, verdict=f"too few values to check the shape (n = {n})")
+        return GroupSummary(**base, check="too_few", check_statistic=None, check_p=None, normal_shaped=None)
     alone = combine_shapes([shape])
     ok = not alone.departs
-    sampled = f" on {SHAPIRO_LIMIT} sampled values" if n > SHAPIRO_LIMIT else ""
-    verdict = f"{'close to normal' if ok else alone.direction.value} (Shapiro-Wilk {fmt_p(shape.shapiro_p)}{sampled})"
     return GroupSummary(**base, check="shapiro_wilk", check_statistic=shape.shapiro_w, check_p=shape.shapiro_p,
-                        normal_shaped=ok, verdict=verdict)
+                        normal_shaped=ok, departure=None if ok else alone.direction,
+                        sampled=SHAPIRO_LIMIT if base["n"] > SHAPIRO_LIMIT else None)
 
 
 @dataclass

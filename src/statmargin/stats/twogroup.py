@@ -17,7 +17,7 @@ from statmargin.stats import _common as common
 from statmargin.stats import effects
 from statmargin.stats.onesample import EXACT_LIMIT, exact_p_from_counts, order_statistic_interval
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Note, Skip, Subject, coded
 
 
 def _two_groups(x: np.ndarray, y: np.ndarray, labels: tuple[str, str]) -> tuple[np.ndarray, np.ndarray, int, str, str]:
@@ -28,7 +28,7 @@ def _two_groups(x: np.ndarray, y: np.ndarray, labels: tuple[str, str]) -> tuple[
     common.require_count(a, 2, f"group {first}")
     common.require_count(b, 2, f"group {second}")
     combined = np.concatenate([a, b])
-    common.require_spread(combined, "the outcome in both groups")
+    common.require_spread(combined, Subject.OUTCOME_BOTH_GROUPS)
     return a, b, dropped_a + dropped_b, first, second
 
 

@@ -32,7 +32,7 @@ from statmargin.stats.weighted_select import (
     median_walsh_average_weighted,
 )
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
-from statmargin.vocabulary.codes import Coded, Count, Note, Skip, coded
+from statmargin.vocabulary.codes import Coded, Count, Note, Skip, Subject, coded
 
 Weighted = tuple[Any, Any]  # (values, counts) of one group
 
@@ -394,7 +394,7 @@ def _check_two(a: np.ndarray, ca: np.ndarray, b: np.ndarray, cb: np.ndarray, fir
     """As ``twogroup._two_groups``: two records per group and some spread overall."""
     _require(a, ca, 2, f"group {first}", spread=False)
     _require(b, cb, 2, f"group {second}", spread=False)
-    _require(np.concatenate([a, b]), np.concatenate([ca, cb]), 2, "the outcome in both groups")
+    _require(np.concatenate([a, b]), np.concatenate([ca, cb]), 2, Subject.OUTCOME_BOTH_GROUPS)
 
 
 def welch_t(x: Weighted, y: Weighted, *, labels: tuple[str, str] = ("A", "B"), alternative: str = "two-sided",
@@ -492,7 +492,7 @@ def _rank_sum_interval(a: np.ndarray, ca: np.ndarray, b: np.ndarray, cb: np.ndar
 
 
 def _groups(groups: Mapping[str, Weighted], alternative: str, confidence: float) -> tuple[Any, ...]:
-    """As ``multigroup._prepare``: two records per group, two groups, some spread overall."""
+    """As ``_common.prepare_groups``: two records per group, two groups, some spread overall."""
     common.check_options(alternative, confidence)
     notes: list[Coded] = []
     if alternative != "two-sided":
@@ -509,7 +509,7 @@ def _groups(groups: Mapping[str, Weighted], alternative: str, confidence: float)
         raise NotEnoughDataError(coded(Skip.TOO_FEW_GROUPS, n=len(cleaned)))
     everything = [v for v, _ in cleaned.values()]
     _require(np.concatenate(everything), np.concatenate([c for _, c in cleaned.values()]), 2,
-             "the outcome in every group")
+             Subject.OUTCOME_EVERY_GROUP)
     return cleaned, dropped, no_count, notes
 
 
@@ -785,7 +785,7 @@ def weighted_table(
     r = np.asarray(row_labels, dtype=object).ravel()
     k = np.asarray(col_labels, dtype=object).ravel()
     if not (r.size == k.size == c.size):
-        raise NotEnoughDataError(coded(Skip.LENGTH_MISMATCH, what="the labels and counts", first=r.size,
+        raise NotEnoughDataError(coded(Skip.LENGTH_MISMATCH, what=Subject.LABELS_AND_COUNTS, first=r.size,
                                        second=c.size))
     keep = np.isfinite(c) & np.array([_present(v) for v in r], dtype=bool) & np.array(
         [_present(v) for v in k], dtype=bool)

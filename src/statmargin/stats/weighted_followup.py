@@ -11,7 +11,7 @@ values, Hodges-Lehmann shifts by weighted selection. Groups are given as
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 
 import numpy as np
 
@@ -63,6 +63,22 @@ def _summaries(items: list[Counted]) -> list[followup.Summary]:
     return out
 
 
+def _of_means(
+    of_values: Callable[..., list[Followup]],
+    of_summaries: Callable[..., list[Followup]],
+    groups: Mapping[str, Weighted],
+    confidence: float,
+    alpha: float,
+) -> list[Followup]:
+    """A comparison of means on the plain values when every count is 1, else on the counted summaries."""
+    confidence = common.check_confidence(confidence)
+    items = _clean_groups(groups)
+    plain = _plain(items)
+    if plain is not None:
+        return of_values(plain, confidence=confidence, alpha=alpha)
+    return of_summaries(_summaries(items), confidence=confidence, alpha=alpha)
+
+
 def tukey_hsd(groups: Mapping[str, Weighted], *, confidence: float = 0.95,
               alpha: float = followup.DEFAULT_ALPHA) -> list[Followup]:
     """``followup.tukey_hsd`` of the repeated rows.
@@ -78,23 +94,13 @@ def tukey_hsd(groups: Mapping[str, Weighted], *, confidence: float = 0.95,
     >>> math.isclose(mine.p_adjusted, plain.p_adjusted, rel_tol=1e-12)
     True
     """
-    confidence = common.check_confidence(confidence)
-    items = _clean_groups(groups)
-    plain = _plain(items)
-    if plain is not None:
-        return followup.tukey_hsd(plain, confidence=confidence, alpha=alpha)
-    return followup.tukey_hsd_of_summaries(_summaries(items), confidence=confidence, alpha=alpha)
+    return _of_means(followup.tukey_hsd, followup.tukey_hsd_of_summaries, groups, confidence, alpha)
 
 
 def games_howell(groups: Mapping[str, Weighted], *, confidence: float = 0.95,
                  alpha: float = followup.DEFAULT_ALPHA) -> list[Followup]:
     """``followup.games_howell`` of the repeated rows."""
-    confidence = common.check_confidence(confidence)
-    items = _clean_groups(groups)
-    plain = _plain(items)
-    if plain is not None:
-        return followup.games_howell(plain, confidence=confidence, alpha=alpha)
-    return followup.games_howell_of_summaries(_summaries(items), confidence=confidence, alpha=alpha)
+    return _of_means(followup.games_howell, followup.games_howell_of_summaries, groups, confidence, alpha)
 
 
 def dunn(groups: Mapping[str, Weighted], *, adjust: AdjustMethod | str = "holm",

@@ -43,7 +43,6 @@ from statmargin.stats.shape import (
     shapiro,
     spread_verdict,
     summarize,
-    with_direction,
 )
 from statmargin.stats.weighted import weighted_mean, weighted_median
 from statmargin.stats.weighted_select import collapse
@@ -114,7 +113,7 @@ def summarize_weighted(values: Any, counts: Any, label: str = "all") -> GroupSum
     >>> rng = np.random.default_rng(7)
     >>> x, c = rng.lognormal(size=40), rng.integers(1, 6, size=40)
     >>> a, b = summarize_weighted(x, c), summarize(np.repeat(x, c))
-    >>> a.n == b.n, math.isclose(a.skewness, b.skewness, rel_tol=1e-9), a.verdict == b.verdict
+    >>> a.n == b.n, math.isclose(a.skewness, b.skewness, rel_tol=1e-9), (a.check, a.departure) == (b.check, b.departure)
     (True, True, True)
     """
     x, w = _rows(values, counts)
@@ -140,7 +139,7 @@ def summarize_weighted(values: Any, counts: Any, label: str = "all") -> GroupSum
         n_outliers=int(w[outside].sum()),
     )
     # Shapiro-Wilk above 5000 records reads the records at seeded positions in row order: the rows as given.
-    return with_direction(judge(base, constant, None if constant else group_shape_weighted(label, values, counts)))
+    return judge(base, constant, None if constant else group_shape_weighted(label, values, counts))
 
 
 def _finite(value: float) -> float | None:

@@ -5,7 +5,7 @@ A method or design never writes a sentence. It reports a code with its facts
 code into words. Sharing mode can then hide small counts in the facts before any
 wording exists: every fact that is a record count is a ``Count``.
 
-Four families:
+Five families:
 
 - ``Skip``: why no test could be run (a skipped analysis carries one).
 - ``Note``: a statistical caveat raised while computing (ties, approximations,
@@ -13,6 +13,11 @@ Four families:
 - ``Reason``: why the test was chosen.
 - ``Caution``: a caution about how to read a result (design-specific ones
   included); the explain step adds the run-wide ones.
+- ``Refusal``: why a method refuses a value passed to it (an option or a count
+  that does not fit); raised as ``errors.OptionError`` and worded by ``words``.
+
+A fact that names values without a column name (``what``) may be a ``Subject``:
+words then writes its phrase ("the outcome in both groups").
 """
 
 from __future__ import annotations
@@ -226,14 +231,63 @@ class Caution(Word):
     AGGREGATE_INDEPENDENCE = "aggregate_independence"  # events, total (column names)
 
 
+class Refusal(Word):
+    """Why a method refuses a value passed to it (the text is in ``words.method_refusals``).
+
+    Values start with ``refused_``: codes of all families share one table of sentences,
+    where equal values would collide (a Word equals its value).
+    """
+
+    UNKNOWN_ALTERNATIVE = "refused_unknown_alternative"  # given
+    CONFIDENCE_RANGE = "refused_confidence_range"  # given
+    EXACT_CHOICE = "refused_exact_choice"  # given
+    TWO_LABELS = "refused_two_labels"  # n
+    UNKNOWN_ADJUSTMENT = "refused_unknown_adjustment"  # given
+    UNKNOWN_FAMILY = "refused_unknown_family"  # given
+    UNKNOWN_P_METHOD = "refused_unknown_p_method"  # given, choices
+    RESAMPLES = "refused_resamples"  # given
+    NOT_A_COUNT = "refused_not_a_count"  # what (a Subject), label (optional), value
+    NOT_WHOLE_COUNT = "refused_not_whole_count"  # what (a Subject), label (optional), value
+    TABLE_NOT_2D = "refused_table_not_2d"
+    TABLE_LABELS = "refused_table_labels"  # rows, columns, row_labels, column_labels (the numbers of each)
+    SHARE_MISSING = "refused_share_missing"  # label: a category with counts but no expected share
+    SHARES_NOT_POSITIVE = "refused_shares_not_positive"
+    SHARES_SUM = "refused_shares_sum"  # total
+    COUNT_ABOVE_TOTAL = "refused_count_above_total"  # label, count, total
+    TARGET_SHARE_OPEN = "refused_target_share_open"  # value: the binomial test's target share
+    FISHER_TWO_BY_TWO = "refused_fisher_two_by_two"
+    MCNEMAR_TWO_LEVELS = "refused_mcnemar_two_levels"
+    MCNEMAR_TWO_BY_TWO = "refused_mcnemar_two_by_two"
+    TARGET_RATE = "refused_target_rate"  # value
+    PER_UNIT = "refused_per_unit"  # value (as text)
+    RATE_METHOD = "refused_rate_method"  # method
+    TARGET_SHARE = "refused_target_share"  # value: the target share of events out of totals
+    SHARE_TEST = "refused_share_test"  # test
+
+
+class Subject(Word):
+    """Which values a code speaks of when no column name says it; words writes the phrase."""
+
+    OUTCOME_BOTH_GROUPS = "outcome_both_groups"
+    OUTCOME_EVERY_GROUP = "outcome_every_group"
+    ROWS_AND_STRATA = "rows_and_strata"
+    LABELS_AND_COUNTS = "labels_and_counts"
+    TABLE_CELL = "table_cell"
+    OBSERVATIONS = "observations"
+    COUNT_OF = "count_of"  # with the fact ``label``
+
+
+Code = Skip | Note | Reason | Caution | Refusal
+
+
 @dataclass(frozen=True)
 class Coded:
     """A code with the facts its sentence needs (numbers, labels, column names)."""
 
-    code: Skip | Note | Reason | Caution
+    code: Code
     facts: Mapping[str, Any] = field(default_factory=dict)
 
 
-def coded(code: Skip | Note | Reason | Caution, **facts: Any) -> Coded:
+def coded(code: Code, **facts: Any) -> Coded:
     """A ``Coded`` from keyword facts: ``coded(Skip.NO_SPREAD, what="wait", value=3.0)``."""
     return Coded(code, dict(facts))

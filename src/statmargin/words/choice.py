@@ -12,7 +12,7 @@ from collections.abc import Callable, Mapping
 from typing import Any
 
 from ..vocabulary import Design
-from ..vocabulary.codes import Caution, Note, Reason, Skip
+from ..vocabulary.codes import Code, Note, Reason
 from .numbers import noun
 from .sentences import Hidden, number, register, sentence_start
 
@@ -134,7 +134,7 @@ def _spreads_differ(f: Facts, test: str, why: str) -> str:
     )
 
 
-TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = {
+TEMPLATES: dict[Code, str | Callable[[Facts], str]] = {
     Reason.SHAPE_NO_CLEAR_DEPARTURE: _no_clear_departure,
     Reason.SHAPE_DEPARTS_LARGE_N: _departs_large_n,
     Reason.SHAPE_DEPARTS_SMALL_N: _departs_small_n,

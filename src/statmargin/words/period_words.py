@@ -12,7 +12,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from ..vocabulary import ChartKind, ControlRule, Grain, SinceLastRun
-from ..vocabulary.codes import Caution, Note, Reason, Skip
+from ..vocabulary.codes import Code, Note, Reason, Refusal, Skip
 from . import sentences
 from .numbers import noun
 from .sentences import Facts, capitalized
@@ -216,7 +216,8 @@ def _periods_have(n: Any, where: str = "") -> str:
     return f"{n} {word}{where} {'has' if word == 'period' else 'have'}"
 
 
-TEMPLATES: dict[Skip | Note | Reason | Caution, Any] = {
+TEMPLATES: dict[Code, Any] = {
+    Refusal.UNKNOWN_FAMILY: lambda f: unknown_family(f["given"]),
     Skip.TOO_FEW_PERIODS: lambda f: (
         f"Only {_periods_have(f['n'])} rows; a trend across periods needs at least {f['minimum']}."
     ),

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from ..vocabulary.codes import Caution, Note, Reason, Skip
+from ..vocabulary.codes import Caution, Code, Note, Reason, Refusal, Skip
 from .sentences import Facts, number, register
 
 
@@ -57,7 +57,7 @@ def _events_without_time(f: Facts) -> str:
     )
 
 
-TEMPLATES: dict[Skip | Note | Reason | Caution, Any] = {
+TEMPLATES: dict[Code, Any] = {
     Skip.NOT_WHOLE_COUNT: lambda f: (
         f"Row {f['row']} of {f['what']} holds {number(f['value'])}, which is not a whole number; "
         "counts must be whole numbers 0 or more."
@@ -145,6 +145,12 @@ TEMPLATES: dict[Skip | Note | Reason | Caution, Any] = {
         "and one group. Repeat visits or the same people counted in several rows make the p-value "
         "too small."
     ),
+    # refusals of the rate and share methods: the same sentences as the options' own
+    Refusal.TARGET_RATE: lambda f: target_rate_refused(f["value"]),
+    Refusal.PER_UNIT: lambda f: per_unit_refused(f["value"]),
+    Refusal.RATE_METHOD: lambda f: rate_method_refused(f["method"]),
+    Refusal.TARGET_SHARE: lambda f: target_share_refused(f["value"]),
+    Refusal.SHARE_TEST: lambda f: share_test_refused(f["test"]),
 }
 register(TEMPLATES)
 

@@ -15,7 +15,7 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from typing import Any
 
-from ..vocabulary.codes import Caution, Coded, Hidden, Note, Reason, Skip
+from ..vocabulary.codes import Caution, Code, Coded, Hidden, Note, Reason, Skip, Subject
 from .numbers import fmt_p, noun
 
 Facts = Mapping[str, Any]
@@ -147,7 +147,7 @@ def _too_few_pairs(f: Facts) -> str:
     return f"Only {f['n']} complete {noun(f['n'], 'pair')} of values; a correlation needs at least {f['minimum']}."
 
 
-TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = {
+TEMPLATES: dict[Code, str | Callable[[Facts], str]] = {
     # ------------------------------------------------------------ skips
     Skip.NOT_NUMBERS: "Some values of {what} are not numbers; mark that column as a category or fix the cells.",
     Skip.LENGTH_MISMATCH: (
@@ -365,7 +365,7 @@ def _followup_pairs(f: Facts) -> str:
     )
 
 
-REASON_TEMPLATES: dict[Skip | Note | Reason | Caution, str | Callable[[Facts], str]] = {
+REASON_TEMPLATES: dict[Code, str | Callable[[Facts], str]] = {
     Reason.ONE_SHARE_BINOMIAL: "One share was given for {outcome}, so the exact binomial test was used.",
     Reason.SMALL_EXPECTED_BINOMIAL: lambda f: (
         f"An expected count is below 5{_smallest(f)}, so the exact binomial test was used instead of "
@@ -424,7 +424,7 @@ TEMPLATES.update(REASON_TEMPLATES)
 
 
 def register(
-    templates: Mapping[Skip | Note | Reason | Caution, str | Callable[[Facts], str]],
+    templates: Mapping[Code, str | Callable[[Facts], str]],
 ) -> None:
     """Add the templates of another words module (each code once)."""
     for code, template in templates.items():
@@ -433,12 +433,32 @@ def register(
         TEMPLATES[code] = template
 
 
+# The phrase of each Subject: the values a code speaks of when no column name says it.
+SUBJECTS: dict[Subject, str] = {
+    Subject.OUTCOME_BOTH_GROUPS: "the outcome in both groups",
+    Subject.OUTCOME_EVERY_GROUP: "the outcome in every group",
+    Subject.ROWS_AND_STRATA: "the rows and their strata",
+    Subject.LABELS_AND_COUNTS: "the labels and counts",
+    Subject.TABLE_CELL: "A table cell",
+    Subject.OBSERVATIONS: "The number of observations",
+    Subject.COUNT_OF: "The count of '{label}'",
+}
+
+
+def subject(what: Any, label: Any = None) -> Any:
+    """The phrase of a ``Subject`` fact (with its label where it takes one); any other fact as it is."""
+    if isinstance(what, Subject):
+        return SUBJECTS[what].format(label=label)
+    return what
+
+
 def say(item: Coded) -> str:
-    """The sentence for a code with its facts."""
+    """The sentence for a code with its facts (a ``Subject`` fact written as its phrase)."""
     template = TEMPLATES[item.code]
+    facts = {key: subject(value, item.facts.get("label")) for key, value in item.facts.items()}
     if callable(template):
-        return template(item.facts)
-    return template.format(**item.facts)
+        return template(facts)
+    return template.format(**facts)
 
 
 def say_all(items: list[Coded]) -> list[str]:

@@ -173,6 +173,7 @@ def shape_cells(values: Any, headers: bool = True) -> list[list[Any]]:
         shows them (``stats.shape.summarize``).
     """
     from ...stats.shape import summarize
+    from ...words.shape_words import verdict
     from ...words.technical import CHECK_NAMES
 
     try:
@@ -189,7 +190,7 @@ def shape_cells(values: Any, headers: bool = True) -> list[list[Any]]:
         _number(summary.check_p),
         _number(summary.skewness),
         _number(summary.excess_kurtosis),
-        summary.verdict,
+        verdict(summary),
     ]
     return [[label, value] for label, value in zip(excel_messages.SHAPE_LABELS, row_values, strict=True)]
 
