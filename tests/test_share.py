@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import copy
 import re
+from datetime import datetime, timezone
 from pathlib import Path
 
 import numpy as np
@@ -127,6 +128,7 @@ def shared_run(
         share_mode=True,
         share_min_count=min_count,
         samples={("Wait", "District", ""): small_group_samples()},
+        run_time=datetime(2026, 1, 5, 12, 0, tzinfo=timezone.utc),  # fixed: two builds must not straddle a second
     )
     results = share.suppress(
         [small_group_result(), mtcars_crosstab(), mtcars_two_by_two(), gof_result()], min_count
