@@ -198,3 +198,23 @@ def test_a_command_leaves_the_stop_signal_handler_as_it_found_it(tmp_path: Path)
         assert signal.getsignal(signal.SIGTERM) is mine
     finally:
         signal.signal(signal.SIGTERM, previous)
+
+
+def test_an_interrupt_outside_a_command_exits_as_interrupted_with_one_line(monkeypatch, capsys) -> None:
+    """A Ctrl+C that reaches the installed command's entry point (not a command's own handling) gives exit 130 and one line."""
+    from statmargin import cli
+
+    def interrupted_main(**_kwargs: object) -> None:
+        raise KeyboardInterrupt
+
+    before = signal.getsignal(signal.SIGINT)
+    monkeypatch.setattr(cli, "main", interrupted_main)
+    monkeypatch.setattr(cli, "_STOP_SAID", [])
+    try:
+        with pytest.raises(SystemExit) as stopped:
+            cli.run()
+    finally:
+        signal.signal(signal.SIGINT, before)  # run() ignores Ctrl+C once done; give the suite its handler back
+    assert stopped.value.code == EXIT_INTERRUPTED
+    stderr = capsys.readouterr().err
+    assert len(stderr.splitlines()) == 1 and "stopped before finishing" in stderr

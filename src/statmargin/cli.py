@@ -16,6 +16,7 @@ import contextlib
 import functools
 import json
 import signal
+import sys
 import threading
 import warnings
 from collections.abc import Callable, Iterator
@@ -64,8 +65,7 @@ def handle_errors(fn: Callable[..., Any]) -> Callable[..., Any]:
                     raise
                 from .words.file_messages import interrupted
 
-                with _interrupts_ignored():  # already stopping: a second Ctrl+C must not cut the line short
-                    click.echo(console.error_line(interrupted()), err=True)
+                _say_stopped(interrupted())
                 ctx.exit(errors.EXIT_INTERRUPTED)
             except errors.StatmarginError as err:
                 if debug:
@@ -416,8 +416,29 @@ def run() -> None:
     """
     try:
         main(prog_name="statmargin")
+    except KeyboardInterrupt:
+        # A Ctrl+C that reached here (while click parsed the options, or a second one under
+        # load after the stop line): the command's exit code and one stop line, never Python's
+        # end by the signal (exit -2).
+        _ignore_interrupts()
+        from .words.file_messages import interrupted
+
+        _say_stopped(interrupted())
+        sys.exit(errors.EXIT_INTERRUPTED)
     finally:
         _ignore_interrupts()
+
+
+_STOP_SAID: list[bool] = []  # set once the stop line is printed, so it is never printed twice
+
+
+def _say_stopped(line: str) -> None:
+    """Print the stop line once, with Ctrl+C ignored while it is printed (a second one must not cut it short)."""
+    if _STOP_SAID:
+        return
+    with _interrupts_ignored():
+        click.echo(console.error_line(line), err=True)
+        _STOP_SAID.append(True)
 
 
 def _ignore_interrupts() -> Any:
