@@ -272,27 +272,75 @@ WORK_LIMIT_PER_VALUE = 8  # candidates gathered at once: this many per input val
 
 
 def _first_position(
-    value_at: Any, rows: np.ndarray, lo: np.ndarray, hi: np.ndarray, pivot: float, inclusive: bool
+    value_at: Any, rows: np.ndarray, lo: np.ndarray, hi: np.ndarray, pivot: float, inclusive: bool,
+    guess: Any = None,
 ) -> np.ndarray:
     """Per row, the first column in [lo, hi) whose value is above the pivot (or at/above it).
 
     ``value_at(rows, cols)`` gives the table entries; each row is non-decreasing in the
     column. ``inclusive=True`` counts entries ``<= pivot`` as below, otherwise ``< pivot``.
+    ``guess(rows, pivot, inclusive)``, when given, proposes the positions (one binary
+    search in C per row, e.g. ``np.searchsorted``); each proposal is checked against its
+    neighbours with ``value_at`` and only rows where rounding made it wrong are searched
+    again, so the answer is the same as without a guess.
     """
     lo, hi = lo.copy(), hi.copy()
+
+    def is_below(values: np.ndarray) -> np.ndarray:
+        return values <= pivot if inclusive else values < pivot
+
+    if guess is not None:
+        proposed = np.clip(guess(rows, pivot, inclusive), lo, hi)
+        left_ok = proposed == lo
+        check = np.flatnonzero(~left_ok)
+        left_ok[check] = is_below(value_at(rows[check], proposed[check] - 1))
+        right_ok = proposed == hi
+        check = np.flatnonzero(~right_ok)
+        right_ok[check] = ~is_below(value_at(rows[check], proposed[check]))
+        good = left_ok & right_ok
+        # Rows whose proposal holds are settled; the rest keep their full range.
+        lo[good] = proposed[good]
+        hi[good] = proposed[good]
     open_rows = np.flatnonzero(lo < hi)
     while open_rows.size:
         mid = (lo[open_rows] + hi[open_rows]) // 2
-        values = value_at(rows[open_rows], mid)
-        below = values <= pivot if inclusive else values < pivot
+        below = is_below(value_at(rows[open_rows], mid))
         lo[open_rows] = np.where(below, mid + 1, lo[open_rows])
         hi[open_rows] = np.where(below, hi[open_rows], mid)
         open_rows = open_rows[lo[open_rows] < hi[open_rows]]
     return lo
 
 
+SAMPLE_SIZE = 1 << 15  # entries drawn per round to place the two pivots (unweighted tables)
+SAMPLE_SPREAD = 3.0  # pivots this many standard errors of a sample rank either side of the target
+SAMPLE_SEED = 20261205  # the draws steer only the work, never the result
+
+
+def _sampled_pivots(value_at: Any, rows: np.ndarray, lo: np.ndarray, widths: np.ndarray, target: int,
+                    rng: np.random.Generator) -> tuple[float, float]:
+    """Two entries that likely enclose the target-th of the remaining ones (Floyd & Rivest's sampling).
+
+    ``target`` counts from the first remaining entry. Entries are drawn uniformly from the
+    remaining cells; the pivots are the draws ranked a few standard errors below and
+    above the target's expected rank among them.
+    """
+    cumulative = np.cumsum(widths)
+    remaining = int(cumulative[-1])
+    size = min(SAMPLE_SIZE, remaining)
+    picks = rng.integers(0, remaining, size)
+    row = np.searchsorted(cumulative, picks, side="right")
+    col = lo[row] + (picks - (cumulative[row] - widths[row]))
+    sample = np.sort(value_at(rows[row], col))
+    centre = target / remaining * size
+    spread = SAMPLE_SPREAD * math.sqrt(size)
+    first = int(min(size - 1, max(0, math.floor(centre - spread))))
+    last = int(min(size - 1, max(0, math.ceil(centre + spread))))
+    return float(sample[first]), float(sample[last])
+
+
 def _kth_in_sorted_rows(
-    value_at: Any, lo: np.ndarray, hi: np.ndarray, k: int, work_limit: int, mass: Any = None
+    value_at: Any, lo: np.ndarray, hi: np.ndarray, k: int, work_limit: int, mass: Any = None,
+    guess: Any = None,
 ) -> float:
     """The k-th smallest (0-based) entry of a table whose rows are sorted.
 
@@ -302,11 +350,27 @@ def _kth_in_sorted_rows(
     With ``mass(rows, lo, hi)`` (the number of records in row r's columns [lo, hi)) each
     cell stands for that many equal entries (frequency weights) and k counts them; the
     pivot is still the cell-weighted median of the row medians, so each round removes a
-    quarter of the remaining cells whatever their counts.
+    quarter of the remaining cells whatever their counts. Without ``mass`` each round
+    takes two pivots from a seeded uniform sample of the remaining entries (Floyd &
+    Rivest 1975), which usually keeps only a few percent of them, so a table of 10^10
+    entries takes three or four rounds. ``guess`` is passed to :func:`_first_position`.
+
+    References
+    ----------
+    Floyd, R. W., & Rivest, R. L. (1975). Expected time bounds for selection.
+    Communications of the ACM 18(3):165-172. doi:10.1145/360680.360691
     """
     rows = np.arange(lo.size)
     lo, hi = lo.astype(np.int64), hi.astype(np.int64)
     below = 0  # entries known to be smaller than every remaining candidate
+    rng = np.random.default_rng(SAMPLE_SEED)
+
+    def position(pivot: float, inclusive: bool) -> np.ndarray:
+        return _first_position(value_at, rows, lo, hi, pivot, inclusive, guess)
+
+    def counted(start: np.ndarray, stop: np.ndarray) -> int:
+        return int((stop - start).sum()) if mass is None else int(mass(rows, start, stop).sum())
+
     while True:
         widths = hi - lo
         remaining = int(widths.sum())
@@ -319,25 +383,41 @@ def _kth_in_sorted_rows(
             if mass is None:
                 return float(np.partition(candidates, k - below)[k - below])
             order = np.argsort(candidates, kind="stable")
-            position = int(np.searchsorted(np.cumsum(mass(row_of, cols, cols + 1)[order]), k - below, side="right"))
-            return float(candidates[order][position])
-        live = np.flatnonzero(widths > 0)
-        medians = value_at(live, (lo[live] + hi[live] - 1) // 2)
-        order = np.argsort(medians, kind="stable")
-        weight = np.cumsum(widths[live][order])
-        pivot = float(medians[order][np.searchsorted(weight, weight[-1] / 2.0)])
-        under = _first_position(value_at, rows, lo, hi, pivot, inclusive=False)
-        upto = _first_position(value_at, rows, lo, hi, pivot, inclusive=True)
-        counted = (lambda a, b: int((b - a).sum())) if mass is None else (lambda a, b: int(mass(rows, a, b).sum()))
+            position_ = int(np.searchsorted(np.cumsum(mass(row_of, cols, cols + 1)[order]), k - below, side="right"))
+            return float(candidates[order][position_])
+        if mass is None:
+            pivots = _sampled_pivots(value_at, rows, lo, widths, k - below, rng)
+        else:
+            live = np.flatnonzero(widths > 0)
+            medians = value_at(live, (lo[live] + hi[live] - 1) // 2)
+            order = np.argsort(medians, kind="stable")
+            weight = np.cumsum(widths[live][order])
+            median = float(medians[order][np.searchsorted(weight, weight[-1] / 2.0)])
+            pivots = (median, median)
+        # Entries below the first pivot, up to it, below the second, up to it: k falls in one
+        # of five stretches, two of which are a pivot itself.
+        under = position(pivots[0], False)
         n_under = below + counted(lo, under)
-        n_upto = below + counted(lo, upto)
-        if n_under <= k < n_upto:
-            return pivot
-        if k < n_under:  # the answer is below the pivot: drop entries at or above it
+        if k < n_under:
             hi = under
-        else:  # above the pivot: drop entries at or below it
-            below = n_upto
-            lo = upto
+            continue
+        upto = position(pivots[0], True)
+        n_upto = below + counted(lo, upto)
+        if k < n_upto:
+            return pivots[0]
+        if pivots[1] == pivots[0]:
+            below, lo = n_upto, upto
+            continue
+        under2 = position(pivots[1], False)
+        n_under2 = below + counted(lo, under2)
+        if k < n_under2:
+            below, lo, hi = n_upto, upto, under2
+            continue
+        upto2 = position(pivots[1], True)
+        n_upto2 = below + counted(lo, upto2)
+        if k < n_upto2:
+            return pivots[1]
+        below, lo = n_upto2, upto2
 
 
 def _checked_rank(k: int, total: int) -> int:
@@ -407,7 +487,30 @@ def kth_pairwise_difference(a_sorted: np.ndarray, b_sorted: np.ndarray, k: int, 
 
     lo = np.zeros(a.size, dtype=np.int64)
     hi = np.full(a.size, b_descending.size, dtype=np.int64)
-    return _kth_in_sorted_rows(value_at, lo, hi, k, _work_limit(work_limit, a.size + b_descending.size))
+    return _kth_in_sorted_rows(value_at, lo, hi, k, _work_limit(work_limit, a.size + b_descending.size),
+                               guess=difference_guess(a, b_descending[::-1]))
+
+
+def difference_guess(a: np.ndarray, b_sorted: np.ndarray) -> Any:
+    """Proposed positions of a pivot in the rows a_i - b_j (b descending along the row), by one search each.
+
+    a_i - b_j < pivot when b_j > a_i - pivot (up to rounding, which ``_first_position``
+    checks): the count of such b is found by ``np.searchsorted`` on ``b_sorted``.
+    """
+    def guess(rows: np.ndarray, pivot: float, inclusive: bool) -> np.ndarray:
+        side = "left" if inclusive else "right"
+        return b_sorted.size - np.searchsorted(b_sorted, a[rows] - pivot, side=side)
+
+    return guess
+
+
+def walsh_guess(x_sorted: np.ndarray) -> Any:
+    """Proposed positions of a pivot in the rows (x_i + x_j) / 2, j >= i, by one search each."""
+    def guess(rows: np.ndarray, pivot: float, inclusive: bool) -> np.ndarray:
+        side = "right" if inclusive else "left"
+        return np.searchsorted(x_sorted, 2.0 * pivot - x_sorted[rows], side=side)
+
+    return guess
 
 
 def median_pairwise_difference(a: np.ndarray, b: np.ndarray, *, work_limit: int | None = None) -> float:
@@ -460,17 +563,18 @@ def median_pairwise_difference(a: np.ndarray, b: np.ndarray, *, work_limit: int 
         return kth_pairwise_difference(a_sorted, b_sorted, total // 2, work_limit=limit)
     lower = kth_pairwise_difference(a_sorted, b_sorted, total // 2 - 1, work_limit=limit)
     return _mean_with_next(lower, total // 2, lambda r, c: a_sorted[r] - b_descending[c],
-                           np.zeros(a_sorted.size, dtype=np.int64), b_sorted.size)
+                           np.zeros(a_sorted.size, dtype=np.int64), b_sorted.size, difference_guess(a_sorted, b_sorted))
 
 
-def _mean_with_next(lower: float, k_next: int, value_at: Any, lo: np.ndarray, width: int) -> float:
+def _mean_with_next(lower: float, k_next: int, value_at: Any, lo: np.ndarray, width: int,
+                    guess: Any = None) -> float:
     """Mean of ``lower`` and the entry of rank ``k_next`` that follows it (np.median's even case).
 
     Rows i hold columns ``lo[i] <= j < width``; the mean is taken as ``np.median`` takes it.
     """
     rows = np.arange(lo.size)
     hi = np.full(rows.size, width, dtype=np.int64)
-    upto = _first_position(value_at, rows, lo, hi, lower, inclusive=True)
+    upto = _first_position(value_at, rows, lo, hi, lower, True, guess)
     if int((upto - lo).sum()) > k_next:
         upper = lower
     else:  # the smallest entry above ``lower``: the first one past it in some row
@@ -525,7 +629,7 @@ def kth_walsh_average(x_sorted: np.ndarray, k: int, *, work_limit: int | None = 
 
     lo = np.arange(x.size, dtype=np.int64)
     hi = np.full(x.size, x.size, dtype=np.int64)
-    return _kth_in_sorted_rows(value_at, lo, hi, k, _work_limit(work_limit, x.size))
+    return _kth_in_sorted_rows(value_at, lo, hi, k, _work_limit(work_limit, x.size), guess=walsh_guess(x))
 
 
 def median_walsh_average(x: np.ndarray, *, work_limit: int | None = None) -> float:
@@ -567,7 +671,7 @@ def median_walsh_average(x: np.ndarray, *, work_limit: int | None = None) -> flo
         return kth_walsh_average(x_sorted, total // 2, work_limit=limit)
     lower = kth_walsh_average(x_sorted, total // 2 - 1, work_limit=limit)
     return _mean_with_next(lower, total // 2, lambda r, c: (x_sorted[r] + x_sorted[c]) / 2.0,
-                           np.arange(n, dtype=np.int64), n)
+                           np.arange(n, dtype=np.int64), n, walsh_guess(x_sorted))
 
 
 def open_at_null(low: float, high: float, null: float, rejected: bool) -> tuple[float, float]:

@@ -17,7 +17,7 @@ from typing import Any
 import numpy as np
 
 from statmargin.errors import NotEnoughDataError
-from statmargin.stats._common import _kth_in_sorted_rows, _work_limit
+from statmargin.stats._common import _kth_in_sorted_rows, _work_limit, difference_guess, walsh_guess
 from statmargin.vocabulary.codes import Skip, coded
 
 
@@ -77,7 +77,8 @@ def kth_pairwise_difference_weighted(
 
     lo = np.zeros(a.size, dtype=np.int64)
     hi = np.full(a.size, b_descending.size, dtype=np.int64)
-    return _kth_in_sorted_rows(value_at, lo, hi, int(k), _work_limit(work_limit, a.size + b_descending.size), mass)
+    return _kth_in_sorted_rows(value_at, lo, hi, int(k), _work_limit(work_limit, a.size + b_descending.size), mass,
+                               difference_guess(a, b_descending[::-1]))
 
 
 def kth_walsh_average_weighted(x: np.ndarray, w: np.ndarray, k: int, *, work_limit: int | None = None) -> float:
@@ -121,7 +122,7 @@ def kth_walsh_average_weighted(x: np.ndarray, w: np.ndarray, k: int, *, work_lim
 
     lo = np.arange(x.size, dtype=np.int64)
     hi = np.full(x.size, x.size, dtype=np.int64)
-    return _kth_in_sorted_rows(value_at, lo, hi, int(k), _work_limit(work_limit, x.size), mass)
+    return _kth_in_sorted_rows(value_at, lo, hi, int(k), _work_limit(work_limit, x.size), mass, walsh_guess(x))
 
 
 def _median_of(kth: Any, total: int) -> float:
