@@ -498,8 +498,9 @@ def difference_guess(a: np.ndarray, b_sorted: np.ndarray) -> Any:
     checks): the count of such b is found by ``np.searchsorted`` on ``b_sorted``.
     """
     def guess(rows: np.ndarray, pivot: float, inclusive: bool) -> np.ndarray:
-        side = "left" if inclusive else "right"
-        return b_sorted.size - np.searchsorted(b_sorted, a[rows] - pivot, side=side)
+        if inclusive:
+            return b_sorted.size - np.searchsorted(b_sorted, a[rows] - pivot, side="left")
+        return b_sorted.size - np.searchsorted(b_sorted, a[rows] - pivot, side="right")
 
     return guess
 
@@ -507,8 +508,9 @@ def difference_guess(a: np.ndarray, b_sorted: np.ndarray) -> Any:
 def walsh_guess(x_sorted: np.ndarray) -> Any:
     """Proposed positions of a pivot in the rows (x_i + x_j) / 2, j >= i, by one search each."""
     def guess(rows: np.ndarray, pivot: float, inclusive: bool) -> np.ndarray:
-        side = "right" if inclusive else "left"
-        return np.searchsorted(x_sorted, 2.0 * pivot - x_sorted[rows], side=side)
+        if inclusive:
+            return np.searchsorted(x_sorted, 2.0 * pivot - x_sorted[rows], side="right")
+        return np.searchsorted(x_sorted, 2.0 * pivot - x_sorted[rows], side="left")
 
     return guess
 
