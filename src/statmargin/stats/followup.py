@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Iterator, Mapping, Sequence
-from typing import Any, TypeVar
+from typing import Any, Protocol, TypeVar
 
 import numpy as np
 from scipy import optimize, stats
@@ -657,31 +657,38 @@ def pairwise_brunner_munzel(
     >>> [(pair.estimate.ci_low > 0 or pair.estimate.ci_high < 0) == pair.flagged for pair in pairs]
     [True, True, True]
     """
-    from statmargin.stats.relative import brunner_munzel
+    from statmargin.stats.relative import done_pair
 
-    def run(xa: Any, xb: Any, labels: tuple[str, str], level: float, intervals: bool) -> Result:
-        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method, intervals=intervals)
+    def run(xa: Any, xb: Any, labels: tuple[str, str]) -> PairTest:
+        return done_pair(xa, xb, labels=labels, p_method=p_method)
 
     return pairwise_of(run, _clean_groups(groups), adjust=adjust, alpha=alpha, confidence=confidence)
 
 
-def pairwise_of(run: Callable[[Any, Any, tuple[str, str], float, bool], Result],
+class PairTest(Protocol):
+    """One pair's done test: its Result at a confidence level, with or without intervals."""
+
+    def result(self, confidence: float, intervals: bool = True) -> Result: ...
+
+
+def pairwise_of(run: Callable[[Any, Any, tuple[str, str]], PairTest],
                 items: Sequence[tuple[str, Any]], *, adjust: AdjustMethod | str, alpha: float,
                 confidence: float) -> list[Followup]:
-    """Pairwise Brunner-Munzel follow-ups from ``run(a, b, labels, confidence, intervals)`` on each pair.
+    """Pairwise Brunner-Munzel follow-ups from ``run(a, b, labels)``, the test of each pair.
 
-    Each pair is first tested alone for its p (``intervals=False``), then once more at the
-    level matched to the adjustment for its estimate and interval.
+    Each pair is tested once; its p (``intervals=False``) sets the levels matched to the
+    adjustment, and its estimate and interval come from the same test at its level.
     """
     confidence = check_confidence(confidence)
     tested = []
     for (a, xa), (b, xb) in _pairs(list(items)):
-        tested.append((a, b, xa, xb, run(xa, xb, (a, b), confidence, False)))
+        pair = run(xa, xb, (a, b))
+        tested.append((a, b, pair, pair.result(confidence, False)))
     raw = [r.p_value for *_, r in tested]
     levels = _levels(raw, adjust, alpha, confidence)
     rows, intervals = [], []
-    for (a, b, xa, xb, result), level in zip(tested, levels, strict=True):
-        at_level = run(xa, xb, (a, b), 1.0 - (level or 0.0), True)
+    for (a, b, pair, result), level in zip(tested, levels, strict=True):
+        at_level = pair.result(1.0 - (level or 0.0), True)
         assert at_level.estimate is not None
         rows.append((a, b, float(at_level.estimate.value or 0.0), float(result.statistic or 0.0), result.p_value))
         intervals.append((float(at_level.estimate.ci_low or 0.0), float(at_level.estimate.ci_high or 0.0)))

@@ -421,6 +421,17 @@ def brunner_munzel(
     (0.211, True)
     """
     common.check_options(alternative, confidence)
+    return done_pair(x, y, labels=labels, alternative=alternative, p_method=p_method).result(confidence, intervals)
+
+
+def done_pair(x: Any, y: Any, *, labels: tuple[str, str] = ("A", "B"), alternative: str = "two-sided",
+                p_method: str = "auto") -> DonePair:
+    """The Brunner-Munzel test of ``x`` against ``y``, ready to give its Result at any confidence level.
+
+    Follow-ups need every pair's p before they know each pair's interval level; the test
+    (its ranking and any permutations) is then done once per pair, not once per level.
+    """
+    common.check_options(alternative, 0.95)  # the alternative; each level is checked by ``result``
     _check_p_method(p_method)
     first, second = common.labels_pair(labels)
     a, dropped_a = common.clean(x, f"group {first}")
@@ -443,15 +454,36 @@ def brunner_munzel(
         p_value = asymptotic_p(t, df, alternative)
         method = PMethod.ASYMPTOTIC
     test = BrunnerMunzel(ps, se, t, df, p_value, method, draws)
-    if intervals:
-        shift = common.median_pairwise_difference(a, b)
-        result = two_group_result(test, a, b, shift, (first, second), alternative, confidence)
-    else:
-        result = result_without_intervals(test, a.size + b.size, alternative, confidence)
-    result.n_excluded = dropped_a + dropped_b
-    result.groups = [common.describe(first, a), common.describe(second, b)]
-    result.notes = notes
-    return result
+    return DonePair(a, b, (first, second), dropped_a + dropped_b, alternative, test, notes)
+
+
+@dataclass
+class DonePair:
+    """A done Brunner-Munzel test with its cleaned groups; ``result`` adds the intervals at a level."""
+
+    a: np.ndarray
+    b: np.ndarray
+    labels: tuple[str, str]
+    dropped: int
+    alternative: str
+    test: BrunnerMunzel
+    notes: list[Coded]
+    shift: float | None = None  # the Hodges-Lehmann shift, found once when first needed
+
+    def result(self, confidence: float, intervals: bool = True) -> Result:
+        """The Result at ``confidence``; ``intervals=False`` leaves out the estimate and effect."""
+        common.check_options(self.alternative, confidence)
+        a, b = self.a, self.b
+        if intervals:
+            if self.shift is None:
+                self.shift = common.median_pairwise_difference(a, b)
+            result = two_group_result(self.test, a, b, self.shift, self.labels, self.alternative, confidence)
+        else:
+            result = result_without_intervals(self.test, a.size + b.size, self.alternative, confidence)
+        result.n_excluded = self.dropped
+        result.groups = [common.describe(self.labels[0], a), common.describe(self.labels[1], b)]
+        result.notes = list(self.notes)
+        return result
 
 
 @dataclass(frozen=True)

@@ -14,6 +14,7 @@ and the unweighted method runs on them, so the seeded draws are the same.
 from __future__ import annotations
 
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -187,7 +188,21 @@ def pairwise_brunner_munzel(groups: Mapping[str, Weighted], *, adjust: AdjustMet
     """``followup.pairwise_brunner_munzel`` of the repeated records; each group is (values, counts)."""
     items = [(label, (v, c)) for label, v, c in _clean_groups(groups)]
 
-    def run(xa: Weighted, xb: Weighted, labels: tuple[str, str], level: float, intervals: bool) -> Result:
-        return brunner_munzel(xa, xb, labels=labels, confidence=level, p_method=p_method, intervals=intervals)
+    def run(xa: Weighted, xb: Weighted, labels: tuple[str, str]) -> _CountedPair:
+        return _CountedPair(xa, xb, labels, p_method)
 
     return followup.pairwise_of(run, items, adjust=adjust, alpha=alpha, confidence=confidence)
+
+
+@dataclass(frozen=True)
+class _CountedPair:
+    """A pair of counted groups; its test is redone per level (few distinct values, so cheap)."""
+
+    x: Weighted
+    y: Weighted
+    labels: tuple[str, str]
+    p_method: str
+
+    def result(self, confidence: float, intervals: bool = True) -> Result:
+        return brunner_munzel(self.x, self.y, labels=self.labels, confidence=confidence, p_method=self.p_method,
+                              intervals=intervals)
