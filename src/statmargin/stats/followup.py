@@ -29,6 +29,7 @@ from statmargin.stats._common import (
 )
 from statmargin.stats.adjust import adjust_p, matched_levels
 from statmargin.stats.categorical import _count_table
+from statmargin.stats.studentized_range import studentized_range_ppf
 from statmargin.vocabulary import AdjustMethod, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Count, Skip, coded
 
@@ -205,7 +206,7 @@ def tukey_hsd_of_summaries(summaries: list[Summary], *, confidence: float = 0.95
     mse = sum(ss for _, _, ss, _ in summaries) / df
     if mse <= 0.0:
         raise NotEnoughDataError(coded(Skip.NO_WITHIN_SPREAD))
-    q_crit = float(stats.studentized_range.ppf(confidence, k, df))
+    q_crit = studentized_range_ppf(confidence, k, df)
     out = []
     for (a, mean_a, _, n_a), (b, mean_b, _, n_b) in _pairs(summaries):
         diff = mean_a - mean_b
@@ -293,7 +294,7 @@ def games_howell_of_summaries(summaries: list[Summary], *, confidence: float = 0
         diff = mean_a - mean_b
         t = diff / se
         p_adj = float(np.clip(stats.studentized_range.sf(abs(t) * math.sqrt(2.0), k, df), 0.0, 1.0))
-        half = float(stats.studentized_range.ppf(confidence, k, df)) / math.sqrt(2.0) * se
+        half = studentized_range_ppf(confidence, k, df) / math.sqrt(2.0) * se
         out.append(_interval_followup(Test.GAMES_HOWELL, a, b, diff, half, p_adj, t, alpha))
     return out
 
