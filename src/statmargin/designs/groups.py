@@ -11,6 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import pandas as pd
 
 from ..plan.types import TypeInfo
 from ..read.table import Column
@@ -58,7 +59,7 @@ class GroupData:
 
 def levels_present(info: TypeInfo, labels: np.ndarray) -> list[str]:
     """Levels seen in the usable rows: the column's level order first, then any others."""
-    present = {lab for lab in labels if lab is not None}
+    present = {lab for lab in pd.unique(np.asarray(labels, dtype=object)) if lab is not None}  # one pass in C
     ordered = [lev for lev in info.levels if lev in present]
     rest = sorted(present - set(ordered))
     return ordered + rest
@@ -94,8 +95,11 @@ def group_data(question: Question) -> GroupData:
     levels = levels_present(grouping_info, labels)
     # Too many groups are refused in prepare_groups; splitting them would cost n x groups.
     few = len(levels) <= MAX_GROUPS
-    groups = {lev: values[labels == lev] for lev in levels} if few else {}
-    counts = None if question.counts is None or not few else {lev: weights[labels == lev] for lev in levels}
+    # Integer codes (one hashing pass) instead of comparing every label string once per level.
+    codes, uniques = pd.factorize(labels) if few else (np.empty(0, dtype=np.intp), [])
+    code_of = {lev: i for i, lev in enumerate(uniques)}
+    groups = {lev: values[codes == code_of[lev]] for lev in levels} if few else {}
+    counts = None if question.counts is None or not few else {lev: weights[codes == code_of[lev]] for lev in levels}
     data = GroupData(numbers, numbers_info, grouping, grouping_info, levels, groups, int(weights.sum()),
                      n_excluded, lead, both.kept, labels, counts)
     question.cache["groups"] = data

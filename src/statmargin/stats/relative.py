@@ -18,11 +18,11 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import stats
 
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
-from statmargin.stats import effects
+from statmargin.stats import effects, shift_search
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Coded, Count, Note, Refusal, Subject, coded
 
@@ -469,6 +469,7 @@ class DonePair:
     test: BrunnerMunzel
     notes: list[Coded]
     shift: float | None = None  # the Hodges-Lehmann shift, found once when first needed
+    summaries: list[dict[str, Any]] | None = None  # each group's summary, made once
 
     def result(self, confidence: float, intervals: bool = True) -> Result:
         """The Result at ``confidence``; ``intervals=False`` leaves out the estimate and effect."""
@@ -481,7 +482,9 @@ class DonePair:
         else:
             result = result_without_intervals(self.test, a.size + b.size, self.alternative, confidence)
         result.n_excluded = self.dropped
-        result.groups = [common.describe(self.labels[0], a), common.describe(self.labels[1], b)]
+        if self.summaries is None:
+            self.summaries = [common.describe(self.labels[0], a), common.describe(self.labels[1], b)]
+        result.groups = [dict(summary) for summary in self.summaries]
         result.notes = list(self.notes)
         return result
 
@@ -594,11 +597,11 @@ def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Criti
     Notes
     -----
     The statistic falls in steps as d grows, jumping only where some a_i - d meets
-    some b_j; each bound is found by bracketing root search between the estimate and
-    the end of the range of differences, then moved to the nearest such jump point
-    (a difference a_i - b_j), so the bounds are exact differences as in R's
-    ``wilcox.test`` intervals. The estimate is kept inside the interval even when ties
-    make the statistic at it non-zero.
+    some b_j; each bound is the difference a_i - b_j at which it crosses its critical
+    value (as R's ``wilcox.test`` intervals end at differences), found by
+    ``shift_search.step_crossing`` from a bracket stepped out from the estimate with a
+    normal-theory width. The estimate is kept inside the interval even when ties make
+    the statistic at it non-zero.
     """
     # Distinct values with their counts: ties are counts, so the statistic is the same and
     # each evaluation costs the number of distinct values, not of records.
@@ -610,32 +613,44 @@ def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Criti
     low_end = float(a_sorted[0] - b_sorted[-1]) - span - 1.0
     high_end = float(a_sorted[-1] - b_sorted[0]) + span + 1.0
 
-    def statistic(d: float) -> float:
-        return _shift_statistic(a_records, b_records, d)
-
-    def snap(d: float) -> float:
-        targets = a_sorted - d
-        right = np.clip(np.searchsorted(b_sorted, targets), 0, b_sorted.size - 1)
-        left = np.clip(right - 1, 0, b_sorted.size - 1)
-        candidates = np.concatenate([a_sorted - b_sorted[left], a_sorted - b_sorted[right]])
-        return float(candidates[np.argmin(np.abs(candidates - d))])
-
-    def solve(target: float, left: float, right: float) -> float:
-        # statistic(left) - target > 0 >= statistic(right) - target (decreasing)
+    def solve(target: float, lower: bool) -> float:
+        # f falls as d grows; the bound is where it goes from above 0 to 0 or below.
         def f(d: float) -> float:
-            value = statistic(d) - target
-            return value if math.isfinite(value) else math.copysign(1e300, value)
+            return _shift_statistic(a_records, b_records, d) - target
 
-        if f(left) <= 0:
+        at_shift = f(shift)
+        limit = low_end if lower else high_end
+        if lower and at_shift > 0:
+            return shift
+        if not lower and at_shift <= 0:
+            return shift
+        width = max(abs(target), 1.0) * _normal_width(a_records, b_records, span)
+        left, right, f_left, f_right = shift_search.outward_bracket(f, shift, at_shift, width, limit,
+                                                                    lambda: f(limit))
+        if left == right:  # the critical value is never reached: the far end, as before
             return left
-        if f(right) > 0:
-            return right
-        root = float(optimize.brentq(f, left, right, xtol=1e-7 * max(span, 1e-300), rtol=1e-10))
-        return snap(root)
+        return shift_search.step_crossing(f, a_sorted, b_sorted, left, right, f_left, f_right)
 
-    low = -math.inf if math.isinf(critical.lower_bound) else solve(critical.lower_bound, low_end, shift)
-    high = math.inf if math.isinf(critical.upper_bound) else solve(-critical.upper_bound, shift, high_end)
+    low = -math.inf if math.isinf(critical.lower_bound) else solve(critical.lower_bound, True)
+    high = math.inf if math.isinf(critical.upper_bound) else solve(-critical.upper_bound, False)
     return min(low, shift), max(high, shift)
+
+
+def _normal_width(a: common.SortedRecords, b: common.SortedRecords, span: float) -> float:
+    """A first step for the bound search: the standard error of a difference in centres, robustly.
+
+    Each group's spread is its interquartile range / 1.349 (the SD for normal data), so
+    the step is about the bound's distance from the estimate for a critical value of 1.
+    """
+    def spread(records: common.SortedRecords) -> tuple[float, float]:
+        n = float(records.cumulative[-1])
+        at = np.searchsorted(records.cumulative[1:], [0.25 * n, 0.75 * n], "left")
+        at = np.minimum(at, records.values.size - 1)
+        return float(records.values[at[1]] - records.values[at[0]]) / 1.349, n
+
+    (sa, na), (sb, nb) = spread(a), spread(b)
+    width = math.sqrt(sa * sa / na + sb * sb / nb)
+    return width if math.isfinite(width) and width > 0 else max(span, 1.0) * 1e-3
 
 
 # ---------------------------------------------------------------- three or more groups

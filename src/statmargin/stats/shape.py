@@ -346,14 +346,15 @@ def adjusted_moments(values: np.ndarray) -> tuple[float | None, float | None]:
     if n < 3:
         return None, None
     centred = values - values.mean()
-    m2 = float(np.mean(centred**2))
+    squared = centred * centred  # products, not ``**``: the power function is several times slower
+    m2 = float(np.mean(squared))
     if m2 == 0.0:
         return None, None
-    m3 = float(np.mean(centred**3))
+    m3 = float(np.mean(squared * centred))
     g1 = math.sqrt(n * (n - 1)) / (n - 2) * m3 / m2**1.5
     if n < 4:
         return _float(g1), None
-    m4 = float(np.mean(centred**4))
+    m4 = float(np.mean(squared * squared))
     g2 = (n - 1) / ((n - 2) * (n - 3)) * ((n + 1) * m4 / (m2 * m2) - 3.0 * (n - 1))
     return _float(g1), _float(g2)
 
