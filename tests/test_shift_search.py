@@ -114,3 +114,11 @@ def test_pairwise_intervals_cover_true_shifts() -> None:
             for pair in pairs
         )
     assert covered / reps >= 0.92
+
+
+@pytest.mark.parametrize("seed", range(5))
+def test_shift_estimate_from_counts_equals_listing(seed: int) -> None:
+    """With many ties the shift from distinct values and counts is np.median of all listed differences."""
+    rng = np.random.default_rng(seed)
+    a, b = np.round(rng.gamma(2.0, 3.0, 400), 0), np.round(rng.gamma(2.0, 3.4, 301), 0)
+    assert relative.shift_estimate(a, b) == float(np.median(np.subtract.outer(a, b)))
