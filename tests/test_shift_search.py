@@ -122,3 +122,12 @@ def test_shift_estimate_from_counts_equals_listing(seed: int) -> None:
     rng = np.random.default_rng(seed)
     a, b = np.round(rng.gamma(2.0, 3.0, 400), 0), np.round(rng.gamma(2.0, 3.4, 301), 0)
     assert relative.shift_estimate(a, b) == float(np.median(np.subtract.outer(a, b)))
+
+
+def test_constant_group_without_df_gives_the_estimate() -> None:
+    """A constant group leaves the Brunner-Munzel df undefined; the shift interval is then the estimate (as before)."""
+    x = [-13.5, -13.5, -13.5]
+    y = [16.0, 16.5, 3.0, 2.5, 8.5, 3.0, 10.0, -12.5, 11.5, 1.0, 10.0, 1.0]
+    result = relative.brunner_munzel(x, y, p_method="asymptotic")
+    assert result.estimate is not None
+    assert result.estimate.ci_low == result.estimate.ci_high == result.estimate.value == -19.25

@@ -633,6 +633,8 @@ def _shift_interval(a: np.ndarray, b: np.ndarray, shift: float, critical: _Criti
         def f(d: float) -> float:
             return _shift_statistic(a_records, b_records, d) - target
 
+        if math.isnan(target):  # no critical value (an undefined df): the interval is the estimate, as before
+            return shift
         at_shift = f(shift)
         limit = low_end if lower else high_end
         if lower and at_shift > 0:

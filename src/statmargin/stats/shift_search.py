@@ -70,10 +70,10 @@ def outward_bracket(f: Callable[[float], float], start: float, f_start: float, w
     downward = limit < start
     positive = f_start > 0  # searching down from f <= 0 for f > 0, or up from f > 0 for f <= 0
     near, f_near = start, f_start
-    step = width
-    while True:
+    step = width if math.isfinite(width) and width > 0 else abs(limit - start)
+    for _ in range(MAX_EVALUATIONS):
         d = start - step if downward else start + step
-        if (d <= limit) if downward else (d >= limit):
+        if not math.isfinite(d) or ((d <= limit) if downward else (d >= limit)):
             d, value = limit, f_limit()
         else:
             value = f(d)
@@ -83,6 +83,8 @@ def outward_bracket(f: Callable[[float], float], start: float, f_start: float, w
         if d == limit:
             return limit, limit, value, value
         step *= 4.0
+    else:  # steps of growing size reach any finite limit long before this; a NaN f never settles
+        return limit, limit, f_near, f_near
     return (d, near, value, f_near) if downward else (near, d, f_near, value)
 
 
