@@ -115,3 +115,43 @@ def test_widest_mean_gap_covers_the_picked_pair_in_at_least_95_percent_of_runs()
         lower, upper = widest_mean_gap_interval(high, low, 4, 0.95)
         covered += lower <= 0.0 <= upper
     assert covered / runs >= 0.95 - 3 * math.sqrt(0.95 * 0.05 / runs)
+
+
+def _order_statistic_interval(values: np.ndarray, level: float) -> tuple[float, float]:
+    """[x_(k), x_(n-k+1)] with k the largest count whose binomial tail P(Bin(n, 1/2) <= k - 1) stays within (1 - level)/2."""
+    x, n = np.sort(values), values.size
+    k = int(stats.binom.ppf((1 - level) / 2, n, 0.5))  # P(Bin <= k) >= tail: the last k with P(Bin <= k-1) <= tail
+    while stats.binom.cdf(k - 1, n, 0.5) > (1 - level) / 2:
+        k -= 1
+    return float(x[k - 1]), float(x[n - k])
+
+
+def test_widest_median_gap_is_the_difference_of_order_statistic_intervals() -> None:
+    """ANOVA-type rank test of 3 skewed groups: the widest median gap's interval from binomial order statistics (scipy)."""
+    from statmargin.stats.relative import rank_anova_type
+
+    rng = np.random.default_rng(41)
+    groups = {"Ash": rng.lognormal(2.0, 0.6, 60), "Birch": rng.lognormal(2.3, 0.6, 70), "Cedar": rng.lognormal(2.6, 0.6, 65)}
+    est = rank_anova_type(groups, p_method="asymptotic").estimate
+    assert est.kind is EstimateKind.LARGEST_MEDIAN_GAP and est.levels == ("Cedar", "Ash")
+    level = 1 - 0.05 / 3 / 2  # each median at 1 - a/2, a = 0.05 over the 3 pairs (Bonferroni)
+    (hl, hh), (ll, lh) = _order_statistic_interval(groups["Cedar"], level), _order_statistic_interval(groups["Ash"], level)
+    assert (est.ci_low, est.ci_high) == pytest.approx((hl - lh, hh - ll), rel=1e-12)
+    assert est.ci_low <= est.value <= est.ci_high
+
+
+def test_widest_median_gap_covers_the_picked_pair_in_at_least_95_percent_of_runs() -> None:
+    """Simulation: 4 lognormal groups of 30 with one median, the pair picked after looking; 400 runs cover at least 95% less 3 SEs."""
+    from statmargin.results import Estimate
+    from statmargin.stats.signtest import widest_median_gap
+
+    rng = np.random.default_rng(20261209)
+    runs, covered = 400, 0
+    for _ in range(runs):
+        groups = {label: rng.lognormal(0.0, 0.8, 30) for label in "ABCD"}
+        medians = {label: float(np.median(v)) for label, v in groups.items()}
+        high, low = max(medians, key=medians.get), min(medians, key=medians.get)
+        gap = Estimate(EstimateKind.LARGEST_MEDIAN_GAP, medians[high] - medians[low], levels=(high, low))
+        out = widest_median_gap(gap, {k: (v, None) for k, v in groups.items()}, 0.95)
+        covered += out.ci_low <= 0.0 <= out.ci_high
+    assert covered / runs >= 0.95 - 3 * math.sqrt(0.95 * 0.05 / runs)

@@ -775,6 +775,12 @@ def rank_anova_type(
         method = PMethod.ASYMPTOTIC
     summaries = [common.describe(label, values) for label, values in cleaned.items()]
     result = anova_type_result(rel, ats, p_value, method, summaries, confidence)
+    if result.estimate is not None:
+        from statmargin.stats.signtest import (
+            widest_median_gap,  # at call time: signtest -> weighted -> multigroup -> here
+        )
+
+        result.estimate = widest_median_gap(result.estimate, {k: (v, None) for k, v in cleaned.items()}, confidence)
     result.n_excluded = dropped
     result.notes = notes
     return result
