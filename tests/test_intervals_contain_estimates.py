@@ -136,3 +136,11 @@ def test_near_null_tables_keep_v_inside(seed: int) -> None:
     table = rng.multinomial(300, [1 / 20] * 20).reshape(5, 4)
     result = categorical.chi_square_independence(table, list("abcde"), list("wxyz"), monte_carlo=False)
     _inside(result.effect, "V")
+
+
+def test_a_statistic_of_floating_point_noise_size_keeps_the_effect_inside_its_interval() -> None:
+    """Constant groups but one (a found case): the ANOVA-type statistic is about 1.7e33, and epsilon-squared stays capped and inside."""
+    raw = [[0.0, 0.0], [0.0, 0.0], [0.0, 0.0], [0.5, 0.5], [0.0, 0.0, 0.0]]
+    result = relative.rank_anova_type({f"g{i}": np.array(v) for i, v in enumerate(raw)})
+    effect = result.effect
+    assert effect.ci_low <= effect.value <= effect.ci_high <= (25 - 1) / 25  # the largest share for 5 groups

@@ -590,7 +590,8 @@ def invert_noncentrality(
     -------
     float, float, float
         Lower bound, median-unbiased estimate, upper bound; each is 0 when even a
-        noncentrality of 0 puts the observed value beyond its target.
+        noncentrality of 0 puts the observed value beyond its target, and infinite when
+        no finite noncentrality reaches it (callers cap it at the effect's largest value).
 
     Notes
     -----
@@ -612,6 +613,8 @@ def invert_noncentrality(
             if cdf(high) <= target:
                 break
             high *= 2.0
+        else:  # no finite noncentrality reaches the target (a statistic of floating-point noise size)
+            return math.inf
         return float(optimize.brentq(lambda x: cdf(x) - target, 0.0, high, xtol=1e-10, rtol=1e-12))
 
     return solve(1.0 - tail), solve(0.5), solve(tail)
@@ -697,5 +700,5 @@ def variance_share(
     0.5
     """
     low, mid, high = invert_noncentrality(noncentral_f_cdf(f, df1, df2), confidence, f * df1)
-    share = [ncp / (ncp + n_total) for ncp in (mid, low, high)]
+    share = [1.0 if math.isinf(ncp) else ncp / (ncp + n_total) for ncp in (mid, low, high)]
     return share[0], share[1], share[2]
