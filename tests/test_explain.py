@@ -951,3 +951,17 @@ def test_no_adjustment_reads_without_allowing_and_cautions_about_chance():
             "This run made 2 comparisons and no adjustment was asked for, so some small "
             "p-values are expected by chance alone; read each result alongside the others."
         ) in result.cautions
+
+
+def test_a_wide_pair_names_its_two_columns_once() -> None:
+    """Two measurement columns: 'Means: Before 12.0, After 10.0.', not the first column named again as the outcome."""
+    import pandas as pd
+
+    from statmargin import analyze
+
+    before = [12.3, 14.1, 11.2, 13.4, 10.6, 12.4, 15.2, 11.9, 13.7, 12.8]
+    after = [10.1, 12.6, 10.4, 11.3, 8.9, 9.8, 13.1, 10.2, 12.0, 11.2]
+    data = pd.DataFrame({"Before": before, "After": after})
+    [result] = analyze(data, outcome="Before", paired_with="After", shape="normal")
+    # Direct means of the two columns: 12.76 and 10.96, shown with one decimal (no run context gives a precision).
+    assert result.reading.startswith("Means: Before 12.8, After 11.0.")

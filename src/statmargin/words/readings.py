@@ -232,6 +232,8 @@ def _groups_line(result: Result, context: Any) -> tuple[str, int]:
             f"{_n(high[1], decimals)}{units} ({high[0]}) across {len(rows)} groups of {result.exposure}."
         ), decimals
     shown = [(named(result, label), _n(value, decimals)) for label, value in rows]
+    if wide_pair(result):  # the labels are the two measurement columns: naming the outcome again repeats one
+        return f"{key.capitalize()}s: {_listed(shown, result.exposure)}{units}.", decimals
     return f"{key.capitalize()} {outcome}: {_listed(shown, result.exposure)}{units}.", decimals
 
 
