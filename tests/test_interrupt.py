@@ -200,21 +200,32 @@ def test_a_command_leaves_the_stop_signal_handler_as_it_found_it(tmp_path: Path)
         signal.signal(signal.SIGTERM, previous)
 
 
-def test_an_interrupt_outside_a_command_exits_as_interrupted_with_one_line(monkeypatch, capsys) -> None:
+def test_an_interrupt_outside_a_command_exits_as_interrupted_with_one_line() -> None:
     """A Ctrl+C that reaches the installed command's entry point (not a command's own handling) gives exit 130 and one line."""
-    from statmargin import cli
+    script = (
+        "import statmargin.cli as cli\n"
+        "def interrupted(**_kwargs):\n"
+        "    raise KeyboardInterrupt\n"
+        "cli.main = interrupted\n"
+        "cli.run()\n"
+    )
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=TIMEOUT,
+                          check=False, preexec_fn=_ctrl_c_as_on_a_terminal)
+    assert done.returncode == EXIT_INTERRUPTED, (done.returncode, done.stderr)
+    assert len(done.stderr.splitlines()) == 1 and "stopped before finishing" in done.stderr
 
-    def interrupted_main(**_kwargs: object) -> None:
-        raise KeyboardInterrupt
 
-    before = signal.getsignal(signal.SIGINT)
-    monkeypatch.setattr(cli, "main", interrupted_main)
-    monkeypatch.setattr(cli, "_STOP_SAID", [])
-    try:
-        with pytest.raises(SystemExit) as stopped:
-            cli.run()
-    finally:
-        signal.signal(signal.SIGINT, before)  # run() ignores Ctrl+C once done; give the suite its handler back
-    assert stopped.value.code == EXIT_INTERRUPTED
-    stderr = capsys.readouterr().err
-    assert len(stderr.splitlines()) == 1 and "stopped before finishing" in stderr
+def test_an_interrupted_command_leaves_with_its_exit_code() -> None:
+    """A command stopped by Ctrl+C leaves through the entry point with exit 130 and its one stop line."""
+    script = (
+        "import statmargin.cli as cli, statmargin.jobs.workbook as jobs\n"
+        "def interrupted(*_args, **_kwargs):\n"
+        "    raise KeyboardInterrupt\n"
+        "jobs.run_workbook = interrupted\n"
+        "import sys; sys.argv = ['statmargin', 'run', 'any.xlsx']\n"
+        "cli.run()\n"
+    )
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=TIMEOUT,
+                          check=False, preexec_fn=_ctrl_c_as_on_a_terminal)
+    assert done.returncode == EXIT_INTERRUPTED, (done.returncode, done.stderr)
+    assert len(done.stderr.splitlines()) == 1 and "stopped before finishing" in done.stderr

@@ -15,6 +15,7 @@ from __future__ import annotations
 import contextlib
 import functools
 import json
+import os
 import signal
 import sys
 import threading
@@ -418,15 +419,33 @@ def run() -> None:
         main(prog_name="statmargin")
     except KeyboardInterrupt:
         # A Ctrl+C that reached here (while click parsed the options, or a second one under
-        # load after the stop line): the command's exit code and one stop line, never Python's
-        # end by the signal (exit -2).
-        _ignore_interrupts()
+        # load after the stop line): the command's exit code and one stop line.
         from .words.file_messages import interrupted
 
+        _ignore_interrupts()
         _say_stopped(interrupted())
-        sys.exit(errors.EXIT_INTERRUPTED)
+        _exit_now(errors.EXIT_INTERRUPTED)
+    except SystemExit as done:
+        if done.code == errors.EXIT_INTERRUPTED:
+            _exit_now(errors.EXIT_INTERRUPTED)
+        raise
     finally:
         _ignore_interrupts()
+
+
+def _exit_now(code: int) -> None:
+    """Leave at once with ``code`` after an interrupt, the streams flushed and Ctrl+C ignored.
+
+    Python's own exit would end the process by the signal (exit -2, not 130) when the
+    interrupt had crossed code run from source text (CPython keeps a flag for that even
+    once the interrupt is caught), and its finalization sets Ctrl+C back to the default,
+    so a second one could kill it; the command has already cleaned up and said so.
+    """
+    _ignore_interrupts()
+    for stream in (sys.stdout, sys.stderr):
+        with contextlib.suppress(Exception):
+            stream.flush()
+    os._exit(code)
 
 
 _STOP_SAID: list[bool] = []  # set once the stop line is printed, so it is never printed twice
