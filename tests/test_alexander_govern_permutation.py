@@ -32,7 +32,7 @@ def test_permutation_p_is_the_share_of_scipy_statistics_at_least_the_observed() 
     sizes = np.cumsum([g.size for g in groups])[:-1]
     pooled = np.concatenate(groups)
     at_least = 0
-    for rows in relative._permuted_batches(pooled, relative.PERMUTATIONS, relative.PERMUTATION_SEED):
+    for rows in relative.permuted_batches(pooled, relative.PERMUTATIONS, relative.PERMUTATION_SEED):
         for row in rows:
             at_least += stats.alexandergovern(*np.split(row, sizes)).statistic >= observed - 1e-12 * observed
     expected = (1 + at_least) / (relative.PERMUTATIONS + 1)

@@ -200,32 +200,26 @@ def test_a_command_leaves_the_stop_signal_handler_as_it_found_it(tmp_path: Path)
         signal.signal(signal.SIGTERM, previous)
 
 
-def test_an_interrupt_outside_a_command_exits_as_interrupted_with_one_line() -> None:
-    """A Ctrl+C that reaches the installed command's entry point (not a command's own handling) gives exit 130 and one line."""
-    script = (
-        "import statmargin.cli as cli\n"
-        "def interrupted(**_kwargs):\n"
-        "    raise KeyboardInterrupt\n"
-        "cli.main = interrupted\n"
-        "cli.run()\n"
-    )
-    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=TIMEOUT,
-                          check=False, preexec_fn=_ctrl_c_as_on_a_terminal)
-    assert done.returncode == EXIT_INTERRUPTED, (done.returncode, done.stderr)
-    assert len(done.stderr.splitlines()) == 1 and "stopped before finishing" in done.stderr
-
-
-def test_an_interrupted_command_leaves_with_its_exit_code() -> None:
-    """A command stopped by Ctrl+C leaves through the entry point with exit 130 and its one stop line."""
+def _entry_point_after(patch: str) -> subprocess.CompletedProcess[str]:
+    """The installed command's entry point (``cli.run``) in a child, after ``patch`` makes something raise Ctrl+C."""
     script = (
         "import statmargin.cli as cli, statmargin.jobs.workbook as jobs\n"
         "def interrupted(*_args, **_kwargs):\n"
         "    raise KeyboardInterrupt\n"
-        "jobs.run_workbook = interrupted\n"
+        f"{patch}\n"
         "import sys; sys.argv = ['statmargin', 'run', 'any.xlsx']\n"
         "cli.run()\n"
     )
-    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=TIMEOUT,
+    return subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=TIMEOUT,
                           check=False, preexec_fn=_ctrl_c_as_on_a_terminal)
+
+
+@pytest.mark.parametrize("patch", [
+    "cli.main = interrupted",  # outside any command's own handling (as while click reads the options)
+    "jobs.run_workbook = interrupted",  # inside a command, which says it stopped and exits
+])
+def test_an_interrupt_leaves_the_entry_point_with_exit_130_and_one_line(patch: str) -> None:
+    """Ctrl+C anywhere under the installed command gives exit 130 (never -2, ended by the signal) and one stop line."""
+    done = _entry_point_after(patch)
     assert done.returncode == EXIT_INTERRUPTED, (done.returncode, done.stderr)
     assert len(done.stderr.splitlines()) == 1 and "stopped before finishing" in done.stderr

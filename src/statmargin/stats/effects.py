@@ -246,22 +246,18 @@ def standardized_mean_with_any_shape(effect: Effect, values: Any, mu: float, alt
     >>> bool(wide.ci_low <= plain.ci_low and wide.ci_high >= plain.ci_high and wide.value == plain.value)
     True
     """
+    if effect.value is None or not math.isfinite(effect.value):
+        return effect
     x = np.asarray(values, dtype=float)
-    c = np.ones(x.size) if counts is None else np.asarray(counts, dtype=float)
-    n = float(c.sum())
-    if n < 4 or effect.value is None or not math.isfinite(effect.value):
+    n, mean, m2, m3, m4 = _central_moments(x, counts)
+    if n < 4 or not m2 > 0:
         return effect
-    mean = float(np.sum(c * x)) / n  # elementwise sums: no BLAS threads competing for cores
-    squares = float(np.sum(c * (x - mean) ** 2))
-    if not squares > 0:
-        return effect
-    d = (mean - mu) / math.sqrt(squares / (n - 1.0))
-    centred = (x - mean) / math.sqrt(squares / n)
-    skew, kurtosis = float(np.sum(c * centred**3)) / n, float(np.sum(c * centred**4)) / n
+    d = (mean - mu) / math.sqrt(m2 * n / (n - 1.0))
+    skew, kurtosis = m3 / m2**1.5, m4 / m2**2
     variance = (1.0 + d * d * (kurtosis - 1.0) / 4.0 - d * skew) / n
-    means, left_out_variances = _left_out_moments(x, mean, squares, n)
+    means, left_out_variances = _left_out_moments(x, mean, m2 * n, n)
     with np.errstate(divide="ignore", invalid="ignore"):
-        jackknife = _jackknife_variance((means - mu) / np.sqrt(left_out_variances), c)
+        jackknife = _jackknife_variance((means - mu) / np.sqrt(left_out_variances), counts)
     return _with_normal_interval(effect, d, (variance, jackknife), alternative, confidence)
 
 
@@ -275,9 +271,11 @@ def _jackknife_variance(left_out: Any, counts: Any) -> float:
     """Jackknife variance (n - 1)/n sum (theta_i - mean theta)^2 of the leave-one-record-out estimates.
 
     ``left_out[i]`` is the estimate without one of the ``counts[i]`` records of value i
-    (the same for each of them, so each counts that many times). NaN when undefined.
+    (the same for each of them, so each counts that many times; 1 each when ``counts``
+    is None). NaN when undefined.
     """
-    theta, c = np.asarray(left_out, dtype=float), np.asarray(counts, dtype=float)
+    theta = np.asarray(left_out, dtype=float)
+    c = np.ones(theta.size) if counts is None else np.asarray(counts, dtype=float)
     n = float(c.sum())
     if n < 3 or not np.all(np.isfinite(theta)):
         return math.nan
@@ -303,10 +301,15 @@ def _with_normal_interval(effect: Effect, d: float, variances: tuple[float, ...]
 
 
 def _central_moments(values: Any, counts: Any = None) -> tuple[float, float, float, float, float]:
-    """n, mean and the central moments m2, m3, m4 (denominator n) of the records."""
+    """n, mean and the central moments m2, m3, m4 (denominator n) of the records; NaN moments without records.
+
+    Elementwise sums rather than dot products: no BLAS threads competing for cores.
+    """
     x = np.asarray(values, dtype=float)
     c = np.ones(x.size) if counts is None else np.asarray(counts, dtype=float)
     n = float(c.sum())
+    if not n > 0:
+        return 0.0, math.nan, math.nan, math.nan, math.nan
     mean = float(np.sum(c * x)) / n
     d = x - mean
     return n, mean, float(np.sum(c * d**2)) / n, float(np.sum(c * d**3)) / n, float(np.sum(c * d**4)) / n
@@ -378,13 +381,13 @@ def standardized_difference_with_any_shape(effect: Effect, a: Any, b: Any, alter
         / (16.0 * average**2)
     )
     jackknife = 0.0  # groups are independent: the two leave-one-out variances add
-    for own, other, counts, sign in ((0, 1, counts_a, 1.0), (1, 0, counts_b, -1.0)):
-        values = np.asarray(a if own == 0 else b, dtype=float)
-        n_own, mean_own, m2_own = groups[own][0], groups[own][1], groups[own][2]
+    sides = ((a, counts_a, groups[0], groups[1][1], variances[1], 1.0),
+             (b, counts_b, groups[1], groups[0][1], variances[0], -1.0))
+    for values, counts, (n_own, mean_own, m2_own, _, _), other_mean, other_variance, sign in sides:
         means, left_out = _left_out_moments(values, mean_own, m2_own * n_own, n_own)
         with np.errstate(divide="ignore", invalid="ignore"):
-            theta = sign * (means - groups[other][1]) / np.sqrt((left_out + variances[other]) / 2.0)
-        jackknife += _jackknife_variance(theta, np.ones(values.size) if counts is None else counts)
+            theta = sign * (means - other_mean) / np.sqrt((left_out + other_variance) / 2.0)
+        jackknife += _jackknife_variance(theta, counts)
     return _with_normal_interval(effect, d, (variance, jackknife), alternative, confidence)
 
 

@@ -121,8 +121,8 @@ def _largest_gap(summaries: list[dict[str, Any]], key: str, kind: EstimateKind,
     One number that says how far apart the groups are in the outcome's units. With
     ``confidence`` (means only) it gets Welch's interval for that pair at the level
     that holds for all k(k-1)/2 pairs together (:func:`widest_mean_gap_interval`),
-    as the widest pair is picked after looking; medians get none here (their pairwise
-    intervals belong to the follow-up comparisons).
+    as the widest pair is picked after looking. Medians get none here; the ANOVA-type
+    rank test adds its own (``signtest.widest_median_gap``).
     """
     high = max(summaries, key=lambda g: g[key])
     low = min(summaries, key=lambda g: g[key])
@@ -503,7 +503,7 @@ def alexander_govern_permutation_p(groups: list[np.ndarray], observed: float) ->
     starts = np.cumsum([0] + sizes[:-1])
     n = np.asarray(sizes, dtype=float)
     draws = []
-    for rows in relative._permuted_batches(np.concatenate(groups), relative.PERMUTATIONS,
+    for rows in relative.permuted_batches(np.concatenate(groups), relative.PERMUTATIONS,
                                             relative.PERMUTATION_SEED):
         means = np.add.reduceat(rows, starts, axis=1) / n
         centred = rows - np.repeat(means, sizes, axis=1)

@@ -176,7 +176,7 @@ def _arranged(groups: list[np.ndarray]) -> tuple[np.ndarray, list[int]]:
     return stats.rankdata(np.concatenate(groups))[None, :], [g.size for g in groups]
 
 
-def _permuted_batches(values: np.ndarray, draws: int, seed: int) -> Any:
+def permuted_batches(values: np.ndarray, draws: int, seed: int) -> Any:
     """Yield batches of random permutations of ``values`` (seeded), memory bounded by BATCH_LIMIT."""
     rng = np.random.default_rng(seed)
     per_batch = max(1, BATCH_LIMIT // max(values.size, 1))
@@ -446,7 +446,7 @@ def done_pair(x: Any, y: Any, *, labels: tuple[str, str] = ("A", "B"), alternati
     draws = None
     if use_permutation(p_method, sizes):
         draws = np.concatenate([_two_sample_t(batch, sizes)[2]
-                                for batch in _permuted_batches(rows[0], PERMUTATIONS, PERMUTATION_SEED)])
+                                for batch in permuted_batches(rows[0], PERMUTATIONS, PERMUTATION_SEED)])
         p_value = _permutation_p_two_sample(t, draws, alternative)
         method = PMethod.PERMUTATION
         notes.append(coded(Note.PERMUTATION_P, draws=PERMUTATIONS, smallest=Count(min(sizes)), below=PERMUTATION_BELOW))
@@ -765,7 +765,7 @@ def rank_anova_type(
     if use_permutation(p_method, sizes):
         draws = np.concatenate([
             anova_type(relative_effects(placement_counts(batch, sizes), sizes), sizes).statistic
-            for batch in _permuted_batches(rows[0], PERMUTATIONS, PERMUTATION_SEED)
+            for batch in permuted_batches(rows[0], PERMUTATIONS, PERMUTATION_SEED)
         ])
         p_value = permutation_p(f, draws)
         method = PMethod.PERMUTATION
@@ -774,13 +774,8 @@ def rank_anova_type(
         p_value = anova_type_p(f, df1, df2)
         method = PMethod.ASYMPTOTIC
     summaries = [common.describe(label, values) for label, values in cleaned.items()]
-    result = anova_type_result(rel, ats, p_value, method, summaries, confidence)
-    if result.estimate is not None:
-        from statmargin.stats.signtest import (
-            widest_median_gap,  # at call time: signtest -> weighted -> multigroup -> here
-        )
-
-        result.estimate = widest_median_gap(result.estimate, {k: (v, None) for k, v in cleaned.items()}, confidence)
+    result = anova_type_result(rel, ats, p_value, method, summaries, confidence,
+                               {label: (values, None) for label, values in cleaned.items()})
     result.n_excluded = dropped
     result.notes = notes
     return result
@@ -792,8 +787,16 @@ def anova_type_p(f: float, df1: float, df2: float) -> float:
 
 
 def anova_type_result(rel: RelativeEffects, ats: AnovaType, p_value: float, method: PMethod,
-                      summaries: list[dict[str, Any]], confidence: float) -> Result:
-    """The Result of an ANOVA-type rank test from its relative effects and statistic (batch row 0)."""
+                      summaries: list[dict[str, Any]], confidence: float,
+                      groups: Mapping[str, tuple[np.ndarray, np.ndarray | None]]) -> Result:
+    """The Result of an ANOVA-type rank test from its relative effects and statistic (batch row 0).
+
+    ``groups`` holds each group's values and counts (None: one record each), for the
+    widest median gap's all-pairs interval (``signtest.widest_median_gap``).
+    """
+    # At call time: signtest imports weighted, which imports multigroup, which imports this module.
+    from statmargin.stats.signtest import widest_median_gap
+
     f, df1, df2 = float(ats.statistic[0]), float(ats.df1[0]), float(ats.df2[0])
     effect = _equal_weight_epsilon(f, df1, df2, float(ats.scale[0]), len(summaries), confidence)
     for summary, p_i in zip(summaries, rel.p[0], strict=True):
@@ -813,8 +816,8 @@ def anova_type_result(rel: RelativeEffects, ats: AnovaType, p_value: float, meth
         alternative="two-sided",
         confidence=confidence,
         n=int(sum(int(g["n"]) for g in summaries)),
-        estimate=Estimate(EstimateKind.LARGEST_MEDIAN_GAP, high["median"] - low["median"],
-                          levels=(str(high["label"]), str(low["label"]))),
+        estimate=widest_median_gap(Estimate(EstimateKind.LARGEST_MEDIAN_GAP, high["median"] - low["median"],
+                                            levels=(str(high["label"]), str(low["label"]))), groups, confidence),
         effect=effect,
         groups=summaries,
     )

@@ -9,6 +9,7 @@ is the same (all on one side), where a t-test has no spread to work with.
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from dataclasses import replace
 from typing import Any
 
@@ -17,6 +18,7 @@ from scipy import stats
 
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats import _common as common
+from statmargin.stats.aggregated import pairs_level
 from statmargin.stats.weighted import weighted_median
 from statmargin.stats.weighted_select import collapse
 from statmargin.vocabulary import Design, EffectKind, EstimateKind, PMethod, Test
@@ -115,7 +117,7 @@ def median_interval(values: np.ndarray, alternative: str, confidence: float,
     return low, high
 
 
-def widest_median_gap(estimate: Estimate, groups: dict[str, tuple[np.ndarray, np.ndarray | None]],
+def widest_median_gap(estimate: Estimate, groups: Mapping[str, tuple[np.ndarray, np.ndarray | None]],
                       confidence: float) -> Estimate:
     """The widest gap between group medians with an interval that holds for all pairs together.
 
@@ -148,8 +150,7 @@ def widest_median_gap(estimate: Estimate, groups: dict[str, tuple[np.ndarray, np
     """
     if len(estimate.levels) != 2 or estimate.levels[0] == estimate.levels[1]:
         return estimate
-    pairs = len(groups) * (len(groups) - 1) / 2
-    level = 1.0 - (1.0 - confidence) / max(pairs, 1.0) / 2.0
+    level = 0.5 + pairs_level(confidence, len(groups)) / 2.0  # each median at 1 - a/2
     (high_values, high_counts), (low_values, low_counts) = (groups[label] for label in estimate.levels)
     high_low, high_high = median_interval(high_values, "two-sided", level, high_counts)
     low_low, low_high = median_interval(low_values, "two-sided", level, low_counts)

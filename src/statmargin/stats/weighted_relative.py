@@ -108,9 +108,7 @@ def rank_anova_type(groups: Mapping[str, Weighted], *, alternative: str = "two-s
     ats = relative.anova_type(rel, sizes)
     p_value = relative.anova_type_p(float(ats.statistic[0]), float(ats.df1[0]), float(ats.df2[0]))
     summaries = [weighted_describe(label, v, c) for label, (v, c) in cleaned.items()]
-    result = relative.anova_type_result(rel, ats, p_value, PMethod.ASYMPTOTIC, summaries, confidence)
-    if result.estimate is not None:
-        result.estimate = signtest.widest_median_gap(result.estimate, dict(cleaned), confidence)
+    result = relative.anova_type_result(rel, ats, p_value, PMethod.ASYMPTOTIC, summaries, confidence, cleaned)
     result.notes = notes
     return _with_rows(result, dropped, no_count)
 

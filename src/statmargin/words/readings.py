@@ -178,9 +178,15 @@ def _listed(rows: Sequence[tuple[str, str]], by: str | None) -> str:
     return f"{len(rows)} groups of {by or 'the groups'}"
 
 
+def _ordinal_labels(result: Result) -> list[str]:
+    """The labels an ordinal outcome's codes 1..k stand for (``extra["outcome_levels"]``); empty otherwise."""
+    labels = result.extra.get("outcome_levels") if isinstance(result.extra, Mapping) else None
+    return list(labels or [])
+
+
 def _labelled(result: Result) -> bool:
     """True for an ordinal outcome whose values are the codes 1..k of its labels."""
-    return isinstance(result.extra, Mapping) and bool(result.extra.get("outcome_levels"))
+    return bool(_ordinal_labels(result))
 
 
 def _level_units(value: Any) -> str:
@@ -195,7 +201,7 @@ def _level_decimals(*values: Any) -> int:
 
 def _level_of(result: Result, value: Any) -> str | None:
     """An ordinal outcome's centre as its label ('Good', 'between Good and Very good'); None without labels."""
-    labels = result.extra.get("outcome_levels") if isinstance(result.extra, Mapping) else None
+    labels = _ordinal_labels(result)
     if not labels or not is_number(value):
         return None
     position = float(value) - 1.0  # labels stand for the codes 1..k
@@ -215,7 +221,7 @@ def _groups_line(result: Result, context: Any) -> tuple[str, int]:
     values = [v for _, v in rows]
     decimals = ctx.reading_decimals(context, outcome, *values)
     units = _units(context, outcome)
-    if rows and _level_of(result, rows[0][1]) is not None:
+    if rows and _labelled(result):
         return _level_groups_line(result, rows, key, outcome), decimals
     if not rows:
         return "", decimals
@@ -304,14 +310,15 @@ def _multi_group_answer(result: Result, settings: Settings, context: Any, n_fami
     gap = ""
     if est is not None and is_number(est.value) and _labelled(result):
         units, decimals = _level_units(est.value), _level_decimals(est.value)
-    if (est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2
-            and is_number(est.ci_low) and is_number(est.ci_high)):
-        size, gap = widest_gap_clause(result, _n(est.ci_low, decimals), f"{_n(est.ci_high, decimals)}{units}",
-                                      f"{_n(est.value, decimals)}{units}")
-    elif est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2:
-        high, low = (named(result, label) for label in est.levels)
-        size = f"{_n(est.value, decimals)}{units} ({high} over {low}, the widest gap)"
-        gap = f"; the widest gap is {high} over {low}, {_n(est.value, decimals)}{units}"
+    if est is not None and is_number(est.value) and est.value != 0 and len(est.levels) == 2:
+        value = f"{_n(est.value, decimals)}{units}"
+        if is_number(est.ci_low) and is_number(est.ci_high):
+            size, gap = widest_gap_clause(result, _n(est.ci_low, decimals), f"{_n(est.ci_high, decimals)}{units}",
+                                          value)
+        else:
+            high, low = (named(result, label) for label in est.levels)
+            size = f"{value} ({high} over {low}, the widest gap)"
+            gap = f"; the widest gap is {high} over {low}, {value}"
     if ev.significant:
         pairs = "; the pairs of groups that stand out are marked below" if any(f.flagged for f in result.followups) else ""
         text = f"{ev.words.capitalize()} that {outcome} differs by {by} ({ev.p_text}){gap}{pairs}."
