@@ -556,6 +556,16 @@ class TestHelpers:
         assert sample_values(table.column("Wait"), k=4) == ["3", "2.5", "7", "8"]
         assert sample_values(table.column("Site")) == ["North", "South"]
 
+    def test_sample_values_find_late_values_in_row_order(self, tmp_path):
+        """Values first seen far down a long column (past the rows walked one by one) keep their row order."""
+        rows = [["Code", "Mixed"]] + [[1.0, 2.0]] * 1500
+        rows[1200] = [2.0, "late"]
+        rows[1300] = [None, 2.5]
+        rows[1400] = [3.0, "2"]  # the label "2" shows as the number 2 does: listed once
+        table = read_table(build(tmp_path / "late.xlsx", grid(rows)))
+        assert sample_values(table.column("Code")) == ["1", "2", "3"]
+        assert sample_values(table.column("Mixed")) == ["2", "late", "2.5"]
+
     def test_sample_values_show_six_significant_digits(self, tmp_path):
         """A computed score shows as a spreadsheet's General format would, not with 16 digits."""
         cells = {"A1": "Score", "A2": 77.53999546945688, "A3": 0.000123456789, "A4": 1234567.891}

@@ -112,3 +112,14 @@ class TestUsableValues:
         vals = usable_values(c, infer_type(c))
         assert list(vals.values) == ["1", "2", "2", None]
         assert vals.n == 3
+
+
+def test_category_labels_of_numbers_match_the_one_by_one_text():
+    """Numbers as category labels: the array path gives what ``format_number`` gives each value
+    (whole numbers without ".0", others as Python's shortest repr)."""
+    from statmargin.plan.types import category_labels, format_number
+
+    values = [-3.0, -0.0, 1.0, 2.5, 1e14, 1e15, 1e16, 123456789012345.0, 0.1, 1e-7, 7.0, None]
+    labels = category_labels(col(values))
+    assert labels.tolist() == [None if v is None else format_number(v) for v in values]
+    assert labels.tolist()[:4] == ["-3", "0", "1", "2.5"]

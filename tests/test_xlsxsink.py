@@ -268,15 +268,15 @@ class TestSafety:
     def test_failed_verification_leaves_original(self, rich: Path, monkeypatch) -> None:
         """If a copied part came out different, verification refuses and nothing changes."""
         original = rich.read_bytes()
-        real_write = xlsxsink.write_zip
+        real_write = xlsxsink.write_zip_to
 
-        def damaging(entries):  # noqa: ANN001, ANN202
+        def damaging(handle, entries):  # noqa: ANN001, ANN202
             for entry in entries:
                 if entry.name == "xl/theme/theme1.xml":
                     entry.raw = entry.raw[:-1] + bytes([entry.raw[-1] ^ 1])
-            return real_write(entries)
+            return real_write(handle, entries)
 
-        monkeypatch.setattr(xlsxsink, "write_zip", damaging)
+        monkeypatch.setattr(xlsxsink, "write_zip_to", damaging)
         with pytest.raises(WriteError):
             FileSink(rich).write_sheets(sample_tool_models())
         assert rich.read_bytes() == original

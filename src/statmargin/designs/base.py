@@ -237,9 +237,9 @@ def tally(mask: np.ndarray, weights: np.ndarray | None) -> int:
     return int(np.count_nonzero(mask)) if weights is None else int(weights[mask].sum())
 
 
-def counted_sample(values: np.ndarray, counts: np.ndarray) -> dict[str, list[float]]:
+def counted_sample(values: np.ndarray, counts: np.ndarray) -> dict[str, np.ndarray]:
     """What a histogram draws for counted rows: each value with the number of records it stands for."""
-    return {"values": np.asarray(values, dtype=float).tolist(), "counts": np.asarray(counts, dtype=float).tolist()}
+    return {"values": np.asarray(values, dtype=float), "counts": np.asarray(counts, dtype=float)}
 
 
 def method_options(settings: Settings) -> dict[str, Any]:

@@ -117,7 +117,7 @@ def prepare_groups(question: Question, design: Design, would: tuple[object, obje
     if data.counts is None:
         shape = assess(data.groups)
         spread = spread_check(data.groups) if len(data.levels) >= 3 else None
-        prepared.samples = {label: values.tolist() for label, values in data.groups.items()}
+        prepared.samples = dict(data.groups)  # the arrays themselves: no copy per analysis
     else:
         counted = data.counted()
         shape = assess_weighted(counted)

@@ -40,7 +40,7 @@ class OneSampleContinuous(DesignSpec):
         prepared = Prepared(self.design, n=n, n_excluded=n_excl)
         prepared.groups = {name: x}
         if question.counts is None:
-            prepared.samples = {name: x.tolist()}
+            prepared.samples = {name: x}
         else:
             prepared.samples = {name: counted_sample(x, counts)}
             prepared.extra["counts"] = counts

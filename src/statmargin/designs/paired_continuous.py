@@ -39,7 +39,7 @@ class PairedContinuous(DesignSpec):
         if data.counts is None:
             shape = assess({f"{first} - {second}": diff})
             halves = assess({first: a, second: b})
-            prepared.samples = {first: a.tolist(), second: b.tolist()}
+            prepared.samples = {first: a, second: b}
         else:
             w = data.counts
             shape = assess_weighted({f"{first} - {second}": (diff, w)})

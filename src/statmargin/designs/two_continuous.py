@@ -44,7 +44,7 @@ class TwoContinuous(DesignSpec):
         prepared = Prepared(self.design, n=int(counts.sum()), n_excluded=n_excl, groups={name: x, by: y})
         if question.counts is None:
             shape = assess({name: x, by: y})
-            prepared.samples = {name: x.tolist(), by: y.tolist()}
+            prepared.samples = {name: x, by: y}
         else:
             shape = assess_weighted({name: (x, counts), by: (y, counts)})
             prepared.samples = {name: counted_sample(x, counts), by: counted_sample(y, counts)}

@@ -355,10 +355,7 @@ def run_workbook(
     progress
         Called with a short message as each step starts.
     """
-    from ..designs.engine import run_answers
     from ..read.reader import read_table
-    from ..sheets import report
-    from ..words.explain import apply as explain_results
 
     say = progress or (lambda message, done=None, total=None: None)
     started = time.perf_counter()
@@ -378,6 +375,12 @@ def run_workbook(
         progress=lambda done, total: say(words.READING_ROWS, done=done, total=total),
         rows_to_use=plan.settings.rows,
     )
+    # Loaded after the read, not before: SciPy and pandas take ~80 MB that would
+    # otherwise sit under the read's own peak (the sheet's cells held by calamine).
+    from ..designs.engine import run_answers
+    from ..sheets import report
+    from ..words.explain import apply as explain_results
+
     floor = (min_count or DEFAULT_MIN_COUNT) if share else None
     say(console.running_on_rows(len(table.rows), hidden_rows_note(shown_count(table.n_hidden, floor),
                                                                    plan.settings.rows)))
@@ -424,20 +427,25 @@ def run_workbook(
         models = suppress(models, context.share_min_count)
     models.append(history_model)
     stages.add("report", time.perf_counter() - report_start)
+    data_sheet, rows_read, n_notes, n_hidden = table.sheet, table.n_rows_read, len(table.notes), table.n_hidden
+    changes = list(context.changes or [])
+    # The columns and every analysis's values are done with once the sheets are built;
+    # letting them go before the write keeps the run's peak memory at the analyses' level.
+    del table, answers, context
     say(console.WRITING)
     with stages.stage("write"):
         write = sink.write_sheets(models, out=str(out) if out else None)
     return RunSummary(
         path=write.path,
-        data_sheet=table.sheet,
-        rows_read=table.n_rows_read,
+        data_sheet=data_sheet,
+        rows_read=rows_read,
         results=results,
-        notes=shown_count(len(table.notes), floor),
+        notes=shown_count(n_notes, floor),
         write=write,
-        messages=[line for line in (hidden_rows_line(shown_count(table.n_hidden, floor), plan.settings.rows),)
+        messages=[line for line in (hidden_rows_line(shown_count(n_hidden, floor), plan.settings.rows),)
                   if line]
         + list(write.renamed),
-        changes=list(context.changes or []),
+        changes=changes,
     )
 
 

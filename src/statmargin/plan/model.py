@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from ..stats.categorical import DEFAULT_RESAMPLES, DEFAULT_SEED
+from ..stats.defaults import DEFAULT_RESAMPLES, DEFAULT_SEED
 from ..vocabulary import (
     AdjustFamily,
     AdjustMethod,

@@ -97,6 +97,18 @@ def format_number(value: float) -> str:
     return repr(float(value))
 
 
+def _labels_of_numbers(distinct: np.ndarray) -> np.ndarray:
+    """``format_number`` of each value, as an object array; whole numbers are done in one NumPy step.
+
+    An identifier column holds a million whole numbers, and one Python call each took about a second.
+    """
+    shown = np.empty(distinct.shape, dtype=object)
+    whole = np.isfinite(distinct) & (np.floor(distinct) == distinct) & (np.abs(distinct) < 1e15)
+    shown[whole] = distinct[whole].astype(np.int64).astype(str).astype(object)
+    shown[~whole] = [format_number(v) for v in distinct[~whole].tolist()]
+    return shown
+
+
 def _not_none(labels: np.ndarray) -> np.ndarray:
     """Mask of the entries of an object array that are not None (an elementwise C loop)."""
     # numpy's stubs reject None as an operand; at run time it compares element by element.
@@ -166,7 +178,7 @@ def category_labels(column: Column) -> np.ndarray:
     out = np.full(len(column), None, dtype=object)
     if has_number.any():
         distinct, inverse = np.unique(column.numbers[has_number], return_inverse=True)
-        shown = np.array([format_number(v) for v in distinct.tolist()], dtype=object)
+        shown = _labels_of_numbers(distinct)
         out[has_number] = shown[inverse.ravel()]
     codes, texts = _text_codes(column)
     has_text = (codes >= 0) & ~has_number

@@ -1263,7 +1263,7 @@ def sample_values(column: Column, k: int = 5) -> list[str]:
     numbers, labels = column.numbers, column.labels
     filled = len(column) - column.n_blank - column.n_unreadable
     show = _serial_date_text if column.n_dates * 2 >= max(filled, 1) else _sample_number
-    for i in range(len(column)):
+    for i in _first_occurrences(numbers, labels):
         if len(out) >= k:
             break
         label = labels[i]
@@ -1277,6 +1277,27 @@ def sample_values(column: Column, k: int = 5) -> list[str]:
             seen.add(text)
             out.append(text)
     return out
+
+
+def _first_occurrences(numbers: np.ndarray, labels: np.ndarray, head: int = 1000) -> Iterator[int]:
+    """Row numbers, in order, of each value's first appearance: every row of the first ``head``, then the rest.
+
+    A column of few distinct values (codes, a 0/1 outcome) would otherwise be
+    walked row by row to its end; past the head only first appearances are
+    visited, found by NumPy and one pass over the labels.
+    """
+    yield from range(min(head, len(numbers)))
+    if len(numbers) <= head:
+        return
+    rest_labels = labels[head:]
+    has_label = np.not_equal(rest_labels, None)  # type: ignore[call-overload]
+    number_rows = np.flatnonzero(~has_label & ~np.isnan(numbers[head:]))
+    _, first = np.unique(numbers[head:][number_rows], return_index=True)
+    label_first: dict[Any, int] = {}
+    for row, label in zip(np.flatnonzero(has_label).tolist(), rest_labels[has_label].tolist(), strict=True):
+        label_first.setdefault(label, row)
+    rows = np.concatenate([number_rows[first], np.fromiter(label_first.values(), dtype=np.intp)])
+    yield from (head + int(row) for row in np.sort(rows))
 
 
 def _serial_date_text(serial: float) -> str:

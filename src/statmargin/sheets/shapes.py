@@ -371,7 +371,7 @@ def _put_crosstab(model: SheetModel, row: int, result: Result) -> tuple[int, Cha
     return row, chart
 
 
-def bin_edges(values: Sequence[float], counts: Sequence[float] | None = None) -> np.ndarray:
+def bin_edges(values: Sequence[float] | np.ndarray, counts: Sequence[float] | np.ndarray | None = None) -> np.ndarray:
     """Shared histogram bin edges: NumPy's "auto" rule held to 8 to 15 bins.
 
     Parameters
@@ -449,9 +449,10 @@ def _put_histogram(
     labels = list(samples)
     values = {label: _values_and_counts(samples[label]) for label in labels}
     weighted = any(c is not None for _, c in values.values())
+    # One array per group, joined once: a million-row outcome stays in NumPy, never in Python floats.
     edges = bin_edges(
-        [v for label in labels for v in values[label][0]],
-        [w for label in labels for w in _counts_or_ones(*values[label])] if weighted else None,
+        np.concatenate([values[label][0] for label in labels]),
+        np.concatenate([_counts_or_ones(*values[label]) for label in labels]) if weighted else None,
     )
     model.put_row(row, ["Bin"] + labels, "header")
     bin_text = _bin_labels(edges)
@@ -459,11 +460,9 @@ def _put_histogram(
     for i, text in enumerate(bin_text):
         model.put(top + i, 0, text, "label")
     for j, label in enumerate(labels):
-        raw, weights = values[label]
-        data = np.asarray(raw, dtype=float)
+        data, weights = values[label]
         keep = np.isfinite(data)
-        counts, _ = np.histogram(data[keep], bins=edges,
-                                 weights=None if weights is None else np.asarray(weights, dtype=float)[keep])
+        counts, _ = np.histogram(data[keep], bins=edges, weights=None if weights is None else weights[keep])
         column = []
         for i, count in enumerate(counts):
             model.put(top + i, 1 + j, int(count), "integer", is_count=True)
@@ -497,15 +496,19 @@ def _put_histogram(
     return bottom_table + 2, chart
 
 
-def _values_and_counts(sample: Any) -> tuple[Sequence[float], Sequence[float] | None]:
+def _values_and_counts(sample: Any) -> tuple[np.ndarray, np.ndarray | None]:
     """A sample's values and, for counted rows (``{"values", "counts"}``), the records per value."""
     if isinstance(sample, Mapping):
-        return list(sample.get("values", [])), list(sample.get("counts", []))
-    return sample, None
+        return _floats(sample.get("values", ())), _floats(sample.get("counts", ()))
+    return _floats(sample), None
 
 
-def _counts_or_ones(values: Sequence[float], counts: Sequence[float] | None) -> Sequence[float]:
-    return counts if counts is not None else [1.0] * len(values)
+def _floats(values: Any) -> np.ndarray:
+    return np.asarray(values, dtype=float).ravel()
+
+
+def _counts_or_ones(values: np.ndarray, counts: np.ndarray | None) -> np.ndarray:
+    return counts if counts is not None else np.ones(len(values))
 
 
 def _samples_for(result: Result, context: ReportContext) -> dict[str, Any]:
@@ -514,8 +517,9 @@ def _samples_for(result: Result, context: ReportContext) -> dict[str, Any]:
         samples = result.extra.get("values")
     if not isinstance(samples, Mapping):
         return {}
+    # Arrays are passed on as they are (no copy); a million values as a list would cost ~30 MB per group.
     return {
-        str(k): (dict(v) if isinstance(v, Mapping) else list(v))
+        str(k): v
         for k, v in samples.items()
         if isinstance(v, (Sequence, np.ndarray, Mapping))
     }

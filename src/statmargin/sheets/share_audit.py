@@ -44,7 +44,6 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.linalg import qr
 
 _TOL = 1e-9
 
@@ -236,6 +235,10 @@ def _row_space(matrix: np.ndarray) -> np.ndarray:
     largest. SciPy's pivoted QR (LAPACK geqp3) reveals the rank of these small
     integer systems reliably; the test suite checks it against numpy's SVD rank.
     """
+    from scipy.linalg import (
+        qr,  # here, not at the top: a run reads its sheet before SciPy is loaded
+    )
+
     scaled = matrix / np.linalg.norm(matrix, axis=1, keepdims=True)
     q, r, _ = qr(scaled.T, mode="economic", pivoting=True)
     diagonal = np.abs(np.diag(r))

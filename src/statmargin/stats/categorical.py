@@ -19,13 +19,9 @@ from scipy.stats import contingency
 from statmargin.errors import NotEnoughDataError, OptionError
 from statmargin.results import Effect, Estimate, Result
 from statmargin.stats._common import caveat, check_confidence
+from statmargin.stats.defaults import DEFAULT_RESAMPLES, DEFAULT_SEED
 from statmargin.vocabulary import Alternative, Design, EffectKind, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Coded, Count, Derived, Note, Refusal, Skip, Subject, coded
-
-# Run-wide defaults (plan.model.Settings takes them from here): Monte Carlo p-values are
-# reproducible run to run.
-DEFAULT_SEED = 20261202
-DEFAULT_RESAMPLES = 20000
 
 # Cochran (1954) rule, common practice: the chi-square approximation is doubtful
 # when more than 20% of expected counts are below 5 or any is below 1.

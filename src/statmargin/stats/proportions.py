@@ -32,8 +32,6 @@ from statmargin.stats.aggregated import (
     summaries,
 )
 from statmargin.stats.categorical import (
-    DEFAULT_RESAMPLES,
-    DEFAULT_SEED,
     SMALL_EXPECTED,
     binomial_exact,
     chi_square_independence,
@@ -41,6 +39,7 @@ from statmargin.stats.categorical import (
     newcombe_difference_interval,
     wilson_interval,
 )
+from statmargin.stats.defaults import DEFAULT_RESAMPLES, DEFAULT_SEED
 from statmargin.vocabulary import EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Coded, Refusal, Skip, coded
 

@@ -34,12 +34,11 @@ from statmargin.stats.aggregated import (
     summaries,
 )
 from statmargin.stats.categorical import (
-    DEFAULT_RESAMPLES,
-    DEFAULT_SEED,
     SMALL_EXPECTED,
     chi_square_goodness_of_fit,
     wilson_interval,
 )
+from statmargin.stats.defaults import DEFAULT_RESAMPLES, DEFAULT_SEED
 from statmargin.vocabulary import AdjustMethod, Design, EffectKind, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Coded, Note, Reason, Refusal, Skip, coded
 

@@ -17,7 +17,7 @@ from ...sheets.model import SheetModel
 from ..protocol import WriteReport
 from .package import CONTENT_TYPES_PART, build_package, tool_sheets
 from .sink import FileSink, _sheet_names_after
-from .zipio import ZipEntry, new_entry, read_zip, write_zip
+from .zipio import ZipEntry, new_entry, read_zip
 
 _CONTENT_TYPES = (
     '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
@@ -99,6 +99,5 @@ def write_new_workbook(
     if target.exists() and not is_own_workbook(target, replace_kinds or set()):
         raise OptionError(summary_exists(str(target)))
     result = build_package(blank_package(), models)
-    blob = write_zip(result.entries)
-    FileSink(target)._replace_atomically(target, blob, {}, result, _sheet_names_after(result))
+    FileSink(target)._replace_atomically(target, {}, result, _sheet_names_after(result))
     return WriteReport(path=str(target), sheets=dict(result.sheets), renamed=[], replaced=[])

@@ -1,7 +1,7 @@
 """Write tool sheets into a workbook file, atomically, leaving the user's parts untouched.
 
-The new workbook is assembled in memory, written to a temporary file in the
-target folder, verified, and only then moved over the target with
+The new workbook is assembled entry by entry (the user's parts as their
+compressed bytes), written to a temporary file in the target folder, verified, and only then moved over the target with
 ``os.replace``. On any failure the temporary file is removed and the original
 stays byte for byte as it was. Ctrl+C and stop signals (SIGINT, SIGTERM) that
 arrive while the temporary file exists are held until it has either replaced
@@ -12,8 +12,10 @@ as it was or completely written, and no temporary file behind.
 from __future__ import annotations
 
 import hashlib
+import mmap
 import os
 import signal
+import struct
 import tempfile
 import threading
 import time
@@ -30,7 +32,7 @@ from ...words import file_messages as messages
 from ..protocol import WriteReport
 from . import guard
 from .package import PackageResult, build_package, office_document_part
-from .zipio import read_directory, read_zip, write_zip
+from .zipio import ZipEntry, entry_of, entry_span, mapped, read_directory, read_zip, write_zip_to
 
 WRITABLE_SUFFIXES = (".xlsx", ".xlsm")
 # Formats python-calamine reads but this writer cannot write into.
@@ -135,32 +137,33 @@ class FileSink:
 
         Notes
         -----
-        The check before the move reopens the new file as a zip, compares the
-        compressed bytes of every untouched part with the original, parses every
-        edited or added XML part, and opens the result with python-calamine.
+        The check before the move reopens the new file as a zip, checks the CRC
+        of every part written afresh, compares the compressed bytes of every
+        untouched part with the original, parses every edited or added XML
+        part, and opens the result with python-calamine.
         """
         out = self.check(out)
         source = self.path
         target = Path(out) if out else source
         if not models:  # nothing to write: leave the file alone
             return WriteReport(path=str(source), sheets={}, renamed=[], replaced=[])
-        blob = source.read_bytes()
-        if blob[:2] == b"PK":
-            guard.check_directory(read_directory(blob), source.name)
-        entries = read_zip(blob)
+        with mapped(source) as blob:
+            if blob[:2] == b"PK":
+                guard.check_directory(read_directory(blob), source.name)
+            entries = read_zip(blob)
         # Fingerprints taken before anything is built, so the check cannot be fooled
         # by an entry object that was changed on the way.
         fingerprints = {e.name: (_digest(e.raw), e.crc) for e in entries}
         try:
             result = build_package(entries, models)
-            new_blob = write_zip(result.entries)
         except StatmarginError:
             raise
         except (ValueError, LookupError, IndexError, ET.ParseError) as exc:
             raise WriteError(messages.could_not_add(_brief(exc))) from exc
+        del entries  # the package's entries are the ones written
 
         expected_names = _sheet_names_after(result)
-        self._replace_atomically(target, new_blob, fingerprints, result, expected_names)
+        self._replace_atomically(target, fingerprints, result, expected_names)
         return WriteReport(
             path=str(target),
             sheets=dict(result.sheets),
@@ -171,7 +174,6 @@ class FileSink:
     def _replace_atomically(
         self,
         target: Path,
-        new_blob: bytes,
         original: dict[str, tuple[bytes, int]],
         result: PackageResult,
         expected: list[str],
@@ -187,7 +189,7 @@ class FileSink:
             temp = Path(temp_name)
             try:
                 with os.fdopen(fd, "wb") as handle:
-                    handle.write(new_blob)
+                    write_zip_to(handle, result.entries)
                     handle.flush()
                     os.fsync(handle.fileno())
                 if target.exists():
@@ -341,25 +343,22 @@ def verify(
     WriteError
         If any check fails.
     """
-    blob = path.read_bytes()
     try:
         with zipfile.ZipFile(path) as archive:
-            bad = archive.testzip()
-            if bad is not None:
-                raise WriteError(messages.new_part_checksum(bad))
+            # Reading a part checks its CRC. Only the parts written afresh need it: every
+            # other part is compared below with the original's compressed bytes.
+            for name in sorted((result.edited | result.added) & set(archive.namelist())):
+                try:
+                    archive.read(name)
+                except zipfile.BadZipFile:
+                    raise WriteError(messages.new_part_checksum(name)) from None
     except zipfile.BadZipFile as exc:
         raise WriteError(messages.new_file_not_zip(_brief(exc))) from exc
-    written = {e.name: e for e in read_zip(blob)}
-    for name, (digest, crc) in original.items():
-        if name in result.removed:
-            if name in written and name not in result.added:
-                raise WriteError(messages.part_not_removed(name))
-            continue
-        if name in result.edited:
-            continue
-        copy = written.get(name)
-        if copy is None or _digest(copy.raw) != digest or copy.crc != crc:
-            raise WriteError(messages.part_changed(name))
+    try:
+        with mapped(path) as blob:
+            written = _check_copies(blob, original, result)
+    except (ValueError, struct.error, WorkbookError) as exc:
+        raise WriteError(messages.new_file_not_zip(_brief(exc))) from exc
     for name in result.edited | result.added:
         if name.endswith((".xml", ".rels")):
             try:
@@ -379,11 +378,38 @@ def verify(
         raise WriteError(messages.sheets_mismatch(names, expected_sheets))
 
 
+def _check_copies(
+    blob: bytes | mmap.mmap, original: dict[str, tuple[bytes, int]], result: PackageResult
+) -> dict[str, ZipEntry]:
+    """Compare every untouched part with the original; return the written parts the check reads.
+
+    The compressed bytes are hashed where they lie in the file (no copy), so a
+    large data sheet costs one pass of SHA-256 and no memory.
+    """
+    records = {r.name: r for r in read_directory(blob)}
+    with memoryview(blob) as view:
+        for name, (digest, crc) in original.items():
+            if name in result.removed:
+                if name in records and name not in result.added:
+                    raise WriteError(messages.part_not_removed(name))
+                continue
+            if name in result.edited:
+                continue
+            record = records.get(name)
+            if record is None or record.crc != crc:
+                raise WriteError(messages.part_changed(name))
+            start, end = entry_span(blob, record)
+            if _digest(view[start:end]) != digest:
+                raise WriteError(messages.part_changed(name))
+    wanted = result.edited | result.added | {"_rels/.rels", "xl/workbook.xml"}
+    return {name: entry_of(blob, records[name]) for name in wanted if name in records}
+
+
 def _brief(exc: BaseException) -> str:
     """An exception's text on one short line, for inclusion in a one-line message."""
     text = " ".join(str(exc).split()) or type(exc).__name__
     return text if len(text) <= 160 else text[:157] + "..."
 
 
-def _digest(data: bytes) -> bytes:
+def _digest(data: bytes | memoryview) -> bytes:
     return hashlib.sha256(data).digest()

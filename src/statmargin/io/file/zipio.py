@@ -10,11 +10,16 @@ and ``zlib``.
 
 from __future__ import annotations
 
+import io
 import mmap
+import os
 import struct
 import time
 import zlib
+from collections.abc import Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass, field
+from typing import BinaryIO
 
 from ...errors import WorkbookError, WriteError
 from ...words import file_messages as messages
@@ -40,6 +45,22 @@ _U32_MAX = 0xFFFFFFFF
 
 # The whole archive in memory, or mapped from the file without reading it.
 Buffer = bytes | mmap.mmap
+
+
+@contextmanager
+def mapped(path: str | os.PathLike[str]) -> Iterator[Buffer]:
+    """The file's bytes mapped read-only (``b""`` for an empty file, which cannot be mapped).
+
+    A mapping lets a 60 MB workbook be read entry by entry without a second
+    copy in memory; it is closed on leaving the block, so the file can be
+    replaced afterwards (Windows refuses to replace a mapped file).
+    """
+    with open(path, "rb") as handle:
+        if os.fstat(handle.fileno()).st_size == 0:
+            yield b""
+            return
+        with mmap.mmap(handle.fileno(), 0, access=mmap.ACCESS_READ) as view:
+            yield view
 
 
 @dataclass
@@ -148,13 +169,13 @@ def _dos_stamp(when: float) -> tuple[int, int]:
     return dos_time, dos_date
 
 
-def read_zip(blob: bytes) -> list[ZipEntry]:
+def read_zip(blob: Buffer) -> list[ZipEntry]:
     """Read every entry of a zip archive, keeping compressed bytes as stored.
 
     Parameters
     ----------
-    blob : bytes
-        The whole archive.
+    blob : bytes-like
+        The whole archive (``bytes`` or an ``mmap`` of the file).
 
     Returns
     -------
@@ -184,7 +205,7 @@ def read_zip(blob: bytes) -> list[ZipEntry]:
         raise WorkbookError(messages.not_zip_package())
     records = read_directory(blob)
     try:
-        return [_entry(blob, record) for record in records]
+        return [entry_of(blob, record) for record in records]
     except (struct.error, IndexError, ValueError) as exc:
         raise WorkbookError(messages.zip_damaged(" ".join(str(exc).split()))) from exc
 
@@ -295,16 +316,34 @@ def _read_directory(blob: Buffer) -> list[DirectoryRecord]:
     return records
 
 
-def _entry(blob: bytes, record: DirectoryRecord) -> ZipEntry:
-    """The entry a directory record describes, with its compressed bytes as stored."""
+def entry_span(blob: Buffer, record: DirectoryRecord) -> tuple[int, int]:
+    """Where a directory record's compressed bytes start and end in the archive.
+
+    Raises
+    ------
+    ValueError
+        If the local header is not where the directory says, or the archive is cut short.
+    """
     offset = record.local_offset
     if struct.unpack_from("<I", blob, offset)[0] != _LOCAL_SIG:
         raise ValueError(messages.zip_bad_local(record.name))
     local_name_len, local_extra_len = struct.unpack_from("<HH", blob, offset + 26)
     start = offset + 30 + local_name_len + local_extra_len
-    raw = blob[start : start + record.comp_size]
-    if len(raw) != record.comp_size:
+    if start + record.comp_size > len(blob):
         raise ValueError(messages.zip_truncated(record.name))
+    return start, start + record.comp_size
+
+
+def entry_of(blob: Buffer, record: DirectoryRecord) -> ZipEntry:
+    """The entry a directory record describes, with its compressed bytes as stored (a copy).
+
+    Raises
+    ------
+    ValueError
+        As :func:`entry_span`.
+    """
+    start, end = entry_span(blob, record)
+    raw = bytes(blob[start:end])
     return ZipEntry(
         name=record.name,
         method=record.method,
@@ -374,17 +413,27 @@ def _without_zip64(extra: bytes) -> bytes:
 
 
 def write_zip(entries: list[ZipEntry]) -> bytes:
-    """Serialise entries into a zip archive, copying each entry's compressed bytes.
-
-    Parameters
-    ----------
-    entries : list of ZipEntry
-        Entries in the order they should appear.
+    """Serialise entries into a zip archive in memory; see :func:`write_zip_to`.
 
     Returns
     -------
     bytes
         The archive.
+    """
+    buffer = io.BytesIO()
+    write_zip_to(buffer, entries)
+    return buffer.getvalue()
+
+
+def write_zip_to(handle: BinaryIO, entries: list[ZipEntry]) -> None:
+    """Write entries as a zip archive to an open file, copying each entry's compressed bytes.
+
+    Parameters
+    ----------
+    handle : binary file
+        Written from its current position, which is taken as the archive's start.
+    entries : list of ZipEntry
+        Entries in the order they should appear.
 
     Raises
     ------
@@ -395,10 +444,11 @@ def write_zip(entries: list[ZipEntry]) -> bytes:
     Notes
     -----
     Local headers carry the CRC and sizes directly, so no data descriptors are
-    written (flag bit 3 is cleared); the compressed bytes are unchanged.
+    written (flag bit 3 is cleared); the compressed bytes are unchanged. Entries
+    go straight to the file, so the archive is never held in memory a second time.
     """
     seen: set[str] = set()
-    out = bytearray()
+    written = 0
     central = bytearray()
     for entry in entries:
         if entry.name in seen:
@@ -406,7 +456,7 @@ def write_zip(entries: list[ZipEntry]) -> bytes:
         seen.add(entry.name)
         name = entry.name.encode("utf-8")
         flags = (entry.flags & ~_FLAG_DATA_DESCRIPTOR) | (0 if entry.name.isascii() else _FLAG_UTF8)
-        offset = len(out)
+        offset = written
         if max(offset, len(entry.raw), entry.size) >= _U32_MAX:
             raise WriteError(messages.too_large_to_write())
         version = 20
@@ -423,19 +473,19 @@ def write_zip(entries: list[ZipEntry]) -> bytes:
             len(name),
             len(entry.extra),
         )
-        out += struct.pack("<IHHHHHIIIHH", _LOCAL_SIG, *shared)
-        out += name + entry.extra + entry.raw
+        header = struct.pack("<IHHHHHIIIHH", _LOCAL_SIG, *shared) + name + entry.extra
+        handle.write(header)
+        handle.write(entry.raw)
+        written += len(header) + len(entry.raw)
         made_by = (3 << 8) | version if entry.external_attr >> 16 else version
         # Then: comment length, disk number, internal attributes, external attributes, offset.
         central += struct.pack(
             "<IHHHHHHIIIHHHHHII", _CENTRAL_SIG, made_by, *shared, 0, 0, 0, entry.external_attr, offset
         )
         central += name + entry.extra
-    if len(entries) >= _U16_MAX or len(out) + len(central) >= _U32_MAX:
+    if len(entries) >= _U16_MAX or written + len(central) >= _U32_MAX:
         raise WriteError(messages.too_many_parts_to_write())
-    cd_offset = len(out)
-    out += central
-    out += struct.pack(
-        "<IHHHHIIH", _EOCD_SIG, 0, 0, len(entries), len(entries), len(central), cd_offset, 0
-    )
-    return bytes(out)
+    handle.write(bytes(central))
+    handle.write(struct.pack(
+        "<IHHHHIIH", _EOCD_SIG, 0, 0, len(entries), len(entries), len(central), written, 0
+    ))
