@@ -412,6 +412,31 @@ def test_the_reader_and_jobs_do_not_import_the_file_back_end() -> None:
     assert shown.stdout.strip() == "[]"
 
 
+def test_a_run_reads_its_sheet_before_loading_the_statistics_libraries(tmp_path: Path) -> None:
+    """SciPy and pandas (~80 MB) are loaded after the data sheet is read, so they do not add to the read's peak."""
+    import shutil
+    from importlib import resources
+
+    book = tmp_path / "inspections.xlsx"
+    with resources.as_file(resources.files("statmargin.data") / "inspections_demo.xlsx") as demo:
+        shutil.copyfile(demo, book)
+    code = (
+        "import sys\n"
+        "from statmargin.read import reader\n"
+        "from statmargin.jobs.workbook import run_workbook\n"
+        "seen = []\n"
+        "real = reader.read_table\n"
+        "def spy(*args, **kwargs):\n"
+        "    seen.append(sorted(m for m in ('scipy', 'pandas', 'statsmodels') if m in sys.modules))\n"
+        "    return real(*args, **kwargs)\n"
+        "reader.read_table = spy\n"
+        f"run_workbook({str(book)!r})\n"
+        "print(seen)\n"
+    )
+    shown = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert shown.stdout.strip() == "[[]]"
+
+
 # ----------------------------------------------------------------------------- jobs through memory
 
 
