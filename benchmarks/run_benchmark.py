@@ -281,7 +281,7 @@ def _spread(values: list[float]) -> str:
 
 
 STAGE_ORDER = ["open", "read", "read.load", "read.scan", "read.scan wait", "read.convert", "types", "analyses",
-               "follow-ups", "report", "write"]
+               "follow-ups", "report", "write", "write.render"]
 
 
 def stage_medians(step: Step) -> dict[str, float]:
@@ -330,10 +330,16 @@ def table(rows: int, file_mib: float, reps: int, steps: list[Step], notes: list[
     if run is not None and run.splits:
         split = stage_medians(run)
         copy_t = _median(by["copy"].times)
+        # Building the tool's sheets is the report's models plus rendering them to sheet XML,
+        # which happens inside the write step (its "write.render" part). Both readings are shown.
+        render = split.get("write.render", 0.0)
         write = split.get("write", float("nan"))
-        build = split.get("report", float("nan"))
-        lines += ["", f"Write step {write:.2f} s against copy {copy_t:.2f} s + report build {build:.2f} s: "
-                      f"{write / (copy_t + build):.2f}x (target <= 1.2x)."]
+        report = split.get("report", float("nan"))
+        lines += ["", f"Write step {write:.2f} s against copy {copy_t:.2f} s + report build {report:.2f} s: "
+                      f"{write / (copy_t + report):.2f}x (target <= 1.2x). Counting the rendering of the sheets' "
+                      f"XML ({render:.2f} s, inside the write step) as building them: write-back "
+                      f"{write - render:.2f} s against {copy_t + report + render:.2f} s, "
+                      f"{(write - render) / (copy_t + report + render):.2f}x."]
     for s in steps:
         if not s.splits or s.name.startswith("read"):
             continue

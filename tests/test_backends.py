@@ -412,7 +412,11 @@ def test_the_reader_and_jobs_do_not_import_the_file_back_end() -> None:
     assert shown.stdout.strip() == "[]"
 
 
-def test_a_run_reads_its_sheet_before_loading_the_statistics_libraries(tmp_path: Path) -> None:
+@pytest.mark.parametrize("job", [
+    "from statmargin.jobs.workbook import run_workbook as job; job(BOOK)",
+    "from statmargin.jobs.question import test_workbook as job; job(BOOK, outcome=['Score'], by=['District'])",
+])
+def test_a_run_reads_its_sheet_before_loading_the_statistics_libraries(tmp_path: Path, job: str) -> None:
     """SciPy and pandas (~80 MB) are loaded after the data sheet is read, so they do not add to the read's peak."""
     import shutil
     from importlib import resources
@@ -423,14 +427,14 @@ def test_a_run_reads_its_sheet_before_loading_the_statistics_libraries(tmp_path:
     code = (
         "import sys\n"
         "from statmargin.read import reader\n"
-        "from statmargin.jobs.workbook import run_workbook\n"
         "seen = []\n"
         "real = reader.read_table\n"
         "def spy(*args, **kwargs):\n"
         "    seen.append(sorted(m for m in ('scipy', 'pandas', 'statsmodels') if m in sys.modules))\n"
         "    return real(*args, **kwargs)\n"
         "reader.read_table = spy\n"
-        f"run_workbook({str(book)!r})\n"
+        f"BOOK = {str(book)!r}\n"
+        f"{job}\n"
         "print(seen)\n"
     )
     shown = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)

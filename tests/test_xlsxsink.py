@@ -282,6 +282,25 @@ class TestSafety:
         assert rich.read_bytes() == original
         assert not [p for p in rich.parent.iterdir() if p.name.startswith(xlsxsink.TEMP_PREFIX)]
 
+    def test_a_written_part_that_is_not_well_formed_leaves_original(self, rich: Path, monkeypatch) -> None:
+        """A new sheet's XML that does not parse (its CRC intact) is refused by the check before the move."""
+        from statmargin.io.file.zipio import new_entry
+
+        original = rich.read_bytes()
+        real_write = xlsxsink.write_zip_to
+
+        def malformed(handle, entries):  # noqa: ANN001, ANN202
+            broken = [new_entry(e.name, e.data()[:-12]) if e.name.startswith("xl/worksheets/") and
+                      e.name.endswith(".xml") and e.name not in original_names else e for e in entries]
+            return real_write(handle, broken)
+
+        original_names = {e.name for e in read_zip(original)}
+        monkeypatch.setattr(xlsxsink, "write_zip_to", malformed)
+        with pytest.raises(WriteError, match="not well-formed XML"):
+            FileSink(rich).write_sheets(sample_tool_models())
+        assert rich.read_bytes() == original
+        assert not [p for p in rich.parent.iterdir() if p.name.startswith(xlsxsink.TEMP_PREFIX)]
+
     @pytest.mark.parametrize("lock_name", ["~$visits.xlsx", ".~lock.visits.xlsx#"])
     def test_lock_file_is_refused(self, rich: Path, lock_name: str) -> None:
         """An Excel or LibreOffice lock file beside the workbook makes the write refuse."""

@@ -88,7 +88,6 @@ def test_workbook(
     TestSummary
         The sheet read and the results, with readings and cautions.
     """
-    from ..designs.engine import run_plan
     from ..options import make_settings, plan_from_options
     from ..read.reader import read_table
     from ..sheets.share import DEFAULT_MIN_COUNT, suppress
@@ -111,6 +110,10 @@ def test_workbook(
         # Only the columns the question names are read into memory.
         table = read_table(path, sheet=sheet, source=source, columns=used_columns(plan),
                            progress=lambda done, total: say(progress_words.READING_ROWS, done=done, total=total))
+        from ..designs.engine import (
+            run_plan,  # after the read: SciPy and pandas do not sit under its peak
+        )
+
         results = run_plan(table, plan, progress=lambda done, total: say(console.RUNNING, done=done, total=total))
         family = count_comparisons(results)
         if share:

@@ -23,6 +23,7 @@ import xml.etree.ElementTree as ET
 from collections.abc import Set as AbstractSet
 from dataclasses import dataclass, field
 
+from ... import stages
 from ...errors import WorkbookError, WriteError
 from ...sheets.layout import print_names
 from ...sheets.model import SheetModel
@@ -436,14 +437,15 @@ def build_package(entries: list[ZipEntry], models: list[SheetModel]) -> PackageR
             added[rels_part_for(sheet_part)] = _rels_xml(
                 [("rId1", REL_DRAWING, "../drawings/" + posixpath.basename(drawing_part))]
             )
-        added[sheet_part] = sheetxml.render_sheet(
-            model,
-            style_map,
-            kind_to_name,
-            drawing_rel_id=drawing_rel,
-            date1904=date1904,
-            on_note=notes.append,
-        )
+        with stages.stage("write.render"):  # building the sheets' XML, apart from copying the user's parts
+            added[sheet_part] = sheetxml.render_sheet(
+                model,
+                style_map,
+                kind_to_name,
+                drawing_rel_id=drawing_rel,
+                date1904=date1904,
+                on_note=notes.append,
+            )
         overrides.append(("/" + sheet_part, CT_WORKSHEET))
         rel_id = _fresh_rel_id(used_rel_ids)
         new_wb_rels.append((rel_id, REL_WORKSHEET, posixpath.relpath(sheet_part, wb_dir or ".")))

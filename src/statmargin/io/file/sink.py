@@ -25,6 +25,7 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
 from types import FrameType
+from xml.parsers.expat import ExpatError, ParserCreate
 
 from ...errors import StatmarginError, WorkbookError, WorkbookLockedError, WriteError
 from ...sheets.model import SheetModel
@@ -362,8 +363,8 @@ def verify(
     for name in result.edited | result.added:
         if name.endswith((".xml", ".rels")):
             try:
-                ET.fromstring(written[name].data())
-            except (ET.ParseError, LookupError, ValueError) as exc:
+                _well_formed(written[name].data())
+            except (ExpatError, LookupError, ValueError) as exc:
                 raise WriteError(messages.part_not_well_formed(name, _brief(exc))) from exc
     office_document_part(written)
     try:
@@ -403,6 +404,11 @@ def _check_copies(
                 raise WriteError(messages.part_changed(name))
     wanted = result.edited | result.added | {"_rels/.rels", "xl/workbook.xml"}
     return {name: entry_of(blob, records[name]) for name in wanted if name in records}
+
+
+def _well_formed(data: bytes) -> None:
+    """Raise ``ExpatError`` unless the bytes are well-formed XML (expat alone: no tree is built)."""
+    ParserCreate().Parse(data, True)
 
 
 def _brief(exc: BaseException) -> str:
