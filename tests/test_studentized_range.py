@@ -1,4 +1,4 @@
-"""The studentized range quantile by secant steps against SciPy's bracketing ``ppf``."""
+"""The studentized range: quantiles by secant steps, and the tail and CDF by quadrature over the scale, against SciPy."""
 
 from __future__ import annotations
 
@@ -7,7 +7,11 @@ import math
 import pytest
 from scipy import stats
 
-from statmargin.stats.studentized_range import studentized_range_ppf
+from statmargin.stats.studentized_range import (
+    studentized_range_cdf,
+    studentized_range_ppf,
+    studentized_range_sf,
+)
 
 
 @pytest.mark.parametrize(("p", "k", "df"), [
@@ -29,3 +33,28 @@ def test_quantile_inverts_the_cdf() -> None:
     """The CDF at the quantile gives back the probability (SciPy's CDF, to its 1e-11 integration error)."""
     q = studentized_range_ppf(0.95, 12, 8_000.0)
     assert abs(float(stats.studentized_range.cdf(q, 12, 8_000.0)) - 0.95) < 1e-10
+
+
+@pytest.mark.parametrize("df", [50.0, 137.5, 1_000.0, 16_000.0, 99_999.0])
+@pytest.mark.parametrize("q", [0.3, 1.5, 2.77, 4.0, 6.5, 9.0])
+def test_two_group_tail_equals_the_t_identity(df: float, q: float) -> None:
+    """With two groups Q = sqrt(2) |T| exactly, so P(Q > q) = 2 P(T > q / sqrt(2)) (scipy.stats.t as reference)."""
+    exact = 2.0 * float(stats.t.sf(q / math.sqrt(2.0), df))
+    assert abs(studentized_range_sf(q, 2, df) - exact) < 1e-14
+    assert abs(studentized_range_cdf(q, 2, df) - (1.0 - exact)) < 1e-14
+
+
+@pytest.mark.parametrize("k", [3, 5, 12, 40])
+@pytest.mark.parametrize("df", [50.0, 420.0, 7_500.0, 60_000.0])
+def test_tail_and_cdf_equal_scipy(k: int, df: float) -> None:
+    """Over the range of p a follow-up meets, equal to SciPy's double integral within its own ~1e-11 error."""
+    for p in (0.001, 0.05, 0.5, 0.9, 0.99, 0.9999):
+        q = float(stats.studentized_range.ppf(p, k, df))
+        assert abs(studentized_range_sf(q, k, df) - float(stats.studentized_range.sf(q, k, df))) < 2e-10
+        assert abs(studentized_range_cdf(q, k, df) - float(stats.studentized_range.cdf(q, k, df))) < 2e-10
+
+
+def test_outside_the_quadrature_range_it_is_scipy() -> None:
+    """Below df 50 and from df 100,000 the values are SciPy's own."""
+    for df in (4.0, 49.0, 100_000.0, 1e7):
+        assert studentized_range_sf(3.2, 4, df) == float(stats.studentized_range.sf(3.2, 4, df))

@@ -29,7 +29,7 @@ from statmargin.stats._common import (
 )
 from statmargin.stats.adjust import adjust_p, matched_levels
 from statmargin.stats.categorical import _count_table
-from statmargin.stats.studentized_range import studentized_range_ppf
+from statmargin.stats.studentized_range import studentized_range_ppf, studentized_range_sf
 from statmargin.vocabulary import AdjustMethod, EstimateKind, PMethod, Test
 from statmargin.vocabulary.codes import Count, Skip, coded
 
@@ -212,7 +212,7 @@ def tukey_hsd_of_summaries(summaries: list[Summary], *, confidence: float = 0.95
         diff = mean_a - mean_b
         se = math.sqrt(mse / 2.0 * (1.0 / n_a + 1.0 / n_b))
         q = abs(diff) / se
-        p_adj = float(np.clip(stats.studentized_range.sf(q, k, df), 0.0, 1.0))
+        p_adj = float(np.clip(studentized_range_sf(q, k, df), 0.0, 1.0))
         out.append(_interval_followup(Test.TUKEY_HSD, a, b, diff, q_crit * se, p_adj, q, alpha))
     return out
 
@@ -293,7 +293,7 @@ def games_howell_of_summaries(summaries: list[Summary], *, confidence: float = 0
         df = (wa + wb) ** 2 / (wa**2 / (n_a - 1) + wb**2 / (n_b - 1))
         diff = mean_a - mean_b
         t = diff / se
-        p_adj = float(np.clip(stats.studentized_range.sf(abs(t) * math.sqrt(2.0), k, df), 0.0, 1.0))
+        p_adj = float(np.clip(studentized_range_sf(abs(t) * math.sqrt(2.0), k, df), 0.0, 1.0))
         half = studentized_range_ppf(confidence, k, df) / math.sqrt(2.0) * se
         out.append(_interval_followup(Test.GAMES_HOWELL, a, b, diff, half, p_adj, t, alpha))
     return out
