@@ -364,6 +364,16 @@ def table(rows: int, file_mib: float, reps: int, steps: list[Step], notes: list[
 # ---------------------------------------------------------------- main
 
 
+def _commit_of(src: str) -> str:
+    """ ", commit abc1234" when the tree is in a git checkout, else nothing."""
+    try:
+        found = subprocess.run(["git", "-C", src, "rev-parse", "--short", "HEAD"], capture_output=True,
+                               text=True, check=True)
+    except (OSError, subprocess.CalledProcessError):
+        return ""
+    return f", commit {found.stdout.strip()}"
+
+
 def main() -> None:
     if len(sys.argv) > 1 and sys.argv[1] == "_cli":
         cli_child(sys.argv[2:])
@@ -406,6 +416,8 @@ def main() -> None:
                         else step.failed
                     print(f"  {rows:>9,} rows  rep {rep + 1}/{args.reps}  {step.name:<24} {shown}", flush=True)
         notes = [f"Machine: {about}."]
+        if args.before:
+            notes.append(f"Steps marked [before] ran the source tree {args.before}{_commit_of(args.before)}.")
         if args.kw_stand_in:
             notes.append("Measured with `--kw-stand-in`: the Kruskal-Wallis effect-size interval was not "
                          "computed in `run` (its bootstrap is being replaced); `test (rank)` always computes it, "

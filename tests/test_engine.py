@@ -203,6 +203,17 @@ class TestEngineBehaviour:
         assert both[i1].p_adjusted == pytest.approx(min(1.0, 2 * p1))
         assert both[i2].p_adjusted == pytest.approx(max(min(1.0, 2 * p1), p2))
 
+    def test_one_sample_row_carries_quartiles_range_and_shape(self):
+        """The one-sample summary row holds the quartiles, range and shape check too (NumPy and SciPy as reference)."""
+        x = data("plantgrowth_weight_by_group")["weight"].to_numpy(dtype=float)
+        r = only(analyze(pd.DataFrame({"weight": x}), outcome="weight", against=5.0))
+        (g,) = r.groups
+        assert (g["n"], g["min"], g["max"]) == (30, x.min(), x.max())
+        assert (g["q1"], g["q3"]) == pytest.approx((np.percentile(x, 25), np.percentile(x, 75)), rel=1e-12)
+        assert g["skewness"] == pytest.approx(stats.skew(x, bias=False), rel=1e-10)
+        assert g["check_p"] == pytest.approx(stats.shapiro(x).pvalue, rel=1e-10)
+        assert g["mean"] == pytest.approx(x.mean(), rel=1e-14)
+
     def test_text_cell_excluded_and_counted(self):
         """A text cell in a numeric outcome is left out and counted in n_excluded."""
         frame = data("sleep_extra_by_group").astype({"group": str}).astype({"extra": object})

@@ -46,6 +46,8 @@ def test_two_group_tail_equals_the_t_identity(df: float, q: float) -> None:
 
 @pytest.mark.parametrize("k", [3, 5, 12, 40])
 @pytest.mark.parametrize("df", [50.0, 420.0, 7_500.0, 60_000.0])
+# SciPy's reference double integral warns of slow convergence at some of these points; its values still agree.
+@pytest.mark.filterwarnings("ignore::scipy.integrate.IntegrationWarning")
 def test_tail_and_cdf_equal_scipy(k: int, df: float) -> None:
     """Over the range of p a follow-up meets, equal to SciPy's double integral within its own ~1e-11 error."""
     for p in (0.001, 0.05, 0.5, 0.9, 0.99, 0.9999):

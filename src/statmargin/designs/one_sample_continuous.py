@@ -74,3 +74,7 @@ class OneSampleContinuous(DesignSpec):
 
     def decorate(self, result: Result, question: Question, prepared: Prepared) -> None:
         result.against = prepared.extra["mu"]
+        # The method labels its one sample "all", the shape check by the column's name: one sample,
+        # so one row carries both (quartiles, range and shape beside the mean and median).
+        if len(result.groups) == 1 and len(prepared.summaries) == 1:
+            result.groups = [{**prepared.summaries[0], **result.groups[0]}]
