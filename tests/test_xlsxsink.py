@@ -277,7 +277,7 @@ class TestSafety:
             return real_write(handle, entries)
 
         monkeypatch.setattr(xlsxsink, "write_zip_to", damaging)
-        with pytest.raises(WriteError):
+        with pytest.raises(WriteError, match="xl/theme/theme1.xml changed while copying"):
             FileSink(rich).write_sheets(sample_tool_models())
         assert rich.read_bytes() == original
         assert not [p for p in rich.parent.iterdir() if p.name.startswith(xlsxsink.TEMP_PREFIX)]

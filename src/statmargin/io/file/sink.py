@@ -1,12 +1,13 @@
 """Write tool sheets into a workbook file, atomically, leaving the user's parts untouched.
 
 The new workbook is assembled entry by entry (the user's parts as their
-compressed bytes), written to a temporary file in the target folder, verified, and only then moved over the target with
-``os.replace``. On any failure the temporary file is removed and the original
-stays byte for byte as it was. Ctrl+C and stop signals (SIGINT, SIGTERM) that
-arrive while the temporary file exists are held until it has either replaced
-the target or been removed, so an interrupted run leaves the workbook either
-as it was or completely written, and no temporary file behind.
+compressed bytes), written to a temporary file in the target folder,
+verified, and only then moved over the target with ``os.replace``. On any
+failure the temporary file is removed and the original stays byte for byte
+as it was. Ctrl+C and stop signals (SIGINT, SIGTERM) that arrive while the
+temporary file exists are held until it has either replaced the target or
+been removed, so an interrupted run leaves the workbook either as it was or
+completely written, and no temporary file behind.
 """
 
 from __future__ import annotations
