@@ -279,6 +279,11 @@ def _cell_xml(
     head = f'<c r="{ref}" s="{style}"'
     if value is None:
         return head + "/>"
+    # Most cells are text or floats: skip the ABC checks below, which cost more than the text.
+    if type(value) is str:
+        return _text_xml(head, value, sheet, ref, on_note)
+    if type(value) is float:
+        return _number_xml(head, value, sheet, ref, on_note)
     if isinstance(value, bool) or type(value).__name__ == "bool_":
         return head + f' t="b"><v>{int(bool(value))}</v></c>'
     if isinstance(value, numbers.Integral) and abs(int(value)) > 2**53:
@@ -287,14 +292,7 @@ def _cell_xml(
     if isinstance(value, numbers.Integral):
         return head + f"><v>{int(value)}</v></c>"
     if _is_number(value):
-        number = float(value)
-        if math.isnan(number):
-            if on_note:
-                on_note(messages.missing_number_left_empty(f"{sheet}!{ref}"))
-            return head + "/>"
-        if math.isinf(number):
-            return _string_cell(head, "inf" if number > 0 else "-inf")
-        return head + f"><v>{_number_text(number)}</v></c>"
+        return _number_xml(head, float(value), sheet, ref, on_note)
     if isinstance(value, dt.datetime | dt.date):
         moment = (
             value
@@ -306,7 +304,23 @@ def _cell_xml(
         epoch = _EXCEL_EPOCH_1904 if date1904 else _EXCEL_EPOCH
         serial = (moment - epoch).total_seconds() / 86400.0
         return head + f"><v>{_number_text(serial)}</v></c>"
-    text = clean_text(str(value))
+    return _text_xml(head, str(value), sheet, ref, on_note)
+
+
+def _number_xml(head: str, number: float, sheet: str, ref: str, on_note: Callable[[str], None] | None) -> str:
+    """A number cell; NaN is left empty (with a note) and infinities are written as text."""
+    if math.isnan(number):
+        if on_note:
+            on_note(messages.missing_number_left_empty(f"{sheet}!{ref}"))
+        return head + "/>"
+    if math.isinf(number):
+        return _string_cell(head, "inf" if number > 0 else "-inf")
+    return head + f"><v>{_number_text(number)}</v></c>"
+
+
+def _text_xml(head: str, value: str, sheet: str, ref: str, on_note: Callable[[str], None] | None) -> str:
+    """A text cell, cut to the most a cell holds (with a note) when longer."""
+    text = clean_text(value)
     if len(text) > MAX_CELL_CHARS // 2 and _utf16_units(text) > MAX_CELL_CHARS:
         # A longer text makes spreadsheet programs refuse or "repair" the whole file.
         if on_note:
