@@ -110,9 +110,8 @@ def test_workbook(
         # Only the columns the question names are read into memory.
         table = read_table(path, sheet=sheet, source=source, columns=used_columns(plan),
                            progress=lambda done, total: say(progress_words.READING_ROWS, done=done, total=total))
-        from ..designs.engine import (
-            run_plan,  # after the read: SciPy and pandas do not sit under its peak
-        )
+        # Imported after the read: SciPy and pandas do not sit under its peak.
+        from ..designs.engine import run_plan
 
         results = run_plan(table, plan, progress=lambda done, total: say(console.RUNNING, done=done, total=total))
         family = count_comparisons(results)
