@@ -16,7 +16,7 @@ from ..plan.expand import NUMBERS, Analysis
 from ..plan.levels import infer_event
 from ..plan.model import ColumnChoice, Settings
 from ..plan.types import ColumnValues, TypeInfo, infer_type, usable_values
-from ..read.table import Column, Table
+from ..read.table import Column, Table, not_none
 from ..vocabulary import Alternative, MeasureType, ShapeHandling
 from ..words import rates_words, refusals
 
@@ -74,7 +74,7 @@ class ColumnTypes:
             mask = np.zeros(len(self.table.rows), dtype=bool)
             for column in self.table.columns.values():
                 mask |= ~np.isnan(column.numbers)
-                mask |= np.not_equal(column.labels, None)  # type: ignore[call-overload]
+                mask |= not_none(column.labels)
             self._masks["records"] = mask
         return self._masks["records"]
 

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..read.table import Column, Table
+from ..read.table import Column, Table, not_none
 from ..vocabulary import MeasureType
 from ..vocabulary.codes import Coded, Reason, coded
 from .types import infer_type
@@ -78,7 +78,7 @@ def _denominator_kind(name: str) -> Reason | None:
 
 def _numbers(column: Column) -> np.ndarray | None:
     """The column's numbers (NaN where blank) when it holds numbers 0 or more and no text."""
-    if np.not_equal(column.labels, None).any():  # type: ignore[call-overload]  # any text: not counts
+    if not_none(column.labels).any():  # any text: not counts
         return None
     finite = np.isfinite(column.numbers)
     if finite.sum() < MIN_ROWS or np.any(column.numbers[finite] < 0):

@@ -30,7 +30,7 @@ import numpy as np
 
 from .. import stages
 from ..errors import RoleError
-from ..read.table import Column
+from ..read.table import Column, not_none
 from ..vocabulary import MeasureType
 from ..words import type_words as why
 from .model import ColumnChoice
@@ -109,12 +109,6 @@ def _labels_of_numbers(distinct: np.ndarray) -> np.ndarray:
     return shown
 
 
-def _not_none(labels: np.ndarray) -> np.ndarray:
-    """Mask of the entries of an object array that are not None (an elementwise C loop)."""
-    # numpy's stubs reject None as an operand; at run time it compares element by element.
-    return np.not_equal(labels, None)  # type: ignore[call-overload]
-
-
 def _frozen(array: np.ndarray) -> np.ndarray:
     """The array made read-only, since it is shared through the column's cache."""
     array.flags.writeable = False
@@ -137,7 +131,7 @@ def _text_codes(column: Column) -> tuple[np.ndarray, list[str]]:
     labels = column.labels
     codes = np.full(labels.shape[0], -1, dtype=np.int64)
     texts: list[str] = []
-    has = _not_none(labels)
+    has = not_none(labels)
     if has.any():
         found, uniques = pd.factorize(labels[has])
         stripped = [str(u).strip() for u in uniques]
@@ -192,7 +186,7 @@ def sorted_levels(labels: np.ndarray) -> tuple[str, ...]:
     """Distinct labels, numerically when all are numbers, else alphabetically."""
     import pandas as pd
 
-    present = labels[_not_none(labels)]
+    present = labels[not_none(labels)]
     distinct = set(pd.unique(present).tolist()) if present.size else set()
     try:
         return tuple(sorted(distinct, key=float))

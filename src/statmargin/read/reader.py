@@ -61,7 +61,7 @@ from ..vocabulary import RowsToUse
 from ..words import notes_words, read_messages
 from ..words.file_messages import damaged_part_way
 from ..words.workbook_messages import no_workbook_given
-from .table import Column, DataNote, NoteKind, Table
+from .table import Column, DataNote, NoteKind, Table, not_none
 
 NOTE_CAP = 1000  # notes kept per (column, kind); the rest are summarised in one note
 BATCH_ROWS = 8192  # rows handled together; large enough to amortise per-batch work
@@ -1290,7 +1290,7 @@ def _first_occurrences(numbers: np.ndarray, labels: np.ndarray, head: int = 1000
     if len(numbers) <= head:
         return
     rest_labels = labels[head:]
-    has_label = np.not_equal(rest_labels, None)  # type: ignore[call-overload]
+    has_label = not_none(rest_labels)
     number_rows = np.flatnonzero(~has_label & ~np.isnan(numbers[head:]))
     _, first = np.unique(numbers[head:][number_rows], return_index=True)
     label_first: dict[Any, int] = {}

@@ -19,6 +19,12 @@ from ..io.addresses import column_letter
 from ..vocabulary import NoteKind
 
 
+def not_none(labels: np.ndarray) -> np.ndarray:
+    """Mask of the entries of an object array that are not None (an elementwise C loop)."""
+    # numpy's stubs reject None as an operand; at run time it compares element by element.
+    return np.not_equal(labels, None)  # type: ignore[call-overload]
+
+
 @dataclass(frozen=True)
 class DataNote:
     """One cell (or one header) that was skipped or converted, and why."""

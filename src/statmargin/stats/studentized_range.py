@@ -18,7 +18,9 @@ t-distribution identity, where it is the closer of the two.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 from numpy.polynomial.hermite_e import hermegauss
@@ -54,18 +56,20 @@ def studentized_range_sf(q: float, k: float, df: float) -> float:
     >>> abs(studentized_range_sf(4.0, 2, 300.0) - exact) < 1e-13
     True
     """
-    if not MIXTURE_MIN_DF <= df < ASYMPTOTIC_DF:
-        return float(stats.studentized_range.sf(q, k, df))
-    scale, weight = _scale_nodes(float(df))
-    return float(np.dot(weight, stats.studentized_range.sf(q * scale, k, math.inf)))
+    return _averaged(stats.studentized_range.sf, q, k, df)
 
 
 def studentized_range_cdf(q: float, k: float, df: float) -> float:
     """P(Q <= q); see :func:`studentized_range_sf` for how it is computed."""
+    return _averaged(stats.studentized_range.cdf, q, k, df)
+
+
+def _averaged(function: Callable[..., Any], q: float, k: float, df: float) -> float:
+    """SciPy's ``function(q, k, df)``, or its infinite-df values averaged over the scale S in the quadrature's range."""
     if not MIXTURE_MIN_DF <= df < ASYMPTOTIC_DF:
-        return float(stats.studentized_range.cdf(q, k, df))
+        return float(function(q, k, df))
     scale, weight = _scale_nodes(float(df))
-    return float(np.dot(weight, stats.studentized_range.cdf(q * scale, k, math.inf)))
+    return float(np.dot(weight, function(q * scale, k, math.inf)))
 
 
 @lru_cache(maxsize=256)

@@ -13,7 +13,6 @@ completely written, and no temporary file behind.
 from __future__ import annotations
 
 import hashlib
-import mmap
 import os
 import signal
 import struct
@@ -34,7 +33,16 @@ from ...words import file_messages as messages
 from ..protocol import WriteReport
 from . import guard
 from .package import PackageResult, build_package, office_document_part
-from .zipio import ZipEntry, entry_of, entry_span, mapped, read_directory, read_zip, write_zip_to
+from .zipio import (
+    Buffer,
+    ZipEntry,
+    entry_of,
+    entry_span,
+    mapped,
+    read_directory,
+    read_zip,
+    write_zip_to,
+)
 
 WRITABLE_SUFFIXES = (".xlsx", ".xlsm")
 # Formats python-calamine reads but this writer cannot write into.
@@ -347,13 +355,10 @@ def verify(
     """
     try:
         with zipfile.ZipFile(path) as archive:
-            # Reading a part checks its CRC. Only the parts written afresh need it: every
+            # Only the parts written afresh are unpacked (reading checks their CRC); every
             # other part is compared below with the original's compressed bytes.
-            for name in sorted((result.edited | result.added) & set(archive.namelist())):
-                try:
-                    archive.read(name)
-                except zipfile.BadZipFile:
-                    raise WriteError(messages.new_part_checksum(name)) from None
+            for name in sorted(result.edited | result.added):
+                _check_new_part(archive, name)
     except zipfile.BadZipFile as exc:
         raise WriteError(messages.new_file_not_zip(_brief(exc))) from exc
     try:
@@ -361,12 +366,6 @@ def verify(
             written = _check_copies(blob, original, result)
     except (ValueError, struct.error, WorkbookError) as exc:
         raise WriteError(messages.new_file_not_zip(_brief(exc))) from exc
-    for name in result.edited | result.added:
-        if name.endswith((".xml", ".rels")):
-            try:
-                _well_formed(written[name].data())
-            except (ExpatError, LookupError, ValueError) as exc:
-                raise WriteError(messages.part_not_well_formed(name, _brief(exc))) from exc
     office_document_part(written)
     try:
         import python_calamine
@@ -380,10 +379,25 @@ def verify(
         raise WriteError(messages.sheets_mismatch(names, expected_sheets))
 
 
+def _check_new_part(archive: zipfile.ZipFile, name: str) -> None:
+    """A part written afresh is in the file, passes its CRC and, if XML, is well-formed."""
+    try:
+        data = archive.read(name)
+    except zipfile.BadZipFile:
+        raise WriteError(messages.new_part_checksum(name)) from None
+    except KeyError as exc:
+        raise WriteError(messages.part_not_well_formed(name, _brief(exc))) from exc
+    if name.endswith((".xml", ".rels")):
+        try:
+            _well_formed(data)
+        except (ExpatError, ValueError) as exc:
+            raise WriteError(messages.part_not_well_formed(name, _brief(exc))) from exc
+
+
 def _check_copies(
-    blob: bytes | mmap.mmap, original: dict[str, tuple[bytes, int]], result: PackageResult
+    blob: Buffer, original: dict[str, tuple[bytes, int]], result: PackageResult
 ) -> dict[str, ZipEntry]:
-    """Compare every untouched part with the original; return the written parts the check reads.
+    """Compare every untouched part with the original; return the parts that name the workbook part.
 
     The compressed bytes are hashed where they lie in the file (no copy), so a
     large data sheet costs one pass of SHA-256 and no memory.
@@ -403,8 +417,7 @@ def _check_copies(
             start, end = entry_span(blob, record)
             if _digest(view[start:end]) != digest:
                 raise WriteError(messages.part_changed(name))
-    wanted = result.edited | result.added | {"_rels/.rels", "xl/workbook.xml"}
-    return {name: entry_of(blob, records[name]) for name in wanted if name in records}
+    return {name: entry_of(blob, records[name]) for name in ("_rels/.rels", "xl/workbook.xml") if name in records}
 
 
 def _well_formed(data: bytes) -> None:
